@@ -1,0 +1,140 @@
+/**
+ * Drain current in every region, with the region test and its margins.
+ * `drainCurrent` is the allocation-free hot path; `operatingPoint` returns the
+ * whole picture and records its steps. Both go through `channelCurrent`.
+ */
+import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
+import type { Derivation } from "../record/derivation.js";
+import type { Amperes, AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
+import { defaultPhi, polaritySign, type Device } from "./card.js";
+import { regionOf, regionReason, type Region } from "./region.js";
+import { thresholdMagnitude } from "./threshold.js";
+import { requireFinite } from "../errors.js";
+
+/**
+ * How channel-length modulation enters: "continuous" multiplies both triode and
+ * saturation currents by (1 + λ·VDS), as SPICE Level 1 does, so ID is continuous
+ * at VDS = VOV; "saturation-only" applies it in saturation only (the textbook form).
+ */
+export type ClmMode = "continuous" | "saturation-only";
+
+export interface ModelOptions {
+  readonly clm?: ClmMode;
+}
+
+/** Terminal voltages as measured (for a PMOS these are normally negative). */
+export interface TerminalVoltages {
+  readonly vgs: Volts;
+  readonly vds: Volts;
+  /** Source-body voltage; 0 when the body is tied to the source. */
+  readonly vsb?: Volts;
+}
+
+export interface OperatingPoint {
+  readonly region: Region;
+  /** Current into the drain terminal, SPICE sign: positive for a conducting NMOS, negative for a conducting PMOS. */
+  readonly id: Amperes;
+  /** Channel current in the device's normal direction (drain→source for NMOS, source→drain for PMOS). */
+  readonly channelCurrent: Amperes;
+  /** Threshold with body effect, signed like the card's vt0. */
+  readonly vt: Volts;
+  /** Overdrive in the device's polarity: VGS − Vt (NMOS), VSG − |Vt| (PMOS). Negative in cutoff. */
+  readonly vov: Volts;
+  /** VDS − VOV in the device's polarity: ≥ 0 in saturation; the margin to the triode edge. */
+  readonly saturationMargin: Volts;
+  /** Gate-source, drain-source and source-body voltages in the device's polarity, after any source/drain swap. */
+  readonly vgsDevice: Volts;
+  readonly vdsDevice: Volts;
+  readonly vsbDevice: Volts;
+  /** True when VDS < 0 in the device's polarity, so drain and source swap roles (as in SPICE). */
+  readonly reversed: boolean;
+  readonly k: AmperesPerVoltSquared;
+  readonly reason: string;
+}
+
+/** Square-law channel current for VDS ≥ 0 in device polarity. */
+export function channelCurrent(k: number, vov: number, vds: number, lambda: number, clm: ClmMode): number {
+  if (vov <= 0) return 0;
+  if (vds < vov) {
+    const i = k * (vov - vds / 2) * vds;
+    return clm === "continuous" ? i * (1 + lambda * vds) : i;
+  }
+  return (k / 2) * vov * vov * (1 + lambda * vds);
+}
+
+/**
+ * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb. Plain numbers in,
+ * plain number out, no allocation: the form for sweeps and Monte Carlo.
+ */
+export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm: ClmMode = "continuous"): Amperes {
+  const c = dev.card;
+  const s = c.polarity === "nmos" ? 1 : -1;
+  let g = s * vgs;
+  let d = s * vds;
+  let b = s * vsb;
+  let dir = 1;
+  if (d < 0) {
+    g -= d;
+    b += d;
+    d = -d;
+    dir = -1;
+  }
+  const vt = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts);
+  return (s * dir * channelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, clm)) as Amperes;
+}
+
+/** The whole operating point at given terminal voltages, recorded step by step when `rec` is given. */
+export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+  requireFinite(bias.vgs, "bias.vgs", "a finite VGS in V");
+  requireFinite(bias.vds, "bias.vds", "a finite VDS in V");
+  if (bias.vsb !== undefined) requireFinite(bias.vsb, "bias.vsb", "a finite VSB in V");
+  const c = dev.card;
+  const pmos = c.polarity === "pmos";
+  const s = polaritySign(c);
+  const clm = opts.clm ?? "continuous";
+  const lambda = (c.lambda ?? 0) as PerVolt;
+  let g = s * bias.vgs;
+  let d = s * bias.vds;
+  let b = s * (bias.vsb ?? 0);
+  const reversed = d < 0;
+  if (reversed) {
+    g -= d;
+    b += d;
+    d = -d;
+    rec?.note("Source and drain swap", `${pmos ? "VSD" : "VDS"} < 0: the drain terminal acts as the source; voltages are taken from it and the current reverses.`);
+  }
+  const k = deviceGain.fn(c.kp, dev.w, dev.l);
+  rec?.step(deviceGain, [c.kp, dev.w, dev.l], k);
+  const vtMag = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts, rec);
+  const vov = overdrive.fn(g as Volts, vtMag);
+  rec?.step(overdrive, [g, vtMag], vov, pmos ? "PMOS: magnitudes VSG and |Vt|" : undefined);
+  const region = regionOf(vov, d);
+  const reason = regionReason(region, vov, d, pmos);
+  rec?.note(`Region: ${region}`, reason);
+  let ich = 0;
+  const vds = d as Volts;
+  if (region === "triode") {
+    if (clm === "continuous" && lambda !== 0) ich = rec ? rec.calc(triodeCurrentClm, [k, vov, vds, lambda]) : triodeCurrentClm.fn(k, vov, vds, lambda);
+    else ich = rec ? rec.calc(triodeCurrent, [k, vov, vds]) : triodeCurrent.fn(k, vov, vds);
+  } else if (region === "saturation") {
+    if (lambda !== 0) ich = rec ? rec.calc(saturationCurrentClm, [k, vov, lambda, vds]) : saturationCurrentClm.fn(k, vov, lambda, vds);
+    else ich = rec ? rec.calc(saturationCurrent, [k, vov]) : saturationCurrent.fn(k, vov);
+  } else {
+    rec?.note("Drain current in cutoff", "ID = 0 in the square-law model (subthreshold leakage is not modelled).");
+  }
+  const channel = ((reversed ? -1 : 1) * ich) as Amperes;
+  return {
+    region,
+    id: (s * channel) as Amperes,
+    channelCurrent: channel,
+    vt: (s * vtMag) as Volts,
+    vov,
+    saturationMargin: (d - vov) as Volts,
+    vgsDevice: g as Volts,
+    vdsDevice: d as Volts,
+    vsbDevice: b as Volts,
+    reversed,
+    k,
+    reason,
+  };
+}

@@ -1,0 +1,46 @@
+/**
+ * The shapes of symbols and formulas. A catalog module (`*.catalog.ts`) states
+ * each formula once, as a mathjs expression over named symbols; the generator
+ * (`generate.ts`) compiles every catalog into a plain-number function and a
+ * typeset form (`*.formulas.ts`), so the number, the recorded step and the
+ * typeset equation all come from that one expression.
+ */
+import type { Dimension } from "../quantity.js";
+
+export interface SymbolSpec {
+  /** TeX for the symbol, e.g. `V_{GS}`. */
+  readonly tex: string;
+  readonly dim: Dimension;
+  /** What the symbol means, in the trade's words. */
+  readonly meaning: string;
+}
+
+export interface FormulaSpec {
+  readonly title: string;
+  /** Symbol that the formula defines. */
+  readonly result: string;
+  /** mathjs expression over symbol names; evaluated with units in the tests. */
+  readonly expr: string;
+  /** Where the formula comes from (a paper, a textbook, a standard, or "common practice"). */
+  readonly source?: string;
+}
+
+/** A compiled formula: generated from a catalog entry, never written by hand. */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+export interface Formula<Args extends readonly number[] = any[], R extends number = number> {
+  readonly id: string;
+  readonly title: string;
+  readonly expr: string;
+  /** TeX of the whole equation, `result = rhs`. */
+  readonly tex: string;
+  readonly result: string;
+  readonly resultDim: Dimension;
+  readonly vars: readonly string[];
+  readonly dims: readonly Dimension[];
+  readonly source?: string;
+  readonly fn: (...args: Args) => R;
+}
+
+/** Identity helpers that keep literal types for the generator and the checker. */
+export const defineSymbols = <const S extends Record<string, SymbolSpec>>(s: S) => s;
+export const defineFormulas = <const F extends Record<string, FormulaSpec>>(f: F) => f;

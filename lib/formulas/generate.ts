@@ -1,0 +1,196 @@
+/**
+ * Build tool: compiles every `*.catalog.ts` in this folder into a sibling
+ * `*.formulas.ts` holding, per formula, a plain-number function, its TeX and
+ * its metadata. Run `npm run gen`; `npm run gen -- --check` fails when a
+ * generated file is stale (the test suite runs that check).
+ *
+ * mathjs is used here, at build time, so the generated code needs none.
+ */
+import { readdirSync, readFileSync, writeFileSync } from "node:fs";
+import { dirname, join } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import { parse, type MathNode } from "mathjs";
+import type { FormulaSpec, SymbolSpec } from "./define.js";
+import { dimensions, type Dimension } from "../quantity.js";
+
+const here = dirname(fileURLToPath(import.meta.url));
+
+/** Branded type name for each dimension, as exported by quantity.ts. */
+const typeOfDim: Record<Dimension, string> = {
+  voltage: "Volts",
+  current: "Amperes",
+  resistance: "Ohms",
+  conductance: "Siemens",
+  transconductanceParameter: "AmperesPerVoltSquared",
+  inverseVoltage: "PerVolt",
+  sqrtVoltage: "SqrtVolts",
+  voltagePerKelvin: "VoltsPerKelvin",
+  length: "Meters",
+  temperature: "Kelvin",
+  power: "Watts",
+  capacitance: "Farads",
+  capacitancePerArea: "FaradsPerSquareMeter",
+  mobility: "Mobility",
+  time: "Seconds",
+  inverseVoltageEfficiency: "SiemensPerAmpere",
+  dimensionless: "Ratio",
+};
+
+const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", exp: "Math.exp", log: "Math.log", abs: "Math.abs", max: "Math.max", min: "Math.min" };
+
+interface Catalog {
+  file: string;
+  symbols: Record<string, SymbolSpec>;
+  formulas: Record<string, FormulaSpec>;
+}
+
+export async function loadCatalogs(): Promise<Catalog[]> {
+  const files = readdirSync(here).filter((f) => f.endsWith(".catalog.ts")).sort();
+  const out: Catalog[] = [];
+  for (const file of files) {
+    const mod = (await import(pathToFileURL(join(here, file)).href)) as Omit<Catalog, "file">;
+    out.push({ file, symbols: mod.symbols ?? {}, formulas: mod.formulas ?? {} });
+  }
+  return out;
+}
+
+/** All symbols across catalogs; the same name must mean the same thing everywhere. */
+export function mergeSymbols(catalogs: Catalog[]): Record<string, SymbolSpec> {
+  const all: Record<string, SymbolSpec> = {};
+  for (const c of catalogs) {
+    for (const [name, spec] of Object.entries(c.symbols)) {
+      const prior = all[name];
+      if (prior && (prior.dim !== spec.dim || prior.tex !== spec.tex))
+        throw new Error(`${c.file}: symbol ${name} redefined (${prior.dim} ${prior.tex} vs ${spec.dim} ${spec.tex})`);
+      all[name] = spec;
+    }
+  }
+  return all;
+}
+
+function toJs(node: MathNode, where: string): string {
+  const n = node as MathNode & Record<string, any>;
+  switch (n.type) {
+    case "ConstantNode":
+      return String(n.value);
+    case "SymbolNode":
+      return n.name;
+    case "ParenthesisNode":
+      return `(${toJs(n.content, where)})`;
+    case "OperatorNode": {
+      const args = (n.args as MathNode[]).map((a) => toJs(a, where));
+      if (args.length === 1 && n.op === "-") return `(-${args[0]})`;
+      if (args.length === 1 && n.op === "+") return `(+${args[0]})`;
+      const op = n.op === "^" ? "**" : n.op;
+      if (!["+", "-", "*", "/", "**"].includes(op)) throw new Error(`${where}: operator ${n.op} not supported`);
+      return `(${args[0]} ${op} ${args[1]})`;
+    }
+    case "FunctionNode": {
+      const fn = mathFunctions[n.fn.name as string];
+      if (!fn) throw new Error(`${where}: function ${n.fn.name} not supported`);
+      return `${fn}(${(n.args as MathNode[]).map((a) => toJs(a, where)).join(", ")})`;
+    }
+    default:
+      throw new Error(`${where}: expression node ${n.type} not supported`);
+  }
+}
+
+/** Free symbols in order of first appearance. */
+function freeSymbols(node: MathNode): string[] {
+  const names: string[] = [];
+  node.traverse((c, _path, parent) => {
+    const s = c as MathNode & { name?: string };
+    const isFunctionName = parent && parent.type === "FunctionNode" && (parent as any).fn === c;
+    if (c.type === "SymbolNode" && !isFunctionName && !names.includes(s.name!)) names.push(s.name!);
+  });
+  return names;
+}
+
+export function texOf(expr: string, symbols: Record<string, SymbolSpec>): string {
+  return parse(expr).toTex({
+    parenthesis: "auto",
+    implicit: "hide",
+    handler: (node: MathNode) => {
+      const s = node as MathNode & { name?: string };
+      if (node.type === "SymbolNode" && s.name && symbols[s.name]) return `{${symbols[s.name]!.tex}}`;
+      return undefined;
+    },
+  } as never);
+}
+
+export function generate(c: Catalog, symbols: Record<string, SymbolSpec>): string {
+  const used = new Set<string>();
+  const blocks: string[] = [];
+  for (const [id, f] of Object.entries(c.formulas)) {
+    const where = `${c.file}: ${id}`;
+    const node = parse(f.expr);
+    const vars = freeSymbols(node);
+    const result = symbols[f.result];
+    if (!result) throw new Error(`${where}: result symbol ${f.result} is not defined`);
+    for (const v of vars) if (!symbols[v]) throw new Error(`${where}: symbol ${v} is not defined`);
+    const dims = vars.map((v) => symbols[v]!.dim);
+    const params = vars.map((v, i) => `${v}: ${typeOfDim[dims[i]!]}`).join(", ");
+    [...dims, result.dim].forEach((d) => used.add(typeOfDim[d]));
+    const tex = `${result.tex} = ${texOf(f.expr, symbols)}`;
+    blocks.push(
+      [
+        `/** ${f.title}: ${f.result} = ${f.expr} */`,
+        `export const ${id} = {`,
+        `  id: ${JSON.stringify(id)},`,
+        `  title: ${JSON.stringify(f.title)},`,
+        `  expr: ${JSON.stringify(f.expr)},`,
+        `  tex: ${JSON.stringify(tex)},`,
+        `  result: ${JSON.stringify(f.result)},`,
+        `  resultDim: ${JSON.stringify(result.dim)},`,
+        `  vars: ${JSON.stringify(vars)},`,
+        `  dims: ${JSON.stringify(dims)},`,
+        ...(f.source ? [`  source: ${JSON.stringify(f.source)},`] : []),
+        `  fn: (${params}): ${typeOfDim[result.dim]} => ${toJs(node, where)} as ${typeOfDim[result.dim]},`,
+        `} as const satisfies Formula;`,
+      ].join("\n"),
+    );
+  }
+  const names = [...used].sort();
+  return [
+    `// Generated by lib/formulas/generate.ts from ${c.file}. Do not edit; run \`npm run gen\`.`,
+    `import type { Formula } from "./define.js";`,
+    names.length ? `import type { ${names.join(", ")} } from "../quantity.js";` : "",
+    "",
+    blocks.join("\n\n"),
+    "",
+  ].join("\n");
+}
+
+async function main(): Promise<void> {
+  const check = process.argv.includes("--check");
+  const catalogs = await loadCatalogs();
+  const symbols = mergeSymbols(catalogs);
+  for (const d of Object.values(symbols)) if (!(d.dim in dimensions)) throw new Error(`unknown dimension ${d.dim}`);
+  let stale = 0;
+  for (const c of catalogs) {
+    const target = join(here, c.file.replace(/\.catalog\.ts$/, ".formulas.ts"));
+    const text = generate(c, symbols);
+    let prior = "";
+    try {
+      prior = readFileSync(target, "utf8");
+    } catch {
+      /* first generation */
+    }
+    if (prior === text) continue;
+    if (check) {
+      console.error(`stale: ${target} (run npm run gen)`);
+      stale++;
+    } else {
+      writeFileSync(target, text);
+      console.log(`wrote ${target}`);
+    }
+  }
+  if (stale) process.exit(1);
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) {
+  main().catch((e) => {
+    console.error(e instanceof Error ? e.message : e);
+    process.exit(1);
+  });
+}

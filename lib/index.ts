@@ -1,0 +1,15 @@
+/**
+ * pinchoff numeric core: plain numbers in SI units with branded types. This
+ * entry point loads no parser, typesetter or plotting library; those live in
+ * "pinchoff/units", "pinchoff/render" and "pinchoff/notebook".
+ */
+export * from "./quantity.js";
+export * from "./errors.js";
+export * from "./device/card.js";
+export * from "./device/region.js";
+export * from "./device/threshold.js";
+export * from "./device/drain-current.js";
+export { Derivation, unitOf } from "./record/derivation.js";
+export type * from "./record/derivation.js";
+export type { Formula, FormulaSpec, SymbolSpec } from "./formulas/define.js";
+export * as deviceFormulas from "./formulas/device.formulas.js";

@@ -1,0 +1,95 @@
+/**
+ * Physical dimensions and the branded number types derived from them.
+ *
+ * A quantity is a plain JavaScript number in SI base units carrying a
+ * compile-time brand, so `Volts` cannot be passed where `Amperes` is wanted
+ * and nothing is paid at run time. The table below is the single source:
+ * the types, the SI unit strings used by the parser and formatter, and the
+ * unit typeset in derivations all come from it.
+ */
+
+export const dimensions = {
+  voltage: { unit: "V", tex: "\\mathrm{V}", label: "voltage" },
+  current: { unit: "A", tex: "\\mathrm{A}", label: "current" },
+  resistance: { unit: "ohm", tex: "\\Omega", label: "resistance" },
+  conductance: { unit: "S", tex: "\\mathrm{S}", label: "conductance" },
+  /** µn·Cox or kn = µn·Cox·W/L: the square-law gain factor. */
+  transconductanceParameter: { unit: "A/V^2", tex: "\\mathrm{A/V^2}", label: "transconductance parameter" },
+  /** λ, channel-length modulation. */
+  inverseVoltage: { unit: "1/V", tex: "\\mathrm{V^{-1}}", label: "inverse voltage" },
+  /** γ, body-effect coefficient. */
+  sqrtVoltage: { unit: "V^0.5", tex: "\\sqrt{\\mathrm{V}}", label: "square-root voltage" },
+  /** Threshold temperature coefficient. */
+  voltagePerKelvin: { unit: "V/K", tex: "\\mathrm{V/K}", label: "voltage per kelvin" },
+  length: { unit: "m", tex: "\\mathrm{m}", label: "length" },
+  temperature: { unit: "K", tex: "\\mathrm{K}", label: "temperature" },
+  power: { unit: "W", tex: "\\mathrm{W}", label: "power" },
+  capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
+  /** Cox, gate capacitance per area. */
+  capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
+  mobility: { unit: "m^2/(V s)", tex: "\\mathrm{m^2/(V\\,s)}", label: "mobility" },
+  time: { unit: "s", tex: "\\mathrm{s}", label: "time" },
+  /** Transconductance efficiency gm/ID. */
+  inverseVoltageEfficiency: { unit: "S/A", tex: "\\mathrm{S/A}", label: "transconductance efficiency" },
+  dimensionless: { unit: "", tex: "", label: "dimensionless ratio" },
+} as const;
+
+export type Dimension = keyof typeof dimensions;
+
+declare const dimensionBrand: unique symbol;
+
+/** A number in SI units, branded with its dimension. */
+export type Quantity<D extends Dimension> = number & { readonly [dimensionBrand]: D };
+
+export type Volts = Quantity<"voltage">;
+export type Amperes = Quantity<"current">;
+export type Ohms = Quantity<"resistance">;
+export type Siemens = Quantity<"conductance">;
+export type AmperesPerVoltSquared = Quantity<"transconductanceParameter">;
+export type PerVolt = Quantity<"inverseVoltage">;
+export type SqrtVolts = Quantity<"sqrtVoltage">;
+export type VoltsPerKelvin = Quantity<"voltagePerKelvin">;
+export type Meters = Quantity<"length">;
+export type Kelvin = Quantity<"temperature">;
+export type Watts = Quantity<"power">;
+export type Farads = Quantity<"capacitance">;
+export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
+export type Mobility = Quantity<"mobility">;
+export type Seconds = Quantity<"time">;
+export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
+export type Ratio = Quantity<"dimensionless">;
+
+/** Brand a plain SI number; the caller vouches for the unit. */
+export const volts = (v: number) => v as Volts;
+export const amperes = (v: number) => v as Amperes;
+export const ohms = (v: number) => v as Ohms;
+export const siemens = (v: number) => v as Siemens;
+export const amperesPerVoltSquared = (v: number) => v as AmperesPerVoltSquared;
+export const perVolt = (v: number) => v as PerVolt;
+export const sqrtVolts = (v: number) => v as SqrtVolts;
+export const voltsPerKelvin = (v: number) => v as VoltsPerKelvin;
+export const meters = (v: number) => v as Meters;
+export const kelvin = (v: number) => v as Kelvin;
+export const watts = (v: number) => v as Watts;
+export const farads = (v: number) => v as Farads;
+export const seconds = (v: number) => v as Seconds;
+export const ratio = (v: number) => v as Ratio;
+
+/** Brand by dimension name, for code that is generic over dimensions. */
+export function quantity<D extends Dimension>(value: number, _dimension: D): Quantity<D> {
+  return value as Quantity<D>;
+}
+
+/** Degrees Celsius to kelvin (exact offset, ITS-90 / SI brochure). */
+export const celsius = (c: number) => (c + 273.15) as Kelvin;
+
+/** Physical constants, CODATA 2018 exact values (SI 2019 redefinition). */
+export const constants = {
+  boltzmann: 1.380649e-23, // J/K
+  elementaryCharge: 1.602176634e-19, // C
+} as const;
+
+/** Thermal voltage kT/q. */
+export function thermalVoltage(t: Kelvin): Volts {
+  return ((constants.boltzmann * t) / constants.elementaryCharge) as Volts;
+}
