@@ -6,6 +6,10 @@
  */
 import type { Formula } from "../formulas/define.js";
 import { dimensions, type Dimension } from "../quantity.js";
+import { fingerprint } from "./fingerprint.js";
+
+/** Version of the JSON form (`toJSON()`); raised when a field changes meaning or is removed. */
+export const derivationSchemaVersion = 1;
 
 export interface RecordedValue {
   readonly name: string;
@@ -62,7 +66,13 @@ export interface Finding {
 }
 
 export interface DerivationData {
+  /** `derivationSchemaVersion` of the writer; absent in hand-made data. */
+  readonly schemaVersion?: number;
+  /** SHA-256 of the canonical inputs (see ./fingerprint.ts); absent in hand-made data. */
+  readonly fingerprint?: string;
   readonly title: string;
+  /** One line under the title: the stage, the device, the scenario. */
+  readonly subtitle?: string;
   readonly inputs: readonly InputEntry[];
   readonly steps: readonly Step[];
   readonly checks: readonly CheckEntry[];
@@ -79,7 +89,20 @@ export class Derivation {
   readonly sources: string[] = [];
   readonly findings: Finding[] = [];
 
+  /** One line under the title; set it directly or with `describe`. */
+  subtitle?: string;
+
   constructor(readonly title: string) {}
+
+  describe(subtitle: string): this {
+    this.subtitle = subtitle;
+    return this;
+  }
+
+  /** SHA-256 (hex) of the canonical inputs: which inputs produced this record. */
+  fingerprint(): string {
+    return fingerprint(this);
+  }
 
   /** Record a given value (a specification, a component, a card parameter). */
   input(name: string, value: number, dim: Dimension, origin?: string, text?: string): this {
@@ -162,7 +185,10 @@ export class Derivation {
 
   toJSON(): DerivationData {
     return {
+      schemaVersion: derivationSchemaVersion,
+      fingerprint: fingerprint(this),
       title: this.title,
+      ...(this.subtitle ? { subtitle: this.subtitle } : {}),
       inputs: this.inputs,
       steps: this.steps,
       checks: this.checks,
