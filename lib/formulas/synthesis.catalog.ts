@@ -1,0 +1,101 @@
+/**
+ * Design formulas: from a stage specification to ideal component values, each
+ * stated once. As in bias.catalog.ts, V_G, V_S, V_D, V_DR and V_SR are node
+ * voltages in the device's own polarity (negated for a PMOS), so one set of
+ * equations designs both polarities. The gate divider is named by the rail each
+ * half returns to: R_G,DR to the drain-side rail (RG1 of an NMOS, RG2 of a
+ * PMOS), R_G,SR to the source-side rail.
+ */
+import { defineFormulas, defineSymbols } from "./define.js";
+
+const kcl = "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)";
+const smallSignal = "small-signal model gm, gmb, gds of the square law; nodal analysis (common practice)";
+
+export const symbols = defineSymbols({
+  // shared with device.catalog.ts / bias.catalog.ts (identical tex and dim)
+  VGS: { tex: "V_{GS}", dim: "voltage", meaning: "gate-source voltage" },
+  Vt: { tex: "V_{t}", dim: "voltage", meaning: "threshold voltage" },
+  VOV: { tex: "V_{OV}", dim: "voltage", meaning: "overdrive voltage VGS − Vt" },
+  ID: { tex: "I_{D}", dim: "current", meaning: "drain current" },
+  gm: { tex: "g_{m}", dim: "conductance", meaning: "transconductance" },
+  gmb: { tex: "g_{mb}", dim: "conductance", meaning: "body transconductance" },
+  gds: { tex: "g_{ds}", dim: "conductance", meaning: "output conductance" },
+  W: { tex: "W", dim: "length", meaning: "channel width" },
+  L: { tex: "L", dim: "length", meaning: "channel length" },
+  WL: { tex: "W/L", dim: "dimensionless", meaning: "aspect ratio" },
+  VG: { tex: "V_{G}", dim: "voltage", meaning: "gate node voltage (device polarity)" },
+  VS: { tex: "V_{S}", dim: "voltage", meaning: "source node voltage (device polarity)" },
+  VD: { tex: "V_{D}", dim: "voltage", meaning: "drain node voltage (device polarity)" },
+  VDR: { tex: "V_{DR}", dim: "voltage", meaning: "rail the drain side returns to (device polarity)" },
+  VSR: { tex: "V_{SR}", dim: "voltage", meaning: "rail the source side returns to (device polarity)" },
+  Vspan: { tex: "V_{DR}-V_{SR}", dim: "voltage", meaning: "rail-to-rail span across the stage" },
+  RD: { tex: "R_{D}", dim: "resistance", meaning: "drain resistor" },
+  RS: { tex: "R_{S}", dim: "resistance", meaning: "source resistor" },
+  Rin: { tex: "R_{in}", dim: "resistance", meaning: "small-signal input resistance" },
+  P: { tex: "P", dim: "power", meaning: "power dissipated" },
+  // design quantities
+  VRS: { tex: "V_{RS}", dim: "voltage", meaning: "voltage across the source resistor (source-voltage budget)" },
+  fRS: { tex: "f_{S}", dim: "dimensionless", meaning: "fraction of the rail span given to the source resistor" },
+  Idiv: { tex: "I_{div}", dim: "current", meaning: "gate divider current" },
+  nDiv: { tex: "n_{div}", dim: "dimensionless", meaning: "gate divider current as a fraction of the drain current" },
+  RGDR: { tex: "R_{G,DR}", dim: "resistance", meaning: "gate divider resistor to the drain-side rail" },
+  RGSR: { tex: "R_{G,SR}", dim: "resistance", meaning: "gate divider resistor to the source-side rail" },
+  AvMag: { tex: "|A_{v}|", dim: "dimensionless", meaning: "magnitude of the small-signal voltage gain" },
+  Prated: { tex: "P_{rated}", dim: "power", meaning: "rated power of a part" },
+  fDerate: { tex: "f_{derate}", dim: "dimensionless", meaning: "fraction of the rating the design may use" },
+  Pmax: { tex: "P_{max}", dim: "power", meaning: "allowed dissipation after derating" },
+});
+
+export const formulas = defineFormulas({
+  sourceDropFromFraction: {
+    title: "Source-resistor voltage as a fraction of the rail span",
+    result: "VRS",
+    expr: "fRS * Vspan",
+    source: "common practice: about a quarter to a third of the supply across RS for bias stability",
+  },
+  sourceNodeFromDrop: { title: "Source voltage from the source-resistor drop", result: "VS", expr: "VSR + VRS", source: kcl },
+  sourceResistorForDrop: { title: "Source resistor for its voltage at the drain current", result: "RS", expr: "VRS / ID", source: "Ohm's law" },
+  gateNodeForDrive: { title: "Gate voltage that gives the gate-source drive", result: "VG", expr: "VS + VGS", source: kcl },
+  midSwingDrain: {
+    title: "Drain voltage halfway between the triode edge (VG − Vt) and the drain rail",
+    result: "VD",
+    expr: "(VDR + VG - Vt) / 2",
+    source: "common practice: drain at mid-swing for the largest symmetric output",
+  },
+  drainResistorForNode: { title: "Drain resistor for a drain voltage at the drain current", result: "RD", expr: "(VDR - VD) / ID", source: "Ohm's law" },
+  drainNodeFromResistor: { title: "Drain voltage from the drain resistor", result: "VD", expr: "VDR - ID * RD", source: kcl },
+  drainResistorForGain: {
+    title: "Drain resistor for a common-source gain (source at AC ground), inverse of −gm·(RD ∥ ro)",
+    result: "RD",
+    expr: "AvMag / (gm - AvMag * gds)",
+    source: smallSignal,
+  },
+  drainResistorForDegeneratedGain: {
+    title: "Drain resistor for a gain with source degeneration, inverse of gm·RD / (1 + (gm + gmb)·RS + gds·(RD + RS))",
+    result: "RD",
+    expr: "AvMag * (1 + (gm + gmb + gds) * RS) / (gm - AvMag * gds)",
+    source: smallSignal,
+  },
+  dividerCurrentFromRatio: {
+    title: "Gate divider current as a fraction of the drain current",
+    result: "Idiv",
+    expr: "nDiv * ID",
+    source: "common practice: a divider current of about a tenth of ID",
+  },
+  dividerToDrainRail: { title: "Gate divider resistor to the drain-side rail", result: "RGDR", expr: "(VDR - VG) / Idiv", source: "Ohm's law" },
+  dividerToSourceRail: { title: "Gate divider resistor to the source-side rail", result: "RGSR", expr: "(VG - VSR) / Idiv", source: "Ohm's law" },
+  dividerToDrainRailForRin: {
+    title: "Gate divider resistor to the drain-side rail for an input resistance",
+    result: "RGDR",
+    expr: "Rin * Vspan / (VG - VSR)",
+    source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
+  },
+  dividerToSourceRailForRin: {
+    title: "Gate divider resistor to the source-side rail for an input resistance",
+    result: "RGSR",
+    expr: "Rin * Vspan / (VDR - VG)",
+    source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
+  },
+  widthForRatio: { title: "Channel width for an aspect ratio", result: "W", expr: "WL * L", source: "definition of the aspect ratio" },
+  allowedPower: { title: "Allowed dissipation after derating", result: "Pmax", expr: "Prated * fDerate", source: "common practice: derate parts below their rated power" },
+});
