@@ -1,0 +1,8 @@
+/** Plots: figure builders (pure, plain numbers in, Plotly spec out) and their emitters. */
+export * from "./figure.js";
+export { plotPoint, type PlotPoint } from "./device-view.js";
+export * from "./output-characteristics.js";
+export * from "./transfer.js";
+export * from "./transconductance.js";
+export * from "./html.js";
+export * from "./notebook.js";

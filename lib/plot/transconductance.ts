@@ -1,0 +1,116 @@
+/**
+ * gm and gm/ID against overdrive at a fixed VDS: the sizing view. Square law
+ * only, so gm/ID grows without bound as VOV → 0; the summary says so.
+ */
+import { InputError, requireNonNegative, requirePositive } from "../errors.js";
+import type { Device } from "../device/card.js";
+import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
+import { regionOf } from "../device/region.js";
+import { transconductanceEfficiency, transconductanceSat, transconductanceTriode } from "../formulas/device.formulas.js";
+import type { AmperesPerVoltSquared, Amperes, PerVolt, Siemens, Volts } from "../quantity.js";
+import { formatQuantity } from "../units/format.js";
+import { deviceView, plainSym, plotPoint, type PlotPoint } from "./device-view.js";
+import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
+
+export interface TransconductanceOptions {
+  /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
+  readonly vds?: number;
+  /** Overdrive sweep, in V; vovMin defaults to vovMax/40 (gm/ID = 2/VOV is unbounded at 0). */
+  readonly vovMin?: number;
+  readonly vovMax: number;
+  readonly points?: number;
+  readonly vsb?: number;
+  readonly clm?: ClmMode;
+  readonly operatingPoint?: PlotPoint | OperatingPoint;
+  readonly title?: string;
+}
+
+const origin = "transconductancePlot";
+
+/** gm from the catalog formula for the region (the square law's ∂ID/∂VGS). */
+function gmAt(k: number, vov: number, vds: number, lambda: number, clm: ClmMode): number {
+  const region = regionOf(vov, vds);
+  if (region === "saturation") return transconductanceSat.fn(k as AmperesPerVoltSquared, vov as Volts, lambda as PerVolt, vds as Volts);
+  if (region === "triode") return transconductanceTriode.fn(k as AmperesPerVoltSquared, vds as Volts, (clm === "continuous" ? lambda : 0) as PerVolt);
+  return 0;
+}
+
+export function transconductancePlot(dev: Device, opts: TransconductanceOptions): PlotSpec {
+  if (!opts || typeof opts !== "object") throw new InputError(opts, "options { vovMax, vds or operatingPoint, … }", origin);
+  const op = opts.operatingPoint ? plotPoint(opts.operatingPoint, `${origin}.operatingPoint`) : undefined;
+  const v = deviceView(dev, opts.vsb ?? op?.vsb ?? 0, opts.clm ?? "continuous", origin);
+  const ps = plainSym(v);
+  const vds = opts.vds ?? op?.vds;
+  if (vds === undefined) throw new InputError(vds, `a fixed ${ps.vds} in V (or an operating point to take it from)`, `${origin}.vds`);
+  requireNonNegative(vds, `${origin}.vds`, `a fixed ${ps.vds} ≥ 0 V in the device's polarity`);
+  requirePositive(opts.vovMax, `${origin}.vovMax`, "the largest overdrive to plot, > 0 V");
+  const from = opts.vovMin ?? opts.vovMax / 40;
+  requirePositive(from, `${origin}.vovMin`, "a smallest overdrive > 0 V (gm/ID = 2/VOV is unbounded at 0)");
+  const vov = sweep(from, opts.vovMax, opts.points ?? 121, origin);
+  const gm = vov.map((x) => gmAt(v.k, x, vds, v.lambda, v.clm));
+  const eff = vov.map((x, i) => transconductanceEfficiency.fn(gm[i]! as Siemens, v.current(v.vt + x, vds) as Amperes));
+  const xs = scaleFor([opts.vovMax], "voltage");
+  const ys = scaleFor(gm, "conductance");
+  const data: Trace[] = [
+    {
+      type: "scatter",
+      mode: "lines",
+      name: "g<sub>m</sub>",
+      x: scaled(vov, xs.divisor),
+      y: scaled(gm, ys.divisor),
+      line: { color: palette.curves[0]!, width: 2.2 },
+      hovertemplate: `V<sub>OV</sub> = %{x:.4g} ${xs.unit}<br>g<sub>m</sub> = %{y:.4g} ${ys.unit}<extra></extra>`,
+      meta: { role: "gm", vds },
+    },
+    {
+      type: "scatter",
+      mode: "lines",
+      name: "g<sub>m</sub>/I<sub>D</sub>",
+      x: scaled(vov, xs.divisor),
+      y: scaled(eff, 1),
+      yaxis: "y2",
+      line: { color: palette.second, width: 2.2, dash: "dash" },
+      hovertemplate: `V<sub>OV</sub> = %{x:.4g} ${xs.unit}<br>g<sub>m</sub>/I<sub>D</sub> = %{y:.4g} S/A<extra></extra>`,
+      meta: { role: "gm-over-id", vds },
+    },
+  ];
+  let opText = "";
+  if (op) {
+    const ov = op.vgs - v.vt;
+    const g = gmAt(v.k, ov, op.vds, v.lambda, v.clm);
+    if (ov > 0) {
+      const e = g / op.id;
+      const x = Number((ov / xs.divisor).toPrecision(6));
+      const marker = { color: palette.highlight, size: 11, symbol: "diamond", line: { color: "#ffffff", width: 1.5 } };
+      // One marker per axis: gm on the left axis, gm/ID on the right.
+      data.push({ type: "scatter", mode: "markers", name: `bias g<sub>m</sub> = ${formatQuantity(g, "conductance")}`, x: [x], y: [Number((g / ys.divisor).toPrecision(6))], marker, meta: { role: "operating-point", vov: ov, gm: g } });
+      data.push({ type: "scatter", mode: "markers", name: `bias g<sub>m</sub>/I<sub>D</sub> = ${formatQuantity(e, "inverseVoltageEfficiency")}`, x: [x], y: [Number(e.toPrecision(6))], yaxis: "y2", marker: { ...marker, color: palette.second }, meta: { role: "operating-point", vov: ov, gmOverId: e } });
+      opText = ` At the operating point VOV = ${formatQuantity(ov, "voltage")}: gm = ${formatQuantity(g, "conductance")}, gm/ID = ${formatQuantity(e, "inverseVoltageEfficiency")}.`;
+    }
+  }
+  const title = opts.title ?? `Transconductance and gm/ID, ${v.name}`;
+  const summary =
+    `${title}: gm and gm/ID against overdrive VOV from ${formatQuantity(from, "voltage")} to ${formatQuantity(opts.vovMax, "voltage")} at ${ps.vds} = ${formatQuantity(vds, "voltage")}` +
+    ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}). In saturation gm/ID = 2/VOV; the square law does not model weak inversion, where real devices level off, so read the low-VOV end with care.${opText}`;
+  return {
+    schema: plotSchema,
+    kind: "transconductance",
+    title,
+    summary,
+    axes: { x: axisInfo("VOV", "voltage", xs), y: axisInfo("gm", "conductance", ys), y2: axisInfo("gm/ID", "inverseVoltageEfficiency", { divisor: 1, unit: "S/A", tex: "\\mathrm{S/A}" }) },
+    figure: {
+      data,
+      layout: baseLayout(
+        title,
+        { title: { text: axisTitle("V<sub>OV</sub>", xs.unit) }, range: [0, opts.vovMax / xs.divisor] },
+        { title: { text: axisTitle("g<sub>m</sub>", ys.unit) } },
+        {
+          yaxis2: { title: { text: axisTitle("g<sub>m</sub>/I<sub>D</sub>", "S/A") }, overlaying: "y", side: "right", showgrid: false, zeroline: false, linecolor: palette.axis, ticks: "outside" },
+          margin: { l: 70, r: 70, t: 56, b: 60 },
+          legend: { orientation: "h", x: 0, y: -0.18, bgcolor: "rgba(255,255,255,0.8)" },
+        },
+      ),
+      config: baseConfig("transconductance"),
+    },
+  };
+}
