@@ -73,3 +73,12 @@ export function device(card: DeviceCard, w: Meters, l: Meters, origin = "device"
   requirePositive(l, `${origin}.l`, "a channel length L > 0 in m");
   return { card, w, l };
 }
+
+/** Validate a device built by hand (not through `device`); returns it unchanged. */
+export function checkDevice(dev: Device, origin = "device"): Device {
+  if (!dev || typeof dev !== "object") throw new InputError(dev, "a device { card, w, l }", origin);
+  checkCard(dev.card, `${origin}.card`);
+  requirePositive(dev.w, `${origin}.w`, "a channel width W > 0 in m");
+  requirePositive(dev.l, `${origin}.l`, "a channel length L > 0 in m");
+  return dev;
+}

@@ -10,6 +10,7 @@ import { defaultPhi, polaritySign, type Device } from "./card.js";
 import { regionOf, regionReason, type Region } from "./region.js";
 import { thresholdMagnitude } from "./threshold.js";
 import { requireFinite } from "../errors.js";
+import { inversion, type InversionOptions } from "./inversion.js";
 
 /**
  * How channel-length modulation enters: "continuous" multiplies both triode and
@@ -18,7 +19,8 @@ import { requireFinite } from "../errors.js";
  */
 export type ClmMode = "continuous" | "saturation-only";
 
-export interface ModelOptions {
+/** Model choices; the inversion options only affect the recorded inversion-level finding. */
+export interface ModelOptions extends InversionOptions {
   readonly clm?: ClmMode;
 }
 
@@ -121,6 +123,12 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
     else ich = rec ? rec.calc(saturationCurrent, [k, vov]) : saturationCurrent.fn(k, vov);
   } else {
     rec?.note("Drain current in cutoff", "ID = 0 in the square-law model (subthreshold leakage is not modelled).");
+  }
+  if (rec && region !== "cutoff") {
+    // The inversion level rests on the forward current ½·k·VOV² (no λ), in triode as in saturation.
+    const plainSat = region === "saturation" && lambda === 0;
+    const forward = plainSat ? (ich as Amperes) : rec.calc(saturationCurrent, [k, vov], "forward current, for the inversion level");
+    inversion(forward, k, opts, rec);
   }
   const channel = ((reversed ? -1 : 1) * ich) as Amperes;
   return {

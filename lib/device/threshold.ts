@@ -2,9 +2,15 @@
  * Threshold voltage with the body effect, Vt(VSB).
  * Works on magnitudes in the device's own polarity (see card.polaritySign).
  */
-import { bodyEffectThreshold } from "../formulas/device.formulas.js";
+import { bodyEffectThreshold, bodyEffectThresholdForward } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { SqrtVolts, Volts } from "../quantity.js";
+
+/**
+ * Forward body bias (vsb < 0) is taken no further than VSB = −2·PHI (PHI = 2φF):
+ * there the linearised root √PHI + VSB/(2√PHI) reaches zero, and SPICE Level 1 floors it.
+ */
+export const forwardBiasLimit = (phi: Volts): Volts => (-2 * phi) as Volts;
 
 /**
  * |Vt| for a source-body voltage vsb (device polarity, ≥ 0 is reverse body bias).
@@ -18,12 +24,16 @@ export function thresholdMagnitude(vt0: Volts, gamma: SqrtVolts, phi: Volts, vsb
     rec?.step(bodyEffectThreshold, [vt0, gamma, phi, vsb], vt, "source above body: body effect raises |Vt|");
     return vt;
   }
-  const sq = Math.sqrt(phi);
-  const sarg = Math.max(0, sq + vsb / (2 * sq));
-  const vt = (vt0 + gamma * (sarg - sq)) as Volts;
-  rec?.note(
-    "Threshold under forward body bias",
-    `VSB = ${vsb} V < 0: √(2φF + VSB) replaced by its linearisation √(2φF) + VSB/(2√(2φF)) as in SPICE Level 1, giving |Vt| = ${vt} V.`,
+  const floor = forwardBiasLimit(phi);
+  const v = (vsb < floor ? floor : vsb) as Volts;
+  const vt = bodyEffectThresholdForward.fn(vt0, gamma, v, phi);
+  rec?.step(
+    bodyEffectThresholdForward,
+    [vt0, gamma, v, phi],
+    vt,
+    vsb < floor
+      ? `forward body bias VSB = ${vsb} V beyond −2·PHI: the linearised root is floored at zero as in SPICE Level 1`
+      : "forward body bias: √(2φF + VSB) linearised as in SPICE Level 1",
   );
   return vt;
 }

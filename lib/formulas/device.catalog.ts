@@ -39,6 +39,8 @@ export const symbols = defineSymbols({
   UT: { tex: "U_{T}", dim: "voltage", meaning: "thermal voltage kT/q" },
   n: { tex: "n", dim: "dimensionless", meaning: "subthreshold slope factor" },
   IC: { tex: "IC", dim: "dimensionless", meaning: "inversion coefficient ID/IS" },
+  IF: { tex: "I_{F}", dim: "current", meaning: "forward (saturation-equivalent) drain current" },
+  ID0: { tex: "I_{D0}", dim: "current", meaning: "saturation current extrapolated to VDS = 0" },
 });
 
 export const formulas = defineFormulas({
@@ -51,6 +53,12 @@ export const formulas = defineFormulas({
     result: "Vt",
     expr: "Vt0 + gamma * (sqrt(phi + VSB) - sqrt(phi))",
     source: squareLaw,
+  },
+  bodyEffectThresholdForward: {
+    title: "Threshold under forward body bias (linearised)",
+    result: "Vt",
+    expr: "Vt0 + gamma * VSB / (2 * sqrt(phi))",
+    source: levelOne,
   },
   triodeCurrent: {
     title: "Drain current in triode",
@@ -113,6 +121,12 @@ export const formulas = defineFormulas({
     expr: "gm * gamma / (2 * sqrt(phi + VSB))",
     source: squareLaw,
   },
+  bodyTransconductanceForward: {
+    title: "Body transconductance under forward body bias (linearised)",
+    result: "gmb",
+    expr: "gm * gamma / (2 * (sqrt(phi) + VSB / (2 * sqrt(phi))))",
+    source: levelOne,
+  },
   outputResistance: { title: "Small-signal output resistance", result: "ro", expr: "1 / gds", source: "common practice" },
   intrinsicGain: { title: "Intrinsic gain", result: "A0", expr: "gm / gds", source: "common practice" },
   transconductanceEfficiency: { title: "Transconductance efficiency", result: "gmId", expr: "gm / ID", source: "common practice" },
@@ -156,7 +170,25 @@ export const formulas = defineFormulas({
   inversionCoefficient: {
     title: "Inversion coefficient",
     result: "IC",
-    expr: "ID / (2 * n * k * UT^2)",
+    expr: "IF / (2 * n * k * UT^2)",
     source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8, 1995 (EKV specific current)",
+  },
+  weakInversionEfficiency: {
+    title: "Transconductance efficiency in weak inversion",
+    result: "gmId",
+    expr: "1 / (n * UT)",
+    source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8, 1995 (weak-inversion limit of gm/ID)",
+  },
+  lambdaFromSlope: {
+    title: "Channel-length modulation from the saturation slope",
+    result: "lambda",
+    expr: "gds / ID0",
+    source: squareLaw,
+  },
+  processGainFromDeviceGain: {
+    title: "Process transconductance from the device value",
+    result: "kp",
+    expr: "k / WL",
+    source: squareLaw,
   },
 });

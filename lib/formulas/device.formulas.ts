@@ -72,6 +72,20 @@ export const bodyEffectThreshold = {
   fn: (Vt0: Volts, gamma: SqrtVolts, phi: Volts, VSB: Volts): Volts => (Vt0 + (gamma * ((Math.sqrt((phi + VSB)) - Math.sqrt(phi))))) as Volts,
 } as const satisfies Formula;
 
+/** Threshold under forward body bias (linearised): Vt = Vt0 + gamma * VSB / (2 * sqrt(phi)) */
+export const bodyEffectThresholdForward = {
+  id: "bodyEffectThresholdForward",
+  title: "Threshold under forward body bias (linearised)",
+  expr: "Vt0 + gamma * VSB / (2 * sqrt(phi))",
+  tex: "V_{t} = {V_{t0}}+\\frac{{\\gamma}\\cdot{V_{SB}}}{2\\cdot\\sqrt{{2\\phi_{F}}}}",
+  result: "Vt",
+  resultDim: "voltage",
+  vars: ["Vt0","gamma","VSB","phi"],
+  dims: ["voltage","sqrtVoltage","voltage","voltage"],
+  source: "SPICE Level 1 (Shichman–Hodges) as implemented in ngspice",
+  fn: (Vt0: Volts, gamma: SqrtVolts, VSB: Volts, phi: Volts): Volts => (Vt0 + ((gamma * VSB) / ((2 * Math.sqrt(phi))))) as Volts,
+} as const satisfies Formula;
+
 /** Drain current in triode: ID = k * (VOV - VDS / 2) * VDS */
 export const triodeCurrent = {
   id: "triodeCurrent",
@@ -226,6 +240,20 @@ export const bodyTransconductance = {
   fn: (gm: Siemens, gamma: SqrtVolts, phi: Volts, VSB: Volts): Siemens => ((gm * gamma) / ((2 * Math.sqrt((phi + VSB))))) as Siemens,
 } as const satisfies Formula;
 
+/** Body transconductance under forward body bias (linearised): gmb = gm * gamma / (2 * (sqrt(phi) + VSB / (2 * sqrt(phi)))) */
+export const bodyTransconductanceForward = {
+  id: "bodyTransconductanceForward",
+  title: "Body transconductance under forward body bias (linearised)",
+  expr: "gm * gamma / (2 * (sqrt(phi) + VSB / (2 * sqrt(phi))))",
+  tex: "g_{mb} = \\frac{{g_{m}}\\cdot{\\gamma}}{2\\cdot\\left(\\sqrt{{2\\phi_{F}}}+\\frac{{V_{SB}}}{2\\cdot\\sqrt{{2\\phi_{F}}}}\\right)}",
+  result: "gmb",
+  resultDim: "conductance",
+  vars: ["gm","gamma","phi","VSB"],
+  dims: ["conductance","sqrtVoltage","voltage","voltage"],
+  source: "SPICE Level 1 (Shichman–Hodges) as implemented in ngspice",
+  fn: (gm: Siemens, gamma: SqrtVolts, phi: Volts, VSB: Volts): Siemens => ((gm * gamma) / ((2 * ((Math.sqrt(phi) + (VSB / ((2 * Math.sqrt(phi))))))))) as Siemens,
+} as const satisfies Formula;
+
 /** Small-signal output resistance: ro = 1 / gds */
 export const outputResistance = {
   id: "outputResistance",
@@ -366,16 +394,58 @@ export const mobilityAtTemperature = {
   fn: (kp0: AmperesPerVoltSquared, T: Kelvin, T0: Kelvin, muExp: Ratio): AmperesPerVoltSquared => (kp0 * (((T / T0)) ** ((-muExp)))) as AmperesPerVoltSquared,
 } as const satisfies Formula;
 
-/** Inversion coefficient: IC = ID / (2 * n * k * UT^2) */
+/** Inversion coefficient: IC = IF / (2 * n * k * UT^2) */
 export const inversionCoefficient = {
   id: "inversionCoefficient",
   title: "Inversion coefficient",
-  expr: "ID / (2 * n * k * UT^2)",
-  tex: "IC = \\frac{{I_{D}}}{2\\cdot{n}\\cdot{k}\\cdot{{U_{T}}}^{2}}",
+  expr: "IF / (2 * n * k * UT^2)",
+  tex: "IC = \\frac{{I_{F}}}{2\\cdot{n}\\cdot{k}\\cdot{{U_{T}}}^{2}}",
   result: "IC",
   resultDim: "dimensionless",
-  vars: ["ID","n","k","UT"],
+  vars: ["IF","n","k","UT"],
   dims: ["current","dimensionless","transconductanceParameter","voltage"],
   source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8, 1995 (EKV specific current)",
-  fn: (ID: Amperes, n: Ratio, k: AmperesPerVoltSquared, UT: Volts): Ratio => (ID / ((((2 * n) * k) * (UT ** 2)))) as Ratio,
+  fn: (IF: Amperes, n: Ratio, k: AmperesPerVoltSquared, UT: Volts): Ratio => (IF / ((((2 * n) * k) * (UT ** 2)))) as Ratio,
+} as const satisfies Formula;
+
+/** Transconductance efficiency in weak inversion: gmId = 1 / (n * UT) */
+export const weakInversionEfficiency = {
+  id: "weakInversionEfficiency",
+  title: "Transconductance efficiency in weak inversion",
+  expr: "1 / (n * UT)",
+  tex: "g_{m}/I_{D} = \\frac{1}{{n}\\cdot{U_{T}}}",
+  result: "gmId",
+  resultDim: "inverseVoltageEfficiency",
+  vars: ["n","UT"],
+  dims: ["dimensionless","voltage"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8, 1995 (weak-inversion limit of gm/ID)",
+  fn: (n: Ratio, UT: Volts): SiemensPerAmpere => (1 / ((n * UT))) as SiemensPerAmpere,
+} as const satisfies Formula;
+
+/** Channel-length modulation from the saturation slope: lambda = gds / ID0 */
+export const lambdaFromSlope = {
+  id: "lambdaFromSlope",
+  title: "Channel-length modulation from the saturation slope",
+  expr: "gds / ID0",
+  tex: "\\lambda = \\frac{{g_{ds}}}{{I_{D0}}}",
+  result: "lambda",
+  resultDim: "inverseVoltage",
+  vars: ["gds","ID0"],
+  dims: ["conductance","current"],
+  source: "Shichman & Hodges, IEEE JSSC SC-3(3), 1968 (square law; SPICE Level 1)",
+  fn: (gds: Siemens, ID0: Amperes): PerVolt => (gds / ID0) as PerVolt,
+} as const satisfies Formula;
+
+/** Process transconductance from the device value: kp = k / WL */
+export const processGainFromDeviceGain = {
+  id: "processGainFromDeviceGain",
+  title: "Process transconductance from the device value",
+  expr: "k / WL",
+  tex: "k' = \\frac{{k}}{{W/L}}",
+  result: "kp",
+  resultDim: "transconductanceParameter",
+  vars: ["k","WL"],
+  dims: ["transconductanceParameter","dimensionless"],
+  source: "Shichman & Hodges, IEEE JSSC SC-3(3), 1968 (square law; SPICE Level 1)",
+  fn: (k: AmperesPerVoltSquared, WL: Ratio): AmperesPerVoltSquared => (k / WL) as AmperesPerVoltSquared,
 } as const satisfies Formula;
