@@ -19,7 +19,42 @@ describe("drain current", () => {
     const op = operatingPoint(m, { vgs: volts(1.1), vds: volts(0.2) }, {}, rec);
     expect(op.region).toBe("triode");
     expect(op.id).toBe(drainCurrent(m, 1.1, 0.2));
-    const last = rec.steps.filter((s) => s.kind === "formula").at(-1);
-    expect(last?.kind === "formula" && last.result.value).toBe(op.id);
+    const current = rec.steps.find((s) => s.kind === "formula" && s.formula === "triodeCurrentClm");
+    expect(current?.kind === "formula" && current.result.value).toBe(op.id);
+  });
+});
+
+describe("drain current at the triode/saturation edge (common practice)", () => {
+  const noClm = device({ ...card, lambda: perVolt(0) }, meters(10e-6), meters(1e-6));
+  it("equals ½·k·VOV² at VDS = VOV with λ = 0, from both sides", () => {
+    for (const vov of [0.05, 0.2, 0.7, 2]) {
+      const vgs = 0.5 + vov;
+      const half = 0.5 * 2e-3 * vov * vov;
+      expect(drainCurrent(noClm, vgs, vov)).toBeCloseTo(half, 15);
+      expect(Math.abs(drainCurrent(noClm, vgs, vov * (1 - 1e-9)) - half) / half).toBeLessThan(1e-8);
+    }
+  });
+  it("is continuous there with λ ≠ 0 in the SPICE form, and jumps by λ·VDS in the textbook form", () => {
+    const vov = 0.4;
+    const at = drainCurrent(m, 0.9, vov, 0, "saturation-only");
+    const below = drainCurrent(m, 0.9, vov * (1 - 1e-12), 0, "saturation-only");
+    expect((at - below) / below).toBeCloseTo(0.05 * vov, 6);
+    const cAt = drainCurrent(m, 0.9, vov);
+    const cBelow = drainCurrent(m, 0.9, vov * (1 - 1e-12));
+    expect(Math.abs(cAt - cBelow) / cAt).toBeLessThan(1e-9);
+  });
+  it("agrees with operatingPoint in both CLM modes in triode", () => {
+    for (const clm of ["continuous", "saturation-only"] as const) {
+      const op = operatingPoint(m, { vgs: volts(1.2), vds: volts(0.3) }, { clm });
+      expect(op.id).toBe(drainCurrent(m, 1.2, 0.3, 0, clm));
+    }
+  });
+});
+
+describe("operatingPoint bad input", () => {
+  it("names NaN terminal voltages", () => {
+    expect(() => operatingPoint(m, { vgs: volts(NaN), vds: volts(1) })).toThrow(/bias\.vgs.*got NaN/);
+    expect(() => operatingPoint(m, { vgs: volts(1), vds: volts(Infinity) })).toThrow(/bias\.vds/);
+    expect(() => operatingPoint(m, { vgs: volts(1), vds: volts(1), vsb: volts(NaN) })).toThrow(/bias\.vsb/);
   });
 });
