@@ -1,0 +1,53 @@
+/**
+ * What every rendering of a derivation says, in the same words: the verdict,
+ * the bound of a check, the closing cautions. The format-specific renderers
+ * only lay these out.
+ */
+import { formatQuantity, type FormatOptions } from "../units/format.js";
+import type { CheckEntry, DerivationData } from "./derivation.js";
+import { fingerprint, shortFingerprint } from "./fingerprint.js";
+
+export interface RenderOptions extends FormatOptions {
+  /** Leave out the closing cautions (a report that prints them once for several records). */
+  readonly omitCautions?: boolean;
+}
+
+/** The closing cautions every rendering carries. */
+export const cautions =
+  "Hand analysis with long-channel square-law models is approximate. Verify the design by simulation and by measurement, keep every device within its ratings, and defer to local codes and licensed engineering practice.";
+
+/** The fingerprint a record carries, or the one computed from its inputs. */
+export const fingerprintOf = (d: DerivationData): string => d.fingerprint ?? fingerprint(d);
+export const shortFingerprintOf = (d: DerivationData): string => shortFingerprint(fingerprintOf(d));
+
+export function verdict(d: DerivationData): { passed: boolean; text: string } {
+  const n = d.checks.length;
+  const failed = d.checks.filter((c) => !c.passed).length;
+  if (n === 0) return { passed: true, text: "no checks recorded" };
+  if (failed === 0) return { passed: true, text: n === 1 ? "the check passes" : `all ${n} checks pass` };
+  return { passed: false, text: `${failed} of ${n} checks fail` };
+}
+
+/** `≥ 200 mV`, `≤ 4.50 V`, `200 mV … 4.50 V`, or "recorded" when the check has no bound. */
+export function boundText(c: CheckEntry, opts: FormatOptions = {}): string {
+  const f = (v: number) => formatQuantity(v, c.dim, { ...opts, origin: `check "${c.title}" bound` });
+  if (c.min !== undefined && c.max !== undefined) return `${f(c.min)} … ${f(c.max)}`;
+  if (c.min !== undefined) return `≥ ${f(c.min)}`;
+  if (c.max !== undefined) return `≤ ${f(c.max)}`;
+  return "no bound";
+}
+
+export const valueText = (c: CheckEntry, opts: FormatOptions = {}): string => formatQuantity(c.value, c.dim, { ...opts, origin: `check "${c.title}" value` });
+
+/** Margin to the nearest bound, signed: `+120 mV` passed, `-35.0 mV` failed. */
+export function marginText(c: CheckEntry, opts: FormatOptions = {}): string {
+  if (c.min === undefined && c.max === undefined) return "—";
+  if (Number.isNaN(c.margin)) return "—";
+  const t = formatQuantity(c.margin, c.dim, { ...opts, origin: `check "${c.title}" margin` });
+  return c.margin > 0 ? `+${t}` : t;
+}
+
+export const statusText = (c: CheckEntry): string => (c.passed ? "pass" : "FAIL");
+
+export const asList = (d: DerivationData | readonly DerivationData[]): readonly DerivationData[] =>
+  Array.isArray(d) ? (d as readonly DerivationData[]) : [d as DerivationData];
