@@ -1,0 +1,40 @@
+#!/usr/bin/env node
+/**
+ * npm run demo: run the demo template (the NMOS common-source stage with a
+ * four-resistor bias) through `pinchoff run`, then print where the report is
+ * and the check summary. The demo values are the template's own, invented.
+ */
+import { join, relative } from "node:path";
+import { fileURLToPath } from "node:url";
+import { PinchoffError } from "../errors.js";
+import { packageRoot } from "../runner/paths.js";
+import { runNotebook } from "../runner/run.js";
+import { summarize } from "../runner/summary.js";
+import { listTemplates, type Template } from "../templates.js";
+
+/** The template flagged `metadata.pinchoff.demo`, else the common-source one. */
+export function demoTemplate(all: readonly Template[] = listTemplates()): Template {
+  const t = all.find((x) => /common-source/.test(x.name)) ?? all[0];
+  if (!t) throw new PinchoffError("io", "no template notebooks are installed in notebooks-templates/", "demo");
+  return t;
+}
+
+export async function main(_argv: string[] = []): Promise<number> {
+  const t = demoTemplate();
+  const outDir = join(packageRoot, "out", "demo");
+  console.log(`demo: running template ${t.name} (${t.description})`);
+  const r = await runNotebook({ notebook: t.path, outDir });
+  console.log(summarize(r, (p) => relative(process.cwd(), p) || p));
+  console.log(`\nreport: ${r.reportPath}\nopen it in a browser; it works offline.`);
+  return r.exitCode;
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  main(process.argv.slice(2)).then(
+    (code) => process.exit(code),
+    (e) => {
+      console.error(e instanceof PinchoffError ? `pinchoff demo: ${e.message}` : e);
+      process.exit(1);
+    },
+  );
+}

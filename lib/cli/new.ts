@@ -1,0 +1,34 @@
+/** pinchoff new <template> <path> [--force] */
+import { copyFileSync, constants as fsc, existsSync, mkdirSync, statSync } from "node:fs";
+import { dirname, resolve } from "node:path";
+import { parseArgs } from "node:util";
+import { InputError, PinchoffError } from "../errors.js";
+import { findTemplate } from "../templates.js";
+
+export const help = `usage: pinchoff new <template> <path.ipynb> [--force]
+
+Copies a template notebook to <path>. An existing file is never replaced
+unless --force is given. pinchoff list shows the templates.`;
+
+export async function main(argv: string[]): Promise<number> {
+  const { values, positionals } = parseArgs({ args: argv, allowPositionals: true, options: { force: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
+  if (values.help) {
+    console.log(help);
+    return 0;
+  }
+  if (positionals.length !== 2) throw new InputError(positionals.join(" ") || undefined, "a template name and a destination path", "pinchoff new");
+  const t = findTemplate(positionals[0]!);
+  let dest = resolve(positionals[1]!);
+  if (existsSync(dest) && statSync(dest).isDirectory()) dest = resolve(dest, `${t.name}.ipynb`);
+  if (existsSync(dest) && !values.force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
+  if (existsSync(dest) && !statSync(dest).isFile()) throw new PinchoffError("io", "exists and is not a file", dest);
+  try {
+    mkdirSync(dirname(dest), { recursive: true });
+    // COPYFILE_EXCL makes the no-overwrite promise hold even if the file appears meanwhile.
+    copyFileSync(t.path, dest, values.force ? 0 : fsc.COPYFILE_EXCL);
+  } catch (e) {
+    throw new PinchoffError("io", `cannot write the notebook (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, dest);
+  }
+  console.log(`created ${dest} from template ${t.name}: ${t.description}`);
+  return 0;
+}

@@ -1,0 +1,158 @@
+/**
+ * The standalone run report: one HTML file a reviewer opens offline. It holds
+ * the design inputs (overrides marked), every derivation with typeset formulas,
+ * the checks with margins, the plots, the fingerprints, the tool version, the
+ * date, the notebook path and the cautions. Every string from the notebook or
+ * the command line is escaped; scripts and styles come from installed packages.
+ */
+import escapeHtml from "escape-html";
+import type { Dimension } from "../quantity.js";
+import { formatQuantity } from "../units/format.js";
+import type { CellFailure, CheckLine, CollectedPlot } from "../runner/collect.js";
+import { katexCss as bundledKatexCss, plotlyScript } from "./assets.js";
+
+/** Marks a file as a pinchoff run report, so a later run may replace it. */
+export const reportMarker = '<meta name="generator" content="pinchoff run report">';
+
+export interface ReportInput {
+  readonly name: string;
+  readonly text: string;
+  readonly dim: Dimension;
+  readonly value: number;
+  readonly overridden: boolean;
+  readonly original?: string;
+}
+
+export interface ReportDerivation {
+  readonly title: string;
+  readonly cell: number;
+  readonly fingerprint?: string;
+  /** Rendered HTML of the derivation (from "pinchoff/render"); trusted markup. */
+  readonly html: string;
+}
+
+export interface ReportModel {
+  readonly title: string;
+  readonly notebookPath: string;
+  readonly toolVersion: string;
+  readonly date: Date;
+  readonly sourceFingerprint: string;
+  readonly inputsFingerprint: string;
+  readonly inputs: readonly ReportInput[];
+  readonly derivations: readonly ReportDerivation[];
+  readonly checks: readonly CheckLine[];
+  readonly plots: readonly CollectedPlot[];
+  readonly failures: readonly CellFailure[];
+  readonly skipped: readonly number[];
+  /** Stylesheet for typeset formulas; KaTeX's with inlined fonts unless given. */
+  readonly formulaCss?: string;
+}
+
+export const cautions = [
+  "Hand analysis with the long-channel square law is approximate: short-channel effects, mobility degradation, subthreshold conduction and temperature are not all captured.",
+  "Verify the design by simulation with the foundry or manufacturer model, and by measurement on the built circuit.",
+  "Respect the device ratings (voltages, currents, power, temperature) in the manufacturer's datasheet, with margin.",
+  "Defer to local codes, standards and licensed engineering practice where they apply; this report does not replace a qualified review.",
+];
+
+const esc = (s: unknown): string => escapeHtml(String(s));
+const q = (v: number | null | undefined, dim: Dimension): string => (typeof v === "number" && !Number.isNaN(v) ? formatQuantity(v, dim) : "—");
+
+/** JSON inside a <script type="application/json"> block: no "<" survives, so no tag can close it. */
+const jsonScript = (v: unknown): string => JSON.stringify(v).replace(/</g, "\\u003c").replace(/\u2028/g, "\\u2028").replace(/\u2029/g, "\\u2029");
+
+function bound(c: CheckLine): string {
+  const parts: string[] = [];
+  if (typeof c.min === "number") parts.push(`≥ ${q(c.min, c.dim)}`);
+  if (typeof c.max === "number") parts.push(`≤ ${q(c.max, c.dim)}`);
+  return parts.join(" and ") || "—";
+}
+
+function verdict(m: ReportModel): { cls: string; text: string } {
+  const failed = m.checks.filter((c) => !c.passed).length;
+  if (m.failures.length) return { cls: "bad", text: `Incomplete: cell ${m.failures[0]!.cell + 1} failed${m.skipped.length ? `, ${m.skipped.length} later cell(s) not run` : ""}` };
+  if (failed) return { cls: "bad", text: `${failed} of ${m.checks.length} checks fail` };
+  if (!m.checks.length) return { cls: "none", text: "No checks were recorded" };
+  return { cls: "good", text: `All ${m.checks.length} checks pass` };
+}
+
+const style = `
+:root{--ink:#1d2430;--muted:#5b6472;--line:#d8dce3;--band:#f3f5f8;--good:#17603a;--good-bg:#e3f3ea;--bad:#9c1c1c;--bad-bg:#fbe6e6;--mark:#7a4b00;--mark-bg:#fff3d6}
+*{box-sizing:border-box}body{margin:0;font:15px/1.5 system-ui,-apple-system,"Segoe UI",sans-serif;color:var(--ink);background:#fff}
+main{max-width:980px;margin:0 auto;padding:24px 28px 48px}
+h1{font-size:1.6em;margin:0 0 4px}h2{font-size:1.2em;margin:32px 0 10px;padding-bottom:4px;border-bottom:2px solid var(--ink)}
+.sub{color:var(--muted);margin:0 0 16px}
+.verdict{padding:10px 14px;border-radius:4px;font-weight:600;margin:12px 0}
+.verdict.good{background:var(--good-bg);color:var(--good)}.verdict.bad{background:var(--bad-bg);color:var(--bad)}.verdict.none{background:var(--band)}
+table{border-collapse:collapse;width:100%;margin:6px 0 12px}th,td{text-align:left;padding:5px 8px;border-bottom:1px solid var(--line);vertical-align:top}
+th{background:var(--band);font-weight:600}td.num{font-variant-numeric:tabular-nums;white-space:nowrap}
+.pass{color:var(--good);font-weight:600}.fail{color:var(--bad);font-weight:600}
+.set{background:var(--mark-bg);color:var(--mark);border-radius:3px;padding:0 5px;font-size:.85em;font-weight:600}
+dl.meta{display:grid;grid-template-columns:max-content 1fr;gap:2px 14px;margin:0}dl.meta dt{color:var(--muted)}dl.meta dd{margin:0;word-break:break-all}
+code,pre{font-family:ui-monospace,"DejaVu Sans Mono",monospace;font-size:.9em}pre{background:var(--band);padding:8px 10px;overflow-x:auto;white-space:pre-wrap}
+section.derivation{border-left:3px solid var(--line);padding-left:14px;margin:18px 0}
+.plot{width:100%;height:420px}
+.cautions{background:var(--band);padding:10px 14px 10px 30px;border-radius:4px}
+footer{margin-top:28px;color:var(--muted);font-size:.85em}
+@media print{.plot{page-break-inside:avoid}main{max-width:none}}
+`;
+
+export function buildReport(m: ReportModel): string {
+  const v = verdict(m);
+  const out: string[] = [];
+  out.push(`<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">${reportMarker}`);
+  out.push(`<meta name="viewport" content="width=device-width,initial-scale=1"><title>${esc(m.title)} — pinchoff report</title>`);
+  out.push(`<style>${style}</style>`);
+  if (m.derivations.length) out.push(`<style>${m.formulaCss ?? bundledKatexCss()}</style>`);
+  out.push(`</head><body><main>`);
+  out.push(`<h1>${esc(m.title)}</h1><p class="sub">Design calculation report from <code>${esc(m.notebookPath)}</code></p>`);
+  out.push(`<div class="verdict ${v.cls}">${esc(v.text)}</div>`);
+
+  out.push(`<h2>Record</h2><dl class="meta">`);
+  out.push(`<dt>Notebook</dt><dd><code>${esc(m.notebookPath)}</code></dd>`);
+  out.push(`<dt>Run on</dt><dd>${esc(m.date.toISOString())}</dd>`);
+  out.push(`<dt>Tool</dt><dd>${esc(m.toolVersion)}</dd>`);
+  out.push(`<dt>Notebook fingerprint</dt><dd><code>${esc(m.sourceFingerprint)}</code> (SHA-256 of the source file, before overrides)</dd>`);
+  out.push(`<dt>Inputs fingerprint</dt><dd><code>${esc(m.inputsFingerprint)}</code> (SHA-256 of the design inputs as run)</dd>`);
+  for (const d of m.derivations) if (d.fingerprint) out.push(`<dt>Derivation fingerprint</dt><dd><code>${esc(d.fingerprint)}</code> — ${esc(d.title)}</dd>`);
+  out.push(`</dl>`);
+
+  out.push(`<h2>Design inputs</h2><table><thead><tr><th>Name</th><th>As written</th><th>Value</th><th>Dimension</th><th></th></tr></thead><tbody>`);
+  for (const i of m.inputs)
+    out.push(`<tr><td><code>${esc(i.name)}</code></td><td><code>${esc(i.text)}</code></td><td class="num">${esc(q(i.value, i.dim))}</td><td>${esc(i.dim)}</td><td>${i.overridden ? `<span class="set">set on the command line</span> notebook value <code>${esc(i.original ?? "")}</code>` : ""}</td></tr>`);
+  out.push(`</tbody></table>`);
+
+  out.push(`<h2>Checks</h2>`);
+  if (!m.checks.length) out.push(`<p>No derivation in this notebook recorded a check.</p>`);
+  else {
+    out.push(`<table><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th><th>Derivation</th></tr></thead><tbody>`);
+    for (const c of m.checks)
+      out.push(`<tr><td class="${c.passed ? "pass" : "fail"}">${c.passed ? "pass" : "FAIL"}</td><td>${esc(c.title)}${c.detail ? `<br><small>${esc(c.detail)}</small>` : ""}</td><td class="num">${esc(q(c.value, c.dim))}</td><td class="num">${esc(bound(c))}</td><td class="num">${esc(q(c.margin, c.dim))}</td><td>${esc(c.derivation)} <small>(cell ${c.cell + 1})</small></td></tr>`);
+    out.push(`</tbody></table>`);
+  }
+
+  if (m.failures.length || m.skipped.length) {
+    out.push(`<h2>Cells that failed</h2>`);
+    for (const f of m.failures) out.push(`<p class="fail">Cell ${f.cell + 1}: ${f.status === "timeout" ? "timed out" : "raised an error"}</p><pre>${esc(f.lines.join("\n"))}</pre><details><summary>Cell source</summary><pre>${esc(f.source)}</pre></details>`);
+    if (m.skipped.length) out.push(`<p>Not run after the failure: cell${m.skipped.length > 1 ? "s" : ""} ${m.skipped.map((i) => i + 1).join(", ")}. Results below are incomplete.</p>`);
+  }
+
+  out.push(`<h2>Derivations</h2>`);
+  if (!m.derivations.length) out.push(`<p>No derivation was displayed by the notebook.</p>`);
+  for (const d of m.derivations) out.push(`<section class="derivation" data-cell="${d.cell + 1}">${d.html}</section>`);
+
+  if (m.plots.length) {
+    out.push(`<h2>Plots</h2>`);
+    m.plots.forEach((p, k) => {
+      out.push(`<figure>${p.title ? `<figcaption>${esc(p.title)}</figcaption>` : ""}<div class="plot" id="pinchoff-plot-${k}"></div></figure>`);
+      out.push(`<script type="application/json" id="pinchoff-plot-${k}-spec">${jsonScript(p.figure)}</script>`);
+    });
+    out.push(`<script>${plotlyScript()}</script>`);
+    out.push(`<script>document.querySelectorAll('script[id$="-spec"]').forEach(function(s){var f=JSON.parse(s.textContent);var el=document.getElementById(s.id.slice(0,-5));Plotly.newPlot(el,f.data,f.layout||{},Object.assign({displaylogo:false,responsive:true},f.config||{}));});</script>`);
+  }
+
+  out.push(`<h2>Cautions</h2><ul class="cautions">${cautions.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>`);
+  out.push(`<footer>Written by ${esc(m.toolVersion)} on ${esc(m.date.toISOString())}. Numbers are SI values shown with three significant digits; the executed notebook beside this file holds the full record.</footer>`);
+  out.push(`</main></body></html>\n`);
+  return out.join("\n");
+}

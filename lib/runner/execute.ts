@@ -1,0 +1,132 @@
+/**
+ * Headless execution of a staged notebook through Jupyter (nbclient) with the
+ * tslab kernel. Finds Jupyter on PATH and the Python it runs on, says exactly
+ * what to install when either is missing, and reports each cell's status.
+ */
+import { spawn, spawnSync } from "node:child_process";
+import { accessSync, constants as fsc, existsSync, readFileSync } from "node:fs";
+import { delimiter, isAbsolute, join } from "node:path";
+import { PinchoffError } from "../errors.js";
+import { driverSource } from "./driver.js";
+import { kernelDataDir, kernelName } from "./paths.js";
+
+export const installHint =
+  "install Jupyter from Debian: apt-get install jupyter-client jupyter-nbconvert python3-nbclient python3-ipykernel, then register the kernel: node lib/setup/prepare.mjs kernel (or pinchoff kernel)";
+
+function onPath(cmd: string, path = process.env.PATH ?? ""): string | undefined {
+  for (const dir of path.split(delimiter)) {
+    if (!dir) continue;
+    const p = join(dir, cmd);
+    try {
+      accessSync(p, fsc.X_OK);
+      return p;
+    } catch {
+      /* not here */
+    }
+  }
+  return undefined;
+}
+
+export interface JupyterSetup {
+  readonly jupyter: string;
+  readonly python: string;
+}
+
+/** Jupyter on PATH and the interpreter named in its #! line, with nbclient importable. */
+export function findJupyter(env: NodeJS.ProcessEnv = process.env): JupyterSetup {
+  const jupyter = onPath("jupyter", env.PATH);
+  if (!jupyter) throw new PinchoffError("io", `Jupyter was not found on PATH; ${installHint}`, "jupyter");
+  const firstLine = readFileSync(jupyter, "utf8").slice(0, 300).split("\n")[0] ?? "";
+  const m = /^#!\s*(\S+)(?:\s+(\S+))?/.exec(firstLine);
+  let python = m ? (/\/env$/.test(m[1]!) && m[2] ? onPath(m[2], env.PATH) : m[1]) : undefined;
+  if (!python || !isAbsolute(python) || !existsSync(python)) python = onPath("python3", env.PATH);
+  if (!python) throw new PinchoffError("io", `no Python interpreter found for ${jupyter}; ${installHint}`, "jupyter");
+  const probe = spawnSync(python, ["-c", "import nbclient, nbformat, ipykernel"], { env, encoding: "utf8" });
+  if (probe.status !== 0) throw new PinchoffError("io", `${python} (the Python that runs ${jupyter}) cannot import nbclient, nbformat and ipykernel; ${installHint}`, "jupyter");
+  return { jupyter, python };
+}
+
+/** Environment for Jupyter with the project-local kernel spec visible. */
+export function jupyterEnv(env: NodeJS.ProcessEnv = process.env): NodeJS.ProcessEnv {
+  const paths = [kernelDataDir, ...(env.JUPYTER_PATH ? env.JUPYTER_PATH.split(delimiter) : [])];
+  return { ...env, JUPYTER_PATH: paths.join(delimiter) };
+}
+
+export function requireKernel(): void {
+  if (!existsSync(join(kernelDataDir, "kernels", kernelName, "kernel.json")))
+    throw new PinchoffError("io", `the tslab kernel is not registered in ${kernelDataDir}; run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
+}
+
+export type CellStatus = "ok" | "error" | "abort" | "timeout" | "not run";
+
+export interface ExecutionResult {
+  /** Status per cell index (code cells only). */
+  readonly status: ReadonlyMap<number, CellStatus>;
+  /** Whole-run problem that is not a cell's fault (timeout also names the cell). */
+  readonly fatal?: { kind: string; message: string };
+  readonly seconds: number;
+}
+
+export interface ExecuteOptions {
+  /** Per-cell time limit in seconds. */
+  readonly timeout: number;
+  readonly codeCells: readonly number[];
+  readonly env?: NodeJS.ProcessEnv;
+}
+
+/** Execute `input` into `output` with its folder as the kernel's working directory. */
+export async function executeNotebook(input: string, output: string, cwd: string, opts: ExecuteOptions): Promise<ExecutionResult> {
+  const setup = findJupyter(opts.env);
+  requireKernel();
+  const args = { input, output, cwd, kernel: kernelName, timeout: opts.timeout, startup: 60 };
+  const t0 = performance.now();
+  // The whole run may take a per-cell limit per cell plus kernel start-up; past that, stop it.
+  const guardMs = (opts.timeout * Math.max(1, opts.codeCells.length) + 90) * 1000;
+  const { code, stdout, stderr } = await new Promise<{ code: number | null; stdout: string; stderr: string }>((resolve, reject) => {
+    const child = spawn(setup.python, ["-c", driverSource, JSON.stringify(args)], { cwd, env: jupyterEnv(opts.env), detached: true, stdio: ["ignore", "pipe", "pipe"] });
+    let out = "";
+    let err = "";
+    child.stdout.on("data", (d: Buffer) => (out += d.toString()));
+    child.stderr.on("data", (d: Buffer) => (err += d.toString()));
+    const guard = setTimeout(() => {
+      try {
+        process.kill(-child.pid!, "SIGKILL");
+      } catch {
+        /* already gone */
+      }
+    }, guardMs);
+    child.on("error", (e) => {
+      clearTimeout(guard);
+      reject(new PinchoffError("io", `cannot start ${setup.python} (${e.message}); ${installHint}`, "jupyter"));
+    });
+    child.on("close", (c) => {
+      clearTimeout(guard);
+      resolve({ code: c, stdout: out, stderr: err });
+    });
+  });
+  const seconds = (performance.now() - t0) / 1000;
+  const line = stdout.trim().split("\n").pop() ?? "";
+  let parsed: { cells?: Record<string, { status?: string }>; fatal?: string; message?: string };
+  try {
+    parsed = JSON.parse(line);
+  } catch {
+    const tail = stderr.trim().split("\n").slice(-6).join("\n");
+    throw new PinchoffError("io", `the Jupyter run stopped (exit ${code ?? "killed"}) without a result${tail ? `:\n${tail}` : ""}`, "jupyter");
+  }
+  if (parsed.fatal === "missing-python-package") throw new PinchoffError("io", `${parsed.message}; ${installHint}`, "jupyter");
+  if (parsed.fatal === "no-kernel") throw new PinchoffError("io", `${parsed.message}; run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
+  const status = new Map<number, CellStatus>();
+  let stopped = false;
+  for (const i of opts.codeCells) {
+    const s = parsed.cells?.[String(i)]?.status;
+    if (stopped) status.set(i, "not run");
+    else if (s === "ok" || s === "error" || s === "abort") status.set(i, s);
+    else if (parsed.fatal === "timeout") {
+      status.set(i, "timeout");
+      stopped = true;
+    } else status.set(i, "not run");
+  }
+  const fatal = parsed.fatal ? { kind: parsed.fatal, message: parsed.message ?? parsed.fatal } : undefined;
+  if (fatal && fatal.kind !== "timeout" && fatal.kind !== "dead-kernel") throw new PinchoffError("io", `the Jupyter run failed: ${fatal.message}`, "jupyter");
+  return { status, seconds, ...(fatal ? { fatal } : {}) };
+}

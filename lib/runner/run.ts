@@ -1,0 +1,170 @@
+/**
+ * `pinchoff run` as a function: check the notebook and the overrides, stage a
+ * copy where "pinchoff" resolves, execute it headless, collect the derivations,
+ * and write the executed notebook and the report atomically. The source
+ * notebook is only ever read.
+ */
+import { createHash } from "node:crypto";
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { basename, dirname, extname, join, resolve } from "node:path";
+import { PinchoffError } from "../errors.js";
+import { fingerprint } from "../record/fingerprint.js";
+import { buildReport, reportMarker, type ReportModel } from "../report/html.js";
+import { renderDerivationHtml, formulaCss } from "../report/derivation-html.js";
+import { checkReplaceable, prepareOutputDir, removeIfEmpty, writeAtomically } from "./atomic-write.js";
+import { allChecks, collect, type CellFailure, type CheckLine, type Collected } from "./collect.js";
+import { executeNotebook, findJupyter, requireKernel } from "./execute.js";
+import { applyOverrides, findInputsCell, resolveInputs, type Override, type ParsedInput } from "./inputs-cell.js";
+import { cellSource, ensureCellIds, parseNotebook, readNotebook, type Notebook } from "./notebook-file.js";
+import { kernelName, stagingRoot, toolVersion } from "./paths.js";
+
+export interface RunOptions {
+  readonly notebook: string;
+  readonly overrides?: readonly Override[];
+  /** Output folder; default: `<name>-run/` beside the notebook. */
+  readonly outDir?: string;
+  /** Per-cell time limit in seconds. */
+  readonly timeout?: number;
+  readonly env?: NodeJS.ProcessEnv;
+  readonly now?: Date;
+}
+
+export interface RunResult {
+  readonly outDir: string;
+  readonly executedPath: string;
+  readonly reportPath: string;
+  readonly reportBytes: number;
+  readonly inputs: readonly ParsedInput[];
+  readonly checks: readonly CheckLine[];
+  readonly failures: readonly CellFailure[];
+  readonly skipped: readonly number[];
+  readonly collected: Collected;
+  /** 0 when every cell ran and every check passed. */
+  readonly exitCode: number;
+  readonly seconds: { readonly total: number; readonly kernel: number };
+}
+
+export const defaultTimeout = 120;
+
+/** Names of the two results for a notebook stem. */
+export const outputNames = (stem: string) => ({ executed: `${stem}.executed.ipynb`, report: `${stem}.report.html` });
+
+const stemOf = (path: string) => basename(path, extname(path));
+
+/** Is this existing file the output of an earlier run (so it may be replaced)? */
+function ours(path: string, head: string): boolean {
+  if (path.endsWith(".html")) return head.includes(reportMarker);
+  try {
+    const nb = JSON.parse(readFileSync(path, "utf8")) as Notebook;
+    return !!(nb.metadata?.pinchoff as { run?: unknown } | undefined)?.run;
+  } catch {
+    return false;
+  }
+}
+
+function titleOf(nb: Notebook, fallback: string): string {
+  for (const c of nb.cells) {
+    if (c.cell_type !== "markdown") continue;
+    const h = /^\s*#{1,3}\s+(.+)$/m.exec(cellSource(c));
+    if (h) return h[1]!.trim();
+  }
+  return fallback;
+}
+
+export async function runNotebook(opts: RunOptions): Promise<RunResult> {
+  const t0 = performance.now();
+  const source = resolve(opts.notebook);
+  const timeout = opts.timeout ?? defaultTimeout;
+  if (!Number.isFinite(timeout) || timeout <= 0) throw new PinchoffError("invalid-value", `got ${timeout}, expected a time limit in seconds > 0`, "--timeout");
+  if (!existsSync(source)) throw new PinchoffError("io", "no such notebook", opts.notebook);
+  const { notebook, text } = readNotebook(source);
+  const cell = findInputsCell(notebook, opts.notebook);
+  const inputs = resolveInputs(cell, opts.overrides ?? [], opts.notebook);
+
+  // Everything that can be checked before executing is checked now.
+  findJupyter(opts.env);
+  requireKernel();
+  const stem = stemOf(source);
+  const outDir = resolve(opts.outDir ?? join(dirname(source), `${stem}-run`));
+  const names = outputNames(stem);
+  const executedPath = join(outDir, names.executed);
+  const reportPath = join(outDir, names.report);
+  if (executedPath === source) throw new PinchoffError("io", "the executed notebook would replace the source notebook; choose another --out", executedPath);
+  const created = prepareOutputDir(outDir);
+  let written = false;
+  let stage: string | undefined;
+  try {
+    checkReplaceable([executedPath, reportPath], ours);
+
+    const copy = applyOverrides(notebook, cell, inputs);
+    ensureCellIds(copy);
+    copy.metadata.kernelspec = { name: kernelName, display_name: "TypeScript", language: "typescript" };
+    mkdirSync(stagingRoot, { recursive: true });
+    stage = mkdtempSync(join(stagingRoot, `${stem.replace(/[^\w.-]/g, "_").slice(0, 40)}-`));
+    const stagedIn = join(stage, "notebook.ipynb");
+    const stagedOut = join(stage, "executed.ipynb");
+    writeFileSync(stagedIn, JSON.stringify(copy, null, 1));
+    const codeCells = copy.cells.flatMap((c, i) => (c.cell_type === "code" ? [i] : []));
+
+    const exec = await executeNotebook(stagedIn, stagedOut, stage, { timeout, codeCells, ...(opts.env ? { env: opts.env } : {}) });
+    if (!existsSync(stagedOut)) throw new PinchoffError("io", `the Jupyter run wrote no notebook${exec.fatal ? ` (${exec.fatal.message})` : ""}`, "jupyter");
+    const executed = parseNotebook(readFileSync(stagedOut, "utf8"), "executed notebook");
+    const collected = collect(executed, exec.status);
+    const checks = allChecks(collected);
+    const date = opts.now ?? new Date();
+
+    const inputEntries = inputs.map((i) => ({ name: i.name, value: i.value, dim: i.dim }));
+    const inputsFingerprint = fingerprint({ title: "design inputs", inputs: inputEntries });
+    const sourceFingerprint = createHash("sha256").update(text, "utf8").digest("hex");
+    executed.metadata.pinchoff = {
+      run: {
+        tool: toolVersion(),
+        date: date.toISOString(),
+        source: source,
+        sourceFingerprint,
+        inputsFingerprint,
+        overrides: inputs.filter((i) => i.overridden).map((i) => ({ name: i.name, value: i.text, notebookValue: i.original })),
+        cells: Object.fromEntries([...exec.status].map(([i, s]) => [String(i + 1), s])),
+      },
+    };
+
+    const model: ReportModel = {
+      title: titleOf(notebook, stem),
+      notebookPath: source,
+      toolVersion: toolVersion(),
+      date,
+      sourceFingerprint,
+      inputsFingerprint,
+      inputs: inputs.map((i) => ({ name: i.name, text: i.text, dim: i.dim, value: i.value, overridden: i.overridden, ...(i.original !== undefined ? { original: i.original } : {}) })),
+      derivations: collected.derivations.map((d) => ({ title: d.data.title, cell: d.cell, ...(d.fingerprint ? { fingerprint: d.fingerprint } : {}), html: renderDerivationHtml(d.data) })),
+      checks,
+      plots: collected.plots,
+      failures: collected.failures,
+      skipped: collected.skipped,
+      ...(collected.derivations.length ? { formulaCss: formulaCss() } : {}),
+    };
+    const html = buildReport(model);
+    writeAtomically([
+      { path: executedPath, content: JSON.stringify(executed, null, 1) + "\n" },
+      { path: reportPath, content: html },
+    ]);
+    written = true;
+    const failedChecks = checks.some((c) => !c.passed);
+    return {
+      outDir,
+      executedPath,
+      reportPath,
+      reportBytes: Buffer.byteLength(html, "utf8"),
+      inputs,
+      checks,
+      failures: collected.failures,
+      skipped: collected.skipped,
+      collected,
+      exitCode: collected.failures.length || failedChecks ? 1 : 0,
+      seconds: { total: (performance.now() - t0) / 1000, kernel: exec.seconds },
+    };
+  } finally {
+    if (stage) rmSync(stage, { recursive: true, force: true });
+    if (!written && created) removeIfEmpty(outDir, created);
+  }
+}
