@@ -1,0 +1,35 @@
+/**
+ * The built-in bias topologies, registered, and the entry points that dispatch
+ * on a stage's topology id: analysis, and the SPICE deck.
+ */
+import type { Derivation } from "../record/derivation.js";
+import { deckText } from "./spice.js";
+import { registerTopology, topologyFor, type SpiceCircuit, type Stage, type StageAnalysis } from "./topology.js";
+import { currentSourceBias } from "./topologies/current-source-bias.js";
+import { drainFeedback } from "./topologies/drain-feedback.js";
+import { fixedGate } from "./topologies/fixed-gate.js";
+import { fourResistor } from "./topologies/four-resistor.js";
+import { sourceFollower } from "./topologies/source-follower.js";
+
+registerTopology(fixedGate);
+registerTopology(fourResistor);
+registerTopology(drainFeedback);
+registerTopology(sourceFollower);
+registerTopology(currentSourceBias);
+
+export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias } as const;
+
+/** Solve a stage's operating point and metrics; records the reasoning when `rec` is given. */
+export function analyzeStage(stage: Stage, rec?: Derivation): StageAnalysis {
+  return topologyFor(stage?.topology, "stage.topology").analyze(stage, rec);
+}
+
+/** The stage's SPICE circuit lines with an optional name prefix (for several stages in one deck). */
+export function stageCircuit(stage: Stage, prefix = ""): SpiceCircuit {
+  return topologyFor(stage?.topology, "stage.topology").spice(stage, prefix);
+}
+
+/** A complete SPICE deck for the stage (Level 1 card, sources, .op). */
+export function spiceDeck(stage: Stage): string {
+  return deckText(`${stage.name ?? stage.topology} (${stage.device.card.polarity}, ${stage.device.card.name})`, stageCircuit(stage));
+}
