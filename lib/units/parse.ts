@@ -176,21 +176,25 @@ function readUnit(unitText: string): UnitReading | string {
 // ---------------------------------------------------------------------------
 // Text clean-up: the spellings people paste from datasheets and word processors.
 
+const superscripts: Readonly<Record<string, string>> = {
+  "\u2070": "0", "\u00b9": "1", "\u00b2": "2", "\u00b3": "3", "\u2074": "4", "\u2075": "5",
+  "\u2076": "6", "\u2077": "7", "\u2078": "8", "\u2079": "9", "\u207a": "+", "\u207b": "-",
+};
+
 function normalise(text: string): string {
   return text
     .trim()
+    .replace(/[\u2070\u00b9\u00b2\u00b3\u2074-\u2079\u207a\u207b]+/g, (run) => `^${[...run].map((c) => superscripts[c]).join("")}`)
+    .replace(/\u2212/g, "-") // minus sign
+    // "1.23×10^-7", "1.23 x 10^-7", "1.23·10^3": the way results are printed.
+    .replace(/^([+-]?(?:\d+(?:\.\d*)?|\.\d+))\s*[\u00d7x*\u00b7\u22c5]\s*10\^\(?([+-]?\d+)\)?/, "$1e$2")
     .replace(/[\u2126\u03a9]/g, "ohm") // Ω as OHM SIGN or Greek capital omega
     .replace(/ohms?\b/gi, "ohm")
     .replace(/[\u00b5\u03bc]/g, "u") // micro sign and Greek small mu
     .replace(/\u2103/g, "degC")
     .replace(/\u00b0\s*C\b/g, "degC")
     .replace(/\u00b0\s*F\b/g, "degF")
-    .replace(/\u2212/g, "-") // minus sign
     .replace(/[\u00b7\u22c5]/g, " ") // middle dot, dot operator
-    .replace(/\u207b\u00b9/g, "^-1")
-    .replace(/\u207b\u00b2/g, "^-2")
-    .replace(/\u00b2/g, "^2")
-    .replace(/\u00b3/g, "^3")
     .replace(/\u221a\s*\(/g, "sqrt(")
     .replace(/\u221a\s*([A-Za-z]+)/g, "sqrt($1)");
 }
