@@ -13,6 +13,16 @@
  * notebook. Outside a kernel `emit` reports false and callers fall back to text.
  */
 import { createRequire } from "node:module";
+import escapeHtml from "escape-html";
+import type { Dimension } from "../quantity.js";
+import { InputError } from "../errors.js";
+import type { Derivation, DerivationData } from "../record/derivation.js";
+import { renderHtmlFragment, type HtmlOptions } from "../record/render-html.js";
+import { renderMarkdown, escapeMarkdown } from "../record/render-markdown.js";
+import { renderText, textTable } from "../record/render-text.js";
+import { renderJson, toData } from "../record/render.js";
+import { pinchoffCss } from "../record/styles.js";
+import { formatQuantity, type FormatOptions } from "../units/format.js";
 
 /** MIME type → payload: strings for text types, plain JSON values for `+json` types. */
 export type MimeBundle = Readonly<Record<string, unknown>>;
@@ -49,4 +59,94 @@ export function emit(bundle: MimeBundle, metadata: Record<string, unknown> = {})
   if (!write) return false;
   write({ data: bundle, metadata, transient: {} }, false);
   return true;
+}
+
+// ---------------------------------------------------------------------------
+// Showing derivations and quantities.
+/** Our MIME type: one derivation's `toJSON()` (schemaVersion, fingerprint, checks, …) per output. */
+export const derivationMime = "application/vnd.pinchoff.derivation+json";
+
+/** Options for notebook display. `math` defaults to "mathml": no stylesheet or fonts in every output. */
+export type ShowOptions = HtmlOptions;
+
+/** A named value for `showQuantity` and `showTable`. */
+export interface QuantityRow {
+  readonly name: string;
+  readonly value: number;
+  readonly dim: Dimension;
+  readonly note?: string;
+}
+
+const style = `<style>${pinchoffCss}</style>`;
+const isDerivationLike = (x: unknown): x is Derivation | DerivationData =>
+  !!x && typeof x === "object" && Array.isArray((x as DerivationData).steps) && Array.isArray((x as DerivationData).checks) && typeof (x as DerivationData).title === "string";
+
+/** The MIME bundle for one derivation: html, markdown, plain text and our JSON. */
+export function derivationBundle(d: Derivation | DerivationData, opts: ShowOptions = {}): MimeBundle {
+  if (!isDerivationLike(d)) throw new InputError(d, "a Derivation or its toJSON() data", "show");
+  const data = toData(d);
+  const o: ShowOptions = { math: "mathml", ...opts };
+  return {
+    "text/html": `${style}${renderHtmlFragment(data, o)}`,
+    "text/markdown": renderMarkdown(data, o),
+    "text/plain": renderText(data, o),
+    // Through renderJson: Infinity becomes "Infinity" (JSON has none), NaN is refused.
+    [derivationMime]: JSON.parse(renderJson(data, 0)) as unknown,
+  };
+}
+
+function checkRow(r: QuantityRow, origin: string): QuantityRow {
+  if (!r || typeof r !== "object" || typeof r.name !== "string") throw new InputError(r, "a row { name, value, dim }", origin);
+  if (typeof r.value !== "number" || Number.isNaN(r.value)) throw new InputError(r.value, "a number in SI units", `${origin} "${r.name}"`);
+  return r;
+}
+
+/** The MIME bundle for a small table of named quantities. */
+export function tableBundle(rows: readonly QuantityRow[], title?: string, opts: FormatOptions = {}): MimeBundle {
+  rows.forEach((r, i) => checkRow(r, `table row ${i + 1}`));
+  const shown = rows.map((r) => [r.name, formatQuantity(r.value, r.dim, { ...opts, origin: r.name }), r.note ?? ""] as const);
+  const hasNote = rows.some((r) => r.note);
+  const head = hasNote ? ["quantity", "value", "note"] : ["quantity", "value"];
+  const cut = (r: readonly string[]) => (hasNote ? r : r.slice(0, 2));
+  const html = `${style}<div class="pinchoff">${title ? `<h3 class="po-part">${escapeHtml(title)}</h3>` : ""}<table><thead><tr>${head.map((h) => `<th>${h}</th>`).join("")}</tr></thead><tbody>${shown
+    .map((r) => `<tr><td>${escapeHtml(r[0])}</td><td class="po-num">${escapeHtml(r[1])}</td>${hasNote ? `<td>${escapeHtml(r[2])}</td>` : ""}</tr>`)
+    .join("")}</tbody></table></div>`;
+  const md = [title ? `**${escapeMarkdown(title)}**\n` : "", `| ${head.join(" | ")} |`, `|${head.map(() => " --- ").join("|")}|`, ...shown.map((r) => `| ${cut(r).map(escapeMarkdown).join(" | ")} |`)].join("\n");
+  const text = (title ? `${title}\n` : "") + textTable(head, shown.map(cut), "");
+  return { "text/html": html, "text/markdown": md, "text/plain": text };
+}
+
+/** The MIME bundle for one named quantity: `ID = 81.0 µA`. */
+export function quantityBundle(value: number, dim: Dimension, name?: string, opts: FormatOptions = {}): MimeBundle {
+  checkRow({ name: name ?? "value", value, dim }, "quantity");
+  const v = formatQuantity(value, dim, { ...opts, origin: name ?? "quantity" });
+  const text = name ? `${name} = ${v}` : v;
+  return {
+    "text/html": `<span class="pinchoff" style="font-variant-numeric:tabular-nums">${name ? `<b>${escapeHtml(name)}</b> = ` : ""}${escapeHtml(v)}</span>`,
+    "text/markdown": name ? `**${escapeMarkdown(name)}** = ${escapeMarkdown(v)}` : escapeMarkdown(v),
+    "text/plain": text,
+  };
+}
+
+function send(bundle: MimeBundle): void {
+  if (!emit(bundle)) console.log(bundle["text/plain"]);
+}
+
+/**
+ * Show a derivation (or a whole design's list of them, one output each) as a
+ * rich notebook output. Outside a tslab kernel the plain-text form is printed.
+ */
+export function show(item: Derivation | DerivationData | ReadonlyArray<Derivation | DerivationData>, opts: ShowOptions = {}): void {
+  const list = Array.isArray(item) ? (item as ReadonlyArray<Derivation | DerivationData>) : [item as Derivation | DerivationData];
+  for (const d of list) send(derivationBundle(d, opts));
+}
+
+/** Show one quantity with its SI prefix: `showQuantity(op.id, "current", "ID")`. */
+export function showQuantity(value: number, dim: Dimension, name?: string, opts: FormatOptions = {}): void {
+  send(quantityBundle(value, dim, name, opts));
+}
+
+/** Show a small table of named quantities. */
+export function showTable(rows: readonly QuantityRow[], title?: string, opts: FormatOptions = {}): void {
+  send(tableBundle(rows, title, opts));
 }
