@@ -6,3 +6,4 @@ export * from "./transfer.js";
 export * from "./transconductance.js";
 export * from "./html.js";
 export * from "./notebook.js";
+export * from "./stage.js";

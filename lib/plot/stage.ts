@@ -1,0 +1,80 @@
+/**
+ * Plots of a solved bias stage: the load line follows from the topology's
+ * components (the drain–source loop sees RD + RS across the rail span; an ideal
+ * current source fixes ID), the family is drawn around the solved operating
+ * point. The family is drawn at the operating point's VSB; with the body tied
+ * to the rail, VSB changes along the load line, so curves away from the bias
+ * point are approximate (said in the summary).
+ */
+import { device } from "../device/card.js";
+import { InputError } from "../errors.js";
+import type { Stage, StageAnalysis } from "../bias/topology.js";
+import { formatQuantity } from "../units/format.js";
+import type { PlotSpec } from "./figure.js";
+import { outputCharacteristics, type LoadCurve, type LoadLine } from "./output-characteristics.js";
+import { transconductancePlot } from "./transconductance.js";
+import { transferCharacteristic } from "./transfer.js";
+
+export interface StageLoad {
+  readonly loadLine?: LoadLine;
+  readonly loadCurve?: LoadCurve;
+}
+
+const num = (c: unknown, name: string): number => {
+  const v = (c as Record<string, unknown>)[name];
+  return typeof v === "number" && Number.isFinite(v) ? v : 0;
+};
+
+/** The DC load seen by the transistor's drain–source loop, in device polarity. */
+export function stageLoad(stage: Stage): StageLoad {
+  const span = stage.supplies.vdd - (stage.supplies.vss ?? 0);
+  const c = stage.components;
+  const iss = num(c, "iss");
+  if (iss > 0) {
+    // An ideal current source forces ID whatever VDS is: the "load line" is horizontal.
+    return { loadCurve: { vds: [0, span], id: [iss, iss], label: `ideal current source ISS = ${formatQuantity(iss, "current")}` } };
+  }
+  const r = num(c, "rd") + num(c, "rs");
+  if (r > 0) return { loadLine: { openCircuit: span, resistance: r } };
+  return {};
+}
+
+export interface StagePlotOptions {
+  /** Extra load (e.g. a diode-connected device from diodeLoadCurve) instead of the topology's own. */
+  readonly load?: StageLoad;
+  /** Gate drives for the family (device polarity); chosen around the bias point when omitted. */
+  readonly gateDrives?: readonly number[];
+}
+
+export interface StagePlots {
+  readonly output: PlotSpec;
+  readonly transfer: PlotSpec;
+  readonly transconductance: PlotSpec;
+}
+
+/** Output characteristic with load line and bias point, transfer characteristic and gm, gm/ID for a solved stage. */
+export function stagePlots(stage: Stage, analysis: StageAnalysis, opts: StagePlotOptions = {}): StagePlots {
+  if (!stage || !analysis || !analysis.op) throw new InputError(analysis, "a stage and its analysis (from analyzeStage or a synthesis result)", "stagePlots");
+  const dev = device(stage.device.card, stage.device.w, stage.device.l, "stagePlots.stage.device");
+  const op = analysis.op;
+  const clm = stage.options?.clm ?? "continuous";
+  const span = stage.supplies.vdd - (stage.supplies.vss ?? 0);
+  const vt = Math.abs(op.vt);
+  const vov = op.vov > 0 ? op.vov : 0.3;
+  const drives = opts.gateDrives ?? [0.5, 1.5, 2].map((f) => Number((vt + f * vov).toPrecision(3)));
+  const name = stage.name ?? analysis.name ?? stage.topology;
+  const load = opts.load ?? stageLoad(stage);
+  const output = outputCharacteristics(dev, {
+    gateDrives: drives,
+    vdsMax: span,
+    operatingPoint: op,
+    clm,
+    ...load,
+    title: `Output characteristics with DC load, ${name}`,
+  });
+  const bodyNote =
+    op.vsbDevice !== 0 ? ` Curves are drawn at the bias point's VSB = ${formatQuantity(op.vsbDevice, "voltage")}; with the body on the rail, VSB moves along the load line, so curves away from the bias point are approximate.` : "";
+  const transfer = transferCharacteristic(dev, { vgsMax: Math.max(vt + 2 * vov, op.vgsDevice * 1.1), operatingPoint: op, clm, title: `Transfer characteristic at the bias VDS, ${name}` });
+  const transconductance = transconductancePlot(dev, { vovMax: 2.5 * vov, operatingPoint: op, clm, title: `gm and gm/ID against overdrive, ${name}` });
+  return { output: { ...output, summary: output.summary + bodyNote }, transfer, transconductance };
+}
