@@ -149,12 +149,12 @@ export function checkDissipation(
  * Dissipation of a solved stage: every resistance component of its topology
  * (values from the stage, currents from the analysis) and the transistor.
  */
-export function stageDissipation(stage: Stage, analysis: StageAnalysis, limits: DissipationLimits, rec?: Derivation): DissipationReport {
+export function stageDissipation(stage: Stage<string, object>, analysis: StageAnalysis, limits: DissipationLimits, rec?: Derivation): DissipationReport {
   const topo = topologyFor(stage.topology, "stage.topology");
   const resistors: ResistorLoad[] = [];
   for (const f of topo.components) {
     if (f.dim !== "resistance") continue;
-    const r = stage.components[f.name];
+    const r = (stage.components as Readonly<Record<string, number | undefined>>)[f.name];
     if (r === undefined) continue;
     const i = analysis.currents[f.name];
     if (i === undefined) throw new InputError(undefined, `a current for ${f.name} in the analysis`, `analysis.currents.${f.name}`);

@@ -1,0 +1,271 @@
+/**
+ * How the bias moves with part tolerances and temperature. Resistors move by
+ * their tolerance (the series' band or a stated one), the threshold by an
+ * absolute spread and k' by a relative spread, and the card is moved to each
+ * temperature with cardAtTemperature. Either every worst-case corner (each
+ * parameter at both ends of its band, at every temperature) or a seeded Monte
+ * Carlo run is solved; the report gives the spread of ID, the output nodes,
+ * VOV and the saturation margin, and whether every case stays in saturation.
+ *
+ * Generic over the solve function, so it serves every topology. Corners bound
+ * the spread when each figure is monotone in each parameter (true of the
+ * single-transistor resistor networks in saturation); Monte Carlo does not
+ * bound it. Verify by simulation and measurement.
+ */
+import type { DeviceCard } from "../device/card.js";
+import { polaritySign } from "../device/card.js";
+import { cardAtTemperature } from "../device/temperature.js";
+import { InputError, PinchoffError, requireNonNegative, requirePositive } from "../errors.js";
+import type { Kelvin, Volts } from "../quantity.js";
+import type { Derivation } from "../record/derivation.js";
+import { seriesOf, toleranceOf, type SeriesName } from "./eseries.js";
+import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
+
+/** Process spread of a card: ± threshold (absolute, on |Vt0|) and ± k' (relative). */
+export interface ProcessSpread {
+  readonly vt0?: Volts;
+  readonly kp?: number;
+}
+
+export interface MonteCarlo {
+  readonly samples: number;
+  readonly seed: number;
+  /** "uniform" over each ± band (default), or "normal" with the band as 3σ. */
+  readonly distribution?: "uniform" | "normal";
+}
+
+export interface ToleranceSpec {
+  /** Relative resistor tolerance, one for all or by component name; from `series` when omitted. */
+  readonly resistors?: number | Readonly<Record<string, number>>;
+  /** Series whose IEC 60063 tolerance band applies to the resistors when none is stated (E24, 5 %, when both are omitted). */
+  readonly series?: SeriesName;
+  /** Device spread; the card's own `spread` field is used when this is omitted and the card has one. */
+  readonly process?: ProcessSpread;
+  /** Temperatures to analyse at; the card as given (its reference temperature) when omitted. */
+  readonly temperatures?: readonly Kelvin[];
+  /** Worst-case corners (default) or a seeded Monte Carlo run. */
+  readonly monteCarlo?: MonteCarlo;
+  /** The analysis to run per case; the stage's registered topology when omitted. */
+  readonly solve?: (stage: Stage) => StageAnalysis;
+}
+
+export interface ToleranceParameter {
+  readonly name: string;
+  readonly nominal: number;
+  /** Half-width of the band: relative for resistors and k', absolute (V) for Vt0. */
+  readonly band: number;
+  readonly relative: boolean;
+}
+
+export interface ToleranceCase {
+  /** e.g. "rg1+ rg2− rd+ rs− Vt+ k'− @ 358.15 K". */
+  readonly label: string;
+  /** Per parameter, the position in its band from −1 to +1 (corners are ±1). */
+  readonly position: readonly number[];
+  readonly temperature?: Kelvin;
+  readonly ok: boolean;
+  /** When the case could not be solved, why. */
+  readonly error?: string;
+  readonly region?: string;
+  readonly id?: number;
+  readonly vd?: number;
+  readonly vs?: number;
+  readonly vov?: number;
+  readonly saturationMargin?: number;
+}
+
+export interface FigureSpread {
+  readonly nominal: number;
+  readonly min: number;
+  readonly max: number;
+  readonly minAt: string;
+  readonly maxAt: string;
+}
+
+export interface ToleranceReport {
+  readonly method: "corners" | "monte-carlo";
+  readonly parameters: readonly ToleranceParameter[];
+  readonly temperatures: readonly (Kelvin | undefined)[];
+  readonly cases: readonly ToleranceCase[];
+  readonly nominal: ToleranceCase;
+  readonly id: FigureSpread;
+  readonly vd: FigureSpread;
+  readonly vs: FigureSpread;
+  readonly vov: FigureSpread;
+  readonly saturationMargin: FigureSpread;
+  /** Every case solved and in saturation. */
+  readonly allInSaturation: boolean;
+  /** Cases out of saturation or unsolvable. */
+  readonly failures: readonly ToleranceCase[];
+}
+
+/** Corner analysis beyond this many cases is refused; use Monte Carlo instead. */
+export const maxCases = 50_000;
+
+/** mulberry32: a small seeded 32-bit generator (public domain), enough for reproducible tolerance runs. */
+function seeded(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function checkFraction(x: number, origin: string): number {
+  if (typeof x !== "number" || !Number.isFinite(x) || x < 0 || x >= 1) throw new InputError(x, "a relative tolerance 0 ≤ t < 1 (0.05 for 5 %)", origin);
+  return x;
+}
+
+const sign = (p: number) => (p > 0 ? "+" : p < 0 ? "−" : "0");
+
+/** Analyse a stage over its tolerances and temperatures. */
+export function toleranceAnalysis(stage: Stage, spec: ToleranceSpec = {}, rec?: Derivation): ToleranceReport {
+  if (!stage || typeof stage !== "object" || !stage.device) throw new InputError(stage, "a stage with a device", "tolerance stage");
+  const solve = spec.solve ?? ((st: Stage) => topologyFor(st.topology, "stage.topology").analyze(st));
+  if (typeof solve !== "function") throw new InputError(solve, "a solve function (stage) → analysis", "tolerance.solve");
+  const topo = spec.solve ? undefined : topologyFor(stage.topology, "stage.topology");
+
+  // Parameters: every resistance component present, then Vt0 and k' when spread.
+  const params: ToleranceParameter[] = [];
+  const series = spec.series ? seriesOf(spec.series, "tolerance.series") : undefined;
+  const resistorNames = topo
+    ? topo.components.filter((f) => f.dim === "resistance").map((f) => f.name)
+    : Object.keys(stage.components).filter((n) => n.startsWith("r"));
+  for (const name of resistorNames) {
+    const value = (stage.components as Readonly<Record<string, number | undefined>>)[name];
+    if (value === undefined || value === 0) continue;
+    let band: number;
+    if (typeof spec.resistors === "number") band = checkFraction(spec.resistors, "tolerance.resistors");
+    else if (spec.resistors && spec.resistors[name] !== undefined) band = checkFraction(spec.resistors[name]!, `tolerance.resistors.${name}`);
+    else band = toleranceOf(series ?? "E24");
+    params.push({ name, nominal: value, band, relative: true });
+  }
+  const card = stage.device.card as DeviceCard & { readonly spread?: ProcessSpread };
+  const process = spec.process ?? card.spread ?? {};
+  if (process.vt0 !== undefined) {
+    requireNonNegative(process.vt0, "tolerance.process.vt0", "a threshold spread ≥ 0 in V");
+    if (process.vt0 > 0) params.push({ name: "Vt", nominal: card.vt0, band: process.vt0, relative: false });
+  }
+  if (process.kp !== undefined) {
+    checkFraction(process.kp, "tolerance.process.kp");
+    if (process.kp > 0) params.push({ name: "k'", nominal: card.kp, band: process.kp, relative: true });
+  }
+  const temps: (Kelvin | undefined)[] = spec.temperatures?.length ? [...spec.temperatures] : [undefined];
+  temps.forEach((t, i) => t !== undefined && requirePositive(t, `tolerance.temperatures[${i}]`, "a temperature > 0 K"));
+  const cardAt = new Map<Kelvin | undefined, DeviceCard>(temps.map((t) => [t, t === undefined ? card : cardAtTemperature(card, t)]));
+  const s = polaritySign(card);
+
+  const runCase = (pos: readonly number[], t: Kelvin | undefined): ToleranceCase => {
+    const comps: Record<string, number> = { ...(stage.components as Readonly<Record<string, number>>) };
+    let c = cardAt.get(t)!;
+    params.forEach((p, i) => {
+      const x = pos[i]!;
+      if (p.name === "Vt") c = { ...c, vt0: (c.vt0 + s * x * p.band) as Volts };
+      else if (p.name === "k'") c = { ...c, kp: (c.kp * (1 + x * p.band)) as typeof c.kp };
+      else comps[p.name] = p.nominal * (1 + x * p.band);
+    });
+    const label =
+      params.map((p, i) => (pos[i] === 0 ? "" : `${p.name}${Math.abs(pos[i]!) === 1 ? sign(pos[i]!) : (pos[i]! > 0 ? "+" : "") + pos[i]!.toFixed(2)}`)).filter(Boolean).join(" ") +
+      (t !== undefined ? ` @ ${+(t - 273.15).toFixed(2)} °C` : "");
+    const base = { label: label || "nominal", position: pos, ...(t !== undefined ? { temperature: t } : {}) };
+    try {
+      const a = solve({ ...stage, device: { ...stage.device, card: c }, components: comps });
+      return {
+        ...base,
+        ok: a.region === "saturation",
+        region: a.region,
+        id: a.currents.drain!,
+        vd: a.nodes.drain!,
+        vs: a.nodes.source!,
+        vov: a.op.vov,
+        saturationMargin: a.op.saturationMargin,
+      };
+    } catch (e) {
+      if (e instanceof PinchoffError) return { ...base, ok: false, error: e.message };
+      throw e;
+    }
+  };
+
+  const zeros = params.map(() => 0);
+  const nominal = runCase(zeros, undefined);
+  if (nominal.error) throw new PinchoffError("infeasible", `the nominal stage could not be solved: ${nominal.error}`, "tolerance");
+  const cases: ToleranceCase[] = [];
+  let method: ToleranceReport["method"] = "corners";
+  if (spec.monteCarlo) {
+    method = "monte-carlo";
+    const mc = spec.monteCarlo;
+    if (!Number.isInteger(mc.samples) || mc.samples < 1 || mc.samples > maxCases)
+      throw new InputError(mc.samples, `an integer sample count from 1 to ${maxCases}`, "tolerance.monteCarlo.samples");
+    if (!Number.isInteger(mc.seed)) throw new InputError(mc.seed, "an integer seed", "tolerance.monteCarlo.seed");
+    const dist = mc.distribution ?? "uniform";
+    if (dist !== "uniform" && dist !== "normal") throw new InputError(dist, `"uniform" or "normal"`, "tolerance.monteCarlo.distribution");
+    const rand = seeded(mc.seed);
+    // Box–Muller for the normal case, with the band as 3σ.
+    const draw = () => (dist === "uniform" ? 2 * rand() - 1 : (Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand())) / 3);
+    for (let n = 0; n < mc.samples; n++) for (const t of temps) cases.push(runCase(params.map(draw), t));
+  } else {
+    const count = 2 ** params.length * temps.length;
+    if (count > maxCases) throw new InputError(count, `at most ${maxCases} corner cases (use monteCarlo)`, "tolerance");
+    for (const t of temps)
+      for (let m = 0; m < 2 ** params.length; m++) cases.push(runCase(params.map((_, i) => ((m >> i) & 1 ? 1 : -1)), t));
+  }
+
+  const spread = (key: "id" | "vd" | "vs" | "vov" | "saturationMargin"): FigureSpread => {
+    let min = Infinity;
+    let max = -Infinity;
+    let minAt = "";
+    let maxAt = "";
+    for (const c of [nominal, ...cases]) {
+      const x = c[key];
+      if (x === undefined) continue;
+      if (x < min) [min, minAt] = [x, c.label];
+      if (x > max) [max, maxAt] = [x, c.label];
+    }
+    return { nominal: nominal[key]!, min, max, minAt, maxAt };
+  };
+  const failures = cases.filter((c) => !c.ok);
+  const report: ToleranceReport = {
+    method,
+    parameters: params,
+    temperatures: temps,
+    cases,
+    nominal,
+    id: spread("id"),
+    vd: spread("vd"),
+    vs: spread("vs"),
+    vov: spread("vov"),
+    saturationMargin: spread("saturationMargin"),
+    allInSaturation: nominal.ok && failures.length === 0,
+    failures,
+  };
+  if (rec) recordTolerance(report, stage, rec);
+  return report;
+}
+
+function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation): void {
+  const band = (p: ToleranceParameter) => (p.relative ? `±${+(p.band * 100).toPrecision(3)} %` : `±${+(p.band * 1e3).toPrecision(3)} mV`);
+  rec.note(
+    r.method === "corners" ? "Worst-case corners" : "Monte Carlo",
+    `${r.cases.length} cases: ${r.parameters.map((p) => `${p.name} ${band(p)}`).join(", ")}` +
+      (r.temperatures[0] !== undefined ? `, at ${r.temperatures.map((t) => `${+(t! - 273.15).toFixed(2)} °C`).join(", ")}` : "") +
+      (r.method === "corners" ? "; each parameter at both ends of its band." : "; seeded, reproducible; the result is a sample, not a bound."),
+  );
+  const f = (x: number, unit: string) => `${+x.toPrecision(4)} ${unit}`;
+  const line = (name: string, s: FigureSpread, unit: string) =>
+    `${name}: ${f(s.min, unit)} (${s.minAt}) to ${f(s.max, unit)} (${s.maxAt}), nominal ${f(s.nominal, unit)}`;
+  rec.note(
+    "Spread of the bias",
+    [line("ID", r.id, "A"), line("VD", r.vd, "V"), line("VS", r.vs, "V"), line("VOV", r.vov, "V"), line("VDS − VOV", r.saturationMargin, "V")].join("\n"),
+  );
+  const minMargin = stage.limits?.minSaturationMargin ?? 0;
+  rec.check(`Saturation margin in every case ≥ ${minMargin} V`, r.saturationMargin.min, "voltage", { min: minMargin }, `worst case ${r.saturationMargin.minAt}`);
+  if (!r.allInSaturation)
+    rec.find(
+      "warning",
+      `${r.failures.length} of ${r.cases.length} cases leave saturation or cannot be solved; first: ${r.failures[0]?.label ?? "nominal"} (${r.failures[0]?.error ?? r.failures[0]?.region ?? r.nominal.region}).`,
+    );
+  rec.find("caution", "Tolerance analysis covers only the spreads stated; verify by simulation with the process corners and by measurement.");
+}
