@@ -141,7 +141,7 @@ export function toleranceAnalysis(stage: Stage, spec: ToleranceSpec = {}, rec?: 
     if (typeof spec.resistors === "number") band = checkFraction(spec.resistors, "tolerance.resistors");
     else if (spec.resistors && spec.resistors[name] !== undefined) band = checkFraction(spec.resistors[name]!, `tolerance.resistors.${name}`);
     else band = toleranceOf(series ?? "E24");
-    params.push({ name, nominal: value, band, relative: true });
+    if (band > 0) params.push({ name, nominal: value, band, relative: true });
   }
   const card = stage.device.card as DeviceCard & { readonly spread?: ProcessSpread };
   const process = spec.process ?? card.spread ?? {};
@@ -160,7 +160,7 @@ export function toleranceAnalysis(stage: Stage, spec: ToleranceSpec = {}, rec?: 
 
   const runCase = (pos: readonly number[], t: Kelvin | undefined): ToleranceCase => {
     const comps: Record<string, number> = { ...(stage.components as Readonly<Record<string, number>>) };
-    let c = cardAt.get(t)!;
+    let c = cardAt.get(t) ?? card;
     params.forEach((p, i) => {
       const x = pos[i]!;
       if (p.name === "Vt") c = { ...c, vt0: (c.vt0 + s * x * p.band) as Volts };
