@@ -73,8 +73,8 @@ const biasArb = fc
     extra: fc.double({ min: 0.01, max: 3, noNaN: true }),
     vsb: fc.double({ min: 0, max: 3, noNaN: true }),
     fwd: fc.double({ min: -0.3, max: -0.01, noNaN: true }),
-  })
-  .map((r) => r);
+  });
+type BiasDraw = typeof biasArb extends fc.Arbitrary<infer T> ? T : never;
 
 function vtOf(c: DeviceCard, vsb: number): number {
   // Only to aim the random points at a region; the comparison uses ngspice's own von.
@@ -84,10 +84,10 @@ function vtOf(c: DeviceCard, vsb: number): number {
   return vsb >= 0 ? vt0 + g * (Math.sqrt(p + vsb) - Math.sqrt(p)) : vt0 + (g * vsb) / (2 * Math.sqrt(p));
 }
 
-function biasFor(c: DeviceCard, r: fc.GeneratorValue extends never ? never : any): Bias {
+function biasFor(c: DeviceCard, r: BiasDraw): Bias {
   const s = c.polarity === "nmos" ? 1 : -1;
   let g: number, d: number, b: number;
-  switch (r.kind as Bias["kind"]) {
+  switch (r.kind) {
     case "cutoff":
       b = r.vsb;
       g = vtOf(c, b) - r.off;
@@ -207,7 +207,11 @@ describe("device model against ngspice Level 1 (Debian ngspice, batch mode)", ()
 
   it(`covers at least 200 points in every region, both polarities, λ ≠ 0, body effect, forward body bias and reversed VDS`, () => {
     expect(rows.length).toBeGreaterThanOrEqual(200);
-    const seen = new Set(rows.map((r) => `${cases[r.i]!.card.polarity}:${spiceRegion(cases[r.i]!.card, r.bias, r.spice.von, r.spice.vdsat)}`));
+    const labels = rows.map((r) => `${cases[r.i]!.card.polarity}:${spiceRegion(cases[r.i]!.card, r.bias, r.spice.von, r.spice.vdsat)}`);
+    const seen = new Set(labels);
+    const counts: Record<string, number> = {};
+    for (const l of labels) counts[l] = (counts[l] ?? 0) + 1;
+    console.log(`ngspice oracle points by polarity and region: ${JSON.stringify(counts)}; forward body bias ${rows.filter((r) => r.bias.kind === "forward-body").length}, reversed VDS ${rows.filter((r) => r.bias.kind === "reversed").length}`);
     for (const p of ["nmos", "pmos"]) for (const reg of ["cutoff", "triode", "saturation"]) expect(seen, `${p} ${reg}`).toContain(`${p}:${reg}`);
     expect(rows.filter((r) => r.bias.kind === "forward-body").length).toBeGreaterThan(5);
     expect(rows.filter((r) => r.bias.kind === "reversed").length).toBeGreaterThan(5);
@@ -237,5 +241,16 @@ describe("device model against ngspice Level 1 (Debian ngspice, batch mode)", ()
     }
     console.log(`ngspice Level 1 agreement over ${rows.length} points, max relative error (conducting points): ${JSON.stringify(worst)}`);
     expect(failures).toEqual([]);
+  });
+
+  it("is tight enough to see a 10 ppm error in k' (the comparison can fail)", () => {
+    let caught = 0;
+    for (const r of rows) {
+      const cs = cases[r.i]!;
+      const off = device({ ...cs.card, kp: amperesPerVoltSquared(cs.card.kp * (1 + 1e-5)) }, meters(cs.w), meters(cs.l));
+      const id = smallSignal(off, { vgs: volts(r.bias.vgs), vds: volts(r.bias.vds), vsb: volts(r.bias.vsb) }).op.id + gmin * (r.bias.vds + r.bias.vsb);
+      if (Math.abs(id - r.spice.id) > relTol * Math.abs(r.spice.id) + currentFloor) caught++;
+    }
+    expect(caught).toBeGreaterThan(150);
   });
 });
