@@ -3,7 +3,7 @@ import { copyFileSync, constants as fsc, existsSync, mkdirSync, statSync } from 
 import { dirname, resolve } from "node:path";
 import { parseArgs } from "node:util";
 import { InputError, PinchoffError } from "../errors.js";
-import { findTemplate } from "../templates.js";
+import { findTemplate, type Template } from "../templates.js";
 
 export const help = `usage: pinchoff new <template> <path.ipynb> [--force]
 
@@ -17,18 +17,24 @@ export async function main(argv: string[]): Promise<number> {
     return 0;
   }
   if (positionals.length !== 2) throw new InputError(positionals.join(" ") || undefined, "a template name and a destination path", "pinchoff new");
-  const t = findTemplate(positionals[0]!);
-  let dest = resolve(positionals[1]!);
+  const { dest, template } = newNotebook(positionals[0]!, positionals[1]!, !!values.force);
+  console.log(`created ${dest} from template ${template.name}: ${template.description}`);
+  return 0;
+}
+
+/** Copy template `name` to `path` (a file, or a folder to put `<name>.ipynb` in); never replaces a file unless `force`. */
+export function newNotebook(name: string, path: string, force: boolean, dir?: string): { dest: string; template: Template } {
+  const t = findTemplate(name, dir);
+  let dest = resolve(path);
   if (existsSync(dest) && statSync(dest).isDirectory()) dest = resolve(dest, `${t.name}.ipynb`);
-  if (existsSync(dest) && !values.force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
+  if (existsSync(dest) && !force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
   if (existsSync(dest) && !statSync(dest).isFile()) throw new PinchoffError("io", "exists and is not a file", dest);
   try {
     mkdirSync(dirname(dest), { recursive: true });
     // COPYFILE_EXCL makes the no-overwrite promise hold even if the file appears meanwhile.
-    copyFileSync(t.path, dest, values.force ? 0 : fsc.COPYFILE_EXCL);
+    copyFileSync(t.path, dest, force ? 0 : fsc.COPYFILE_EXCL);
   } catch (e) {
     throw new PinchoffError("io", `cannot write the notebook (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, dest);
   }
-  console.log(`created ${dest} from template ${t.name}: ${t.description}`);
-  return 0;
+  return { dest, template: t };
 }

@@ -5,10 +5,11 @@
  */
 import { spawn, spawnSync } from "node:child_process";
 import { accessSync, constants as fsc, existsSync, readFileSync } from "node:fs";
+import { createRequire } from "node:module";
 import { delimiter, isAbsolute, join } from "node:path";
 import { PinchoffError } from "../errors.js";
 import { driverSource } from "./driver.js";
-import { kernelDataDir, kernelName } from "./paths.js";
+import { kernelDataDir, kernelName, stagingRoot } from "./paths.js";
 
 export const installHint =
   "install Jupyter from Debian: apt-get install jupyter-client jupyter-nbconvert python3-nbclient python3-ipykernel, then register the kernel: node lib/setup/prepare.mjs kernel (or pinchoff kernel)";
@@ -52,9 +53,16 @@ export function jupyterEnv(env: NodeJS.ProcessEnv = process.env): NodeJS.Process
   return { ...env, JUPYTER_PATH: paths.join(delimiter) };
 }
 
+/** The kernel spec is registered and notebook cells staged under the package can import "pinchoff". */
 export function requireKernel(): void {
   if (!existsSync(join(kernelDataDir, "kernels", kernelName, "kernel.json")))
     throw new PinchoffError("io", `the tslab kernel is not registered in ${kernelDataDir}; run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
+  try {
+    // Resolution as tslab does it: node_modules folders from the staging area upward.
+    createRequire(join(stagingRoot, "notebook.js")).resolve("pinchoff/package.json");
+  } catch {
+    throw new PinchoffError("io", `notebook cells could not import "pinchoff" (no node_modules/pinchoff above ${stagingRoot}; npm install removes the checkout's self link); run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
+  }
 }
 
 export type CellStatus = "ok" | "error" | "abort" | "timeout" | "not run";

@@ -4,6 +4,7 @@
  * fault before anything is staged or executed.
  */
 import { readFileSync } from "node:fs";
+import { parse as jsoncParse, printParseErrorCode, type ParseError } from "jsonc-parser";
 import { InputError, PinchoffError } from "../errors.js";
 
 export interface NotebookCell {
@@ -50,11 +51,14 @@ export function parseNotebook(text: string, origin: string): Notebook {
   try {
     raw = JSON.parse(text);
   } catch (e) {
-    const msg = (e as Error).message;
-    const pos = /position (\d+)/.exec(msg);
-    const where = pos ? lineColumn(text, Number(pos[1])) : /line (\d+) column (\d+)/.exec(msg) ? { line: Number(RegExp.$1), column: Number(RegExp.$2) } : undefined;
+    // JSON.parse does not always say where; jsonc-parser (strict mode) finds the offset.
+    const errors: ParseError[] = [];
+    jsoncParse(text, errors, { disallowComments: true, allowTrailingComma: false, allowEmptyContent: false });
+    const first = errors[0];
+    const where = first ? lineColumn(text, first.offset) : undefined;
+    const what = first ? printParseErrorCode(first.error) : (e as Error).message;
     const at = where ? ` at line ${where.line}, column ${where.column}` : "";
-    throw new PinchoffError("invalid-design", `not valid notebook JSON${at} (${msg})`, origin);
+    throw new PinchoffError("invalid-design", `not valid notebook JSON${at}: ${what}`, origin);
   }
   return checkNotebook(raw, origin);
 }
