@@ -18,3 +18,8 @@ export { Derivation, unitOf, derivationSchemaVersion } from "./record/derivation
 export type * from "./record/derivation.js";
 export type { Formula, FormulaSpec, SymbolSpec } from "./formulas/define.js";
 export * as deviceFormulas from "./formulas/device.formulas.js";
+// Bias networks (added for the notebook templates; the bias module may widen this).
+export * from "./bias/topology.js";
+export * from "./bias/analyze.js";
+export * from "./bias/synthesis/four-resistor.js";
+export * from "./bias/eseries.js";

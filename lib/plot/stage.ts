@@ -26,7 +26,7 @@ const num = (c: unknown, name: string): number => {
 };
 
 /** The DC load seen by the transistor's drain–source loop, in device polarity. */
-export function stageLoad(stage: Stage): StageLoad {
+export function stageLoad<C>(stage: Stage<string, C>): StageLoad {
   const span = stage.supplies.vdd - (stage.supplies.vss ?? 0);
   const c = stage.components;
   const iss = num(c, "iss");
@@ -53,7 +53,7 @@ export interface StagePlots {
 }
 
 /** Output characteristic with load line and bias point, transfer characteristic and gm, gm/ID for a solved stage. */
-export function stagePlots(stage: Stage, analysis: StageAnalysis, opts: StagePlotOptions = {}): StagePlots {
+export function stagePlots<C>(stage: Stage<string, C>, analysis: StageAnalysis, opts: StagePlotOptions = {}): StagePlots {
   if (!stage || !analysis || !analysis.op) throw new InputError(analysis, "a stage and its analysis (from analyzeStage or a synthesis result)", "stagePlots");
   const dev = device(stage.device.card, stage.device.w, stage.device.l, "stagePlots.stage.device");
   const op = analysis.op;
