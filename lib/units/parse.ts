@@ -182,21 +182,24 @@ const superscripts: Readonly<Record<string, string>> = {
 };
 
 function normalise(text: string): string {
-  return text
-    .trim()
-    .replace(/[\u2070\u00b9\u00b2\u00b3\u2074-\u2079\u207a\u207b]+/g, (run) => `^${[...run].map((c) => superscripts[c]).join("")}`)
-    .replace(/\u2212/g, "-") // minus sign
-    // "1.23×10^-7", "1.23 x 10^-7", "1.23·10^3": the way results are printed.
-    .replace(/^([+-]?(?:\d+(?:\.\d*)?|\.\d+))\s*[\u00d7x*\u00b7\u22c5]\s*10\^\(?([+-]?\d+)\)?/, "$1e$2")
-    .replace(/[\u2126\u03a9]/g, "ohm") // Ω as OHM SIGN or Greek capital omega
-    .replace(/ohms?\b/gi, "ohm")
-    .replace(/[\u00b5\u03bc]/g, "u") // micro sign and Greek small mu
-    .replace(/\u2103/g, "degC")
-    .replace(/\u00b0\s*C\b/g, "degC")
-    .replace(/\u00b0\s*F\b/g, "degF")
-    .replace(/[\u00b7\u22c5]/g, " ") // middle dot, dot operator
-    .replace(/\u221a\s*\(/g, "sqrt(")
-    .replace(/\u221a\s*([A-Za-z]+)/g, "sqrt($1)");
+  let t = text.trim();
+  // Most texts are plain ASCII; skip the clean-up they do not need (it dominates a cached parse).
+  if (/[^\x20-\x7e]/.test(t))
+    t = t
+      .replace(/[\u2070\u00b9\u00b2\u00b3\u2074-\u2079\u207a\u207b]+/g, (run) => `^${[...run].map((c) => superscripts[c]).join("")}`)
+      .replace(/\u2212/g, "-") // minus sign
+      .replace(/[\u2126\u03a9]/g, "ohm") // Ω as OHM SIGN or Greek capital omega
+      .replace(/[\u00b5\u03bc]/g, "u") // micro sign and Greek small mu
+      .replace(/\u2103/g, "degC")
+      .replace(/\u00b0\s*C\b/g, "degC")
+      .replace(/\u00b0\s*F\b/g, "degF")
+      .replace(/\u221a\s*\(/g, "sqrt(")
+      .replace(/\u221a\s*([A-Za-z]+)/g, "sqrt($1)");
+  // "1.23×10^-7", "1.23 x 10^-7", "1.23·10^3": the way results are printed.
+  if (/10\^/.test(t)) t = t.replace(/^([+-]?(?:\d+(?:\.\d*)?|\.\d+))\s*[\u00d7x*\u00b7\u22c5]\s*10\^\(?([+-]?\d+)\)?/, "$1e$2");
+  if (/[\u00b7\u22c5]/.test(t)) t = t.replace(/[\u00b7\u22c5]/g, " "); // middle dot, dot operator
+  if (/ohm/i.test(t)) t = t.replace(/ohms?\b/gi, "ohm");
+  return t;
 }
 
 // ---------------------------------------------------------------------------
