@@ -1,14 +1,12 @@
 /**
- * A derivation as HTML for the report. The markup comes from the renderer of
- * "pinchoff/render"; this adapter is the one place the report touches it.
+ * A derivation as HTML for the report, from the "pinchoff/render" renderer;
+ * this adapter is the one place the report touches it. The report states the
+ * cautions once for the whole run, so each derivation omits its own.
  */
-import escapeHtml from "escape-html";
 import type { DerivationData } from "../record/derivation.js";
-import { katexCss } from "./assets.js";
+import { htmlStyles, renderHtmlFragment } from "../record/render.js";
 
-export function renderDerivationHtml(d: DerivationData): string {
-  // Placeholder until lib/record/render.ts lands; replaced by its HTML renderer.
-  return `<h3>${escapeHtml(d.title)}</h3>`;
-}
+export const renderDerivationHtml = (d: DerivationData): string => renderHtmlFragment(d, { omitCautions: true });
 
-export const formulaCss = (): string => katexCss();
+/** The <style> elements the derivation markup needs, once per report (KaTeX's with inlined fonts, and the record's). */
+export const formulaStyles = (): string => htmlStyles({ katex: true });

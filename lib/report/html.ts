@@ -9,7 +9,7 @@ import escapeHtml from "escape-html";
 import type { Dimension } from "../quantity.js";
 import { formatQuantity } from "../units/format.js";
 import type { CellFailure, CheckLine, CollectedPlot } from "../runner/collect.js";
-import { katexCss as bundledKatexCss, plotlyScript } from "./assets.js";
+import { plotlyScript } from "./assets.js";
 
 /** Marks a file as a pinchoff run report, so a later run may replace it. */
 export const reportMarker = '<meta name="generator" content="pinchoff run report">';
@@ -44,8 +44,8 @@ export interface ReportModel {
   readonly plots: readonly CollectedPlot[];
   readonly failures: readonly CellFailure[];
   readonly skipped: readonly number[];
-  /** Stylesheet for typeset formulas; KaTeX's with inlined fonts unless given. */
-  readonly formulaCss?: string;
+  /** <style> elements the derivation markup needs (from "pinchoff/render"), placed once. */
+  readonly formulaStyles?: string;
 }
 
 export const cautions = [
@@ -73,7 +73,7 @@ function verdict(m: ReportModel): { cls: string; text: string } {
   if (m.failures.length) return { cls: "bad", text: `Incomplete: cell ${m.failures[0]!.cell + 1} failed${m.skipped.length ? `, ${m.skipped.length} later cell(s) not run` : ""}` };
   if (failed) return { cls: "bad", text: `${failed} of ${m.checks.length} checks fail` };
   if (!m.checks.length) return { cls: "none", text: "No checks were recorded" };
-  return { cls: "good", text: `All ${m.checks.length} checks pass` };
+  return { cls: "good", text: m.checks.length === 1 ? "The check passes" : `All ${m.checks.length} checks pass` };
 }
 
 const style = `
@@ -103,7 +103,7 @@ export function buildReport(m: ReportModel): string {
   out.push(`<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">${reportMarker}`);
   out.push(`<meta name="viewport" content="width=device-width,initial-scale=1"><title>${esc(m.title)} — pinchoff report</title>`);
   out.push(`<style>${style}</style>`);
-  if (m.derivations.length) out.push(`<style>${m.formulaCss ?? bundledKatexCss()}</style>`);
+  if (m.derivations.length && m.formulaStyles) out.push(m.formulaStyles);
   out.push(`</head><body><main>`);
   out.push(`<h1>${esc(m.title)}</h1><p class="sub">Design calculation report from <code>${esc(m.notebookPath)}</code></p>`);
   out.push(`<div class="verdict ${v.cls}">${esc(v.text)}</div>`);

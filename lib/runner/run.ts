@@ -10,7 +10,7 @@ import { basename, dirname, extname, join, resolve } from "node:path";
 import { PinchoffError } from "../errors.js";
 import { fingerprint } from "../record/fingerprint.js";
 import { buildReport, reportMarker, type ReportModel } from "../report/html.js";
-import { renderDerivationHtml, formulaCss } from "../report/derivation-html.js";
+import { formulaStyles, renderDerivationHtml } from "../report/derivation-html.js";
 import { checkReplaceable, prepareOutputDir, removeIfEmpty, writeAtomically } from "./atomic-write.js";
 import { allChecks, collect, type CellFailure, type CheckLine, type Collected } from "./collect.js";
 import { executeNotebook, findJupyter, requireKernel } from "./execute.js";
@@ -141,7 +141,7 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
       plots: collected.plots,
       failures: collected.failures,
       skipped: collected.skipped,
-      ...(collected.derivations.length ? { formulaCss: formulaCss() } : {}),
+      ...(collected.derivations.length ? { formulaStyles: formulaStyles() } : {}),
     };
     const html = buildReport(model);
     writeAtomically([
