@@ -163,24 +163,43 @@ function newtonResistive(n: BiasNetwork, out: NetworkSolution, origin: string): 
   }
   let x = startResistive(n, hi);
   let step = hi;
+  const fb = n.gateToDrain;
+  const rail = n.bodyToRail && n.gamma !== 0;
+  const sqPhi = Math.sqrt(n.phi);
   for (let it = 1; it <= maxIterations; it++) {
-    const f = residualResistive(n, x);
+    // Residual f(ID) = ID − Ich(ID) and its slope, inline (the hot loop).
+    const vs = n.vsr + x * n.rs;
+    const vd = n.vdr - x * n.rd;
+    const vg = fb ? vd : n.vg;
+    let vt = n.vt0;
+    let dvt = 0; // dVt/dID
+    if (rail && x > 0) {
+      const vsb = x * n.rs;
+      const sq = Math.sqrt(n.phi + vsb);
+      vt = n.vt0 + n.gamma * (sq - sqPhi);
+      dvt = (n.gamma / (2 * sq)) * n.rs;
+    }
+    const f = x - channel(n, vg - vs - vt, vd - vs);
     if (f === 0) {
       finishResistive(n, out, x, it, 0);
       return;
     }
     if (f > 0) hi = x;
     else lo = x;
-    const dvgs = n.gateToDrain ? -rt : -n.rs;
-    const vsb = n.bodyToRail ? x * n.rs : 0;
-    const dvt = dVtdVsb(n, vsb) * (n.bodyToRail ? n.rs : 0);
-    const df = 1 - (dGm * (dvgs - dvt) + dGds * -rt);
+    const dvgs = fb ? -rt : -n.rs;
+    const df = 1 - (dGm * (dvgs - dvt) - dGds * rt);
     let next = x - f / df;
+    const tol = relTol * x + absTolCurrent;
+    // A Newton step this small has converged (it may land on the bracket end it came from).
+    if (Math.abs(next - x) <= tol && next >= lo && next <= hi) {
+      finishResistive(n, out, next, it, Math.abs(next - x));
+      return;
+    }
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
     step = Math.abs(next - x);
     x = next;
-    if (step <= relTol * x + absTolCurrent || hi - lo <= relTol * x + absTolCurrent) {
-      finishResistive(n, out, x, it, step);
+    if (hi - lo <= tol) {
+      finishResistive(n, out, x, it, hi - lo);
       return;
     }
   }
@@ -199,9 +218,27 @@ function residualResistive(n: BiasNetwork, x: number): number {
 /** Start from the λ = 0, Vt = Vt0 saturation estimate, kept inside the bracket. */
 function startResistive(n: BiasNetwork, hi: number): number {
   const r = n.gateToDrain ? n.rd + n.rs : n.rs;
-  const vov0 = (n.gateToDrain ? n.vdr : n.vg) - n.vsr - n.vt0;
-  const vov = vov0 > 0 ? (2 * vov0) / (1 + Math.sqrt(1 + 2 * n.k * r * vov0)) : 0;
-  const x = (n.k / 2) * vov * vov;
+  const vgr = (n.gateToDrain ? n.vdr : n.vg) - n.vsr;
+  let vov0 = vgr - n.vt0;
+  let x = vov0 > 0 ? (n.k / 2) * ((2 * vov0) / (1 + Math.sqrt(1 + 2 * n.k * r * vov0))) ** 2 : 0;
+  if (n.bodyToRail && n.gamma !== 0 && x > 0) {
+    // One pass with the threshold at the estimated VSB brings the start closer.
+    vov0 = vgr - (n.vt0 + n.gamma * (Math.sqrt(n.phi + x * n.rs) - Math.sqrt(n.phi)));
+    x = vov0 > 0 ? (n.k / 2) * ((2 * vov0) / (1 + Math.sqrt(1 + 2 * n.k * r * vov0))) ** 2 : 0;
+  }
+  const rt = n.rd + n.rs;
+  const span = n.vdr - n.vsr;
+  const vov = vov0 - (n.gateToDrain ? rt : n.rs) * x;
+  if (!n.gateToDrain && x > 0 && span - x * rt < vov) {
+    // The saturation estimate lands in triode: start from the λ = 0 triode root instead.
+    const a = (n.k * (n.rs - n.rd)) / 2;
+    const b = 1 + n.k * (rt * vov0 - n.rs * span);
+    const disc = b * b + 4 * a * span;
+    if (disc >= 0) {
+      const d = (2 * span) / (b + Math.sqrt(disc));
+      if (d > 0 && d < span) x = (span - d) / rt;
+    }
+  }
   return x > 0 && x < hi ? x : 0.5 * hi;
 }
 
@@ -239,12 +276,16 @@ function newtonFed(n: BiasNetwork, out: NetworkSolution, origin: string): void {
     const dvt = dVtdVsb(n, x - n.vsr);
     const dg = -dGm * (1 + dvt) - dGds;
     let next = dg < 0 ? x - g / dg : 0.5 * (lo + hi);
+    const tol = relTol * Math.max(Math.abs(x), Math.abs(vd - x)) + absTolVoltage;
+    if (Math.abs(next - x) <= tol && next >= lo && next <= hi) {
+      finishFed(n, out, next, vd, k, Math.abs(next - x));
+      return;
+    }
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
     step = Math.abs(next - x);
     x = next;
-    const tol = relTol * Math.max(Math.abs(x), Math.abs(vd - x)) + absTolVoltage;
-    if (step <= tol || hi - lo <= tol) {
-      finishFed(n, out, x, vd, k, step);
+    if (hi - lo <= tol) {
+      finishFed(n, out, x, vd, k, hi - lo);
       return;
     }
   }
