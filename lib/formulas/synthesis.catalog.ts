@@ -32,6 +32,7 @@ export const symbols = defineSymbols({
   RD: { tex: "R_{D}", dim: "resistance", meaning: "drain resistor" },
   RS: { tex: "R_{S}", dim: "resistance", meaning: "source resistor" },
   Rin: { tex: "R_{in}", dim: "resistance", meaning: "small-signal input resistance" },
+  RF: { tex: "R_{F}", dim: "resistance", meaning: "drain-to-gate feedback resistor" },
   P: { tex: "P", dim: "power", meaning: "power dissipated" },
   // design quantities
   VRS: { tex: "V_{RS}", dim: "voltage", meaning: "voltage across the source resistor (source-voltage budget)" },
@@ -95,6 +96,20 @@ export const formulas = defineFormulas({
     result: "RGSR",
     expr: "Rin * Vspan / (VDR - VG)",
     source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
+  },
+  followerMidSwing: {
+    title: "Follower source voltage halfway between the source rail and the triode edge VDR − VOV",
+    result: "VS",
+    expr: "(VDR - VOV + VSR) / 2",
+    source: "common practice: output at mid-swing for the largest symmetric swing",
+  },
+  sourceDropFromNode: { title: "Voltage across the source resistor", result: "VRS", expr: "VS - VSR", source: kcl },
+  sourceNodeBelowGate: { title: "Source voltage below the held gate", result: "VS", expr: "VG - VGS", source: kcl },
+  feedbackResistorForRin: {
+    title: "Feedback resistor for an input resistance, inverse of RF/(1 − Av) with Av = (1 − gm·RF)·RD/(RF + RD + gds·RD·RF)",
+    result: "RF",
+    expr: "(Rin * (1 + (gm + gds) * RD) - RD) / (1 + gds * RD)",
+    source: smallSignal,
   },
   widthForRatio: { title: "Channel width for an aspect ratio", result: "W", expr: "WL * L", source: "definition of the aspect ratio" },
   allowedPower: { title: "Allowed dissipation after derating", result: "Pmax", expr: "Prated * fDerate", source: "common practice: derate parts below their rated power" },

@@ -198,6 +198,62 @@ export const dividerToSourceRailForRin = {
   fn: (Rin: Ohms, Vspan: Volts, VDR: Volts, VG: Volts): Ohms => ((Rin * Vspan) / ((VDR - VG))) as Ohms,
 } as const satisfies Formula;
 
+/** Follower source voltage halfway between the source rail and the triode edge VDR − VOV: VS = (VDR - VOV + VSR) / 2 */
+export const followerMidSwing = {
+  id: "followerMidSwing",
+  title: "Follower source voltage halfway between the source rail and the triode edge VDR − VOV",
+  expr: "(VDR - VOV + VSR) / 2",
+  tex: "V_{S} = \\frac{{V_{DR}}-{V_{OV}}+{V_{SR}}}{2}",
+  result: "VS",
+  resultDim: "voltage",
+  vars: ["VDR","VOV","VSR"],
+  dims: ["voltage","voltage","voltage"],
+  source: "common practice: output at mid-swing for the largest symmetric swing",
+  fn: (VDR: Volts, VOV: Volts, VSR: Volts): Volts => ((((VDR - VOV) + VSR)) / 2) as Volts,
+} as const satisfies Formula;
+
+/** Voltage across the source resistor: VRS = VS - VSR */
+export const sourceDropFromNode = {
+  id: "sourceDropFromNode",
+  title: "Voltage across the source resistor",
+  expr: "VS - VSR",
+  tex: "V_{RS} = {V_{S}}-{V_{SR}}",
+  result: "VRS",
+  resultDim: "voltage",
+  vars: ["VS","VSR"],
+  dims: ["voltage","voltage"],
+  source: "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)",
+  fn: (VS: Volts, VSR: Volts): Volts => (VS - VSR) as Volts,
+} as const satisfies Formula;
+
+/** Source voltage below the held gate: VS = VG - VGS */
+export const sourceNodeBelowGate = {
+  id: "sourceNodeBelowGate",
+  title: "Source voltage below the held gate",
+  expr: "VG - VGS",
+  tex: "V_{S} = {V_{G}}-{V_{GS}}",
+  result: "VS",
+  resultDim: "voltage",
+  vars: ["VG","VGS"],
+  dims: ["voltage","voltage"],
+  source: "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)",
+  fn: (VG: Volts, VGS: Volts): Volts => (VG - VGS) as Volts,
+} as const satisfies Formula;
+
+/** Feedback resistor for an input resistance, inverse of RF/(1 − Av) with Av = (1 − gm·RF)·RD/(RF + RD + gds·RD·RF): RF = (Rin * (1 + (gm + gds) * RD) - RD) / (1 + gds * RD) */
+export const feedbackResistorForRin = {
+  id: "feedbackResistorForRin",
+  title: "Feedback resistor for an input resistance, inverse of RF/(1 − Av) with Av = (1 − gm·RF)·RD/(RF + RD + gds·RD·RF)",
+  expr: "(Rin * (1 + (gm + gds) * RD) - RD) / (1 + gds * RD)",
+  tex: "R_{F} = \\frac{{R_{in}}\\cdot\\left(1+\\left({g_{m}}+{g_{ds}}\\right)\\cdot{R_{D}}\\right)-{R_{D}}}{1+{g_{ds}}\\cdot{R_{D}}}",
+  result: "RF",
+  resultDim: "resistance",
+  vars: ["Rin","gm","gds","RD"],
+  dims: ["resistance","conductance","conductance","resistance"],
+  source: "small-signal model gm, gmb, gds of the square law; nodal analysis (common practice)",
+  fn: (Rin: Ohms, gm: Siemens, gds: Siemens, RD: Ohms): Ohms => ((((Rin * ((1 + (((gm + gds)) * RD)))) - RD)) / ((1 + (gds * RD)))) as Ohms,
+} as const satisfies Formula;
+
 /** Channel width for an aspect ratio: W = WL * L */
 export const widthForRatio = {
   id: "widthForRatio",
