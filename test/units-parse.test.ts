@@ -193,6 +193,9 @@ describe("errors: typed, naming the text, the dimensions and the origin; never N
     expect(e.code).toBe("invalid-value");
     expect(e.message).toContain("finite");
   });
+  it("an IEC code too long to be finite is an InputError", () => {
+    expect(thrown(() => parseQuantity(`1${"0".repeat(400)}R0`, "resistance", "R3")).code).toBe("invalid-value");
+  });
   it.each([Number.NaN, Number.POSITIVE_INFINITY, Number.NEGATIVE_INFINITY])("non-finite number %d is an InputError", (v) => {
     expect(thrown(() => parseQuantity(v, "dimensionless", "gain")).code).toBe("invalid-value");
     expect(thrown(() => parseAny(v, "gain")).code).toBe("invalid-value");

@@ -281,7 +281,7 @@ export function parseQuantity<D extends Dimension>(input: string | number, dim: 
       return finite(r.value, input, expected, origin) as Quantity<D>;
     case "code":
       if (r.dim !== dim) throw new InputError(input, `${expected}, but the IEC 60062 letter "${r.letter}" marks ${article(r.dim)} ${r.dim}`, origin, "wrong-dimension");
-      return r.value as Quantity<D>;
+      return finite(r.value, input, expected, origin) as Quantity<D>;
     case "unit":
       if (!r.unit.candidates.includes(dim)) {
         const hint = dim === "temperature" && /(^|\s)C$/.test(r.unit.names) ? `; "C" is the coulomb, write "degC" or "°C" for Celsius` : "";
@@ -306,7 +306,7 @@ export function parseAny(input: string | number, origin?: string): AnyQuantity {
     case "number":
       return { value: finite(r.value, input, expected, origin), dim: "dimensionless" } as AnyQuantity;
     case "code":
-      return { value: r.value, dim: r.dim } as AnyQuantity;
+      return { value: finite(r.value, input, expected, origin), dim: r.dim } as AnyQuantity;
     case "unit": {
       const { candidates, names } = r.unit;
       if (candidates.length === 0) throw new InputError(input, `a quantity of a known dimension, but it is ${describeFound(r.unit)}`, origin, "wrong-dimension");
