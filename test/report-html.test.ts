@@ -1,0 +1,61 @@
+// The standalone report: escaping, assets embedded once, offline, marked overrides, cautions.
+import { describe, expect, it } from "vitest";
+import { buildReport, cautions, reportMarker, type ReportModel } from "../lib/report/html.js";
+
+const hostile = '<script>alert("x")</script>&';
+const model = (over: Partial<ReportModel> = {}): ReportModel => ({
+  title: `Title ${hostile}`,
+  notebookPath: `/tmp/${hostile}.ipynb`,
+  toolVersion: "pinchoff 0.1.0",
+  date: new Date("2026-01-02T03:04:05Z"),
+  sourceFingerprint: "a".repeat(64),
+  inputsFingerprint: "b".repeat(64),
+  inputs: [{ name: "ID", text: hostile, dim: "current", value: 2e-4, overridden: true, original: "100 uA" }],
+  derivations: [],
+  checks: [{ title: `check ${hostile}`, passed: false, value: -0.1, dim: "voltage", min: 0, margin: -0.1, derivation: `d ${hostile}`, cell: 2 }],
+  plots: [{ cell: 3, title: `plot ${hostile}`, figure: { data: [{ x: [1], y: [2], name: "</script><b>trace</b>" }] } }],
+  failures: [],
+  skipped: [],
+  ...over,
+});
+
+describe("report", () => {
+  it("escapes every user string, including inside the plot spec", () => {
+    const html = buildReport(model());
+    expect(html).not.toContain(hostile);
+    expect(html).toContain("&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;&amp;");
+    // The spec sits in a JSON script block; no "<" may survive there.
+    const spec = /<script type="application\/json"[^>]*>([^]*?)<\/script>/.exec(html)![1]!;
+    expect(spec).not.toContain("<");
+    expect(JSON.parse(spec).data[0].name).toBe("</script><b>trace</b>");
+  });
+
+  it("marks overrides, the failing check and its margin, and carries the record and cautions", () => {
+    const html = buildReport(model());
+    expect(html).toContain(reportMarker);
+    expect(html).toContain("set on the command line");
+    expect(html).toContain("100 uA");
+    expect(html).toMatch(/class="fail">FAIL/);
+    expect(html).toContain("-100 mV"); // margin of -0.1 V
+    expect(html).toContain("2026-01-02T03:04:05.000Z");
+    expect(html).toContain("a".repeat(64));
+    for (const c of cautions) expect(html).toContain(c.replace(/'/g, "&#39;"));
+  });
+
+  it("embeds Plotly once when there are plots, not at all otherwise, and fetches nothing", () => {
+    const two = buildReport(model({ plots: [model().plots[0]!, model().plots[0]!] }));
+    expect(two.split("Plotly.newPlot").length - 1).toBe(1);
+    expect((two.match(/plotly\.js v\d/g) ?? []).length).toBeLessThanOrEqual(1);
+    expect(two).not.toMatch(/<(script|link)[^>]+(src|href)=["']?https?:/i);
+    expect(Buffer.byteLength(two)).toBeLessThanOrEqual(6e6);
+    const none = buildReport(model({ plots: [] }));
+    expect(none).not.toContain("Plotly");
+    expect(Buffer.byteLength(none)).toBeLessThan(50_000);
+  });
+
+  it("says the run is incomplete when a cell failed", () => {
+    const html = buildReport(model({ failures: [{ cell: 4, status: "error", lines: ["Error: invented"], source: "throw 1" }], skipped: [5] }));
+    expect(html).toContain("Incomplete: cell 5 failed, 1 later cell(s) not run");
+    expect(html).toContain("Error: invented");
+  });
+});
