@@ -17,8 +17,9 @@ export const pinchoffCss = `
 .pinchoff .po-verdict.po-ok{color:var(--po-ok)}.pinchoff .po-verdict.po-bad{color:var(--po-bad)}
 .pinchoff h3.po-part{font-size:.8rem;letter-spacing:.08em;text-transform:uppercase;color:var(--po-muted);margin:1rem 0 .4rem;font-weight:600}
 .pinchoff table{border-collapse:collapse;font-size:.9rem;margin:.2rem 0}
-.pinchoff th,.pinchoff td{text-align:left;padding:.25rem .8rem .25rem 0;border-bottom:1px solid var(--po-rule);vertical-align:top}
-.pinchoff th{font-weight:600;color:var(--po-muted);font-size:.8rem}
+/* table-qualified selectors outrank notebook front ends' own table rules */
+.pinchoff table th,.pinchoff table td{text-align:left;padding:.25rem .8rem .25rem 0;border-bottom:1px solid var(--po-rule);vertical-align:top}
+.pinchoff table th{font-weight:600;color:var(--po-muted);font-size:.8rem}
 .pinchoff td.po-num{font-variant-numeric:tabular-nums;white-space:nowrap}
 .pinchoff ol.po-steps{list-style:none;counter-reset:po-step;padding:0;margin:0}
 .pinchoff ol.po-steps>li{counter-increment:po-step;position:relative;padding:.35rem 0 .5rem 2.4rem;border-left:2px solid var(--po-rule);margin-left:.8rem}
