@@ -180,6 +180,7 @@ function newtonResistive(n: BiasNetwork, out: NetworkSolution, origin: string): 
       dvt = (n.gamma / (2 * sq)) * n.rs;
     }
     const f = x - channel(n, vg - vs - vt, vd - vs);
+    if (f !== f) throw new ConvergenceError(`the residual is not a number at ID = ${x} A (check the network values)`, origin);
     if (f === 0) {
       finishResistive(n, out, x, it, 0);
       return;
@@ -267,6 +268,7 @@ function newtonFed(n: BiasNetwork, out: NetworkSolution, origin: string): void {
   let step = hi - lo;
   for (let k = 1; k <= maxIterations; k++) {
     const g = residualFed(n, x, vd);
+    if (g !== g) throw new ConvergenceError(`the residual is not a number at VS = ${x} V (check the network values)`, origin);
     if (g === 0) {
       finishFed(n, out, x, vd, k, 0);
       return;
