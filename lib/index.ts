@@ -23,3 +23,27 @@ export * from "./bias/topology.js";
 export * from "./bias/analyze.js";
 export * from "./bias/synthesis/four-resistor.js";
 export * from "./bias/eseries.js";
+export { snapToSeries, maxCombinations, type SnapProblem, type SnapResult, type SnappedComponent, type SnapObjective } from "./bias/snap.js";
+export {
+  synthesize,
+  synthesisTopologies,
+  synthesizeFixedGate,
+  synthesizeDrainFeedback,
+  synthesizeSourceFollower,
+  synthesizeCurrentSourceBias,
+  type StageSpec,
+  type SpecBase,
+  type Sizing,
+  type SynthesisResult,
+  type SpecDeviation,
+  type FigureDeviation,
+  type DrainTarget,
+  type SourceBudget,
+  type DividerTarget,
+  type FixedGateSpec,
+  type DrainFeedbackSpec,
+  type SourceFollowerSpec,
+  type CurrentSourceBiasSpec,
+} from "./bias/synthesis.js";
+export * from "./bias/tolerance.js";
+export * from "./bias/dissipation.js";
