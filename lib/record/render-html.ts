@@ -18,7 +18,7 @@ import { PinchoffError } from "../errors.js";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData, FormulaStep, Step } from "./derivation.js";
 import { fingerprint, shortFingerprint } from "./fingerprint.js";
-import { asList, boundText, cautions, fingerprintOf, marginText, shortFingerprintOf, valueText, verdict, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, fingerprintOf, marginText, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 import { pinchoffCss } from "./styles.js";
 
@@ -127,13 +127,13 @@ function record(d: DerivationData, opts: HtmlOptions): string {
 export const cautionsHtml = (): string => `<p class="po-cautions">${esc(cautions)}</p>`;
 
 /** Body markup for one or several derivations, wrapped in `<div class="pinchoff">`; needs `htmlStyles` in the page. */
-export function renderHtmlFragment(data: DerivationData | readonly DerivationData[], opts: HtmlOptions = {}): string {
+export function renderHtmlFragment(data: DerivationLike | readonly DerivationLike[], opts: HtmlOptions = {}): string {
   const list = asList(data);
   return `<div class="pinchoff">\n${list.map((d) => record(d, opts)).join("\n")}${opts.omitCautions ? "" : `\n${cautionsHtml()}`}\n</div>`;
 }
 
 /** A complete, self-contained HTML page (no network, no script). */
-export function renderHtml(data: DerivationData | readonly DerivationData[], opts: HtmlOptions & { readonly pageTitle?: string } = {}): string {
+export function renderHtml(data: DerivationLike | readonly DerivationLike[], opts: HtmlOptions & { readonly pageTitle?: string } = {}): string {
   const list = asList(data);
   const title = opts.pageTitle ?? (list.length === 1 ? list[0]!.title : `Design record (${list.length} derivations)`);
   const design = list.length > 1 ? `<p class="po-meta">design inputs <code title="${esc(fingerprint(list))}">${esc(shortFingerprint(fingerprint(list)))}</code></p>\n` : "";

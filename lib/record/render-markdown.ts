@@ -6,7 +6,7 @@
 import escapeHtml from "escape-html";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, shortFingerprintOf, valueText, verdict, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, marginText, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 
 /** Escape a user string for Markdown text and table cells. */
@@ -66,7 +66,7 @@ function one(d: DerivationData, opts: RenderOptions): string {
 }
 
 /** A derivation, or a whole design's derivations, as Markdown. */
-export function renderMarkdown(data: DerivationData | readonly DerivationData[], opts: RenderOptions = {}): string {
+export function renderMarkdown(data: DerivationLike | readonly DerivationLike[], opts: RenderOptions = {}): string {
   const body = asList(data).map((d) => one(d, opts)).join("\n---\n\n");
   return opts.omitCautions ? body : `${body}\n> ${escapeMarkdown(cautions)}\n`;
 }

@@ -3,8 +3,12 @@
  * the bound of a check, the closing cautions. The format-specific renderers
  * only lay these out.
  */
+import { InputError } from "../errors.js";
 import { formatQuantity, type FormatOptions } from "../units/format.js";
-import type { CheckEntry, DerivationData } from "./derivation.js";
+import type { CheckEntry, Derivation, DerivationData } from "./derivation.js";
+
+/** What renderers accept: a live record or its JSON data. */
+export type DerivationLike = Derivation | DerivationData;
 import { fingerprint, shortFingerprint } from "./fingerprint.js";
 
 export interface RenderOptions extends FormatOptions {
@@ -49,5 +53,14 @@ export function marginText(c: CheckEntry, opts: FormatOptions = {}): string {
 
 export const statusText = (c: CheckEntry): string => (c.passed ? "pass" : "FAIL");
 
-export const asList = (d: DerivationData | readonly DerivationData[]): readonly DerivationData[] =>
-  Array.isArray(d) ? (d as readonly DerivationData[]) : [d as DerivationData];
+/** One record or a design's list of them; an empty list is refused (a report of nothing is a mistake upstream). */
+export function asList(d: DerivationLike | readonly DerivationLike[]): readonly DerivationData[] {
+  const list = Array.isArray(d) ? (d as readonly DerivationLike[]) : [d as DerivationLike];
+  if (list.length === 0) throw new InputError(d, "at least one derivation", "render");
+  return list.map((x, i) => {
+    const data = x && typeof (x as Derivation).toJSON === "function" ? (x as Derivation).toJSON() : (x as DerivationData);
+    if (!data || typeof data !== "object" || !Array.isArray(data.steps) || !Array.isArray(data.checks) || !Array.isArray(data.inputs))
+      throw new InputError(x, "derivation data (a Derivation, its toJSON(), or reviveDerivation of its JSON)", `render: derivation ${i + 1}`);
+    return data;
+  });
+}

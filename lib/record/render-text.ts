@@ -4,7 +4,7 @@
  */
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, shortFingerprintOf, statusText, valueText, verdict, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, marginText, shortFingerprintOf, statusText, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { substitutedText } from "./substitute.js";
 
 /** Columns padded to their widest cell (code points, which suits the symbols we print). */
@@ -80,7 +80,7 @@ function one(d: DerivationData, opts: RenderOptions): string {
 }
 
 /** A derivation, or a whole design's derivations, as terminal text. */
-export function renderText(data: DerivationData | readonly DerivationData[], opts: RenderOptions = {}): string {
+export function renderText(data: DerivationLike | readonly DerivationLike[], opts: RenderOptions = {}): string {
   const body = asList(data).map((d) => one(d, opts)).join("\n");
   return opts.omitCautions ? body : `${body}\n${wrap(`Caution: ${cautions}`, 78, "")}\n`;
 }

@@ -11,11 +11,12 @@ import { InputError } from "../errors.js";
 export { renderHtml, renderHtmlFragment, htmlStyles, katexCss, typeset, cautionsHtml, type HtmlOptions, type MathOutput } from "./render-html.js";
 export { renderMarkdown, escapeMarkdown } from "./render-markdown.js";
 export { renderText, textTable } from "./render-text.js";
-export { cautions, verdict, boundText, marginText, type RenderOptions } from "./render-parts.js";
+export { cautions, verdict, boundText, marginText, type RenderOptions, type DerivationLike } from "./render-parts.js";
 export { stepTex, substitutedTex, substitutedText } from "./substitute.js";
 export { fingerprint, fingerprintText, canonicalJson, shortFingerprint, fingerprintScheme } from "./fingerprint.js";
 export { pinchoffCss } from "./styles.js";
 export { derivationSchemaVersion } from "./derivation.js";
+export { reviveDerivation } from "./revive.js";
 
 /** The JSON form: `toJSON()` for a live record; hand-made data gains the schema version and fingerprint. */
 export function toData(d: Derivation | DerivationData): DerivationData {
