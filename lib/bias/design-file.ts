@@ -22,8 +22,8 @@
  *   }
  */
 import { readFileSync } from "node:fs";
-import type { DeviceCard } from "../device/card.js";
-import { InputError, PinchoffError } from "../errors.js";
+import { checkCard, type DeviceCard } from "../device/card.js";
+import { InputError, PinchoffError, requirePositive } from "../errors.js";
 import type { Dimension } from "../quantity.js";
 import { parseQuantity } from "../units/parse.js";
 import { topologyFor, type Stage, type StageLimits } from "./topology.js";
@@ -56,8 +56,8 @@ function object(v: unknown, at: string, what: string): Record<string, unknown> {
   return v;
 }
 
-function onlyKeys(o: Record<string, unknown>, allowed: readonly string[], at: string): void {
-  for (const k of Object.keys(o)) if (!allowed.includes(k)) throw new InputError(k, `one of the fields ${allowed.join(", ")}`, `${at}.${k}`, "invalid-design");
+function onlyKeys(o: Record<string, unknown>, allowed: readonly string[], at: string, top = false): void {
+  for (const k of Object.keys(o)) if (!allowed.includes(k)) throw new InputError(k, `one of the fields ${allowed.join(", ")}`, top ? `${at}: ${k}` : `${at}.${k}`, "invalid-design");
 }
 
 function quantity(v: unknown, dim: Dimension, at: string): number {
@@ -69,7 +69,7 @@ function quantity(v: unknown, dim: Dimension, at: string): number {
 /** Validate and parse a design (already JSON-parsed) into a stage; `origin` names the file. */
 export function parseDesign(design: unknown, origin = "design"): Stage {
   const d = object(design, origin, "a design object { topology, device, components, supplies, … }");
-  onlyKeys(d, topKeys, origin);
+  onlyKeys(d, topKeys, origin, true);
   const at = (p: string) => `${origin}: ${p}`;
   const topo = topologyFor(d.topology, at("topology"));
   if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
@@ -100,8 +100,9 @@ export function parseDesign(design: unknown, origin = "design"): Stage {
     for (const [k, dim] of Object.entries(temperatureFields)) tc[k] = quantity(t[k], dim, at(`device.card.temperature.${k}`));
     card.temperature = tc;
   }
-  const w = quantity(dev.w, "length", at("device.w"));
-  const l = quantity(dev.l, "length", at("device.l"));
+  checkCard(card as unknown as DeviceCard, at("device.card"));
+  const w = requirePositive(quantity(dev.w, "length", at("device.w")), at("device.w"), "a channel width W > 0 in m");
+  const l = requirePositive(quantity(dev.l, "length", at("device.l")), at("device.l"), "a channel length L > 0 in m");
 
   const comps = object(d.components, at("components"), `the ${topo.id} components (${topo.components.map((f) => f.name).join(", ")})`);
   onlyKeys(comps, topo.components.map((f) => f.name), at("components"));

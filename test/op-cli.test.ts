@@ -1,0 +1,104 @@
+/**
+ * `pinchoff op`: design file in, operating point JSON out, derivation record
+ * written atomically; bad designs get errors naming the file and the field.
+ * The design values are invented for the test.
+ */
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { main } from "../lib/cli/op.js";
+import { parseDesign } from "../lib/bias/design-file.js";
+import { InputError } from "../lib/errors.js";
+
+let dir: string;
+const design = {
+  name: "demo input stage (invented)",
+  topology: "four-resistor",
+  device: { card: { name: "demo-n", polarity: "nmos", kp: "200 uA/V^2", vt0: "0.5 V", lambda: "0.05 1/V", gamma: 0.4, phi: "0.7 V" }, w: "10 um", l: "1 um" },
+  components: { rg1: "200k", rg2: "100 kOhm", rd: "5.1k", rs: 1000 },
+  supplies: { vdd: "5 V" },
+  body: "rail",
+  limits: { maxDevicePower: "50 mW" },
+};
+const write = (name: string, value: unknown) => {
+  const p = join(dir, name);
+  writeFileSync(p, typeof value === "string" ? value : JSON.stringify(value));
+  return p;
+};
+async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
+  const out: string[] = [];
+  const err: string[] = [];
+  const log = vi.spyOn(console, "log").mockImplementation((s: unknown) => void out.push(String(s)));
+  const error = vi.spyOn(console, "error").mockImplementation((s: unknown) => void err.push(String(s)));
+  try {
+    return { code: await main(argv), out: out.join("\n"), err: err.join("\n") };
+  } finally {
+    log.mockRestore();
+    error.mockRestore();
+  }
+}
+
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), "pinchoff-op-"));
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+describe("pinchoff op", () => {
+  it("prints the operating point as JSON, values parsed from text with units", async () => {
+    const file = write("stage.json", design);
+    const r = await run([file]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.region).toBe("saturation");
+    expect(j.nodes.gate).toBeCloseTo(5 / 3, 12);
+    expect(j.currents.rd).toBeCloseTo(j.currents.drain, 15);
+    expect(j.metrics.checks.every((c: { passed: boolean }) => c.passed)).toBe(true);
+    expect(j.design).toBe(file);
+  });
+  it("writes the derivation as Markdown and HTML atomically, leaving no temp files", async () => {
+    const file = write("stage2.json", design);
+    const before = readFileSync(file, "utf8");
+    for (const name of ["rec.md", "rec.html"]) {
+      const out = join(dir, name);
+      const r = await run([file, "--record", out]);
+      expect(r.code).toBe(0);
+      const text = readFileSync(out, "utf8");
+      expect(text).toContain("Assume saturation");
+      expect(text).toContain("First cut");
+    }
+    expect(readdirSync(dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
+    expect(readFileSync(file, "utf8")).toBe(before);
+  });
+  it("refuses to write the record over the design file", async () => {
+    const file = write("stage3.json", design);
+    const before = readFileSync(file, "utf8");
+    await expect(run([file, "--record", file])).rejects.toThrow(/record file ending in \.html or \.md|other than the design file/);
+    const md = write("stage3.md", design); // a design that happens to end in .md
+    await expect(run([md, "--record", md])).rejects.toThrow(/other than the design file/);
+    expect(readFileSync(file, "utf8")).toBe(before);
+  });
+  it("names the file and the field for an unknown topology, a wrong unit, a missing or unknown field", () => {
+    expect(() => parseDesign({ ...design, topology: "tube-amp" }, "a.json")).toThrow(/a\.json: topology: got "tube-amp", expected one of the topology ids/);
+    expect(() => parseDesign({ ...design, components: { ...design.components, rd: "5 V" } }, "b.json")).toThrow(/b\.json: components\.rd: got "5 V"/);
+    const wrongUnit = (() => {
+      try {
+        parseDesign({ ...design, components: { ...design.components, rd: "5 V" } }, "b.json");
+      } catch (e) {
+        return e as InputError;
+      }
+    })();
+    expect(wrongUnit?.code).toBe("wrong-dimension");
+    const { rs: _rs, ...noRs } = design.components;
+    expect(() => parseDesign({ ...design, components: noRs }, "c.json")).toThrow(/c\.json: components\.rs: got nothing/);
+    expect(() => parseDesign({ ...design, colour: "red" }, "d.json")).toThrow(/d\.json: colour: got "colour", expected one of the fields/);
+    expect(() => parseDesign({ ...design, device: { ...design.device, card: { ...design.device.card, kp: "-2 uA/V^2" } } }, "e.json")).toThrow(/e\.json: device\.card "demo-n"\.kp: got -0\.000002, expected a process transconductance/);
+  });
+  it("reports unreadable and malformed files as errors, and usage problems with exit 2", async () => {
+    await expect(run([join(dir, "nope.json")])).rejects.toThrow(/nope\.json: cannot read the design file \(ENOENT\)/);
+    const bad = write("bad.json", "{ not json");
+    await expect(run([bad])).rejects.toThrow(/bad\.json: got .* expected JSON/);
+    expect((await run([])).code).toBe(2);
+    expect((await run(["--help"])).code).toBe(0);
+  });
+});
