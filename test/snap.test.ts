@@ -99,3 +99,11 @@ describe("snapToSeries", () => {
     expect(() => snapToSeries({ names: ["R"], ideal: [1000], series: "E12", objective: () => { throw new TypeError("bug"); } })).toThrow(TypeError);
   });
 });
+
+describe("snapToSeries ranking", () => {
+  it("lists the best combinations in the order the choice uses (score, then closeness to the ideal)", () => {
+    const r = snapToSeries({ names: ["R1", "R2"], ideal: [5050, 5200], series: "E12", objective: ratioObjective(0.5) });
+    expect(r.ranking[0]!.values).toEqual(r.chosen);
+    expect(r.ranking[0]!.score).toBe(r.score);
+  });
+});

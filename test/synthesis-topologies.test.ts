@@ -159,6 +159,7 @@ describe("bad and infeasible specifications", () => {
     synthesize({ ...common, series: "E12", topology: "source-follower", card: nCard }, rec);
     expect(rec.sources).toContain("IEC 60063 (preferred number series for resistors and capacitors)");
     expect(rec.assumptions.some((a) => /mid-swing .*common practice/.test(a))).toBe(true);
-    expect(rec.findings.some((f) => f.severity === "caution" && /verify the chosen values by simulation/.test(f.text))).toBe(true);
+    expect(rec.findings.some((f) => f.severity === "caution" && /verify by simulation/.test(f.text))).toBe(true);
+    expect(rec.findings.some((f) => /±10 % for E12 per IEC 60063/.test(f.text))).toBe(true);
   });
 });

@@ -34,6 +34,15 @@ describe("toleranceAnalysis: worst-case corners", () => {
     expect(rec.steps.some((s) => s.kind === "note" && /8 cases: rd ±5 %, Vt ±50 mV, k' ±10 %/.test(s.text))).toBe(true);
   });
 
+  it("PMOS mirror of the same stage gives the same spread (Vt+ means a larger |Vt|)", () => {
+    const pCard = { ...card, name: "tol-p (invented)", polarity: "pmos", vt0: -0.6 } as DeviceCard;
+    const p: Stage = { topology: "fixed-gate", device: { ...dev, card: pCard }, components: { vg: 0, rd: 2000 }, supplies: { vdd: 1.5 as Volts, vss: -3.5 as Volts } };
+    const r = toleranceAnalysis(p, { resistors: 0.05, process: { vt0: 0.05 as Volts, kp: 0.1 } });
+    expect(r.id.max).toBeCloseTo(0.99275e-3, 15);
+    expect(r.id.min).toBeCloseTo(0.65025e-3, 15);
+    expect(r.id.maxAt).toMatch(/Vt− k'\+/);
+  });
+
   it("uses the series' IEC 60063 band when no resistor tolerance is stated, and the card's own spread", () => {
     const withSpread = { ...fourR, device: { ...dev, card: { ...card, spread: { vt0: 0.1, kp: 0.2 } } as DeviceCard } };
     const r = toleranceAnalysis(withSpread, { series: "E96" });

@@ -71,7 +71,7 @@ export const eSeries: Readonly<Record<SeriesName, ESeries>> = Object.freeze({
   E192: make("E192", e192, [0.005, 0.0025, 0.001]),
 });
 
-/** Values from 1 mΩ-scale to 1 TΩ-scale; beyond that a number is almost surely a unit slip. */
+/** Accepted values, 1 µ to 1 P in SI units (fF capacitors to TΩ resistors); beyond that a number is almost surely a unit slip. */
 export const saneRange = { min: 1e-6, max: 1e15 } as const;
 
 /** Look up a series by name, with a typed error naming the choices. */

@@ -98,7 +98,7 @@ export function snapToSeries(problem: SnapProblem, rec?: Derivation): SnapResult
   let bestSpread = Infinity;
   let rejected = 0;
   let firstRejection: string | undefined;
-  const ranking: { values: number[]; score: number }[] = [];
+  const ranking: { values: number[]; score: number; spread: number }[] = [];
   for (let t = 0; t < total; t++) {
     for (let i = 0; i < names.length; i++) vals[i] = cands[i]![idx[i]!]!;
     const r = score(vals);
@@ -113,7 +113,7 @@ export function snapToSeries(problem: SnapProblem, rec?: Derivation): SnapResult
         bestScore = r.score;
         bestSpread = spread;
       }
-      ranking.push({ values: vals.slice(), score: r.score });
+      ranking.push({ values: vals.slice(), score: r.score, spread });
     }
     for (let i = names.length - 1; i >= 0; i--) {
       if (++idx[i]! < cands[i]!.length) break;
@@ -126,7 +126,8 @@ export function snapToSeries(problem: SnapProblem, rec?: Derivation): SnapResult
       `none of the ${total} combinations of ${s.name} values could be evaluated; first rejection: ${firstRejection ?? "none"}`,
       "snap",
     );
-  ranking.sort((a, b) => a.score - b.score);
+  // Same order as the choice: score, then closeness to the ideal values.
+  ranking.sort((a, b) => a.score - b.score || a.spread - b.spread);
   const nearestScore = score(nearest).score;
   const components = names.map((name, i) => ({
     name,
@@ -172,6 +173,6 @@ export function snapToSeries(problem: SnapProblem, rec?: Derivation): SnapResult
     nearestScore,
     combinationsTried: total,
     combinationsRejected: rejected,
-    ranking: ranking.slice(0, 5),
+    ranking: ranking.slice(0, 5).map((r) => ({ values: r.values, score: r.score })),
   };
 }

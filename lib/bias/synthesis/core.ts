@@ -21,6 +21,7 @@ import type { Amperes, AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, Sqrt
 import type { Derivation } from "../../record/derivation.js";
 import "../analyze.js"; // registers the built-in topologies
 import { stageDissipation } from "../dissipation.js";
+import { eSeries } from "../eseries.js";
 import { snapToSeries, type SnapResult } from "../snap.js";
 import { topologyFor, type AmplifierKind, type Stage, type StageAnalysis } from "../topology.js";
 import { deviceRails, evaluate, figure, recordDeviation, type SpecBase, type SpecDeviation, type SynthesisResult } from "./common.js";
@@ -342,7 +343,11 @@ export function finish<C extends object>(a: FinishArgs<C>, rec?: Derivation): Sy
   };
   recordDeviation(deviation, a.output.node === "drain" ? "VD" : "VS", rec);
   const dissipation = spec.dissipation ? stageDissipation(stage, analysis, spec.dissipation, rec) : undefined;
-  rec?.find("caution", "Hand analysis with the square law is approximate: verify the chosen values by simulation and on the bench, and respect the device's ratings.");
+  if (rec && snap)
+    rec.find(
+      "note",
+      `The chosen ${snap.series} parts carry their own tolerance (±${+(eSeries[snap.series].tolerance * 100).toPrecision(2)} % for ${snap.series} per IEC 60063): run toleranceAnalysis on the chosen stage for the spread of the bias.`,
+    );
   return {
     topology: a.topology,
     ideal: { components: a.ideal, vg: (s * d.vg) as Volts, vs: (s * d.vs) as Volts, vd: (s * d.vd) as Volts, vov: d.vov, vt: d.vt, wl: d.wl, w: d.w, l: d.l },
