@@ -58,3 +58,14 @@ describe("operatingPoint bad input", () => {
     expect(() => operatingPoint(m, { vgs: volts(1), vds: volts(1), vsb: volts(NaN) })).toThrow(/bias\.vsb/);
   });
 });
+
+describe("operating point as data", () => {
+  it("explains its region on read and keeps the explanation in its JSON form", () => {
+    const op = operatingPoint(m, { vgs: volts(1.1), vds: volts(2) });
+    expect(op.reason).toMatch(/^VGS − Vt = 0\.6 V > 0 and VDS = 2 V ≥ VOV: .*saturation \(margin VDS − VOV = 1\.4 V\)\.$/);
+    const json = JSON.parse(JSON.stringify(op));
+    expect(json.reason).toBe(op.reason);
+    expect(json.region).toBe("saturation");
+    expect(json.id).toBe(op.id);
+  });
+});

@@ -111,8 +111,7 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
   const vov = overdrive.fn(g as Volts, vtMag);
   rec?.step(overdrive, [g, vtMag], vov, pmos ? "PMOS: magnitudes VSG and |Vt|" : undefined);
   const region = regionOf(vov, d);
-  const reason = regionReason(region, vov, d, pmos);
-  rec?.note(`Region: ${region}`, reason);
+  rec?.note(`Region: ${region}`, regionReason(region, vov, d, pmos));
   let ich = 0;
   const vds = d as Volts;
   if (region === "triode") {
@@ -131,18 +130,39 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
     inversion(forward, k, opts, rec);
   }
   const channel = ((reversed ? -1 : 1) * ich) as Amperes;
-  return {
-    region,
-    id: (s * channel) as Amperes,
-    channelCurrent: channel,
-    vt: (s * vtMag) as Volts,
-    vov,
-    saturationMargin: (d - vov) as Volts,
-    vgsDevice: g as Volts,
-    vdsDevice: d as Volts,
-    vsbDevice: b as Volts,
-    reversed,
-    k,
-    reason,
-  };
+  return new OperatingPointValue(region, (s * channel) as Amperes, channel, (s * vtMag) as Volts, vov, g as Volts, d as Volts, b as Volts, reversed, k, pmos);
+}
+
+/**
+ * The operating point as returned. A class so that `reason` is built on first
+ * read from the prototype: formatting the sentence costs more than the rest of
+ * the operating point, and an accessor on an object literal is slower still.
+ * `toJSON` includes `reason`; an object spread (`{ ...op }`) does not.
+ */
+class OperatingPointValue implements OperatingPoint {
+  readonly saturationMargin: Volts;
+  readonly #pmos: boolean;
+  constructor(
+    readonly region: Region,
+    readonly id: Amperes,
+    readonly channelCurrent: Amperes,
+    readonly vt: Volts,
+    readonly vov: Volts,
+    readonly vgsDevice: Volts,
+    readonly vdsDevice: Volts,
+    readonly vsbDevice: Volts,
+    readonly reversed: boolean,
+    readonly k: AmperesPerVoltSquared,
+    pmos: boolean,
+  ) {
+    this.saturationMargin = (vdsDevice - vov) as Volts;
+    this.#pmos = pmos;
+  }
+  get reason(): string {
+    return regionReason(this.region, this.vov, this.vdsDevice, this.#pmos);
+  }
+  toJSON(): OperatingPoint {
+    const { region, id, channelCurrent, vt, vov, saturationMargin, vgsDevice, vdsDevice, vsbDevice, reversed, k } = this;
+    return { region, id, channelCurrent, vt, vov, saturationMargin, vgsDevice, vdsDevice, vsbDevice, reversed, k, reason: this.reason };
+  }
 }

@@ -106,7 +106,7 @@ export function gateVoltageFor(dev: Device, id: Amperes, opts: GateDriveOptions 
   const s = polaritySign(c);
   const vsb = opts.vsb === undefined ? 0 : s * requireFinite(opts.vsb, "gateVoltageFor.opts.vsb", "a finite VSB in V");
   if (opts.maxGateDrive !== undefined) requirePositive(opts.maxGateDrive, "gateVoltageFor.opts.maxGateDrive", "a gate-drive magnitude |VGS| > 0 in V");
-  const vov = overdriveFor(dev, id, { ...(opts.vds !== undefined ? { vds: opts.vds } : {}) }, rec);
+  const vov = overdriveFor(dev, id, opts, rec);
   const vtMag = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, vsb as Volts, rec);
   const vgsDev = gateSourceVoltage.fn(vtMag, vov);
   rec?.step(gateSourceVoltage, [vtMag, vov], vgsDev, s < 0 ? "PMOS: VSG = |Vt| + VOV, so VGS = −VSG" : undefined);

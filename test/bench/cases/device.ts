@@ -1,0 +1,85 @@
+/**
+ * The device model off the drain-current hot path: small-signal parameters
+ * (which allocate one result object each) and inverse design, per second,
+ * without a derivation record.
+ */
+import { existsSync } from "node:fs";
+import { dirname, join, resolve } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import type { Device } from "../../../lib/index.js";
+import { defineCases } from "../case.js";
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), "../../..");
+const coreUrl = pathToFileURL(join(root, "dist/index.js")).href;
+type Core = typeof import("../../../lib/index.js");
+async function core(): Promise<Core> {
+  if (!existsSync(join(root, "dist/index.js"))) throw new Error("bench: dist/index.js is missing: run `npm run bench` (it builds first)");
+  return (await import(coreUrl)) as Core;
+}
+
+const points = 4096;
+const vgs = new Float64Array(points);
+const vds = new Float64Array(points);
+const vsb = new Float64Array(points);
+const ids = new Float64Array(points);
+let c: Core | undefined;
+let dev: Device | undefined;
+/** Results are summed into this so the work cannot be dropped. */
+export let sink = 0;
+
+async function prepare(): Promise<void> {
+  c = await core();
+  // Invented card for the benchmark, not a real process.
+  const card = { name: "bench-n", polarity: "nmos", kp: c.amperesPerVoltSquared(120e-6), vt0: c.volts(0.45), lambda: c.perVolt(0.04), gamma: c.sqrtVolts(0.45), phi: c.volts(0.8) } as const;
+  dev = c.device(card, c.meters(20e-6), c.meters(0.5e-6));
+  let s = 98765;
+  const rand = () => ((s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32);
+  for (let i = 0; i < points; i++) {
+    vgs[i] = rand() * 1.8;
+    vds[i] = rand() * 2.0 - 0.2;
+    vsb[i] = rand() < 0.5 ? 0 : rand() * 1.2;
+    ids[i] = 1e-6 + rand() * 1e-3;
+  }
+}
+
+function rate(n: number, body: (i: number) => number): number {
+  let sum = 0;
+  const t0 = performance.now();
+  for (let r = 0; r < n; r++) sum += body(r & (points - 1));
+  const s = (performance.now() - t0) / 1e3;
+  if (!Number.isFinite(sum)) throw new Error(`bench: non-finite sum ${sum}`);
+  sink += sum;
+  return n / s;
+}
+
+export const cases = defineCases([
+  {
+    id: "device.smallSignal",
+    title: "smallSignal evaluations per second, no record, varied bias (dist/index.js)",
+    repeats: 7,
+    async setup() {
+      await prepare();
+      for (let i = 0; i < 50_000; i++) sink += c!.smallSignal(dev!, { vgs: vgs[i & (points - 1)]! as never, vds: vds[i & (points - 1)]! as never, vsb: vsb[i & (points - 1)]! as never }).gm;
+    },
+    measure() {
+      const ss = c!.smallSignal;
+      const d = dev!;
+      return { rate: rate(1_000_000, (i) => ss(d, { vgs: vgs[i]! as never, vds: vds[i]! as never, vsb: vsb[i]! as never }).gm) };
+    },
+    figures: { rate: { unit: "evals/s", better: "higher", target: 1e6, note: "one NMOS with body effect and λ, all regions" } },
+  },
+  {
+    id: "device.gateVoltageFor",
+    title: "gateVoltageFor solutions per second, no record, body effect (dist/index.js)",
+    repeats: 7,
+    async setup() {
+      if (!c) await prepare();
+    },
+    measure() {
+      const g = c!.gateVoltageFor;
+      const d = dev!;
+      return { rate: rate(1_000_000, (i) => g(d, ids[i]! as never, { vsb: vsb[i]! as never }).vgs) };
+    },
+    figures: { rate: { unit: "solutions/s", better: "higher", target: 5e5, note: "VGS for a target ID with body effect, inputs validated each call" } },
+  },
+]);
