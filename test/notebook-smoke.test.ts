@@ -22,6 +22,7 @@ const cells = [
   [
     `import { device, operatingPoint, Derivation, amperesPerVoltSquared, volts, meters, perVolt, type DeviceCard } from "pinchoff";`,
     `import { show, showQuantity } from "pinchoff/notebook";`,
+    `import { fingerprint } from "pinchoff/render";`,
     `const card: DeviceCard = ${cardSource};`,
     `const m1 = device(card, meters(10e-6), meters(1e-6));`,
     `const rec = new Derivation("Smoke: M1 at VGS = 0.8 V, VDS = 1.2 V");`,
@@ -30,6 +31,7 @@ const cells = [
     `rec.check("Saturation margin", op.saturationMargin, "voltage", { min: 0.1 });`,
     `showQuantity(op.id, "current", "ID");`,
     `show(rec);`,
+    `console.log("inputs " + fingerprint(rec));`,
   ].join("\n"),
   // A current where a voltage is expected: the kernel's TypeScript must refuse it.
   `operatingPoint(m1, { vgs: op.id, vds: volts(1.2) });`,
@@ -66,6 +68,11 @@ describe("notebook through the real tslab kernel", () => {
     expect(data.checks.map((c) => [c.title, c.passed])).toEqual([["Saturation margin", true]]);
     expect(expectReevaluates(data)).toBeGreaterThanOrEqual(2);
     expect(run[0]!.outputs.filter((o) => o.output_type === "error" || o.name === "stderr")).toEqual([]);
+  });
+
+  it("imports the render entry by package name too", () => {
+    const stdout = run[0]!.outputs.filter((o) => o.name === "stdout").map((o) => joined(o.text)).join("");
+    expect(stdout).toContain(`inputs ${fingerprint(rec)}`);
   });
 
   it("refuses a current where a voltage is expected, as a TypeScript error in the cell output", () => {
