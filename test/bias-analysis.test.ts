@@ -13,6 +13,7 @@ import { ConvergenceError, InfeasibleError, InputError } from "../lib/errors.js"
 import * as biasFormulas from "../lib/formulas/bias.formulas.js";
 import * as deviceFormulas from "../lib/formulas/device.formulas.js";
 import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
+import { expectReevaluates } from "./support/reevaluate.js";
 
 // Invented cards (not a real process).
 const ncard: DeviceCard = { name: "test-n", polarity: "nmos", kp: 150e-6 as DeviceCard["kp"], vt0: 0.6 as DeviceCard["vt0"], lambda: 0.04 as DeviceCard["lambda"], gamma: 0.45 as DeviceCard["gamma"], phi: 0.7 as DeviceCard["phi"] };
@@ -46,6 +47,24 @@ describe("bias analysis: the record", () => {
         const r = f!.fn(...s.inputs.map((i) => i.value));
         expect(Object.is(r, s.result.value) || Math.abs(r - s.result.value) <= 1e-15 * Math.abs(r), `${s.formula}`).toBe(true);
       }
+    }
+  });
+
+  it("every recorded step re-evaluates with mathjs units to its recorded result, for all five topologies", () => {
+    const flat = { ...ncard, lambda: 0 as DeviceCard["lambda"], gamma: 0 as DeviceCard["gamma"] };
+    const stages: Stage[] = [
+      fourR(),
+      fourR({ device: dev(flat), components: { rg1: 100e3, rg2: 300e3, rd: 20e3, rs: 100 } }), // closed form, triode re-solve
+      { topology: "fixed-gate", device: dev(pcard), components: { vg: 1, rd: 2e3, rs: 500 }, supplies: { vdd: 5 } as Stage["supplies"], body: "rail" },
+      { topology: "drain-feedback", device: dev(flat), components: { rf: 1e6, rd: 10e3, rs: 1e3 }, supplies: { vdd: 5 } as Stage["supplies"] },
+      { topology: "source-follower", device: dev(ncard), components: { rg1: 100e3, rg2: 100e3, rs: 2e3, rd: 500 }, supplies: { vdd: 5, vss: -5 } as Stage["supplies"], body: "rail" },
+      { topology: "current-source-bias", device: dev(flat), components: { vg: 0, iss: 100e-6, rd: 20e3 }, supplies: { vdd: 2.5, vss: -2.5 } as Stage["supplies"] },
+      { topology: "current-source-bias", device: dev(ncard), components: { vg: 0, iss: 100e-6, rd: 20e3 }, supplies: { vdd: 2.5, vss: -2.5 } as Stage["supplies"], body: "rail" },
+    ];
+    for (const st of stages) {
+      const rec = new Derivation(st.topology);
+      analyzeStage(st, rec);
+      expect(expectReevaluates(rec)).toBeGreaterThan(10);
     }
   });
 
