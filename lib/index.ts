@@ -21,6 +21,9 @@ export * as deviceFormulas from "./formulas/device.formulas.js";
 // Bias networks (added for the notebook templates; the bias module may widen this).
 export * from "./bias/topology.js";
 export * from "./bias/analyze.js";
+export { solveNetwork, newSolution, hasClosedForm, type BiasNetwork, type NetworkSolution } from "./bias/solve.js";
+export { spiceNumber, deckText } from "./bias/spice.js";
+export * as biasFormulas from "./formulas/bias.formulas.js";
 export * from "./bias/synthesis/four-resistor.js";
 export * from "./bias/eseries.js";
 export { snapToSeries, maxCombinations, type SnapProblem, type SnapResult, type SnappedComponent, type SnapObjective } from "./bias/snap.js";
