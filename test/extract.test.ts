@@ -105,6 +105,8 @@ describe("extraction from PMOS data with SPICE signs, and with measurement scatt
     );
     expect(body.gamma).toBeCloseTo(0.6, 12);
     expect(body.vt0).toBeCloseTo(-0.8, 12);
+    const out = extractLambda([-1.5, -2, -3, -4].map((vds) => ({ vds: volts(vds), id: drainCurrent(d, -2, vds) })), { polarity: "pmos" });
+    expect(out.lambda).toBeCloseTo(0.05, 12);
   });
   it("reports residuals, and cautions when the square law misses points by more than 5 %", () => {
     const clean = [1.0, 1.3, 1.6, 1.9, 2.2].map((vgs) => ({ vgs: volts(vgs), id: amperes(0.5e-3 * (vgs - 0.6) ** 2) }));
@@ -137,6 +139,7 @@ describe("extraction refuses data it cannot fit", () => {
     expect(() => extractLambda([1, -2, 3].map((v) => ({ vds: volts(v), id: amperes(1e-4) })), { polarity: "nmos" })).toThrow(/\[1\]\.vds: got -2, expected VDS ≥ 0 V/);
     expect(() => extractBodyEffect([0, 1, 2].map((v) => ({ vsb: volts(v), vt: volts(-0.7) })), { polarity: "pmos" })).toThrow(/\[1\]\.vsb: got 1, expected reverse body bias VSB ≤ 0 V for a PMOS/);
     expect(() => extractThresholdAndGain(sat([[1, 1e-4], [2, 4e-4], [3, 9e-4]]), { wl: ratio(-2) })).toThrow(/opts\.wl: got -2/);
+    expect(() => extractBodyEffect([0, 1, 2].map((v) => ({ vsb: volts(v), vt: volts(0.7 + 0.1 * v) })), { phi: volts(0) })).toThrow(/opts\.phi: got 0, expected 2φF > 0/);
   });
   it("points below threshold: a fit that puts Vt above the lowest VGS is infeasible", () => {
     // √ID falls on a line crossing zero at 1.5 V, but a point sits at VGS = 1 V.

@@ -1,7 +1,7 @@
 /**
  * Long-channel MOSFET formulas, each stated once. Symbols use magnitudes in the
  * device's own polarity: for a PMOS, VGS here is VSG, VDS is VSD and Vt is |Vt|
- * (the sign handling lives in device/polarity.ts).
+ * (the sign handling lives in device/card.ts, polaritySign).
  */
 import { defineFormulas, defineSymbols } from "./define.js";
 
@@ -38,7 +38,7 @@ export const symbols = defineSymbols({
   muExp: { tex: "m_{\\mu}", dim: "dimensionless", meaning: "mobility temperature exponent" },
   UT: { tex: "U_{T}", dim: "voltage", meaning: "thermal voltage kT/q" },
   n: { tex: "n", dim: "dimensionless", meaning: "subthreshold slope factor" },
-  IC: { tex: "IC", dim: "dimensionless", meaning: "inversion coefficient ID/IS" },
+  IC: { tex: "IC", dim: "dimensionless", meaning: "inversion coefficient IF/IS (forward over specific current)" },
   IF: { tex: "I_{F}", dim: "current", meaning: "forward (saturation-equivalent) drain current" },
   ID0: { tex: "I_{D0}", dim: "current", meaning: "saturation current extrapolated to VDS = 0" },
 });
