@@ -7,6 +7,7 @@ import { InfeasibleError, InputError } from "../lib/errors.js";
 import { Derivation } from "../lib/record/derivation.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import type { Amperes, Meters, Ohms, SqrtVolts, Volts } from "../lib/quantity.js";
+import { expectReevaluates } from "./support/reevaluate.js";
 
 // Cards invented for the tests.
 const nCard = { name: "syn-n (invented)", polarity: "nmos", kp: 200e-6, vt0: 0.6 } as DeviceCard;
@@ -141,6 +142,24 @@ describe("synthesis followed by analysis, every topology", () => {
       { numRuns: 80, seed: 5 },
     );
     expect(solved).toBeGreaterThan(30);
+  });
+});
+
+describe("recorded derivations", () => {
+  it("every recorded design step re-evaluates with mathjs units to the recorded result, for every topology and polarity", () => {
+    const specs: StageSpec[] = [
+      { ...common, series: "E24", topology: "four-resistor", card: { ...nCard, lambda: 0.02, gamma: 0.4, phi: 0.7 } as DeviceCard, body: "rail", drain: { gain: 2 }, bypassed: false, gate: { rin: 50e3 as Ohms } },
+      { ...common, series: "E96", topology: "four-resistor", card: pCard, source: { vrs: 1 as Volts } },
+      { ...common, series: "E12", topology: "fixed-gate", card: pCard, source: { fraction: 0.2 }, drain: { vd: 1.5 as Volts } },
+      { ...common, series: "E24", topology: "drain-feedback", card: { ...nCard, lambda: 0.02 } as DeviceCard, feedback: { rin: 300e3 as Ohms } },
+      { ...common, series: "E48", topology: "source-follower", card: pCard, gate: { current: 50e-6 as Amperes } },
+      { ...common, series: "E24", topology: "current-source-bias", card: nCard, supplies: { vdd: 5 as Volts, vss: -5 as Volts }, drain: { gain: 8 } },
+    ];
+    for (const spec of specs) {
+      const rec = new Derivation(`${spec.topology} ${spec.card.polarity}`);
+      synthesize(spec, rec);
+      expect(expectReevaluates(rec)).toBeGreaterThan(10);
+    }
   });
 });
 

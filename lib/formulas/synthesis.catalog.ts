@@ -28,7 +28,6 @@ export const symbols = defineSymbols({
   VD: { tex: "V_{D}", dim: "voltage", meaning: "drain node voltage (device polarity)" },
   VDR: { tex: "V_{DR}", dim: "voltage", meaning: "rail the drain side returns to (device polarity)" },
   VSR: { tex: "V_{SR}", dim: "voltage", meaning: "rail the source side returns to (device polarity)" },
-  Vspan: { tex: "V_{DR}-V_{SR}", dim: "voltage", meaning: "rail-to-rail span across the stage" },
   RD: { tex: "R_{D}", dim: "resistance", meaning: "drain resistor" },
   RS: { tex: "R_{S}", dim: "resistance", meaning: "source resistor" },
   Rin: { tex: "R_{in}", dim: "resistance", meaning: "small-signal input resistance" },
@@ -51,7 +50,7 @@ export const formulas = defineFormulas({
   sourceDropFromFraction: {
     title: "Source-resistor voltage as a fraction of the rail span",
     result: "VRS",
-    expr: "fRS * Vspan",
+    expr: "fRS * (VDR - VSR)",
     source: "common practice: about a quarter to a third of the supply across RS for bias stability",
   },
   sourceNodeFromDrop: { title: "Source voltage from the source-resistor drop", result: "VS", expr: "VSR + VRS", source: kcl },
@@ -88,13 +87,13 @@ export const formulas = defineFormulas({
   dividerToDrainRailForRin: {
     title: "Gate divider resistor to the drain-side rail for an input resistance",
     result: "RGDR",
-    expr: "Rin * Vspan / (VG - VSR)",
+    expr: "Rin * (VDR - VSR) / (VG - VSR)",
     source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
   },
   dividerToSourceRailForRin: {
     title: "Gate divider resistor to the source-side rail for an input resistance",
     result: "RGSR",
-    expr: "Rin * Vspan / (VDR - VG)",
+    expr: "Rin * (VDR - VSR) / (VDR - VG)",
     source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
   },
   followerMidSwing: {

@@ -2,18 +2,18 @@
 import type { Formula } from "./define.js";
 import type { Amperes, Meters, Ohms, Ratio, Siemens, Volts, Watts } from "../quantity.js";
 
-/** Source-resistor voltage as a fraction of the rail span: VRS = fRS * Vspan */
+/** Source-resistor voltage as a fraction of the rail span: VRS = fRS * (VDR - VSR) */
 export const sourceDropFromFraction = {
   id: "sourceDropFromFraction",
   title: "Source-resistor voltage as a fraction of the rail span",
-  expr: "fRS * Vspan",
-  tex: "V_{RS} = {f_{S}}\\cdot{V_{DR}-V_{SR}}",
+  expr: "fRS * (VDR - VSR)",
+  tex: "V_{RS} = {f_{S}}\\cdot\\left({V_{DR}}-{V_{SR}}\\right)",
   result: "VRS",
   resultDim: "voltage",
-  vars: ["fRS","Vspan"],
-  dims: ["dimensionless","voltage"],
+  vars: ["fRS","VDR","VSR"],
+  dims: ["dimensionless","voltage","voltage"],
   source: "common practice: about a quarter to a third of the supply across RS for bias stability",
-  fn: (fRS: Ratio, Vspan: Volts): Volts => (fRS * Vspan) as Volts,
+  fn: (fRS: Ratio, VDR: Volts, VSR: Volts): Volts => (fRS * ((VDR - VSR))) as Volts,
 } as const satisfies Formula;
 
 /** Source voltage from the source-resistor drop: VS = VSR + VRS */
@@ -170,32 +170,32 @@ export const dividerToSourceRail = {
   fn: (VG: Volts, VSR: Volts, Idiv: Amperes): Ohms => (((VG - VSR)) / Idiv) as Ohms,
 } as const satisfies Formula;
 
-/** Gate divider resistor to the drain-side rail for an input resistance: RGDR = Rin * Vspan / (VG - VSR) */
+/** Gate divider resistor to the drain-side rail for an input resistance: RGDR = Rin * (VDR - VSR) / (VG - VSR) */
 export const dividerToDrainRailForRin = {
   id: "dividerToDrainRailForRin",
   title: "Gate divider resistor to the drain-side rail for an input resistance",
-  expr: "Rin * Vspan / (VG - VSR)",
-  tex: "R_{G,DR} = \\frac{{R_{in}}\\cdot{V_{DR}-V_{SR}}}{{V_{G}}-{V_{SR}}}",
+  expr: "Rin * (VDR - VSR) / (VG - VSR)",
+  tex: "R_{G,DR} = \\frac{{R_{in}}\\cdot\\left({V_{DR}}-{V_{SR}}\\right)}{{V_{G}}-{V_{SR}}}",
   result: "RGDR",
   resultDim: "resistance",
-  vars: ["Rin","Vspan","VG","VSR"],
+  vars: ["Rin","VDR","VSR","VG"],
   dims: ["resistance","voltage","voltage","voltage"],
   source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
-  fn: (Rin: Ohms, Vspan: Volts, VG: Volts, VSR: Volts): Ohms => ((Rin * Vspan) / ((VG - VSR))) as Ohms,
+  fn: (Rin: Ohms, VDR: Volts, VSR: Volts, VG: Volts): Ohms => ((Rin * ((VDR - VSR))) / ((VG - VSR))) as Ohms,
 } as const satisfies Formula;
 
-/** Gate divider resistor to the source-side rail for an input resistance: RGSR = Rin * Vspan / (VDR - VG) */
+/** Gate divider resistor to the source-side rail for an input resistance: RGSR = Rin * (VDR - VSR) / (VDR - VG) */
 export const dividerToSourceRailForRin = {
   id: "dividerToSourceRailForRin",
   title: "Gate divider resistor to the source-side rail for an input resistance",
-  expr: "Rin * Vspan / (VDR - VG)",
-  tex: "R_{G,SR} = \\frac{{R_{in}}\\cdot{V_{DR}-V_{SR}}}{{V_{DR}}-{V_{G}}}",
+  expr: "Rin * (VDR - VSR) / (VDR - VG)",
+  tex: "R_{G,SR} = \\frac{{R_{in}}\\cdot\\left({V_{DR}}-{V_{SR}}\\right)}{{V_{DR}}-{V_{G}}}",
   result: "RGSR",
   resultDim: "resistance",
-  vars: ["Rin","Vspan","VDR","VG"],
+  vars: ["Rin","VDR","VSR","VG"],
   dims: ["resistance","voltage","voltage","voltage"],
   source: "voltage divider with RG,DR ∥ RG,SR = Rin (common practice)",
-  fn: (Rin: Ohms, Vspan: Volts, VDR: Volts, VG: Volts): Ohms => ((Rin * Vspan) / ((VDR - VG))) as Ohms,
+  fn: (Rin: Ohms, VDR: Volts, VSR: Volts, VG: Volts): Ohms => ((Rin * ((VDR - VSR))) / ((VDR - VG))) as Ohms,
 } as const satisfies Formula;
 
 /** Follower source voltage halfway between the source rail and the triode edge VDR − VOV: VS = (VDR - VOV + VSR) / 2 */

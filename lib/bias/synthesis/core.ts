@@ -144,7 +144,7 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
             ? `${+(f * 100).toFixed(0)} % of the rail span across RS (common practice: a quarter to a third for bias stability against Vt and k' spread).`
             : `${+(f * 100).toFixed(0)} % of the rail span across the current source for its headroom (common practice).`,
         );
-      vrs = calc(sf.sourceDropFromFraction, [f, vspan]);
+      vrs = calc(sf.sourceDropFromFraction, [f, vdr, vsr]);
     }
     if (vrs >= vspan) throw new InfeasibleError(`the source budget VRS = ${v(vrs)} leaves nothing of the ${v(vspan)} rail span for the device and RD`, `${o}.source`);
     vs = calc(sf.sourceNodeFromDrop, [vsr, vrs]);
@@ -240,9 +240,8 @@ export function designDivider(spec: SpecBase, d: CoreDesign, target: DividerTarg
   let rgsr: Ohms;
   if (target && "rin" in target) {
     requirePositive(target.rin, `${origin}.gate.rin`, "an input resistance > 0 in Ω");
-    const vspan = (vdr - vsr) as Volts;
-    rgdr = calc(sf.dividerToDrainRailForRin, [target.rin, vspan, d.vg, vsr]);
-    rgsr = calc(sf.dividerToSourceRailForRin, [target.rin, vspan, vdr, d.vg]);
+    rgdr = calc(sf.dividerToDrainRailForRin, [target.rin, vdr, vsr, d.vg]);
+    rgsr = calc(sf.dividerToSourceRailForRin, [target.rin, vdr, vsr, d.vg]);
   } else {
     let idiv: Amperes;
     if (target && "current" in target) {
