@@ -6,6 +6,8 @@ import type { Derivation } from "../record/derivation.js";
 import { deckText } from "./spice.js";
 import { registerTopology, topologyFor, type SpiceCircuit, type Stage, type StageAnalysis } from "./topology.js";
 import { currentSourceBias } from "./topologies/current-source-bias.js";
+import { currentMirror } from "./topologies/current-mirror.js";
+import { diodeLoad } from "./topologies/diode-load.js";
 import { drainFeedback } from "./topologies/drain-feedback.js";
 import { fixedGate } from "./topologies/fixed-gate.js";
 import { fourResistor } from "./topologies/four-resistor.js";
@@ -16,6 +18,8 @@ registerTopology(fourResistor);
 registerTopology(drainFeedback);
 registerTopology(sourceFollower);
 registerTopology(currentSourceBias);
+registerTopology(currentMirror);
+registerTopology(diodeLoad);
 
 export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias } as const;
 

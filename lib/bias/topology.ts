@@ -98,6 +98,23 @@ export interface CurrentSourceBiasComponents {
   readonly rd: Ohms;
 }
 
+/**
+ * Components of the current mirror: reference resistor `rref` from the drain-side
+ * rail to the diode-connected reference transistor (`devices.reference`); the
+ * output transistor (`device`) drives either an ideal voltage `vout` (absolute)
+ * or a load resistor `rload` to the drain-side rail. Exactly one of vout, rload.
+ */
+export interface CurrentMirrorComponents {
+  readonly rref: Ohms;
+  readonly vout?: Volts;
+  readonly rload?: Ohms;
+}
+
+/** Components of the common-source stage with a diode-connected load (`devices.load`): driver gate held at `vg`. */
+export interface DiodeLoadComponents {
+  readonly vg: Volts;
+}
+
 /** Component values by topology id, for the built-in topologies. */
 export interface ComponentsByTopology {
   "fixed-gate": FixedGateComponents;
@@ -105,6 +122,8 @@ export interface ComponentsByTopology {
   "drain-feedback": DrainFeedbackComponents;
   "source-follower": SourceFollowerComponents;
   "current-source-bias": CurrentSourceBiasComponents;
+  "current-mirror": CurrentMirrorComponents;
+  "diode-load": DiodeLoadComponents;
 }
 
 export type BuiltinTopologyId = keyof ComponentsByTopology;
@@ -197,7 +216,7 @@ export interface StagePower {
   readonly total: Watts;
 }
 
-export type SolveMethod = "closed-form" | "bracketed-newton" | "direct";
+export type SolveMethod = "closed-form" | "bracketed-newton" | "bracketed-regula-falsi" | "direct";
 
 export interface SolverReport {
   readonly method: SolveMethod;
@@ -205,7 +224,19 @@ export interface SolverReport {
   /** Largest final step or bracket width in the unknown, in its unit. */
   readonly tolerance: number;
   /** The unknown that was solved for. */
-  readonly unknown: "drain current" | "source voltage" | "none";
+  readonly unknown: "drain current" | "source voltage" | "output voltage" | "none";
+}
+
+/** A further transistor of a two-transistor stage, in `StageAnalysis.devices` keyed by its role. */
+export interface StageDeviceAnalysis {
+  readonly polarity: Polarity;
+  readonly region: Region;
+  /** Absolute voltages at its gate, source, drain and body. */
+  readonly terminals: { readonly gate: Volts; readonly source: Volts; readonly drain: Volts; readonly body: Volts };
+  readonly op: OperatingPoint;
+  readonly smallSignal: StageSmallSignal;
+  /** Its dissipation, included in `power.total`. */
+  readonly power: Watts;
 }
 
 /** The analysis of a stage at its DC operating point. */
@@ -230,6 +261,8 @@ export interface StageAnalysis {
   readonly solver: SolverReport;
   /** Cautions for the reader: approximations, near-edge regions, ideal-source assumptions. */
   readonly findings: readonly string[];
+  /** Two-transistor stages: the further transistors by role (e.g. "reference", "load"); `op` is the main device. */
+  readonly devices?: Readonly<Record<string, StageDeviceAnalysis>>;
 }
 
 /** What a topology module provides to the registry. */
@@ -261,6 +294,9 @@ export interface SpiceCircuit {
   readonly drainAmmeter: string;
   /** The MOSFET instance name. */
   readonly instance: string;
+  /** Two-transistor stages: instance names by role ("reference", "load") and their ammeters. */
+  readonly instances?: Readonly<Record<string, string>>;
+  readonly ammeters?: Readonly<Record<string, string>>;
 }
 
 const registry = new Map<string, Topology<string, any>>();
