@@ -209,6 +209,21 @@ describe("bias analysis: properties", () => {
   });
 });
 
+describe("bias analysis: stages with no resistance in the loop", () => {
+  it("RD = RS = 0: the rails set VGS and VDS; saturation or triode follows from the device law", () => {
+    const flat = { ...ncard, lambda: 0 as DeviceCard["lambda"], gamma: 0 as DeviceCard["gamma"] };
+    for (const [vg, vdd, region] of [[1.2, 5, "saturation"], [6, 1, "triode"], [0.3, 5, "cutoff"]] as const) {
+      for (const card of [flat, ncard]) {
+        const rec = new Derivation("t");
+        const a = analyzeStage({ topology: "fixed-gate", device: dev(card), components: { vg, rd: 0 }, supplies: { vdd } as Stage["supplies"] }, rec);
+        expect(a.region).toBe(region);
+        expect(a.nodes.drain).toBe(vdd);
+        expect(a.currents.drain).toBeCloseTo(Math.abs(a.op.id), 15);
+      }
+    }
+  });
+});
+
 describe("bias analysis: metrics (small-signal model, common practice)", () => {
   it("common-source gain with ro equals −gm·(RD ∥ ro); degeneration lowers it", () => {
     const a = analyzeStage(fourR());

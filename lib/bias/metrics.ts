@@ -9,7 +9,7 @@
  */
 import * as bf from "../formulas/bias.formulas.js";
 import { dimensions, type Dimension, type Ohms, type Ratio, type Siemens, type Volts } from "../quantity.js";
-import type { Derivation } from "../record/derivation.js";
+import type { Derivation, Severity } from "../record/derivation.js";
 import type { SolvedStage } from "./stage.js";
 import type { AmplifierMetrics, StageCheck, SwingLimits } from "./topology.js";
 
@@ -141,31 +141,29 @@ const near = 0.05; // V: closer than this to a region edge earns a caution (comm
 export function stageMetrics(s: SolvedStage, pDev: number, pTotal: number, rec?: Derivation): { checks: StageCheck[]; findings: string[] } {
   const lim = s.stage.limits ?? {};
   const checks: StageCheck[] = [];
-  const findings: string[] = [];
+  const found: Array<[Severity, string]> = [];
   const pol = s.sign < 0 ? { gs: "VSG", ds: "VSD" } : { gs: "VGS", ds: "VDS" };
-  const on = s.vov > 0;
   checks.push(check(`Overdrive ${pol.gs} − |Vt|`, s.vov, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the device must be on"));
-  if (on) {
+  if (s.vov > 0) {
     const m = calc(bf.saturationMargin, [s.vds as Volts, s.vov as Volts], rec, "margin to the triode edge");
     checks.push(check(`Saturation margin ${pol.ds} − VOV`, m, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec));
-    if (m < 0) findings.push(`The device is in triode: ${pol.ds} = ${r(s.vds)} V is below VOV = ${r(s.vov)} V by ${r(-m)} V; it acts as a voltage-controlled resistor, not an amplifier.`);
-    else if (m < near) findings.push(`Saturation margin is only ${r(m)} V: tolerances or temperature may push the device into triode.`);
-    if (s.vov < near) findings.push(`Overdrive is only ${r(s.vov)} V: the device is near weak inversion, where the square law overstates the current (common practice).`);
+    if (m < 0) found.push(["warning", `The device is in triode: ${pol.ds} = ${r(s.vds)} V is below VOV = ${r(s.vov)} V by ${r(-m)} V; it acts as a voltage-controlled resistor, not an amplifier.`]);
+    else if (m < near) found.push(["caution", `Saturation margin is only ${r(m)} V: tolerances or temperature may push the device into triode.`]);
+    if (s.vov < near) found.push(["caution", `Overdrive is only ${r(s.vov)} V: the device is near weak inversion, where the square law overstates the current (common practice).`]);
   } else {
-    const vov0 = s.net.iss > 0 ? s.vov : s.vov;
-    findings.push(`The device is in cutoff: ${pol.gs} − |Vt| = ${r(vov0)} V ≤ 0, so no channel forms and ID = 0 (subthreshold leakage not modelled). Raise the gate drive or lower |Vt| to turn it on.`);
+    found.push(["warning", `The device is in cutoff: ${pol.gs} − |Vt| = ${r(s.vov)} V ≤ 0, so no channel forms and ID = 0 (subthreshold leakage not modelled). Raise the gate drive or lower |Vt| to turn it on.`]);
   }
   if (lim.maxDevicePower !== undefined) checks.push(check("Transistor dissipation", pDev, "power", { max: lim.maxDevicePower }, rec));
   if (lim.maxTotalPower !== undefined) checks.push(check("Total supply power", pTotal, "power", { max: lim.maxTotalPower }, rec));
   if (s.net.iss > 0) {
     const head = s.sol.vs - s.net.vsr;
     checks.push(check("Current-source headroom (source node to its rail)", head, "voltage", { min: lim.minSourceHeadroom ?? 0 }, rec, "a real current source needs some voltage across it"));
-    if (head < 0) findings.push(`The source node sits ${r(-head)} V beyond the rail the current source returns to: a real current source cannot do that. The ideal-source result is not realisable.`);
-    findings.push("The bias current source is ideal (infinite output resistance, no compliance limit).");
+    if (head < 0) found.push(["warning", `The source node sits ${r(-head)} V beyond the rail the current source returns to: a real current source cannot do that, so this ideal-source result is not realisable.`]);
+    found.push(["note", "The bias current source is ideal (infinite output resistance, no compliance limit)."]);
   }
-  findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
-  for (const f of findings) rec?.find(f.startsWith("Hand") ? "caution" : f.includes("cutoff") || f.includes("triode") || f.includes("not realisable") ? "warning" : "note", f);
-  return { checks, findings };
+  found.push(["caution", "Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings."]);
+  for (const [sev, text] of found) rec?.find(sev, text);
+  return { checks, findings: found.map(([, t]) => t) };
 }
 
 const r = (x: number) => String(+x.toPrecision(4));

@@ -336,6 +336,14 @@ function closedFormResistive(n: BiasNetwork, out: NetworkSolution, rec?: Derivat
     fill(out, 0, fb ? vdr : n.vg, vsr, vdr, vt, "closed-form", 0, 0);
     return;
   }
+  if (n.rd + n.rs === 0) {
+    // No resistance anywhere: the rails fix VGS and VDS, so the device law gives ID directly.
+    const vg = fb ? vdr : n.vg;
+    const id = channel(n, vov0, vdr - vsr);
+    rec?.note("No resistors", `RD = RS = 0: VGS and VDS are set by the rails (VDS = ${fmt(vdr - vsr)} V), so ID follows from the device law directly.`);
+    fill(out, id, vg, vsr, vdr, vt, "direct", 0, 0);
+    return;
+  }
   rec?.note("Assume saturation", fb ? "With the gate tied to the drain, VDS = VGS > VOV: the device is always in saturation when on." : "Assume saturation, ID = (k/2)·VOV², and check VDS ≥ VOV afterwards.");
   const r = fb ? rd + rs : rs;
   let vov: number;
