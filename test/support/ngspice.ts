@@ -4,6 +4,8 @@
  * repeated `alter …` / `op` / `print …` lines in the .control block, to keep
  * process start-up off each point. Print one expression per `print` line:
  * `print v(d) -i(VD)` is read by ngspice as the single expression v(d) − i(VD).
+ * ngspice 39 in batch mode exits 1 after a .control block unless it ends with
+ * `quit 0`, which is appended here (a second quit in the caller's lines is harmless).
  */
 import { execFileSync } from "node:child_process";
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
@@ -22,7 +24,7 @@ export function runNgspice(run: OracleRun): Array<[string, number]> {
   const dir = mkdtempSync(join(tmpdir(), "pinchoff-ngspice-"));
   try {
     const deck = join(dir, "deck.cir");
-    writeFileSync(deck, `* pinchoff oracle deck\n${run.circuit}\n.control\nset numdgt=12\n${run.control}\n.endc\n.end\n`);
+    writeFileSync(deck, `* pinchoff oracle deck\n${run.circuit}\n.control\nset numdgt=12\n${run.control}\nquit 0\n.endc\n.end\n`);
     const out = execFileSync("ngspice", ["-b", deck], { encoding: "utf8", stdio: ["ignore", "pipe", "pipe"], maxBuffer: 64 << 20 });
     return parsePrinted(out);
   } finally {
