@@ -26,6 +26,10 @@ describe("text rendering", () => {
     expect(text).toContain(`inputs ${data.fingerprint!.slice(0, 12)} · 1 of 3 checks fail`);
     expect(text).toContain("Caution: Hand analysis");
   });
+
+  it("says so when a record has no inputs (its fingerprint then covers nothing)", () => {
+    expect(renderText(new Derivation("bare"))).toMatch(/inputs [0-9a-f]{12} \(no inputs recorded\)/);
+  });
 });
 
 describe("JSON rendering", () => {

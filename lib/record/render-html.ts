@@ -18,7 +18,7 @@ import { PinchoffError } from "../errors.js";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData, FormulaStep, Step } from "./derivation.js";
 import { fingerprint, shortFingerprint } from "./fingerprint.js";
-import { asList, boundText, cautions, fingerprintOf, marginText, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, fingerprintOf, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 import { pinchoffCss } from "./styles.js";
 
@@ -96,7 +96,7 @@ function record(d: DerivationData, opts: HtmlOptions): string {
   out.push(`<h2 class="po-title">${esc(d.title)}</h2>`);
   if (d.subtitle) out.push(`<p class="po-subtitle">${esc(d.subtitle)}</p>`);
   out.push(
-    `<div class="po-meta"><span class="po-verdict ${v.passed ? "po-ok" : "po-bad"}">${v.passed ? "✓" : "✗"} ${esc(v.text)}</span><span>inputs <code title="SHA-256 of the canonical inputs: ${esc(fingerprintOf(d))}">${esc(shortFingerprintOf(d))}</code></span></div>`,
+    `<div class="po-meta"><span class="po-verdict ${v.passed ? "po-ok" : "po-bad"}">${v.passed ? "✓" : "✗"} ${esc(v.text)}</span><span>inputs <code title="SHA-256 of the canonical inputs: ${esc(fingerprintOf(d))}">${esc(shortFingerprintOf(d))}</code>${esc(noInputsNote(d))}</span></div>`,
   );
   if (d.inputs.length) {
     out.push(`<h3 class="po-part">Given</h3><table class="po-inputs"><thead><tr><th>Quantity</th><th>Value</th><th>From</th></tr></thead><tbody>`);

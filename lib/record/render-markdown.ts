@@ -6,7 +6,7 @@
 import escapeHtml from "escape-html";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 
 /** Escape a user string for Markdown text and table cells. */
@@ -27,7 +27,7 @@ function one(d: DerivationData, opts: RenderOptions): string {
   const v = verdict(d);
   out.push(`### ${escapeMarkdown(d.title)}`, "");
   if (d.subtitle) out.push(`*${escapeMarkdown(d.subtitle)}*`, "");
-  out.push(`Inputs \`${shortFingerprintOf(d)}\` · **${v.passed ? "" : "⚠ "}${v.text}**`, "");
+  out.push(`Inputs \`${shortFingerprintOf(d)}\`${noInputsNote(d)} · **${v.passed ? "" : "⚠ "}${v.text}**`, "");
   if (d.inputs.length) {
     out.push("**Given**", "");
     out.push(

@@ -23,6 +23,8 @@ export const cautions =
 /** The fingerprint a record carries, or the one computed from its inputs. */
 export const fingerprintOf = (d: DerivationData): string => d.fingerprint ?? fingerprint(d);
 export const shortFingerprintOf = (d: DerivationData): string => shortFingerprint(fingerprintOf(d));
+/** Said beside the fingerprint when it covers nothing: every record without inputs has the same one. */
+export const noInputsNote = (d: DerivationData): string => (d.inputs.length ? "" : " (no inputs recorded)");
 
 export function verdict(d: DerivationData): { passed: boolean; text: string } {
   const n = d.checks.length;

@@ -4,7 +4,7 @@
  */
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, shortFingerprintOf, statusText, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, marginText, noInputsNote, shortFingerprintOf, statusText, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { substitutedText } from "./substitute.js";
 
 /** Columns padded to their widest cell (code points, which suits the symbols we print). */
@@ -35,7 +35,7 @@ function one(d: DerivationData, opts: RenderOptions): string {
   const v = verdict(d);
   out.push(d.title, "=".repeat([...d.title].length));
   if (d.subtitle) out.push(d.subtitle);
-  out.push(`inputs ${shortFingerprintOf(d)} · ${v.text}`, "");
+  out.push(`inputs ${shortFingerprintOf(d)}${noInputsNote(d)} · ${v.text}`, "");
   if (d.inputs.length) {
     out.push("Given");
     out.push(
