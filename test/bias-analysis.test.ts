@@ -224,6 +224,22 @@ describe("bias analysis: stages with no resistance in the loop", () => {
   });
 });
 
+describe("bias analysis: model options", () => {
+  it("clm \"saturation-only\" solves triode without (1 + λ·VDS), continuous with it (SPICE Level 1)", () => {
+    const base: Stage = { topology: "fixed-gate", device: dev(ncard), components: { vg: 3, rd: 20e3, rs: 200 }, supplies: { vdd: 5 } as Stage["supplies"], body: "rail" };
+    for (const clm of ["saturation-only", "continuous"] as const) {
+      const a = analyzeStage({ ...base, options: { clm } });
+      expect(a.region).toBe("triode");
+      const k = (150e-6 * 20e-6) / 1e-6;
+      const vds = a.op.vdsDevice;
+      const plain = k * (a.op.vov - vds / 2) * vds;
+      expect(a.currents.drain).toBeCloseTo(clm === "continuous" ? plain * (1 + 0.04 * vds) : plain, 15);
+      // KCL: the same current through RD.
+      expect((5 - a.nodes.drain) / 20e3).toBeCloseTo(a.currents.drain!, 15);
+    }
+  });
+});
+
 describe("bias analysis: metrics (small-signal model, common practice)", () => {
   it("common-source gain with ro equals −gm·(RD ∥ ro); degeneration lowers it", () => {
     const a = analyzeStage(fourR());

@@ -3,8 +3,8 @@
  * Seeded random stages of every built-in topology and both polarities are
  * solved here and by ngspice from the very decks lib/bias/spice.ts exports;
  * node voltages and the drain current must agree to 1e-6 relative (1 µV or
- * 10 pA absolute near zero: ngspice's junction leakage and GMIN), and the
- * region must agree in every case.
+ * 10 pA absolute near zero: ngspice's junction leakage and GMIN), gm, gds
+ * and gmb likewise, and the region must agree in every case.
  */
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
@@ -89,13 +89,13 @@ describe("bias analysis against ngspice Level 1 (Debian ngspice, batch mode)", (
           const c = stageCircuit(st, `c${i}_`);
           lines.push(...c.lines);
           const m = c.instance.toLowerCase();
-          prints.push(`v(${c.nodes.gate})`, `v(${c.nodes.source})`, `v(${c.nodes.drain})`, `i(${c.drainAmmeter.toLowerCase()})`, `@${m}[von]`, `@${m}[vdsat]`);
+          prints.push(`v(${c.nodes.gate})`, `v(${c.nodes.source})`, `v(${c.nodes.drain})`, `i(${c.drainAmmeter.toLowerCase()})`, `@${m}[von]`, `@${m}[vdsat]`, `@${m}[gm]`, `@${m}[gds]`, `@${m}[gmbs]`);
         });
         // `quit 0`: ngspice -b exits 1 after a .control block that runs no .tran/.plot, even on success.
         const rows = runNgspice({ circuit: lines.join("\n"), control: ["op", ...prints.map((p) => `print ${p}`), "quit 0"].join("\n") });
         expect(rows.length).toBe(prints.length);
         stages.forEach((st, i) => {
-          const [vg, vs, vd, id, von] = rows.slice(i * 6, i * 6 + 6).map((r) => r[1]);
+          const [vg, vs, vd, id, von, , gm, gds, gmbs] = rows.slice(i * 9, i * 9 + 9).map((r) => r[1]);
           const a = analyzeStage(st);
           const where = `${topology} ${polarity} #${i}: ${JSON.stringify(st)}`;
           methods[a.solver.method] = (methods[a.solver.method] ?? 0) + 1;
@@ -107,6 +107,10 @@ describe("bias analysis against ngspice Level 1 (Debian ngspice, batch mode)", (
           close(a.nodes.source, vs!, 1e-6, "VS");
           close(a.nodes.drain, vd!, 1e-6, "VD");
           close(a.op.id, id!, 1e-11, "ID");
+          // Small-signal parameters (ngspice's own derivatives; 1e-10 S absolute for GMIN-level values).
+          close(a.smallSignal.gm, gm!, 1e-10, "gm");
+          close(a.smallSignal.gds, gds!, 1e-10, "gds");
+          if (st.body === "rail") close(a.smallSignal.gmb, gmbs!, 1e-10, "gmb");
           // ngspice's region from its own threshold (von) at its own node voltages, in device polarity.
           const s = polarity === "nmos" ? 1 : -1;
           const ngRegion = regionOf(s * (vg! - vs!) - s * von!, s * (vd! - vs!));
