@@ -174,7 +174,9 @@ function solveOutput(p: Pair, o: string, rec?: Derivation): { u: number; method:
   rec?.step(bf.railOverdrive, [p.vg, p.vsr, p.vt1], vov1, "driver overdrive: its source sits at the rail");
   if (!(vov1 > 0)) {
     rec?.note("Driver in cutoff", `VOV1 = ${fmt(vov1)} V ≤ 0: the driver carries no current, so neither does the load. The load stops conducting once VDR − VOUT falls to its threshold:`);
-    const u = idleOutput(p, rec, "the load diode at the edge of conduction");
+    let u = idleOutput(p, rec, "the load diode at the edge of conduction");
+    // Rounding may leave the load a few ulps of overdrive; step to the edge so it reads as off, as it is.
+    for (let i = 0; i < 8 && p.vdr - u - loadThreshold(p, u) > 0; i++) u += Number.EPSILON * Math.max(Math.abs(u), 1);
     rec?.note(
       "Output held only by leakage",
       `In the square-law model any output from ${fmt(p.s * u)} V to the drain-side rail carries zero current in both devices; the figure given is the lower end, where the load just stops conducting. A real node settles where the leakage currents balance.`,
