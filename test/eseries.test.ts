@@ -103,6 +103,8 @@ describe("lookup", () => {
     expect(isStandard(3300, "E6")).toBe(true);
     expect(isStandard(3900, "E6")).toBe(false);
     expect(isStandard(0.1 + 0.2 + 0.7, "E3")).toBe(true); // 1.0000000000000002 is still 1.0
+    expect(isStandard(1.000001, "E3")).toBe(false);
+    expect(neighbours(1e-13 + 1, "E3")).toEqual({ below: 1, above: 1 }); // within 1e-9: the standard value itself
     expect(standardValuesAround(5000, "E12", 3)).toEqual([3900, 4700, 5600]);
     expect(standardValuesAround(5200, "E12", 3)).toEqual([4700, 5600, 6800]);
     expect(standardValuesAround(1000, "E24", 3)).toEqual([910, 1000, 1100]);
@@ -113,8 +115,9 @@ describe("lookup", () => {
       fc.property(fc.constantFrom(...seriesNames), fc.double({ min: -5, max: 13, noNaN: true }), (name, exp) => {
         const v = 10 ** exp;
         const { below, above } = neighbours(v, name);
-        expect(below).toBeLessThanOrEqual(v * (1 + 1e-12));
-        expect(above).toBeGreaterThanOrEqual(v * (1 - 1e-12));
+        // A value within 1e-9 relative of a standard value counts as that value (eseries.ts).
+        expect(below).toBeLessThanOrEqual(v * (1 + 1e-9));
+        expect(above).toBeGreaterThanOrEqual(v * (1 - 1e-9));
         expect(isStandard(below, name)).toBe(true);
         expect(isStandard(above, name)).toBe(true);
         const n = nearestStandard(v, name);

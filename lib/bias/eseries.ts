@@ -159,12 +159,13 @@ export function standardValuesAround(value: number, series: SeriesName | ESeries
     .sort((a, b) => a - b);
 }
 
-/** True when the value is a member of the series (to floating precision). */
+/** True when the value is a member of the series (within 1e-9 relative). */
 export function isStandard(value: number, series: SeriesName | ESeries, origin = "value"): boolean {
   const { below } = neighbours(value, series, origin);
   return sameValue(below, value);
 }
 
+/** Values within 1e-9 relative of a standard value are that value (decimal input such as 4.7e3 lands within a few ulp). */
 const sameValue = (a: number, b: number): boolean => Math.abs(a - b) <= 1e-9 * Math.abs(b);
 
 /** The series' associated tolerance (or a stated one), validated. */
