@@ -52,7 +52,8 @@ describe("offline pages in headless Chromium", () => {
     browser.refused.length = 0;
     browser.errors.length = 0;
     await browser.page.goto(pathToFileURL(join(out, report!)).href, { waitUntil: "load", timeout: 60_000 });
-    await browser.page.waitForFunction(() => document.querySelectorAll(".js-plotly-plot .main-svg").length >= 3, undefined, { timeout: 60_000 });
+    // Plotly stacks several .main-svg layers per plot: count plot boxes that hold one.
+    await browser.page.waitForFunction(() => [...document.querySelectorAll(".js-plotly-plot")].filter((e) => e.querySelector(".main-svg")).length >= 3, undefined, { timeout: 60_000 });
     const plots = await drawnPlots(".js-plotly-plot");
     expect(plots.length).toBeGreaterThanOrEqual(3);
     for (const p of plots) {
@@ -76,7 +77,7 @@ describe("offline pages in headless Chromium", () => {
     await browser.page.goto(pathToFileURL(join(out, "export.html")).href, { waitUntil: "load", timeout: 60_000 });
     const boxes = await browser.page.$$eval(".pinchoff-plot-area", (e) => e.length);
     expect(boxes).toBe(3);
-    await browser.page.waitForFunction((n) => document.querySelectorAll(".pinchoff-plot-area[data-drawn] .main-svg").length >= n, boxes, { timeout: 60_000 });
+    await browser.page.waitForFunction((n) => [...document.querySelectorAll(".pinchoff-plot-area[data-drawn]")].filter((e) => e.querySelector(".main-svg")).length >= n, boxes, { timeout: 60_000 });
     const plots = await drawnPlots(".pinchoff-plot-area");
     for (const p of plots) expect(p.paths).toBeGreaterThan(0);
     // The "library missing" notes are hidden once each plot is drawn.

@@ -101,7 +101,9 @@ export async function startNotebookServer(root: string, jupyterPath: string, tim
   const runtime = mkdtempSync(join(tmpdir(), "pinchoff-jupyter-"));
   const proc: ChildProcess = spawn(
     "jupyter-notebook",
-    ["--no-browser", "--ip=127.0.0.1", `--port=${port}`, "--port-retries=0", `--NotebookApp.token=${token}`, `--notebook-dir=${root}`, "--NotebookApp.open_browser=False"],
+    ["--no-browser", "--ip=127.0.0.1", `--port=${port}`, "--port-retries=0", `--NotebookApp.token=${token}`, `--notebook-dir=${root}`, "--NotebookApp.open_browser=False",
+      // The server refuses to start as root without this (containers, CI).
+      ...(process.getuid?.() === 0 ? ["--allow-root"] : [])],
     {
       cwd: root,
       env: { ...process.env, JUPYTER_PATH: jupyterPath, JUPYTER_RUNTIME_DIR: runtime, JUPYTER_CONFIG_DIR: join(runtime, "config"), JUPYTER_DATA_DIR: join(runtime, "data") },
