@@ -4,8 +4,10 @@
  * PMOS drivers, complementary and same-type loads, body at the rail (body
  * effect on a same-type load) or at the source — are solved here and by
  * ngspice from the very decks the topology exports. The output voltage and
- * the current agree to 1e-6 relative (1 µV or 10 pA absolute near zero) and
- * the regions of both transistors agree in every case.
+ * the current agree to 1e-6 relative (1 µV or 10 pA absolute near zero), the
+ * regions of both transistors agree in every case, and where the driver
+ * conducts the small-signal gain and output resistance agree with ngspice's
+ * transfer-function analysis (.tf) to 1e-6 relative.
  *
  * With the driver cut off the square law leaves the output undetermined
  * between the load's conduction edge and the rail (no current anywhere);
@@ -74,6 +76,7 @@ const perBatch = 20;
 const tally: Record<Region, number> = { cutoff: 0, triode: 0, saturation: 0 };
 let total = 0;
 let bodyEffect = 0;
+let gains = 0;
 let worstRel = 0;
 
 describe("common source with a diode-connected load against ngspice Level 1 (Debian ngspice, batch mode)", () => {
@@ -91,13 +94,23 @@ describe("common source with a diode-connected load against ngspice Level 1 (Deb
           lines.push(...c.lines);
           prints.push(`v(${c.nodes.drain})`, `i(${c.drainAmmeter.toLowerCase()})`, `@${c.instance.toLowerCase()}[von]`, `@${c.instances!.load!.toLowerCase()}[von]`);
         });
-        const rows = runNgspice({ circuit: lines.join("\n"), control: ["op", ...prints.map((p) => `print ${p}`), "quit 0"].join("\n") });
+        // Small-signal gain and output resistance from ngspice's .tf at each conducting stage's own operating point.
+        const analyses = stages.map((st) => analyzeStage(st));
+        const tf: string[] = [];
+        analyses.forEach((a, i) => {
+          if (a.region === "cutoff") return;
+          const c = circuits[i]!;
+          tf.push(`tf v(${c.nodes.drain}) ${c.lines.find((l) => l.startsWith(`Vc${i}_G `))!.split(" ")[0]!.toLowerCase()}`, "print transfer_function", `print output_impedance_at_v(${c.nodes.drain})`);
+        });
+        const rows = runNgspice({ circuit: lines.join("\n"), control: ["op", ...prints.map((p) => `print ${p}`), ...tf, "quit 0"].join("\n") });
+        const tfRows = rows.splice(prints.length);
         expect(rows.length).toBe(prints.length);
+        expect(tfRows.length).toBe((2 * tf.length) / 3);
         const s = polarity === "nmos" ? 1 : -1;
         const sl = loadPolarity === "nmos" ? 1 : -1;
         stages.forEach((st, i) => {
           const [vd, id, von1, von2] = rows.slice(i * 4, i * 4 + 4).map((r) => r[1]!);
-          const a = analyzeStage(st);
+          const a = analyses[i]!;
           const load = a.devices!.load!;
           const where = `diode-load ${polarity}/${loadType} #${i}: ${JSON.stringify(st)}`;
           const close = (ours: number, ref: number, abs: number, what: string) => {
@@ -128,6 +141,10 @@ describe("common source with a diode-connected load against ngspice Level 1 (Deb
             expect(r2 === "cutoff" || vovLoad <= slack, `ngspice load region ${r2} (overdrive ${vovLoad} V) — ${where}`).toBe(true);
           } else {
             close(a.nodes.drain, vd, 1e-6, "VOUT");
+            const [gain, rout] = tfRows.splice(0, 2).map((r) => r[1]!);
+            close(a.metrics.amplifiers[0]!.gain, gain!, 1e-9, "small-signal gain vout/vin");
+            close(a.metrics.amplifiers[0]!.rout, rout!, 1e-6, "output resistance");
+            gains++;
             expect(load.region, `load region — ${where}`).toBe(r2);
             expect(r2).toBe("saturation"); // a diode-connected load is saturated whenever it conducts
           }
@@ -142,6 +159,7 @@ describe("common source with a diode-connected load against ngspice Level 1 (Deb
     expect(tally.triode).toBeGreaterThanOrEqual(5);
     expect(tally.saturation).toBeGreaterThanOrEqual(10);
     expect(bodyEffect).toBeGreaterThanOrEqual(5);
-    console.log(`diode-load vs ngspice: ${total} stages, driver regions ${JSON.stringify(tally)}, ${bodyEffect} with body effect on the load, worst relative deviation ${worstRel.toExponential(2)}`);
+    expect(gains).toBe(total - tally.cutoff);
+    console.log(`diode-load vs ngspice: ${total} stages, driver regions ${JSON.stringify(tally)}, ${bodyEffect} with body effect on the load, ${gains} gains and output resistances from .tf, worst relative deviation ${worstRel.toExponential(2)}`);
   });
 });

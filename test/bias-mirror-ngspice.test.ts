@@ -4,8 +4,9 @@
  * voltage (often below compliance) or loaded by a resistor, are solved here
  * and by ngspice from the very decks the topology exports. Node voltages and
  * currents must agree to 1e-6 relative (1 µV or 10 pA absolute near zero:
- * ngspice's junction leakage and GMIN), and the regions of both transistors
- * must agree in every case.
+ * ngspice's junction leakage and GMIN), so must the output transistor's gm
+ * and gds (hence ro2), and the regions of both transistors must agree in
+ * every case.
  */
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
@@ -80,7 +81,7 @@ function solvable(stage: Stage): boolean {
   }
 }
 
-const perBatch = 25;
+const perBatch = 30;
 const tally: Record<Region, number> = { cutoff: 0, triode: 0, saturation: 0 };
 let total = 0;
 let belowCompliance = 0;
@@ -100,14 +101,14 @@ describe("current mirror against ngspice Level 1 (Debian ngspice, batch mode)", 
         lines.push(...c.lines);
         const m1 = c.instances!.reference!.toLowerCase();
         const m2 = c.instance.toLowerCase();
-        prints.push(`v(${c.nodes.gate})`, `v(${c.nodes.drain})`, `i(${c.drainAmmeter.toLowerCase()})`, `i(${c.ammeters!.reference!.toLowerCase()})`, `@${m1}[von]`, `@${m2}[von]`);
+        prints.push(`v(${c.nodes.gate})`, `v(${c.nodes.drain})`, `i(${c.drainAmmeter.toLowerCase()})`, `i(${c.ammeters!.reference!.toLowerCase()})`, `@${m1}[von]`, `@${m2}[von]`, `@${m2}[gds]`, `@${m2}[gm]`);
       });
       // `quit 0`: ngspice -b exits 1 after a .control block that runs no .tran/.plot, even on success.
       const rows = runNgspice({ circuit: lines.join("\n"), control: ["op", ...prints.map((p) => `print ${p}`), "quit 0"].join("\n") });
       expect(rows.length).toBe(prints.length);
       const s = polarity === "nmos" ? 1 : -1;
       stages.forEach((st, i) => {
-        const [vg, vd, iout, iref, von1, von2] = rows.slice(i * 6, i * 6 + 6).map((r) => r[1]!);
+        const [vg, vd, iout, iref, von1, von2, gds2, gm2] = rows.slice(i * 8, i * 8 + 8).map((r) => r[1]!);
         const a = analyzeStage(st) as MirrorAnalysis;
         const where = `mirror ${polarity} #${i}: ${JSON.stringify(st)}`;
         const close = (ours: number, ref: number, abs: number, what: string) => {
@@ -118,6 +119,10 @@ describe("current mirror against ngspice Level 1 (Debian ngspice, batch mode)", 
         close(a.nodes.drain, vd, 1e-6, "VOUT");
         close(a.op.id, iout, 1e-11, "IOUT");
         close(a.devices!.reference!.op.id, iref, 1e-11, "IREF");
+        // The output resistance ro2 = 1/gds2 and gm2 at the output transistor's operating point.
+        close(a.smallSignal.gds, gds2, 1e-15, "gds2");
+        close(a.smallSignal.gm, gm2, 1e-15, "gm2");
+        if (a.region === "saturation" && gds2 > 0) close(a.mirror.outputResistance, 1 / gds2, 1e-6, "ro2");
         // Regions from ngspice's own thresholds (von) at its own node voltages, in device polarity; sources at the rail.
         const vsrc = s > 0 ? (st.supplies.vss ?? 0) : st.supplies.vdd;
         const r1 = regionOf(s * (vg - vsrc) - s * von1, s * (vg - vsrc));
