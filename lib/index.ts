@@ -34,6 +34,8 @@ export {
   synthesizeDrainFeedback,
   synthesizeSourceFollower,
   synthesizeCurrentSourceBias,
+  synthesizeCurrentMirror,
+  type CurrentMirrorSpec,
   type StageSpec,
   type SpecBase,
   type Sizing,

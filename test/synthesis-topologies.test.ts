@@ -47,6 +47,26 @@ describe("hand calculations with the square law (λ = 0, γ = 0; invented exampl
     expect(r.ideal.components.rd).toBeCloseTo(3600, 8);
   });
 
+  it("current mirror 1:1: VGS = 0.9 V → RREF = (5 − 0.9)/1 mA = 4.1 kΩ; output halfway between compliance 0.3 V and 5 V → RLOAD = 2.35 kΩ", () => {
+    const r = synthesize({ ...common, topology: "current-mirror", card: nCard });
+    expect(r.ideal.components.rref).toBeCloseTo(4100, 8);
+    expect(r.ideal.components.rload).toBeCloseTo(2350, 8);
+    expect(r.stage.devices!.reference!.w).toBeCloseTo(r.stage.device.w, 18);
+    expect(r.analysis.currents.drain).toBeCloseTo(1e-3, 15);
+  });
+
+  it("current mirror 1:4 with λ: the reference current is chosen so the output meets IOUT at its own VDS", () => {
+    // IOUT = IREF·N·(1 + λ·VDS2)/(1 + λ·VGS1): with VDS2 ≠ VGS1 the reference is not IOUT/N.
+    const card = { ...nCard, lambda: 0.05 } as DeviceCard;
+    const r = synthesize({ ...common, topology: "current-mirror", card, ratio: 4 });
+    expect(r.stage.devices!.reference!.w).toBeCloseTo(r.stage.device.w / 4, 18);
+    expect(r.deviation.id.relative).toBeCloseTo(0, 10);
+    const iref = r.analysis.currents.reference!;
+    const vds2 = r.analysis.nodes.drain!;
+    const vgs1 = r.analysis.nodes.gate!;
+    expect(1e-3 / iref).toBeCloseTo((4 * (1 + 0.05 * vds2)) / (1 + 0.05 * vgs1), 9);
+  });
+
   it("PMOS follower with a stated output voltage mirrors the NMOS equations", () => {
     // PMOS on 5 V, output at 3 V: RS = (5 − 3)/1 mA = 2 kΩ; VG = 3 − 0.7 − 0.3 = 2 V; divider a tenth of ID → RG1 = 3 V/0.1 mA, RG2 = 2 V/0.1 mA.
     const r = synthesize({ ...common, topology: "source-follower", card: pCard, output: { vs: 3 as Volts } });
@@ -93,6 +113,8 @@ function toSpec(g: Gen, series: StageSpec["series"]): StageSpec {
       return { ...base, topology: "source-follower" };
     case "current-source-bias":
       return { ...base, topology: "current-source-bias", ...drain };
+    case "current-mirror":
+      return { ...base, topology: "current-mirror", ratio: g.withSource ? 2 : 1, ...(g.gain !== undefined ? { load: "source" as const } : {}) };
   }
 }
 const attempt = (spec: StageSpec) => {
@@ -154,6 +176,7 @@ describe("recorded derivations", () => {
       { ...common, series: "E24", topology: "drain-feedback", card: { ...nCard, lambda: 0.02 } as DeviceCard, feedback: { rin: 300e3 as Ohms } },
       { ...common, series: "E48", topology: "source-follower", card: pCard, gate: { current: 50e-6 as Amperes } },
       { ...common, series: "E24", topology: "current-source-bias", card: nCard, supplies: { vdd: 5 as Volts, vss: -5 as Volts }, drain: { gain: 8 } },
+      { ...common, series: "E24", topology: "current-mirror", card: { ...pCard, lambda: 0.03 } as DeviceCard, ratio: 2 },
     ];
     for (const spec of specs) {
       const rec = new Derivation(`${spec.topology} ${spec.card.polarity}`);

@@ -92,6 +92,30 @@ describe("toleranceAnalysis: failures and generic solve", () => {
     expect(rec.findings.some((f) => f.severity === "warning" && /leave saturation/.test(f.text))).toBe(true);
   });
 
+  it("moves every transistor of a stage together: a 1:1 mirror (λ = 0) copies its reference in every corner", () => {
+    const mirror: Stage = {
+      topology: "current-mirror",
+      device: dev,
+      devices: { reference: dev },
+      components: { rref: 4100, rload: 2350 },
+      supplies: { vdd: 5 as Volts },
+    };
+    const seen: Array<[number, number]> = [];
+    const r = toleranceAnalysis(mirror, {
+      resistors: 0.05,
+      process: { vt0: 0.05 as Volts, kp: 0.1 },
+      temperatures: [celsius(0), celsius(70)],
+      solve: (st) => {
+        const a = analyzeStage(st);
+        seen.push([a.currents.drain!, a.currents.reference!]);
+        return a;
+      },
+    });
+    expect(r.cases).toHaveLength(2 ** 4 * 2);
+    expect(r.id.max).toBeGreaterThan(r.id.min * 1.05); // the corners do move the current
+    for (const [out, ref] of seen) expect(out).toBeCloseTo(ref, 15);
+  });
+
   it("is generic over the solve function", () => {
     let calls = 0;
     const r = toleranceAnalysis(fourR, {

@@ -16,6 +16,7 @@
 import { InputError } from "../errors.js";
 import type { Derivation } from "../record/derivation.js";
 import type { SynthesisResult } from "./synthesis/common.js";
+import { synthesizeCurrentMirror, type CurrentMirrorSpec } from "./synthesis/current-mirror.js";
 import { synthesizeCurrentSourceBias, type CurrentSourceBiasSpec } from "./synthesis/current-source-bias.js";
 import { synthesizeDrainFeedback, type DrainFeedbackSpec } from "./synthesis/drain-feedback.js";
 import { synthesizeFixedGate, type FixedGateSpec } from "./synthesis/fixed-gate.js";
@@ -24,11 +25,11 @@ import { synthesizeSourceFollower, type SourceFollowerSpec } from "./synthesis/s
 
 export * from "./synthesis/common.js";
 export type { CorePlan, DividerTarget, DrainTarget, SourceBudget } from "./synthesis/core.js";
-export { synthesizeCurrentSourceBias, synthesizeDrainFeedback, synthesizeFixedGate, synthesizeFourResistor, synthesizeSourceFollower };
-export type { CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
+export { synthesizeCurrentMirror, synthesizeCurrentSourceBias, synthesizeDrainFeedback, synthesizeFixedGate, synthesizeFourResistor, synthesizeSourceFollower };
+export type { CurrentMirrorSpec, CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
 export type { FourResistorResult } from "./synthesis/four-resistor.js";
 
-export type StageSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec;
+export type StageSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec;
 
 const designers = {
   "four-resistor": synthesizeFourResistor,
@@ -36,6 +37,7 @@ const designers = {
   "drain-feedback": synthesizeDrainFeedback,
   "source-follower": synthesizeSourceFollower,
   "current-source-bias": synthesizeCurrentSourceBias,
+  "current-mirror": synthesizeCurrentMirror,
 } as const;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];

@@ -7,7 +7,10 @@
  * Carlo run is solved; the report gives the spread of ID, the output nodes,
  * VOV and the saturation margin, and whether every case stays in saturation.
  *
- * Generic over the solve function, so it serves every topology. Corners bound
+ * Process shifts and temperature move every transistor of the stage together
+ * (one die, one corner: mismatch between devices and independent NMOS/PMOS
+ * corners are not modelled). Generic over the solve function, so it serves
+ * every topology. Corners bound
  * the spread when each figure is monotone in each parameter (true of the
  * single-transistor resistor networks in saturation); Monte Carlo does not
  * bound it. Verify by simulation and measurement.
@@ -155,24 +158,33 @@ export function toleranceAnalysis(stage: Stage, spec: ToleranceSpec = {}, rec?: 
   }
   const temps: (Kelvin | undefined)[] = spec.temperatures?.length ? [...spec.temperatures] : [undefined];
   temps.forEach((t, i) => t !== undefined && requirePositive(t, `tolerance.temperatures[${i}]`, "a temperature > 0 K"));
-  const cardAt = new Map<Kelvin | undefined, DeviceCard>(temps.map((t) => [t, t === undefined ? card : cardAtTemperature(card, t)]));
-  const s = polaritySign(card);
+  // Further transistors (a mirror's reference, a load) move with the same process shift and temperature.
+  const roles = Object.keys(stage.devices ?? {});
+  const at = (c0: DeviceCard, t: Kelvin | undefined) => (t === undefined ? c0 : cardAtTemperature(c0, t));
+  const cardsAt = new Map<Kelvin | undefined, DeviceCard[]>(temps.map((t) => [t, [at(card, t), ...roles.map((r) => at(stage.devices![r]!.card, t))]]));
+  const vtIndex = params.findIndex((p) => p.name === "Vt");
+  const kpIndex = params.findIndex((p) => p.name === "k'");
+  const shift = (c: DeviceCard, pos: readonly number[]): DeviceCard => {
+    let out = c;
+    if (vtIndex >= 0) out = { ...out, vt0: (out.vt0 + polaritySign(out) * pos[vtIndex]! * params[vtIndex]!.band) as Volts };
+    if (kpIndex >= 0) out = { ...out, kp: (out.kp * (1 + pos[kpIndex]! * params[kpIndex]!.band)) as typeof out.kp };
+    return out;
+  };
 
   const runCase = (pos: readonly number[], t: Kelvin | undefined): ToleranceCase => {
     const comps: Record<string, number> = { ...(stage.components as Readonly<Record<string, number>>) };
-    let c = cardAt.get(t) ?? card;
+    const cards = (cardsAt.get(t) ?? [card, ...roles.map((r) => stage.devices![r]!.card)]).map((c0) => shift(c0, pos));
+    const c = cards[0]!;
     params.forEach((p, i) => {
-      const x = pos[i]!;
-      if (p.name === "Vt") c = { ...c, vt0: (c.vt0 + s * x * p.band) as Volts };
-      else if (p.name === "k'") c = { ...c, kp: (c.kp * (1 + x * p.band)) as typeof c.kp };
-      else comps[p.name] = p.nominal * (1 + x * p.band);
+      if (p.relative && p.name !== "k'") comps[p.name] = p.nominal * (1 + pos[i]! * p.band);
     });
     const label =
       params.map((p, i) => (pos[i] === 0 ? "" : `${p.name}${Math.abs(pos[i]!) === 1 ? sign(pos[i]!) : (pos[i]! > 0 ? "+" : "") + pos[i]!.toFixed(2)}`)).filter(Boolean).join(" ") +
       (t !== undefined ? ` @ ${+(t - 273.15).toFixed(2)} °C` : "");
     const base = { label: label || "nominal", position: pos, ...(t !== undefined ? { temperature: t } : {}) };
     try {
-      const a = solve({ ...stage, device: { ...stage.device, card: c }, components: comps });
+      const devices = roles.length ? { devices: Object.fromEntries(roles.map((r, j) => [r, { ...stage.devices![r]!, card: cards[j + 1]! }])) } : {};
+      const a = solve({ ...stage, device: { ...stage.device, card: c }, ...devices, components: comps });
       return {
         ...base,
         ok: a.region === "saturation",

@@ -254,6 +254,62 @@ export const feedbackResistorForRin = {
   fn: (Rin: Ohms, gm: Siemens, gds: Siemens, RD: Ohms): Ohms => ((((Rin * ((1 + (((gm + gds)) * RD)))) - RD)) / ((1 + (gds * RD)))) as Ohms,
 } as const satisfies Formula;
 
+/** Mirror output halfway between compliance and the drain rail: VOUT = (VDR + VOUTmin) / 2 */
+export const mirrorMidOutput = {
+  id: "mirrorMidOutput",
+  title: "Mirror output halfway between compliance and the drain rail",
+  expr: "(VDR + VOUTmin) / 2",
+  tex: "V_{OUT} = \\frac{{V_{DR}}+{V_{OUT,min}}}{2}",
+  result: "VOUT",
+  resultDim: "voltage",
+  vars: ["VDR","VOUTmin"],
+  dims: ["voltage","voltage"],
+  source: "common practice: output at mid-range for the largest swing either way",
+  fn: (VDR: Volts, VOUTmin: Volts): Volts => (((VDR + VOUTmin)) / 2) as Volts,
+} as const satisfies Formula;
+
+/** Reference transistor aspect ratio for a mirror ratio: WL1 = WL / Nm */
+export const referenceAspectRatio = {
+  id: "referenceAspectRatio",
+  title: "Reference transistor aspect ratio for a mirror ratio",
+  expr: "WL / Nm",
+  tex: "(W/L)_{1} = \\frac{{W/L}}{{N}}",
+  result: "WL1",
+  resultDim: "dimensionless",
+  vars: ["WL","Nm"],
+  dims: ["dimensionless","dimensionless"],
+  source: "square law, equal VGS and Vt (common practice)",
+  fn: (WL: Ratio, Nm: Ratio): Ratio => (WL / Nm) as Ratio,
+} as const satisfies Formula;
+
+/** Reference resistor for the reference current: RREF = (VDR - VSR - VGS1) / IREF */
+export const referenceResistor = {
+  id: "referenceResistor",
+  title: "Reference resistor for the reference current",
+  expr: "(VDR - VSR - VGS1) / IREF",
+  tex: "R_{REF} = \\frac{{V_{DR}}-{V_{SR}}-{V_{GS1}}}{{I_{REF}}}",
+  result: "RREF",
+  resultDim: "resistance",
+  vars: ["VDR","VSR","VGS1","IREF"],
+  dims: ["voltage","voltage","voltage","current"],
+  source: "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)",
+  fn: (VDR: Volts, VSR: Volts, VGS1: Volts, IREF: Amperes): Ohms => ((((VDR - VSR) - VGS1)) / IREF) as Ohms,
+} as const satisfies Formula;
+
+/** Load resistor for the output voltage at the output current: RL = (VDR - VOUT) / IOUT */
+export const mirrorLoadResistor = {
+  id: "mirrorLoadResistor",
+  title: "Load resistor for the output voltage at the output current",
+  expr: "(VDR - VOUT) / IOUT",
+  tex: "R_{L} = \\frac{{V_{DR}}-{V_{OUT}}}{{I_{OUT}}}",
+  result: "RL",
+  resultDim: "resistance",
+  vars: ["VDR","VOUT","IOUT"],
+  dims: ["voltage","voltage","current"],
+  source: "Ohm's law",
+  fn: (VDR: Volts, VOUT: Volts, IOUT: Amperes): Ohms => (((VDR - VOUT)) / IOUT) as Ohms,
+} as const satisfies Formula;
+
 /** Channel width for an aspect ratio: W = WL * L */
 export const widthForRatio = {
   id: "widthForRatio",

@@ -23,7 +23,7 @@ import "../analyze.js"; // registers the built-in topologies
 import { stageDissipation } from "../dissipation.js";
 import { eSeries } from "../eseries.js";
 import { snapToSeries, type SnapResult } from "../snap.js";
-import { topologyFor, type AmplifierKind, type Stage, type StageAnalysis } from "../topology.js";
+import { topologyFor, type AmplifierKind, type Stage, type StageAnalysis, type StageDevice } from "../topology.js";
 import { deviceRails, evaluate, figure, recordDeviation, type SpecBase, type SpecDeviation, type SynthesisResult } from "./common.js";
 
 /** Where the drain goes: an absolute node voltage, or a gain magnitude |vout/vin|. */
@@ -269,6 +269,8 @@ export interface FinishArgs<C extends object> {
   /** The node the specification targets and its absolute target voltage. */
   readonly output: { readonly node: "drain" | "source"; readonly target: Volts };
   readonly gain?: { readonly target: number; readonly kind: AmplifierKind };
+  /** Further transistors of a two-transistor stage, by role. */
+  readonly devices?: Readonly<Record<string, StageDevice>>;
 }
 
 /** Standard values, the re-solve with the analysis solver, and the deviation report. */
@@ -281,6 +283,7 @@ export function finish<C extends object>(a: FinishArgs<C>, rec?: Derivation): Sy
     topology: a.topology,
     ...(spec.name ? { name: spec.name } : {}),
     device: { card: spec.card, w: d.w, l: d.l },
+    ...(a.devices ? { devices: a.devices } : {}),
     components: cmp,
     supplies: spec.supplies,
     body: spec.body ?? "source",
