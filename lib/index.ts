@@ -52,3 +52,5 @@ export {
 } from "./bias/synthesis.js";
 export * from "./bias/tolerance.js";
 export * from "./bias/dissipation.js";
+export * as synthesisFormulas from "./formulas/synthesis.formulas.js";
+export * as mirrorFormulas from "./formulas/mirror.formulas.js";

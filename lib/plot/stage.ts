@@ -11,7 +11,7 @@ import { InputError } from "../errors.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
 import { formatQuantity } from "../units/format.js";
 import type { PlotSpec } from "./figure.js";
-import { outputCharacteristics, type LoadCurve, type LoadLine } from "./output-characteristics.js";
+import { diodeLoadCurve, outputCharacteristics, type LoadCurve, type LoadLine } from "./output-characteristics.js";
 import { transconductancePlot } from "./transconductance.js";
 import { transferCharacteristic } from "./transfer.js";
 
@@ -29,6 +29,25 @@ const num = (c: unknown, name: string): number => {
 export function stageLoad<C>(stage: Stage<string, C>): StageLoad {
   const span = stage.supplies.vdd - (stage.supplies.vss ?? 0);
   const c = stage.components;
+  const load = stage.devices?.load;
+  if (stage.topology === "diode-load" && load) {
+    const dev = device(load.card, load.w, load.l, "stageLoad.devices.load");
+    // A same-type load with its body on the driver's source rail sees VSB = VOUT − VSS, the driver's VDS.
+    const sameType = load.card.polarity === stage.device.card.polarity;
+    const bodyOnRail = sameType && stage.body === "rail";
+    return { loadCurve: diodeLoadCurve(dev, span, { ...(bodyOnRail ? { vsb: (vds: number) => vds } : {}), ...(stage.options?.clm ? { clm: stage.options.clm } : {}) }) };
+  }
+  if (stage.topology === "current-mirror") {
+    const rload = num(c, "rload");
+    if (rload > 0) return { loadLine: { openCircuit: span, resistance: rload, label: `load resistor ${formatQuantity(rload, "resistance")}` } };
+    const vout = (c as Record<string, unknown>).vout;
+    if (typeof vout === "number") {
+      // An ideal output voltage: the load is a vertical line at the VDS it holds (device polarity).
+      const vds = stage.device.card.polarity === "nmos" ? vout - (stage.supplies.vss ?? 0) : stage.supplies.vdd - vout;
+      return { loadCurve: { vds: [vds, vds], id: [0, 1], label: `output held at ${formatQuantity(vout, "voltage")}` } };
+    }
+    return {};
+  }
   const iss = num(c, "iss");
   if (iss > 0) {
     // An ideal current source forces ID whatever VDS is: the "load line" is horizontal.
