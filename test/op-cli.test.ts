@@ -45,6 +45,25 @@ beforeAll(() => {
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe("pinchoff op", () => {
+  it("reads a two-transistor stage with its second device under devices.<role>", async () => {
+    // Invented NMOS mirror: M1 diode-connected through RREF from 3.3 V; M2 at twice its width, output held at 1.5 V.
+    const card = { name: "demo-n", polarity: "nmos", kp: "200 uA/V^2", vt0: "0.5 V", lambda: "0.05 1/V" };
+    const mirror = {
+      topology: "current-mirror",
+      device: { card, w: "20 um", l: "1 um" },
+      devices: { reference: { card, w: "10 um", l: "1 um" } },
+      components: { rref: "20k", vout: "1.5 V" },
+      supplies: { vdd: "3.3 V" },
+    };
+    const r = await run([write("mirror.json", mirror)]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    // IOUT/IREF = 2·(1 + λ·VDS2)/(1 + λ·VDS1) for the square law with λ (common practice).
+    const ratio = j.mirror.outputCurrent / j.mirror.referenceCurrent;
+    const vgs = j.mirror.gateSource;
+    expect(ratio).toBeCloseTo((2 * (1 + 0.05 * 1.5)) / (1 + 0.05 * vgs), 9);
+    expect(() => parseDesign({ ...mirror, devices: { reference: { card, w: "-1 um", l: "1 um" } } }, "m.json")).toThrow(/m\.json: devices\.reference\.w/);
+  });
   it("prints the operating point as JSON, values parsed from text with units", async () => {
     const file = write("stage.json", design);
     const r = await run([file]);

@@ -26,10 +26,10 @@ import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
 import type { Dimension } from "../quantity.js";
 import { parseQuantity } from "../units/parse.js";
-import { topologyFor, type Stage, type StageLimits } from "./topology.js";
+import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "components", "supplies", "body", "options", "limits", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "supplies", "body", "options", "limits", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -66,6 +66,40 @@ function quantity(v: unknown, dim: Dimension, at: string): number {
   return parseQuantity(v, dim, at);
 }
 
+/** Parse one transistor `{ card, w, l }` found at field path `f`. */
+function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
+  const dev = object(raw, at(f), "a device { card, w, l }");
+  onlyKeys(dev, ["card", "w", "l"], at(f));
+  const c = object(dev.card, at(`${f}.card`), "a device card { name, polarity, kp, vt0, … }");
+  onlyKeys(c, [...Object.keys(cardFields), "temperature"], at(`${f}.card`));
+  const card: Record<string, unknown> = {};
+  for (const [k, dim] of Object.entries(cardFields)) {
+    const v = c[k];
+    if (v === undefined) {
+      if (k === "polarity" || k === "kp" || k === "vt0") throw new InputError(v, k === "polarity" ? `"nmos" or "pmos"` : `the card's ${k}`, at(`${f}.card.${k}`), "invalid-design");
+      continue;
+    }
+    if (dim === "string") {
+      if (typeof v !== "string") throw new InputError(v, "text", at(`${f}.card.${k}`), "invalid-design");
+      card[k] = v;
+    } else card[k] = quantity(v, dim, at(`${f}.card.${k}`));
+  }
+  if (card.polarity !== "nmos" && card.polarity !== "pmos") throw new InputError(card.polarity, `"nmos" or "pmos"`, at(`${f}.card.polarity`), "invalid-design");
+  if (card.name === undefined) card.name = "unnamed card";
+  if (c.temperature !== undefined) {
+    const t = object(c.temperature, at(`${f}.card.temperature`), "temperature coefficients { t0, alphaVt, muExp }");
+    onlyKeys(t, Object.keys(temperatureFields), at(`${f}.card.temperature`));
+    const tc: Record<string, number> = {};
+    for (const [k, dim] of Object.entries(temperatureFields)) tc[k] = quantity(t[k], dim, at(`${f}.card.temperature.${k}`));
+    card.temperature = tc;
+  }
+  checkCard(card as unknown as DeviceCard, at(`${f}.card`));
+  const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
+  const l = requirePositive(quantity(dev.l, "length", at(`${f}.l`)), at(`${f}.l`), "a channel length L > 0 in m");
+
+  return { card: card as unknown as DeviceCard, w: w as StageDevice["w"], l: l as StageDevice["l"] };
+}
+
 /** Validate and parse a design (already JSON-parsed) into a stage; `origin` names the file. */
 export function parseDesign(design: unknown, origin = "design"): Stage {
   const d = object(design, origin, "a design object { topology, device, components, supplies, … }");
@@ -75,34 +109,13 @@ export function parseDesign(design: unknown, origin = "design"): Stage {
   if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
   if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
 
-  const dev = object(d.device, at("device"), "a device { card, w, l }");
-  onlyKeys(dev, ["card", "w", "l"], at("device"));
-  const c = object(dev.card, at("device.card"), "a device card { name, polarity, kp, vt0, … }");
-  onlyKeys(c, [...Object.keys(cardFields), "temperature"], at("device.card"));
-  const card: Record<string, unknown> = {};
-  for (const [k, dim] of Object.entries(cardFields)) {
-    const v = c[k];
-    if (v === undefined) {
-      if (k === "polarity" || k === "kp" || k === "vt0") throw new InputError(v, k === "polarity" ? `"nmos" or "pmos"` : `the card's ${k}`, at(`device.card.${k}`), "invalid-design");
-      continue;
-    }
-    if (dim === "string") {
-      if (typeof v !== "string") throw new InputError(v, "text", at(`device.card.${k}`), "invalid-design");
-      card[k] = v;
-    } else card[k] = quantity(v, dim, at(`device.card.${k}`));
+  const device = parseStageDevice(d.device, "device", at);
+  let devices: Record<string, StageDevice> | undefined;
+  if (d.devices !== undefined) {
+    const roles = object(d.devices, at("devices"), "further transistors by role, e.g. { reference: { card, w, l } }");
+    devices = {};
+    for (const [role, raw] of Object.entries(roles)) devices[role] = parseStageDevice(raw, `devices.${role}`, at);
   }
-  if (card.polarity !== "nmos" && card.polarity !== "pmos") throw new InputError(card.polarity, `"nmos" or "pmos"`, at("device.card.polarity"), "invalid-design");
-  if (card.name === undefined) card.name = "unnamed card";
-  if (c.temperature !== undefined) {
-    const t = object(c.temperature, at("device.card.temperature"), "temperature coefficients { t0, alphaVt, muExp }");
-    onlyKeys(t, Object.keys(temperatureFields), at("device.card.temperature"));
-    const tc: Record<string, number> = {};
-    for (const [k, dim] of Object.entries(temperatureFields)) tc[k] = quantity(t[k], dim, at(`device.card.temperature.${k}`));
-    card.temperature = tc;
-  }
-  checkCard(card as unknown as DeviceCard, at("device.card"));
-  const w = requirePositive(quantity(dev.w, "length", at("device.w")), at("device.w"), "a channel width W > 0 in m");
-  const l = requirePositive(quantity(dev.l, "length", at("device.l")), at("device.l"), "a channel length L > 0 in m");
 
   const comps = object(d.components, at("components"), `the ${topo.id} components (${topo.components.map((f) => f.name).join(", ")})`);
   onlyKeys(comps, topo.components.map((f) => f.name), at("components"));
@@ -138,7 +151,8 @@ export function parseDesign(design: unknown, origin = "design"): Stage {
   return {
     topology: topo.id,
     ...(d.name !== undefined ? { name: d.name as string } : {}),
-    device: { card: card as unknown as DeviceCard, w: w as Stage["device"]["w"], l: l as Stage["device"]["l"] },
+    device,
+    ...(devices ? { devices } : {}),
     components,
     supplies: supplies as Stage["supplies"],
     ...(d.body !== undefined ? { body: d.body as "source" | "rail" } : {}),
