@@ -67,6 +67,24 @@ describe("hand calculations with the square law (λ = 0, γ = 0; invented exampl
     expect(1e-3 / iref).toBeCloseTo((4 * (1 + 0.05 * vds2)) / (1 + 0.05 * vgs1), 9);
   });
 
+  it("diode-connected PMOS load: VOUT = (0.3 + 5 − 0.7)/2 = 2.3 V, VOV2 = 5 − 2.3 − 0.7 = 2 V → (W/L)2 = 2·0.1 mA/(80 µA/V²·4 V²) = 0.625", () => {
+    const r = synthesize({ ...common, id: 1e-4 as Amperes, topology: "diode-load", card: nCard, load: { card: pCard, l: 1e-6 as Meters } });
+    expect(r.ideal.vd).toBeCloseTo(2.3, 12);
+    expect(r.ideal.components.vg).toBeCloseTo(0.9, 12);
+    expect(r.stage.devices!.load!.w).toBeCloseTo(0.625e-6, 18);
+    expect(r.analysis.nodes.drain).toBeCloseTo(2.3, 9);
+    // λ = 0, no body effect: |Av| = gm1/gm2 = VOV2/VOV1 = 2/0.3.
+    expect(Math.abs(r.analysis.metrics.amplifiers[0]!.gain)).toBeCloseTo(2 / 0.3, 9);
+  });
+
+  it("diode load from a gain, same-type load with the body effect: the analysis gives that gain", () => {
+    const card = { ...nCard, lambda: 0.02, gamma: 0.4, phi: 0.7 } as DeviceCard;
+    const r = synthesize({ ...common, id: 1e-4 as Amperes, topology: "diode-load", card, load: { card, l: 1e-6 as Meters }, body: "rail", output: { gain: 3 } });
+    expect(r.deviation.gain!.relative).toBeCloseTo(0, 9);
+    expect(r.deviation.id.relative).toBeCloseTo(0, 10);
+    expect(() => synthesize({ ...common, id: 1e-4 as Amperes, topology: "diode-load", card, load: { card, l: 1e-6 as Meters }, body: "rail", output: { gain: 300 } })).toThrow(/exceeds the most this sizing gives/);
+  });
+
   it("PMOS follower with a stated output voltage mirrors the NMOS equations", () => {
     // PMOS on 5 V, output at 3 V: RS = (5 − 3)/1 mA = 2 kΩ; VG = 3 − 0.7 − 0.3 = 2 V; divider a tenth of ID → RG1 = 3 V/0.1 mA, RG2 = 2 V/0.1 mA.
     const r = synthesize({ ...common, topology: "source-follower", card: pCard, output: { vs: 3 as Volts } });
@@ -113,6 +131,13 @@ function toSpec(g: Gen, series: StageSpec["series"]): StageSpec {
       return { ...base, topology: "source-follower" };
     case "current-source-bias":
       return { ...base, topology: "current-source-bias", ...drain };
+    case "diode-load":
+      return {
+        ...base,
+        topology: "diode-load",
+        load: { card: g.withSource ? base.card : ({ ...base.card, name: "load (invented)", polarity: g.pmos ? "nmos" : "pmos", vt0: g.pmos ? g.vt : -g.vt, kp: g.kp / 2 } as DeviceCard), l: 1e-6 as Meters },
+        ...(g.gain !== undefined ? { output: { gain: g.gain } } : {}),
+      };
     case "current-mirror":
       return { ...base, topology: "current-mirror", ratio: g.withSource ? 2 : 1, ...(g.gain !== undefined ? { load: "source" as const } : {}) };
   }
@@ -149,8 +174,8 @@ describe("synthesis followed by analysis, every topology", () => {
     fc.assert(
       fc.property(specArb, fc.constantFrom("E24" as const, "E96" as const), (g, series) => {
         const r = attempt(toSpec(g, series));
-        if (!r) return;
-        const d = Math.max(...r.snap!.components.map((c) => Math.abs(c.deviation)));
+        if (!r || !r.snap) return; // the diode-loaded stage has no resistor to choose
+        const d = Math.max(...r.snap.components.map((c) => Math.abs(c.deviation)));
         const t = toleranceAnalysis(r.idealStage, { resistors: d });
         if (!t.allInSaturation) return;
         solved++;
@@ -177,6 +202,7 @@ describe("recorded derivations", () => {
       { ...common, series: "E48", topology: "source-follower", card: pCard, gate: { current: 50e-6 as Amperes } },
       { ...common, series: "E24", topology: "current-source-bias", card: nCard, supplies: { vdd: 5 as Volts, vss: -5 as Volts }, drain: { gain: 8 } },
       { ...common, series: "E24", topology: "current-mirror", card: { ...pCard, lambda: 0.03 } as DeviceCard, ratio: 2 },
+      { ...common, topology: "diode-load", card: { ...nCard, lambda: 0.02, gamma: 0.4, phi: 0.7 } as DeviceCard, load: { card: { ...nCard, gamma: 0.4, phi: 0.7 } as DeviceCard, l: 2e-6 as Meters }, body: "rail", output: { gain: 2 } },
     ];
     for (const spec of specs) {
       const rec = new Derivation(`${spec.topology} ${spec.card.polarity}`);
@@ -190,6 +216,8 @@ describe("bad and infeasible specifications", () => {
   it("names the topology choices and the offending field", () => {
     expect(() => synthesize({ ...common, topology: "cascode", card: nCard } as never)).toThrow(/spec.topology: got "cascode", expected one of the topologies with synthesis/);
     expect(() => synthesize(null as never)).toThrow(InputError);
+    expect(() => synthesize({ ...common, topology: "diode-load", card: nCard } as never)).toThrow(/diode-load spec.load: got nothing/);
+    expect(() => synthesize({ ...common, topology: "current-mirror", card: nCard, ratio: 0 })).toThrow(/current-mirror spec.ratio: got 0/);
     expect(() => synthesize({ ...common, topology: "source-follower", card: nCard, output: { vs: -1 as Volts } })).toThrow(InfeasibleError);
     expect(() => synthesize({ ...common, topology: "drain-feedback", card: nCard, feedback: { rin: 100 as Ohms } })).toThrow(/below what any RF gives/);
     expect(() => synthesize({ ...common, topology: "drain-feedback", card: nCard, feedback: { rf: -1 as Ohms } })).toThrow(/feedback.rf: got -1/);

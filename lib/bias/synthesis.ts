@@ -18,6 +18,7 @@ import type { Derivation } from "../record/derivation.js";
 import type { SynthesisResult } from "./synthesis/common.js";
 import { synthesizeCurrentMirror, type CurrentMirrorSpec } from "./synthesis/current-mirror.js";
 import { synthesizeCurrentSourceBias, type CurrentSourceBiasSpec } from "./synthesis/current-source-bias.js";
+import { synthesizeDiodeLoad, type DiodeLoadSpec } from "./synthesis/diode-load.js";
 import { synthesizeDrainFeedback, type DrainFeedbackSpec } from "./synthesis/drain-feedback.js";
 import { synthesizeFixedGate, type FixedGateSpec } from "./synthesis/fixed-gate.js";
 import { synthesizeFourResistor, type FourResistorSpec } from "./synthesis/four-resistor.js";
@@ -25,11 +26,11 @@ import { synthesizeSourceFollower, type SourceFollowerSpec } from "./synthesis/s
 
 export * from "./synthesis/common.js";
 export type { CorePlan, DividerTarget, DrainTarget, SourceBudget } from "./synthesis/core.js";
-export { synthesizeCurrentMirror, synthesizeCurrentSourceBias, synthesizeDrainFeedback, synthesizeFixedGate, synthesizeFourResistor, synthesizeSourceFollower };
-export type { CurrentMirrorSpec, CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
+export { synthesizeDiodeLoad, synthesizeCurrentMirror, synthesizeCurrentSourceBias, synthesizeDrainFeedback, synthesizeFixedGate, synthesizeFourResistor, synthesizeSourceFollower };
+export type { DiodeLoadSpec, CurrentMirrorSpec, CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
 export type { FourResistorResult } from "./synthesis/four-resistor.js";
 
-export type StageSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec;
+export type StageSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec | DiodeLoadSpec;
 
 const designers = {
   "four-resistor": synthesizeFourResistor,
@@ -38,6 +39,7 @@ const designers = {
   "source-follower": synthesizeSourceFollower,
   "current-source-bias": synthesizeCurrentSourceBias,
   "current-mirror": synthesizeCurrentMirror,
+  "diode-load": synthesizeDiodeLoad,
 } as const;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];

@@ -50,6 +50,8 @@ export const symbols = defineSymbols({
   WL1: { tex: "(W/L)_{1}", dim: "dimensionless", meaning: "aspect ratio of the mirror's reference transistor" },
   RL: { tex: "R_{L}", dim: "resistance", meaning: "load resistor from the mirror output to the drain-side rail" },
   VOUT: { tex: "V_{OUT}", dim: "voltage", meaning: "mirror output node voltage (device polarity)" },
+  Vt2: { tex: "V_{t2}", dim: "voltage", meaning: "threshold magnitude of the load transistor" },
+  VOV2: { tex: "V_{OV2}", dim: "voltage", meaning: "overdrive of the diode-connected load" },
   AvMag: { tex: "|A_{v}|", dim: "dimensionless", meaning: "magnitude of the small-signal voltage gain" },
   Prated: { tex: "P_{rated}", dim: "power", meaning: "rated power of a part" },
   fDerate: { tex: "f_{derate}", dim: "dimensionless", meaning: "fraction of the rating the design may use" },
@@ -134,6 +136,13 @@ export const formulas = defineFormulas({
     source: kcl,
   },
   mirrorLoadResistor: { title: "Load resistor for the output voltage at the output current", result: "RL", expr: "(VDR - VOUT) / IOUT", source: "Ohm's law" },
+  diodeLoadMidOutput: {
+    title: "Diode-loaded output halfway between the driver's triode edge VSR + VOV and the load's conduction edge VDR − Vt2",
+    result: "VOUT",
+    expr: "(VSR + VOV + VDR - Vt2) / 2",
+    source: "common practice: output at mid-range for the largest swing either way",
+  },
+  diodeLoadOverdrive: { title: "Overdrive of the diode-connected load", result: "VOV2", expr: "VDR - VOUT - Vt2", source: kcl },
   widthForRatio: { title: "Channel width for an aspect ratio", result: "W", expr: "WL * L", source: "definition of the aspect ratio" },
   allowedPower: { title: "Allowed dissipation after derating", result: "Pmax", expr: "Prated * fDerate", source: "common practice: derate parts below their rated power" },
 });

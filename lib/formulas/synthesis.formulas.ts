@@ -310,6 +310,34 @@ export const mirrorLoadResistor = {
   fn: (VDR: Volts, VOUT: Volts, IOUT: Amperes): Ohms => (((VDR - VOUT)) / IOUT) as Ohms,
 } as const satisfies Formula;
 
+/** Diode-loaded output halfway between the driver's triode edge VSR + VOV and the load's conduction edge VDR − Vt2: VOUT = (VSR + VOV + VDR - Vt2) / 2 */
+export const diodeLoadMidOutput = {
+  id: "diodeLoadMidOutput",
+  title: "Diode-loaded output halfway between the driver's triode edge VSR + VOV and the load's conduction edge VDR − Vt2",
+  expr: "(VSR + VOV + VDR - Vt2) / 2",
+  tex: "V_{OUT} = \\frac{{V_{SR}}+{V_{OV}}+{V_{DR}}-{V_{t2}}}{2}",
+  result: "VOUT",
+  resultDim: "voltage",
+  vars: ["VSR","VOV","VDR","Vt2"],
+  dims: ["voltage","voltage","voltage","voltage"],
+  source: "common practice: output at mid-range for the largest swing either way",
+  fn: (VSR: Volts, VOV: Volts, VDR: Volts, Vt2: Volts): Volts => (((((VSR + VOV) + VDR) - Vt2)) / 2) as Volts,
+} as const satisfies Formula;
+
+/** Overdrive of the diode-connected load: VOV2 = VDR - VOUT - Vt2 */
+export const diodeLoadOverdrive = {
+  id: "diodeLoadOverdrive",
+  title: "Overdrive of the diode-connected load",
+  expr: "VDR - VOUT - Vt2",
+  tex: "V_{OV2} = {V_{DR}}-{V_{OUT}}-{V_{t2}}",
+  result: "VOV2",
+  resultDim: "voltage",
+  vars: ["VDR","VOUT","Vt2"],
+  dims: ["voltage","voltage","voltage"],
+  source: "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)",
+  fn: (VDR: Volts, VOUT: Volts, Vt2: Volts): Volts => ((VDR - VOUT) - Vt2) as Volts,
+} as const satisfies Formula;
+
 /** Channel width for an aspect ratio: W = WL * L */
 export const widthForRatio = {
   id: "widthForRatio",
