@@ -1,0 +1,118 @@
+/**
+ * Every template in notebooks-templates/ executes through the real tslab
+ * kernel under Jupyter (nbconvert's ExecutePreprocessor) with no cell error,
+ * shows at least one derivation whose checks all pass, and shows the output
+ * characteristic with its load and operating point. The static contract
+ * (nbformat 4.5 with cell ids, one design-inputs cell, invented demo data
+ * labelled, cautions) is checked first, without a kernel.
+ */
+import { execFileSync } from "node:child_process";
+import { mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join, resolve } from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { dimensions } from "../lib/quantity.js";
+
+const root = resolve(import.meta.dirname, "..");
+const dir = join(root, "notebooks-templates");
+const templates = readdirSync(dir).filter((f) => f.endsWith(".ipynb")).sort();
+const jupyterPath = join(root, ".kernel/share/jupyter");
+
+interface Cell { cell_type: string; id?: string; metadata: { tags?: string[] }; source: string | string[]; outputs?: Output[] }
+interface Output { output_type: string; name?: string; text?: string | string[]; data?: Record<string, unknown>; ename?: string; evalue?: string }
+interface Notebook { nbformat: number; nbformat_minor: number; metadata: { kernelspec?: { name?: string } }; cells: Cell[] }
+
+const src = (c: Cell) => (Array.isArray(c.source) ? c.source.join("") : c.source);
+const text = (t: string | string[] | undefined) => (Array.isArray(t) ? t.join("") : t ?? "");
+const read = (p: string) => JSON.parse(readFileSync(p, "utf8")) as Notebook;
+
+describe("template files", () => {
+  it("there are at least six stage templates", () => {
+    expect(templates.length).toBeGreaterThanOrEqual(6);
+  });
+  describe.each(templates)("%s", (file) => {
+    const nb = read(join(dir, file));
+    it("is nbformat 4.5 with unique cell ids, the tslab kernel and no stored outputs", () => {
+      expect([nb.nbformat, nb.nbformat_minor]).toEqual([4, 5]);
+      expect(nb.metadata.kernelspec?.name).toBe("tslab");
+      const ids = nb.cells.map((c) => c.id);
+      ids.forEach((id) => expect(id).toMatch(/^[A-Za-z0-9-_]{1,64}$/));
+      expect(new Set(ids).size).toBe(ids.length);
+      nb.cells.filter((c) => c.cell_type === "code").forEach((c) => expect(c.outputs).toEqual([]));
+    });
+    it("has exactly one design-inputs cell, one NAME: [\"value unit\", \"dimension\"] entry per line", () => {
+      const tagged = nb.cells.filter((c) => c.metadata.tags?.includes("design-inputs"));
+      expect(tagged).toHaveLength(1);
+      const lines = src(tagged[0]!).split("\n");
+      expect(lines[0]).toBe("const given = designInputs({");
+      expect(lines.at(-1)).toBe("});");
+      const entries = lines.slice(1, -1);
+      expect(entries.length).toBeGreaterThan(0);
+      for (const l of entries) {
+        const m = /^ {2}([A-Za-z_][A-Za-z0-9_]*): \["([^"\\]+)", "([A-Za-z]+)"\],$/.exec(l);
+        expect(m, l).not.toBeNull();
+        expect(Object.keys(dimensions)).toContain(m![3]);
+      }
+    });
+    it("imports only package names, labels its demo data invented and carries the cautions", () => {
+      const all = nb.cells.map(src).join("\n");
+      for (const m of all.matchAll(/from\s+"([^"]+)"/g)) expect(["pinchoff", "pinchoff/notebook", "pinchoff/units", "pinchoff/render"]).toContain(m[1]);
+      const first = nb.cells[0]!;
+      expect(first.cell_type).toBe("markdown");
+      expect(src(first)).toMatch(/^# /);
+      expect(src(first)).toMatch(/invented/i);
+      expect(all).toMatch(/provenance: "invented/);
+      const md = nb.cells.filter((c) => c.cell_type === "markdown").map(src).join("\n");
+      for (const phrase of [/approximate/i, /simulation/i, /measurement/i, /ratings/i, /local codes/i, /licensed/i]) expect(md).toMatch(phrase);
+    });
+  });
+});
+
+describe("templates run through the tslab kernel", () => {
+  let out: string;
+  beforeAll(() => {
+    execFileSync(process.execPath, [join(root, "lib/setup/prepare.mjs"), "build", "kernel"], { cwd: root, stdio: "pipe" });
+    out = mkdtempSync(join(tmpdir(), "pinchoff-templates-"));
+  }, 300_000);
+  afterAll(() => rmSync(out, { recursive: true, force: true }));
+
+  it.each(templates)("%s executes with every check passing and its plots shown", (file) => {
+    const target = join(out, file);
+    // --allow-errors keeps the whole notebook, so the assertion can name the failing cell.
+    execFileSync("jupyter", ["nbconvert", "--to", "notebook", "--execute", "--allow-errors", "--ExecutePreprocessor.kernel_name=tslab", "--ExecutePreprocessor.timeout=240", join(dir, file), "--output", target], {
+      cwd: dir,
+      env: { ...process.env, JUPYTER_PATH: jupyterPath },
+      stdio: "pipe",
+      timeout: 600_000,
+    });
+    const nb = read(target);
+    const problems: string[] = [];
+    const derivations: Array<{ title: string; checks: Array<{ title: string; passed: boolean }> }> = [];
+    const plots: Array<{ kind: string; figure: { data: Array<{ meta?: { role?: string } }> } }> = [];
+    let libraryCarriers = 0;
+    nb.cells.forEach((c, i) => {
+      for (const o of c.outputs ?? []) {
+        if (o.output_type === "error") problems.push(`cell ${i}: ${o.ename}: ${o.evalue}`);
+        // tslab reports TypeScript errors on stderr and does not run the cell.
+        if (o.output_type === "stream" && o.name === "stderr") problems.push(`cell ${i} stderr: ${text(o.text)}`);
+        const d = o.data?.["application/vnd.pinchoff.derivation+json"];
+        if (d) derivations.push(d as (typeof derivations)[number]);
+        const p = o.data?.["application/vnd.pinchoff.plot+json"];
+        if (p) plots.push(p as (typeof plots)[number]);
+        if (text(o.data?.["text/html"] as string | string[] | undefined).includes("data-pinchoff-plot-library")) libraryCarriers++;
+      }
+    });
+    expect(problems).toEqual([]);
+    expect(derivations.length).toBeGreaterThan(0);
+    const failed = derivations.flatMap((d) => d.checks.filter((c) => !c.passed).map((c) => `${d.title}: ${c.title}`));
+    expect(failed).toEqual([]);
+    expect(derivations.reduce((n, d) => n + d.checks.length, 0)).toBeGreaterThan(0);
+    const output = plots.find((p) => p.kind === "output-characteristics");
+    expect(output).toBeDefined();
+    const roles = output!.figure.data.map((t) => t.meta?.role);
+    expect(roles).toContain("operating-point");
+    expect(roles).toContain("boundary");
+    expect(roles.some((r) => r === "load-line" || r === "load-curve")).toBe(true);
+    expect(libraryCarriers).toBe(1);
+  }, 600_000);
+});
