@@ -21,7 +21,7 @@ import type { Formula } from "../../formulas/define.js";
 import { aspectRatioForCurrent, bodyTransconductance, outputConductanceSat, overdriveForCurrent, transconductanceFromOverdrive } from "../../formulas/device.formulas.js";
 import { diodeLoadGain } from "../../formulas/mirror.formulas.js";
 import * as sf from "../../formulas/synthesis.formulas.js";
-import type { AmperesPerVoltSquared, Meters, PerVolt, Ratio, Siemens, SqrtVolts, Volts } from "../../quantity.js";
+import type { AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, Siemens, SqrtVolts, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
 import type { DiodeLoadComponents } from "../topology.js";
 import { checkSpecBase, deviceRails, evaluate, type SpecBase, type SynthesisResult } from "./common.js";
@@ -164,7 +164,7 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
   const vg = calc(sf.gateNodeForDrive, [vsr, (vt1 + p.vov1) as Volts], rec, "driver: VGS = Vt + VOV, source at its rail");
   const ideal: DiodeLoadComponents = { vg: (s * vg) as Volts };
   rec?.note("Gate bias source", `The driver's gate is to be held at ${+ideal.vg.toPrecision(5)} V by the bias source.`);
-  const d: CoreDesign = { vrs: 0 as Volts, vs: vsr, vt: vt1, vsb: 0 as Volts, vov: p.vov1 as Volts, wl: p.wl1 as Ratio, k: (c.kp * p.wl1) as AmperesPerVoltSquared, vg, vd: vout as Volts, rd: 0 as never, gm: 0, gds: 0, gmb: 0, w: w1, l: spec.sizing.l };
+  const d: CoreDesign = { vrs: 0 as Volts, vs: vsr, vt: vt1, vsb: 0 as Volts, vov: p.vov1 as Volts, wl: p.wl1 as Ratio, k: (c.kp * p.wl1) as AmperesPerVoltSquared, vg, vd: vout as Volts, rd: 0 as Ohms, gm: 0, gds: 0, gmb: 0, w: w1, l: spec.sizing.l };
   return finish(
     {
       topology: "diode-load",
