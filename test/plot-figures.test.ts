@@ -13,8 +13,6 @@ const role = (spec: PlotSpec, r: string): Trace[] => spec.figure.data.filter((t)
 /** Back to SI via the axis divisors. */
 /** Relative closeness for plotted numbers: x and y are each rounded to 6 significant digits, and y ∝ x² moves twice as much. */
 const near = (got: number, want: number, rel = 2e-5, abs = 1e-15) => expect(Math.abs(got - want)).toBeLessThanOrEqual(rel * Math.abs(want) + abs);
-// ngspice -b exits 1 ("no simulations run") when the only analysis is inside .control; a batch .op line keeps the exit status 0.
-const batchOp = "\n.op";
 const si = (spec: PlotSpec, t: Trace) => ({
   x: t.x.map((v) => v * spec.axes.x.divisor),
   y: t.y.map((v) => v * (t.yaxis === "y2" ? spec.axes.y2!.divisor : spec.axes.y.divisor)),
@@ -65,7 +63,7 @@ describe("output characteristics", () => {
       ".model NM nmos level=1 vto=0.6 kp=120u lambda=0.04 gamma=0.45 phi=0.7",
       "M1 d g s b NM W=20u L=2u",
       "VG g 0 1.9", "VS s 0 0.4", "VB b 0 0", "VD d 0 0",
-    ].join("\n") + batchOp;
+    ].join("\n");
     const control = picks.map((i) => `alter VD dc = ${x[i]! + 0.4}\nop\nprint -i(VD)`).join("\n");
     const got = runNgspice({ circuit, control }).map(([, v]) => v);
     picks.forEach((i, n) => expect(Math.abs(y[i]! - got[n]!)).toBeLessThan(1e-3 * Math.abs(got[n]!) + 1e-11));
@@ -78,7 +76,7 @@ describe("output characteristics", () => {
     const { x, y } = si(p, curve);
     expect(Math.min(...y)).toBeGreaterThanOrEqual(0);
     const picks = [20, 120];
-    const circuit = [".model PM pmos level=1 vto=-0.7 kp=45u lambda=0.06", "M1 d g s s PM W=40u L=2u", "VS s 0 3", "VG g 0 1.2", "VD d 0 0"].join("\n") + batchOp;
+    const circuit = [".model PM pmos level=1 vto=-0.7 kp=45u lambda=0.06", "M1 d g s s PM W=40u L=2u", "VS s 0 3", "VG g 0 1.2", "VD d 0 0"].join("\n");
     const control = picks.map((i) => `alter VD dc = ${3 - x[i]!}\nop\nprint i(VD)`).join("\n");
     const got = runNgspice({ circuit, control }).map(([, v]) => v);
     picks.forEach((i, n) => expect(Math.abs(y[i]! - got[n]!)).toBeLessThan(1e-3 * Math.abs(got[n]!) + 1e-11));
@@ -147,5 +145,12 @@ describe("gm and gm/ID", () => {
     expect(pts.map((t) => t.yaxis ?? "y")).toEqual(["y", "y2"]);
     expect(pts[1]!.y[0]!).toBeCloseTo(2 / 0.4, 3);
     expect(() => transconductancePlot(mn, { vds: 1, vovMax: 0.5, vovMin: 0 })).toThrow(/vovMin/);
+  });
+  it("draws the weak-inversion ceiling 1/(n·UT): 25.8 S/A for n = 1.5 at 300 K (kT/q from the CODATA 2018 exact constants)", () => {
+    const s = transconductancePlot(mn, { vds: 2, vovMax: 0.5 });
+    const line = role(s, "threshold")[0]!;
+    expect(line.yaxis).toBe("y2");
+    near(line.meta!.gmOverIdCeiling as number, 1 / (1.5 * 0.025852), 1e-4);
+    expect(() => transconductancePlot(mn, { vds: 2, vovMax: 0.5, slopeFactor: 0 })).toThrow(/slopeFactor/);
   });
 });

@@ -116,7 +116,7 @@ export function baseLayout(title: string, x: Axis, y: Axis, extra: Partial<Layou
     paper_bgcolor: "#ffffff",
     plot_bgcolor: "#fbfcfc",
     hovermode: "closest",
-    height: 460,
+    height: 420,
     ...extra,
   };
 }

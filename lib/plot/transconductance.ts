@@ -7,7 +7,7 @@ import type { Device } from "../device/card.js";
 import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
 import { regionOf } from "../device/region.js";
 import { transconductanceEfficiency, transconductanceSat, transconductanceTriode } from "../formulas/device.formulas.js";
-import type { AmperesPerVoltSquared, Amperes, PerVolt, Siemens, Volts } from "../quantity.js";
+import { thermalVoltage, type AmperesPerVoltSquared, type Amperes, type Kelvin, type PerVolt, type Siemens, type Volts } from "../quantity.js";
 import { formatQuantity } from "../units/format.js";
 import { deviceView, plainSym, plotPoint, type PlotPoint } from "./device-view.js";
 import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
@@ -15,7 +15,11 @@ import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scale
 export interface TransconductanceOptions {
   /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
   readonly vds?: number;
-  /** Overdrive sweep, in V; vovMin defaults to vovMax/40 (gm/ID = 2/VOV is unbounded at 0). */
+  /** Subthreshold slope factor n for the weak-inversion ceiling line 1/(n·UT); 1.5 unless told (typical, from memory). */
+  readonly slopeFactor?: number;
+  /** Device temperature for UT = kT/q; 300 K unless told. */
+  readonly temperature?: number;
+  /** Overdrive sweep, in V; vovMin defaults to vovMax/20 (gm/ID = 2/VOV is unbounded at 0). */
   readonly vovMin?: number;
   readonly vovMax: number;
   readonly points?: number;
@@ -44,7 +48,7 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
   if (vds === undefined) throw new InputError(vds, `a fixed ${ps.vds} in V (or an operating point to take it from)`, `${origin}.vds`);
   requireNonNegative(vds, `${origin}.vds`, `a fixed ${ps.vds} ≥ 0 V in the device's polarity`);
   requirePositive(opts.vovMax, `${origin}.vovMax`, "the largest overdrive to plot, > 0 V");
-  const from = opts.vovMin ?? opts.vovMax / 40;
+  const from = opts.vovMin ?? opts.vovMax / 20;
   requirePositive(from, `${origin}.vovMin`, "a smallest overdrive > 0 V (gm/ID = 2/VOV is unbounded at 0)");
   const vov = sweep(from, opts.vovMax, opts.points ?? 121, origin);
   const gm = vov.map((x) => gmAt(v.k, x, vds, v.lambda, v.clm));
@@ -74,6 +78,20 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
       meta: { role: "gm-over-id", vds },
     },
   ];
+  // Where the square law's gm/ID = 2/VOV stops meaning anything: weak inversion caps gm/ID near 1/(n·UT).
+  const n = opts.slopeFactor ?? 1.5;
+  requirePositive(n, `${origin}.slopeFactor`, "a subthreshold slope factor n > 0 (typically 1.2 to 1.6)");
+  const ceiling = 1 / (n * thermalVoltage(requirePositive(opts.temperature ?? 300, `${origin}.temperature`, "a temperature > 0 K") as Kelvin));
+  data.push({
+    type: "scatter",
+    mode: "lines",
+    name: `weak-inversion limit 1/(n·U<sub>T</sub>) ≈ ${ceiling.toPrecision(3)} S/A (n = ${n})`,
+    x: scaled([from, opts.vovMax], xs.divisor),
+    y: [Number(ceiling.toPrecision(6)), Number(ceiling.toPrecision(6))],
+    yaxis: "y2",
+    line: { color: palette.threshold, width: 1.2, dash: "dot" },
+    meta: { role: "threshold", gmOverIdCeiling: ceiling, slopeFactor: n },
+  });
   let opText = "";
   if (op) {
     const ov = op.vgs - v.vt;
@@ -91,7 +109,7 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
   const title = opts.title ?? `Transconductance and gm/ID, ${v.name}`;
   const summary =
     `${title}: gm and gm/ID against overdrive VOV from ${formatQuantity(from, "voltage")} to ${formatQuantity(opts.vovMax, "voltage")} at ${ps.vds} = ${formatQuantity(vds, "voltage")}` +
-    ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}). In saturation gm/ID = 2/VOV; the square law does not model weak inversion, where real devices level off, so read the low-VOV end with care.${opText}`;
+    ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}). In saturation gm/ID = 2/VOV; the square law does not model weak inversion, where real devices level off near 1/(n·UT) (dotted line), so read the low-VOV end with care.${opText}`;
   return {
     schema: plotSchema,
     kind: "transconductance",
@@ -107,7 +125,7 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
         {
           yaxis2: { title: { text: axisTitle("g<sub>m</sub>/I<sub>D</sub>", "S/A") }, overlaying: "y", side: "right", showgrid: false, zeroline: false, linecolor: palette.axis, ticks: "outside" },
           margin: { l: 70, r: 70, t: 56, b: 60 },
-          legend: { orientation: "h", x: 0, y: -0.18, bgcolor: "rgba(255,255,255,0.8)" },
+          legend: { orientation: "v", x: 0.3, y: 0.98, xanchor: "left", yanchor: "top", bgcolor: "rgba(255,255,255,0.85)" },
         },
       ),
       config: baseConfig("transconductance"),
