@@ -67,7 +67,7 @@ export function deviceView(dev: Device, vsb: number, clm: ClmMode, origin: strin
     lambda: c.lambda ?? 0,
     current: (vgs, vds) => s * drainCurrent(dev, s * vgs, s * vds, s * vsb, clm),
     sym: pmos
-      ? { vgs: "V<sub>SG</sub>", vds: "V<sub>SD</sub>", id: "I<sub>D</sub> (source→drain)", vt: "|V<sub>t</sub>|" }
+      ? { vgs: "V<sub>SG</sub>", vds: "V<sub>SD</sub>", id: "|I<sub>D</sub>|", vt: "|V<sub>t</sub>|" }
       : { vgs: "V<sub>GS</sub>", vds: "V<sub>DS</sub>", id: "I<sub>D</sub>", vt: "V<sub>t</sub>" },
     name: c.name || (pmos ? "PMOS" : "NMOS"),
   };
@@ -75,4 +75,4 @@ export function deviceView(dev: Device, vsb: number, clm: ClmMode, origin: strin
 
 /** Plain-text symbol names for summaries. */
 export const plainSym = (v: DeviceView) =>
-  v.pmos ? { vgs: "VSG", vds: "VSD", id: "ID (source→drain)", vt: "|Vt|" } : { vgs: "VGS", vds: "VDS", id: "ID", vt: "Vt" };
+  v.pmos ? { vgs: "VSG", vds: "VSD", id: "|ID|", vt: "|Vt|" } : { vgs: "VGS", vds: "VDS", id: "ID", vt: "Vt" };

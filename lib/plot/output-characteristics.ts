@@ -123,7 +123,7 @@ export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOp
     const xEnd = Math.min(ll.openCircuit, opts.vdsMax);
     const lx = [0, xEnd];
     const ly = lx.map((x) => (ll.openCircuit - x) / ll.resistance);
-    const name = ll.label ?? `load line ${ps.vds} = ${formatQuantity(ll.openCircuit, "voltage")} − ID·${formatQuantity(ll.resistance, "resistance")}`;
+    const name = ll.label ?? `load line ${ps.vds} = ${formatQuantity(ll.openCircuit, "voltage")} − ${ps.id}·${formatQuantity(ll.resistance, "resistance")}`;
     data.push({
       type: "scatter",
       mode: "lines",
@@ -134,7 +134,7 @@ export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOp
       hovertemplate: `load line<br>${v.sym.vds} = %{x:.4g} ${xs.unit}<br>${v.sym.id} = %{y:.4g} ${ys.unit}<extra></extra>`,
       meta: { role: "load-line", openCircuit: ll.openCircuit, resistance: ll.resistance },
     });
-    loadText = ` The DC load line is ${ps.vds} = ${formatQuantity(ll.openCircuit, "voltage")} − ID·${formatQuantity(ll.resistance, "resistance")}.`;
+    loadText = ` The DC load line is ${ps.vds} = ${formatQuantity(ll.openCircuit, "voltage")} − ${ps.id}·${formatQuantity(ll.resistance, "resistance")}.`;
   }
   if (opts.loadCurve) {
     const lc = opts.loadCurve;
@@ -182,7 +182,7 @@ export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOp
     kind: "output-characteristics",
     title,
     summary,
-    axes: { x: axisInfo(v.pmos ? "VSD" : "VDS", "voltage", xs), y: axisInfo(v.pmos ? "ID (source→drain)" : "ID", "current", ys) },
+    axes: { x: axisInfo(v.pmos ? "VSD" : "VDS", "voltage", xs), y: axisInfo(v.pmos ? "|ID|" : "ID", "current", ys) },
     figure: {
       data,
       layout: baseLayout(title, { title: { text: axisTitle(v.sym.vds, xs.unit) }, range: [0, opts.vdsMax / xs.divisor] }, { title: { text: axisTitle(v.sym.id, ys.unit) }, range: [0, yMax / ys.divisor] }),

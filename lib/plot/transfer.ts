@@ -87,7 +87,7 @@ export function transferCharacteristic(dev: Device, opts: TransferOptions): Plot
     kind: "transfer-characteristic",
     title,
     summary,
-    axes: { x: axisInfo(v.pmos ? "VSG" : "VGS", "voltage", xs), y: axisInfo(v.pmos ? "ID (source→drain)" : "ID", "current", ys) },
+    axes: { x: axisInfo(v.pmos ? "VSG" : "VGS", "voltage", xs), y: axisInfo(v.pmos ? "|ID|" : "ID", "current", ys) },
     figure: {
       data,
       layout: baseLayout(title, { title: { text: axisTitle(v.sym.vgs, xs.unit) }, range: [from / xs.divisor, opts.vgsMax / xs.divisor] }, { title: { text: axisTitle(v.sym.id, ys.unit) }, range: [0, yMax / ys.divisor] }),
