@@ -7,12 +7,14 @@
  * for scripts from the network, which are refused and not needed).
  */
 import { execFileSync } from "node:child_process";
-import { mkdtempSync, readdirSync, rmSync } from "node:fs";
+import { mkdtempSync, readdirSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import { pathToFileURL } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { openBrowser, type BrowserSession } from "./support/browser.js";
+import { device, amperesPerVoltSquared, volts, meters, type DeviceCard } from "../lib/index.js";
+import { outputCharacteristics, plotHtml, plotLibraryHtml } from "../lib/plot/index.js";
 
 const root = resolve(import.meta.dirname, "..");
 const template = join(root, "notebooks-templates", "cs-four-resistor-nmos.ipynb");
@@ -86,5 +88,26 @@ describe("offline pages in headless Chromium", () => {
     // Anything refused came from nbconvert's page template (RequireJS, MathJax), never from our outputs.
     for (const url of browser.refused) expect(url).not.toMatch(/plotly/i);
     expect(browser.errors.filter((e) => /Plotly|pinchoff/i.test(e))).toEqual([]);
+  }, 120_000);
+
+  it("a plot placed above the library in a page waits for it, and says so when the library never comes", async () => {
+    // Invented card for the test (not a real part).
+    const card: DeviceCard = { name: "inv-n", polarity: "nmos", kp: amperesPerVoltSquared(100e-6), vt0: volts(0.5) };
+    const spec = outputCharacteristics(device(card, meters(10e-6), meters(1e-6)), { gateDrives: [1, 1.5], vdsMax: 3 });
+    const page = (body: string) => `<!doctype html><html><head><meta charset="utf-8"></head><body>${body}</body></html>`;
+    writeFileSync(join(out, "late-library.html"), page(plotHtml(spec) + "<p>text between</p>" + plotHtml(spec, { library: true })));
+    writeFileSync(join(out, "no-library.html"), page(plotHtml(spec)));
+    browser.refused.length = 0;
+    browser.errors.length = 0;
+    await browser.page.goto(pathToFileURL(join(out, "late-library.html")).href, { waitUntil: "load", timeout: 60_000 });
+    await browser.page.waitForFunction(() => [...document.querySelectorAll(".pinchoff-plot-area[data-drawn]")].filter((e) => e.querySelector(".main-svg")).length === 2, undefined, { timeout: 60_000 });
+    expect(browser.errors).toEqual([]);
+    await browser.page.goto(pathToFileURL(join(out, "no-library.html")).href, { waitUntil: "load", timeout: 60_000 });
+    await browser.page.waitForTimeout(500);
+    expect(await browser.page.$$eval(".pinchoff-plot-area .main-svg", (e) => e.length)).toBe(0);
+    const note = await browser.page.$eval(".pinchoff-plot-note", (e) => ({ shown: (e as HTMLElement).style.display !== "none", text: e.textContent ?? "" }));
+    expect(note.shown).toBe(true);
+    expect(note.text).toMatch(/run the notebook again from the top/);
+    expect(browser.refused).toEqual([]);
   }, 120_000);
 });
