@@ -367,8 +367,8 @@ function closedFormResistive(n: BiasNetwork, out: NetworkSolution, rec?: Derivat
       rec.note("Root rejected", `VOV' = ${fmt(r2)} V < 0 means VGS < Vt, where the square law does not apply: rejected. VOV = ${fmt(vov)} V.`);
     }
   }
-  const id = bf.saturationCurrentHand.fn(k, vov as Volts);
-  rec?.step(bf.saturationCurrentHand, [k, vov], id);
+  const id = saturationCurrent.fn(k, vov as Volts);
+  rec?.step(saturationCurrent, [k, vov], id, "λ = 0");
   const vs = bf.sourceNode.fn(vsr, id, rs);
   const vd = bf.drainNode.fn(vdr, id, rd);
   const vds = bf.drainSourceVoltage.fn(vd, vs);

@@ -102,7 +102,6 @@ export const formulas = defineFormulas({
     expr: "-(1 + sqrt(1 + 2 * k * (RD + RS) * VOV0)) / (k * (RD + RS))",
     source: kcl,
   },
-  saturationCurrentHand: { title: "Drain current in saturation (λ = 0)", result: "ID", expr: "k / 2 * VOV^2", source: kcl },
   sourceNode: { title: "Source voltage from the drain current", result: "VS", expr: "VSR + ID * RS", source: kcl },
   drainNode: { title: "Drain voltage from the drain current", result: "VD", expr: "VDR - ID * RD", source: kcl },
   drainSourceVoltage: { title: "Drain-source voltage", result: "VDS", expr: "VD - VS", source: kcl },

@@ -114,20 +114,6 @@ export const feedbackOverdriveRejected = {
   fn: (k: AmperesPerVoltSquared, RD: Ohms, RS: Ohms, VOV0: Volts): Volts => ((-((1 + Math.sqrt((1 + (((2 * k) * ((RD + RS))) * VOV0)))))) / ((k * ((RD + RS))))) as Volts,
 } as const satisfies Formula;
 
-/** Drain current in saturation (λ = 0): ID = k / 2 * VOV^2 */
-export const saturationCurrentHand = {
-  id: "saturationCurrentHand",
-  title: "Drain current in saturation (λ = 0)",
-  expr: "k / 2 * VOV^2",
-  tex: "I_{D} = \\frac{{k}}{2}\\cdot{{V_{OV}}}^{2}",
-  result: "ID",
-  resultDim: "current",
-  vars: ["k","VOV"],
-  dims: ["transconductanceParameter","voltage"],
-  source: "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)",
-  fn: (k: AmperesPerVoltSquared, VOV: Volts): Amperes => ((k / 2) * (VOV ** 2)) as Amperes,
-} as const satisfies Formula;
-
 /** Source voltage from the drain current: VS = VSR + ID * RS */
 export const sourceNode = {
   id: "sourceNode",

@@ -68,6 +68,18 @@ export function mergeSymbols(catalogs: Catalog[]): Record<string, SymbolSpec> {
   return all;
 }
 
+/** One formula, one home: the same equation stated twice (in any catalog) is an error. */
+export function refuseRestatements(catalogs: Catalog[]): void {
+  const seen = new Map<string, string>();
+  for (const c of catalogs)
+    for (const [id, f] of Object.entries(c.formulas)) {
+      const key = `${f.result} = ${parse(f.expr).toString({ parenthesis: "auto" })}`;
+      const prior = seen.get(key);
+      if (prior) throw new Error(`${c.file}: ${id} restates ${prior} (${key}); use that one and say why with the step's "because"`);
+      seen.set(key, `${c.file}: ${id}`);
+    }
+}
+
 function toJs(node: MathNode, where: string): string {
   const n = node as MathNode & Record<string, any>;
   switch (n.type) {
@@ -166,6 +178,7 @@ async function main(): Promise<void> {
   const catalogs = await loadCatalogs();
   const symbols = mergeSymbols(catalogs);
   for (const d of Object.values(symbols)) if (!(d.dim in dimensions)) throw new Error(`unknown dimension ${d.dim}`);
+  refuseRestatements(catalogs);
   let stale = 0;
   for (const c of catalogs) {
     const target = join(here, c.file.replace(/\.catalog\.ts$/, ".formulas.ts"));

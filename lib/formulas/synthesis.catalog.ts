@@ -75,7 +75,6 @@ export const formulas = defineFormulas({
     source: "common practice: drain at mid-swing for the largest symmetric output",
   },
   drainResistorForNode: { title: "Drain resistor for a drain voltage at the drain current", result: "RD", expr: "(VDR - VD) / ID", source: "Ohm's law" },
-  drainNodeFromResistor: { title: "Drain voltage from the drain resistor", result: "VD", expr: "VDR - ID * RD", source: kcl },
   drainResistorForGain: {
     title: "Drain resistor for a common-source gain (source at AC ground), inverse of −gm·(RD ∥ ro)",
     result: "RD",

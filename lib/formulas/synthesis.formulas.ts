@@ -86,20 +86,6 @@ export const drainResistorForNode = {
   fn: (VDR: Volts, VD: Volts, ID: Amperes): Ohms => (((VDR - VD)) / ID) as Ohms,
 } as const satisfies Formula;
 
-/** Drain voltage from the drain resistor: VD = VDR - ID * RD */
-export const drainNodeFromResistor = {
-  id: "drainNodeFromResistor",
-  title: "Drain voltage from the drain resistor",
-  expr: "VDR - ID * RD",
-  tex: "V_{D} = {V_{DR}}-{I_{D}}\\cdot{R_{D}}",
-  result: "VD",
-  resultDim: "voltage",
-  vars: ["VDR","ID","RD"],
-  dims: ["voltage","current","resistance"],
-  source: "Kirchhoff's laws with the square law (Shichman & Hodges, IEEE JSSC SC-3(3), 1968)",
-  fn: (VDR: Volts, ID: Amperes, RD: Ohms): Volts => (VDR - (ID * RD)) as Volts,
-} as const satisfies Formula;
-
 /** Drain resistor for a common-source gain (source at AC ground), inverse of −gm·(RD ∥ ro): RD = AvMag / (gm - AvMag * gds) */
 export const drainResistorForGain = {
   id: "drainResistorForGain",

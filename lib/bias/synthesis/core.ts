@@ -16,6 +16,7 @@ import { thresholdMagnitude } from "../../device/threshold.js";
 import { ConvergenceError, InfeasibleError, InputError, requirePositive } from "../../errors.js";
 import type { Formula } from "../../formulas/define.js";
 import { aspectRatioForCurrent, bodyTransconductance, outputConductanceSat, overdriveForCurrent, transconductanceFromOverdrive } from "../../formulas/device.formulas.js";
+import { drainNode } from "../../formulas/bias.formulas.js";
 import * as sf from "../../formulas/synthesis.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, SqrtVolts, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
@@ -187,7 +188,7 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
     rd = dr.degenerated
       ? calc(sf.drainResistorForDegeneratedGain, [av, gm as never, gmb as never, gds as never, (vrs / id) as Ohms], "source resistor not bypassed")
       : calc(sf.drainResistorForGain, [av, gm as never, gds as never], "source at AC ground");
-    vd = calc(sf.drainNodeFromResistor, [vdr, id, rd]);
+    vd = calc(drainNode, [vdr, id, rd]);
   } else {
     if (dr.target && "vd" in dr.target) {
       vd = (s * dr.target.vd) as Volts;
