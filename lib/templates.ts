@@ -14,10 +14,15 @@ export interface Template {
   readonly name: string;
   readonly path: string;
   readonly description: string;
+  /** Flagged `metadata.pinchoff.demo`: the one `npm run demo` runs. */
+  readonly demo: boolean;
 }
 
 export function describeNotebook(text: string, origin: string): string {
-  const nb = parseNotebook(text, origin);
+  return describe(parseNotebook(text, origin));
+}
+
+function describe(nb: ReturnType<typeof parseNotebook>): string {
   const meta = (nb.metadata.pinchoff as { description?: unknown } | undefined)?.description;
   if (typeof meta === "string" && meta.trim()) return meta.trim().split("\n")[0]!;
   const md = nb.cells.find((c) => c.cell_type === "markdown");
@@ -34,7 +39,9 @@ export function listTemplates(dir = templatesDir): Template[] {
   }
   return files.map((f) => {
     const path = join(dir, f);
-    return { name: f.slice(0, -".ipynb".length), path, description: describeNotebook(readFileSync(path, "utf8"), path) };
+    const nb = parseNotebook(readFileSync(path, "utf8"), path);
+    const demo = (nb.metadata.pinchoff as { demo?: unknown } | undefined)?.demo === true;
+    return { name: f.slice(0, -".ipynb".length), path, description: describe(nb), demo };
   });
 }
 

@@ -6,6 +6,7 @@ import { join } from "node:path";
 import { PinchoffError } from "../lib/errors.js";
 import { newNotebook } from "../lib/cli/new.js";
 import { describeNotebook, findTemplate, listTemplates } from "../lib/templates.js";
+import { demoTemplate } from "../lib/cli/demo.js";
 
 let dir: string;
 let templates: string;
@@ -27,6 +28,11 @@ describe("template index", () => {
       ["beta", "Beta from the heading"],
     ]);
     expect(describeNotebook(nb({}, []), "x")).toBe("(no description)");
+  });
+
+  it("the demo is the one template flagged metadata.pinchoff.demo", () => {
+    expect(demoTemplate().name).toBe("cs-four-resistor-nmos");
+    expect(() => demoTemplate(listTemplates(templates))).toThrow(/exactly one template with metadata\.pinchoff\.demo = true .* found 0/);
   });
 
   it("an unknown template names the known ones", () => {

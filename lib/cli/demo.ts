@@ -12,11 +12,12 @@ import { runNotebook } from "../runner/run.js";
 import { summarize } from "../runner/summary.js";
 import { listTemplates, type Template } from "../templates.js";
 
-/** The template flagged `metadata.pinchoff.demo`, else the common-source one. */
+/** The template flagged `metadata.pinchoff.demo` (exactly one). */
 export function demoTemplate(all: readonly Template[] = listTemplates()): Template {
-  const t = all.find((x) => /common-source/.test(x.name)) ?? all[0];
-  if (!t) throw new PinchoffError("io", "no template notebooks are installed in notebooks-templates/", "demo");
-  return t;
+  const flagged = all.filter((x) => x.demo);
+  if (flagged.length !== 1)
+    throw new PinchoffError("io", `expected exactly one template with metadata.pinchoff.demo = true in notebooks-templates/, found ${flagged.length}${flagged.length ? ` (${flagged.map((t) => t.name).join(", ")})` : ""}`, "demo");
+  return flagged[0]!;
 }
 
 export async function main(_argv: string[] = []): Promise<number> {

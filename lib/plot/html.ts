@@ -61,10 +61,13 @@ export interface PlotHtmlOptions {
   readonly height?: number;
 }
 
+/** What plotHtml draws: a whole spec, or a figure read back from a saved notebook with its title. */
+export type DrawablePlot = Pick<PlotSpec, "title"> & Partial<Pick<PlotSpec, "summary" | "kind">> & { readonly figure: { readonly data: unknown; readonly layout?: { readonly height?: number }; readonly config?: unknown } };
+
 /** A figure as an HTML fragment: a box, a note shown until drawn, and the drawing script. */
-export function plotHtml(spec: PlotSpec, opts: PlotHtmlOptions = {}): string {
+export function plotHtml(spec: DrawablePlot, opts: PlotHtmlOptions = {}): string {
   const id = plotId();
-  const height = opts.height ?? spec.figure.layout.height;
+  const height = opts.height ?? spec.figure.layout?.height ?? 420;
   const note =
     `Plot “${escapeHtml(spec.title)}” is drawn by the embedded plotting library. If this text stays, the library is not in this page: ` +
     `run the notebook again from the top (restart the kernel and run all cells), so the first plot output carries it.`;
@@ -75,7 +78,7 @@ export function plotHtml(spec: PlotSpec, opts: PlotHtmlOptions = {}): string {
     if (!el) { if (tries++ < 100) setTimeout(draw, 50); return; }
     if (!window.Plotly || el.getAttribute("data-drawn")) return;
     el.setAttribute("data-drawn", "1");
-    window.Plotly.newPlot(el, spec.data, spec.layout, spec.config).then(function () {
+    window.Plotly.newPlot(el, spec.data, spec.layout || {}, spec.config || {}).then(function () {
       var n = document.getElementById(id + "-note"); if (n) n.style.display = "none";
     });
   }
@@ -83,10 +86,10 @@ export function plotHtml(spec: PlotSpec, opts: PlotHtmlOptions = {}): string {
 })();`;
   return (
     (opts.library ? plotLibraryHtml() : "") +
-    `<figure class="pinchoff-plot" data-plot-kind="${escapeHtml(spec.kind)}" style="margin:0.5em 0;max-width:900px">` +
+    `<figure class="pinchoff-plot" data-plot-kind="${escapeHtml(spec.kind ?? "figure")}" style="margin:0.5em 0;max-width:900px">` +
     `<div id="${id}" class="pinchoff-plot-area" style="width:100%;height:${height}px"></div>` +
     `<p id="${id}-note" class="pinchoff-plot-note" style="font:12px sans-serif;color:#555">${note}</p>` +
-    `<figcaption style="font:12px sans-serif;color:#333">${escapeHtml(spec.summary)}</figcaption>` +
+    (spec.summary ? `<figcaption style="font:12px sans-serif;color:#333">${escapeHtml(spec.summary)}</figcaption>` : "") +
     `<script>${script}</script></figure>`
   );
 }

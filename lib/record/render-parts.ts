@@ -16,9 +16,8 @@ export interface RenderOptions extends FormatOptions {
   readonly omitCautions?: boolean;
 }
 
-/** The closing cautions every rendering carries. */
-export const cautions =
-  "Hand analysis with long-channel square-law models is approximate. Verify the design by simulation and by measurement, keep every device within its ratings, and defer to local codes and licensed engineering practice.";
+/** The closing cautions every rendering carries (one list, lib/record/cautions.ts). */
+export { cautions } from "./cautions.js";
 
 /** The fingerprint a record carries, or the one computed from its inputs. */
 export const fingerprintOf = (d: DerivationData): string => d.fingerprint ?? fingerprint(d);

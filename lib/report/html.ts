@@ -9,7 +9,8 @@ import escapeHtml from "escape-html";
 import type { Dimension } from "../quantity.js";
 import { formatQuantity } from "../units/format.js";
 import type { CellFailure, CheckLine, CollectedPlot } from "../runner/collect.js";
-import { plotlyScript } from "./assets.js";
+import { plotHtml, plotLibraryHtml } from "../plot/html.js";
+import { cautionList } from "../record/cautions.js";
 
 /** Marks a file as a pinchoff run report, so a later run may replace it. */
 export const reportMarker = '<meta name="generator" content="pinchoff run report">';
@@ -48,18 +49,11 @@ export interface ReportModel {
   readonly formulaStyles?: string;
 }
 
-export const cautions = [
-  "Hand analysis with the long-channel square law is approximate: short-channel effects, mobility degradation, subthreshold conduction and temperature are not all captured.",
-  "Verify the design by simulation with the foundry or manufacturer model, and by measurement on the built circuit.",
-  "Respect the device ratings (voltages, currents, power, temperature) in the manufacturer's datasheet, with margin.",
-  "Defer to local codes, standards and licensed engineering practice where they apply; this report does not replace a qualified review.",
-];
 
 const esc = (s: unknown): string => escapeHtml(String(s));
 const q = (v: number | null | undefined, dim: Dimension): string => (typeof v === "number" && !Number.isNaN(v) ? formatQuantity(v, dim) : "—");
 
 /** JSON inside a <script type="application/json"> block: no "<" survives, so no tag can close it. */
-const jsonScript = (v: unknown): string => JSON.stringify(v).replace(/</g, "\\u003c").replace(/\u2028/g, "\\u2028").replace(/\u2029/g, "\\u2029");
 
 function bound(c: CheckLine): string {
   const parts: string[] = [];
@@ -143,15 +137,11 @@ export function buildReport(m: ReportModel): string {
 
   if (m.plots.length) {
     out.push(`<h2>Plots</h2>`);
-    m.plots.forEach((p, k) => {
-      out.push(`<figure>${p.title ? `<figcaption>${esc(p.title)}</figcaption>` : ""}<div class="plot" id="pinchoff-plot-${k}"></div></figure>`);
-      out.push(`<script type="application/json" id="pinchoff-plot-${k}-spec">${jsonScript(p.figure)}</script>`);
-    });
-    out.push(`<script>${plotlyScript()}</script>`);
-    out.push(`<script>document.querySelectorAll('script[id$="-spec"]').forEach(function(s){var f=JSON.parse(s.textContent);var el=document.getElementById(s.id.slice(0,-5));Plotly.newPlot(el,f.data,f.layout||{},Object.assign({displaylogo:false,responsive:true},f.config||{}));});</script>`);
+    out.push(plotLibraryHtml());
+    for (const p of m.plots) out.push(plotHtml({ figure: p.figure, title: p.title ?? "plot", ...(p.summary ? { summary: p.summary } : {}) }));
   }
 
-  out.push(`<h2>Cautions</h2><ul class="cautions">${cautions.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>`);
+  out.push(`<h2>Cautions</h2><ul class="cautions">${cautionList.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>`);
   out.push(`<footer>Written by ${esc(m.toolVersion)} on ${esc(m.date.toISOString())}. Numbers are SI values shown with three significant digits; the executed notebook beside this file holds the full record.</footer>`);
   out.push(`</main></body></html>\n`);
   return out.join("\n");

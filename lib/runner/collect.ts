@@ -27,6 +27,7 @@ export interface CollectedPlot {
   readonly cell: number;
   readonly figure: PlotFigure;
   readonly title?: string;
+  readonly summary?: string;
 }
 
 export interface CellFailure {
@@ -93,7 +94,8 @@ export function collect(nb: Notebook, status: ReadonlyMap<number, CellStatus>): 
       if (fig) {
         const title = (p as { title?: unknown }).title ?? (fig.layout?.title as { text?: unknown } | string | undefined);
         const t = typeof title === "string" ? title : typeof (title as { text?: unknown })?.text === "string" ? ((title as { text: string }).text) : undefined;
-        plots.push({ cell: i, figure: fig, ...(t ? { title: t } : {}) });
+        const summary = (p as { summary?: unknown }).summary;
+        plots.push({ cell: i, figure: fig, ...(t ? { title: t } : {}), ...(typeof summary === "string" ? { summary } : {}) });
       }
     }
     const s = status.get(i);
