@@ -13,6 +13,11 @@
  *       "w": "10 um", "l": "1 um"
  *     },
  *     "components": { "rg1": "200k", "rg2": "100k", "rd": "5k", "rs": "1k" },
+ *     — or, to design the stage, instead of components:
+ *     "specification": { "id": "1 mA", "sizing": { "vov": "0.3 V", "l": "1 um" }, "drain": { "vd": "3 V" }, … },
+ *       the topology's fields, listed with their dimensions in ./spec-fields.ts;
+ *       then "device" holds only { card }: the size comes from specification.sizing,
+ *       and "devices" is not given (the designer sizes further transistors)
  *     "supplies": { "vdd": "5 V", "vss": "0 V" },  vss optional (0 V)
  *     "body": "source" | "rail",                   optional ("source")
  *     "options": { "clm": "continuous" | "saturation-only" },   optional
@@ -25,11 +30,13 @@ import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
 import type { Dimension } from "../quantity.js";
-import { parseQuantity } from "../units/parse.js";
+import { describeDimension, parseQuantity } from "../units/parse.js";
+import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
+import type { StageSpec } from "./synthesis.js";
 import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "devices", "components", "supplies", "body", "options", "limits", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -66,69 +73,48 @@ function quantity(v: unknown, dim: Dimension, at: string): number {
   return parseQuantity(v, dim, at);
 }
 
-/** Parse one transistor `{ card, w, l }` found at field path `f`. */
-function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
-  const dev = object(raw, at(f), "a device { card, w, l }");
-  onlyKeys(dev, ["card", "w", "l"], at(f));
-  const c = object(dev.card, at(`${f}.card`), "a device card { name, polarity, kp, vt0, … }");
-  onlyKeys(c, [...Object.keys(cardFields), "temperature"], at(`${f}.card`));
+/** Parse a device card found at field path `f` (e.g. "device.card"). */
+function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCard {
+  const c = object(raw, at(f), "a device card { name, polarity, kp, vt0, … }");
+  onlyKeys(c, [...Object.keys(cardFields), "temperature"], at(f));
   const card: Record<string, unknown> = {};
   for (const [k, dim] of Object.entries(cardFields)) {
     const v = c[k];
     if (v === undefined) {
-      if (k === "polarity" || k === "kp" || k === "vt0") throw new InputError(v, k === "polarity" ? `"nmos" or "pmos"` : `the card's ${k}`, at(`${f}.card.${k}`), "invalid-design");
+      if (k === "polarity" || k === "kp" || k === "vt0") throw new InputError(v, k === "polarity" ? `"nmos" or "pmos"` : `the card's ${k}`, at(`${f}.${k}`), "invalid-design");
       continue;
     }
     if (dim === "string") {
-      if (typeof v !== "string") throw new InputError(v, "text", at(`${f}.card.${k}`), "invalid-design");
+      if (typeof v !== "string") throw new InputError(v, "text", at(`${f}.${k}`), "invalid-design");
       card[k] = v;
-    } else card[k] = quantity(v, dim, at(`${f}.card.${k}`));
+    } else card[k] = quantity(v, dim, at(`${f}.${k}`));
   }
-  if (card.polarity !== "nmos" && card.polarity !== "pmos") throw new InputError(card.polarity, `"nmos" or "pmos"`, at(`${f}.card.polarity`), "invalid-design");
+  if (card.polarity !== "nmos" && card.polarity !== "pmos") throw new InputError(card.polarity, `"nmos" or "pmos"`, at(`${f}.polarity`), "invalid-design");
   if (card.name === undefined) card.name = "unnamed card";
   if (c.temperature !== undefined) {
-    const t = object(c.temperature, at(`${f}.card.temperature`), "temperature coefficients { t0, alphaVt, muExp }");
-    onlyKeys(t, Object.keys(temperatureFields), at(`${f}.card.temperature`));
+    const t = object(c.temperature, at(`${f}.temperature`), "temperature coefficients { t0, alphaVt, muExp }");
+    onlyKeys(t, Object.keys(temperatureFields), at(`${f}.temperature`));
     const tc: Record<string, number> = {};
-    for (const [k, dim] of Object.entries(temperatureFields)) tc[k] = quantity(t[k], dim, at(`${f}.card.temperature.${k}`));
+    for (const [k, dim] of Object.entries(temperatureFields)) tc[k] = quantity(t[k], dim, at(`${f}.temperature.${k}`));
     card.temperature = tc;
   }
-  checkCard(card as unknown as DeviceCard, at(`${f}.card`));
+  checkCard(card as unknown as DeviceCard, at(f));
+  return card as unknown as DeviceCard;
+}
+
+/** Parse one transistor `{ card, w, l }` found at field path `f`. */
+function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
+  const dev = object(raw, at(f), "a device { card, w, l }");
+  onlyKeys(dev, ["card", "w", "l"], at(f));
+  const card = parseCard(dev.card, `${f}.card`, at);
   const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
   const l = requirePositive(quantity(dev.l, "length", at(`${f}.l`)), at(`${f}.l`), "a channel length L > 0 in m");
 
-  return { card: card as unknown as DeviceCard, w: w as StageDevice["w"], l: l as StageDevice["l"] };
+  return { card, w: w as StageDevice["w"], l: l as StageDevice["l"] };
 }
 
-/** Validate and parse a design (already JSON-parsed) into a stage; `origin` names the file. */
-export function parseDesign(design: unknown, origin = "design"): Stage {
-  const d = object(design, origin, "a design object { topology, device, components, supplies, … }");
-  onlyKeys(d, topKeys, origin, true);
-  const at = (p: string) => `${origin}: ${p}`;
-  const topo = topologyFor(d.topology, at("topology"));
-  if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
-  if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
-
-  const device = parseStageDevice(d.device, "device", at);
-  let devices: Record<string, StageDevice> | undefined;
-  if (d.devices !== undefined) {
-    const roles = object(d.devices, at("devices"), "further transistors by role, e.g. { reference: { card, w, l } }");
-    devices = {};
-    for (const [role, raw] of Object.entries(roles)) devices[role] = parseStageDevice(raw, `devices.${role}`, at);
-  }
-
-  const comps = object(d.components, at("components"), `the ${topo.id} components (${topo.components.map((f) => f.name).join(", ")})`);
-  onlyKeys(comps, topo.components.map((f) => f.name), at("components"));
-  const components: Record<string, number> = {};
-  for (const f of topo.components) {
-    const v = comps[f.name];
-    if (v === undefined) {
-      if (f.required) throw new InputError(v, `${f.meaning} (${f.dim})`, at(`components.${f.name}`), "invalid-design");
-      continue;
-    }
-    components[f.name] = quantity(v, f.dim, at(`components.${f.name}`));
-  }
-
+/** What a design file states besides the device and the components or specification. */
+function parseCommon(d: Record<string, unknown>, at: (p: string) => string) {
   const s = object(d.supplies, at("supplies"), "supplies { vdd, vss? }");
   onlyKeys(s, ["vdd", "vss"], at("supplies"));
   const supplies = { vdd: quantity(s.vdd, "voltage", at("supplies.vdd")), ...(s.vss !== undefined ? { vss: quantity(s.vss, "voltage", at("supplies.vss")) } : {}) };
@@ -149,11 +135,7 @@ export function parseDesign(design: unknown, origin = "design"): Stage {
     for (const [k, dim] of Object.entries(limitFields)) if (lo[k] !== undefined) limits[k] = quantity(lo[k], dim, at(`limits.${k}`));
   }
   return {
-    topology: topo.id,
     ...(d.name !== undefined ? { name: d.name as string } : {}),
-    device,
-    ...(devices ? { devices } : {}),
-    components,
     supplies: supplies as Stage["supplies"],
     ...(d.body !== undefined ? { body: d.body as "source" | "rail" } : {}),
     ...(options ? { options } : {}),
@@ -161,19 +143,150 @@ export function parseDesign(design: unknown, origin = "design"): Stage {
   };
 }
 
-/** Read and parse a design file; errors name the file (and the field path). */
-export function readDesign(path: string): Stage {
+/** Read one specification field against its entry in the schema table (spec-fields.ts). */
+function specValue(v: unknown, f: SpecField, path: string, at: (p: string) => string): unknown {
+  const expected = () => `${acceptsText(f)}: ${f.meaning}`;
+  switch (f.kind) {
+    case "quantity": {
+      const x = quantity(v, f.dim, at(path));
+      if (!inRange(x, f.range)) throw new InputError(x, `${describeDimension(f.dim)}, ${rangeText[f.range]} (${f.meaning})`, at(path));
+      return x;
+    }
+    case "integer":
+      if (typeof v !== "number" || !Number.isInteger(v) || v < f.min) throw new InputError(v, expected(), at(path), "invalid-design");
+      return v;
+    case "boolean":
+      if (typeof v !== "boolean") throw new InputError(v, expected(), at(path), "invalid-design");
+      return v;
+    case "choice":
+      if (typeof v !== "string" || !f.values.includes(v)) throw new InputError(v, expected(), at(path), "invalid-design");
+      return v;
+    case "card":
+      return parseCard(v, path, at);
+    case "byName": {
+      const o = object(v, at(path), expected());
+      const out: Record<string, unknown> = {};
+      for (const [k, e] of Object.entries(o)) out[k] = specValue(e, f.entry, `${path}.${k}`, at);
+      return out;
+    }
+    case "group":
+      return specGroup(v, f.fields, path, at, expected(), f.oneOf);
+  }
+}
+
+function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path: string, at: (p: string) => string, what: string, oneOf?: readonly string[]): Record<string, unknown> {
+  const o = object(v, at(path), what);
+  onlyKeys(o, Object.keys(fields), at(path));
+  if (oneOf) {
+    const given = oneOf.filter((k) => o[k] !== undefined);
+    if (given.length !== 1) throw new InputError(given.length ? given : undefined, `exactly one of ${oneOf.join(", ")} (${what})`, at(path), "invalid-design");
+  }
+  const out: Record<string, unknown> = {};
+  for (const [k, f] of Object.entries(fields)) {
+    if (o[k] === undefined) {
+      if (f.required) throw new InputError(undefined, `${acceptsText(f)}: ${f.meaning}`, at(`${path}.${k}`), "invalid-design");
+      continue;
+    }
+    out[k] = specValue(o[k], f, `${path}.${k}`, at);
+  }
+  return out;
+}
+
+/** A design file read: a stage to analyse, or a specification to design. */
+export type DesignFile =
+  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage }
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec };
+
+/** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
+export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
+  const d = object(design, origin, "a design object { topology, device, components or specification, supplies, … }");
+  onlyKeys(d, topKeys, origin, true);
+  const at = (p: string) => `${origin}: ${p}`;
+  const topo = topologyFor(d.topology, at("topology"));
+  if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
+  if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
+  const given = (["components", "specification"] as const).filter((k) => d[k] !== undefined);
+  if (given.length !== 1)
+    throw new InputError(given.length ? given : undefined, "exactly one of components (the values, to analyse the stage) or specification (the targets, to design it)", at("components/specification"), "invalid-design");
+
+  if (d.specification !== undefined) {
+    if (!Object.prototype.hasOwnProperty.call(specFields, topo.id))
+      throw new InputError(topo.id, `a topology with a designer for a specification: ${Object.keys(specFields).map((t) => JSON.stringify(t)).join(", ")}`, at("topology"), "invalid-design");
+    const fields = specFields[topo.id as SpecTopology] as Readonly<Record<string, SpecField>>;
+    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing)");
+    for (const k of ["w", "l"] as const)
+      if (dev[k] !== undefined) throw new InputError(dev[k], `no device.${k} with a specification: the size comes from specification.sizing (vov or w, and l)`, at(`device.${k}`), "invalid-design");
+    onlyKeys(dev, ["card"], at("device"));
+    if (d.devices !== undefined)
+      throw new InputError(Object.keys(object(d.devices, at("devices"), "no devices with a specification")), "no devices with a specification: the designer sizes the further transistors (a mirror's reference from specification.ratio, a diode load from specification.load)", at("devices"), "invalid-design");
+    const card = parseCard(dev.card, "device.card", at);
+    const own = specGroup(d.specification, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
+    const spec = { topology: topo.id, ...parseCommon(d, at), card, ...own } as unknown as StageSpec;
+    return { kind: "specification", origin, spec };
+  }
+
+  const device = parseStageDevice(d.device, "device", at);
+  let devices: Record<string, StageDevice> | undefined;
+  if (d.devices !== undefined) {
+    const roles = object(d.devices, at("devices"), "further transistors by role, e.g. { reference: { card, w, l } }");
+    devices = {};
+    for (const [role, raw] of Object.entries(roles)) devices[role] = parseStageDevice(raw, `devices.${role}`, at);
+  }
+
+  const comps = object(d.components, at("components"), `the ${topo.id} components (${topo.components.map((f) => f.name).join(", ")})`);
+  onlyKeys(comps, topo.components.map((f) => f.name), at("components"));
+  const components: Record<string, number> = {};
+  for (const f of topo.components) {
+    const v = comps[f.name];
+    if (v === undefined) {
+      if (f.required) throw new InputError(v, `${f.meaning} (${f.dim})`, at(`components.${f.name}`), "invalid-design");
+      continue;
+    }
+    components[f.name] = quantity(v, f.dim, at(`components.${f.name}`));
+  }
+  const common = parseCommon(d, at);
+  const stage: Stage = {
+    topology: topo.id,
+    ...(common.name !== undefined ? { name: common.name } : {}),
+    device,
+    ...(devices ? { devices } : {}),
+    components,
+    supplies: common.supplies,
+    ...(common.body !== undefined ? { body: common.body } : {}),
+    ...(common.options ? { options: common.options } : {}),
+    ...(common.limits ? { limits: common.limits } : {}),
+  };
+  return { kind: "analysis", origin, stage };
+}
+
+/** Validate and parse a design with components into a stage; `origin` names the file. */
+export function parseDesign(design: unknown, origin = "design"): Stage {
+  const f = parseDesignFile(design, origin);
+  if (f.kind === "specification")
+    throw new PinchoffError("invalid-design", "this design gives a specification, not components: design it with designOf (pinchoff op does both)", `${origin}: specification`);
+  return f.stage;
+}
+
+function readJson(path: string): unknown {
   let text: string;
   try {
     text = readFileSync(path, "utf8");
   } catch (e) {
     throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
   }
-  let json: unknown;
   try {
-    json = JSON.parse(text);
+    return JSON.parse(text);
   } catch (e) {
     throw new InputError(text.length > 60 ? `${text.slice(0, 60)}…` : text, `JSON (${(e as Error).message})`, path, "unparseable");
   }
-  return parseDesign(json, path);
+}
+
+/** Read and parse a design file, with components or a specification; errors name the file (and the field path). */
+export function readDesignFile(path: string): DesignFile {
+  return parseDesignFile(readJson(path), path);
+}
+
+/** Read and parse a design file with components; errors name the file (and the field path). */
+export function readDesign(path: string): Stage {
+  return parseDesign(readJson(path), path);
 }

@@ -1,16 +1,20 @@
 /**
  * `pinchoff op <design.json> [--record out.html|out.md]`: solve a bias stage's
  * operating point from its design file, print region, nodes, currents, margins
- * and metrics as JSON; with --record also write the derivation. Files are
- * written atomically (temp file + rename) and the design file is never written.
+ * and metrics as JSON; with --record also write the derivation. A design file
+ * with a specification instead of components is designed first: ideal values,
+ * standard values chosen as a set, the re-solve and the deviation from the
+ * specification. Files are written atomically (temp file + rename) and the
+ * design file is never written.
  */
 import { randomBytes } from "node:crypto";
 import { realpathSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { basename, dirname, extname, join, resolve } from "node:path";
 import { parseArgs } from "node:util";
-import { InputError, PinchoffError } from "../errors.js";
+import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
 import { analyzeStage } from "../bias/analyze.js";
-import { readDesign } from "../bias/design-file.js";
+import { readDesignFile, type DesignFile } from "../bias/design-file.js";
+import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
 import { Derivation } from "../record/derivation.js";
 
@@ -20,6 +24,11 @@ Solves the DC operating point of the bias stage in the design file and prints
 it as JSON: region, node voltages, currents, device operating point,
 small-signal parameters, gain/resistance/swing metrics, checks with margins,
 power per component. Infinite values are written as the string "Infinity".
+
+When the design file gives a "specification" instead of "components", the
+stage is designed first and the JSON holds the ideal values, the standard
+values chosen as a set from the series, the deviation from the specification
+and, under "operatingPoint", the operating point of the chosen stage.
 
   --record FILE   also write the derivation (the reasoning, every formula with
                   its numbers) as HTML (.html) or Markdown (.md)
@@ -32,6 +41,56 @@ export function operatingPointOf(stage: Stage): { analysis: StageAnalysis; deriv
   const derivation = new Derivation(`Operating point: ${stage.name ?? stage.topology} (${stage.device.card.polarity})`);
   const analysis = analyzeStage(stage, derivation);
   return { analysis, derivation };
+}
+
+/** The same error, its origin moved from the designer's "<topology> spec.<path>" to the file's "specification.<path>". */
+function relocate(e: PinchoffError, topology: string, file: string): PinchoffError {
+  const raw = e.origin && e.message.startsWith(`${e.origin}: `) ? e.message.slice(e.origin.length + 2) : e.message;
+  const prefix = `${topology} spec`;
+  const where = e.origin?.startsWith(prefix) ? `specification${e.origin.slice(prefix.length)}` : e.origin ? `specification (${e.origin})` : "specification";
+  const origin = `${file}: ${where}`;
+  if (e instanceof InputError) return new InputError(e.value, e.expected, origin, e.code);
+  if (e instanceof InfeasibleError) return new InfeasibleError(raw, origin);
+  if (e instanceof ConvergenceError) return new ConvergenceError(raw, origin);
+  return new PinchoffError(e.code, raw, origin);
+}
+
+/**
+ * The design from a specification as a library call: synthesis (ideal values,
+ * standard values chosen as a set, the re-solve, the deviation) with its
+ * derivation. Errors name the file and the specification's field.
+ */
+export function designOf(designFile: Extract<DesignFile, { kind: "specification" }>): { design: SynthesisResult; derivation: Derivation } {
+  const { spec, origin } = designFile;
+  const derivation = new Derivation(`Design from a specification: ${spec.name ?? spec.topology} (${spec.card.polarity})`);
+  try {
+    return { design: synthesize(spec, derivation), derivation };
+  } catch (e) {
+    throw e instanceof PinchoffError ? relocate(e, spec.topology, origin) : e;
+  }
+}
+
+export const designCaution = "Hand analysis is approximate: verify the chosen design by simulation and measurement, use the parts' tolerances, and respect the device ratings.";
+
+/** What `pinchoff op` prints for a specification: ideal and chosen values, the series, the deviation, the chosen stage's operating point. */
+export function designSummary(designFile: Extract<DesignFile, { kind: "specification" }>, design: SynthesisResult) {
+  const { stage, snap } = design;
+  const size = (d: { w: number; l: number }) => ({ w: d.w, l: d.l });
+  return {
+    topology: design.topology,
+    series: designFile.spec.series ?? "E24",
+    ideal: design.ideal,
+    chosen: {
+      components: stage.components,
+      device: size(stage.device),
+      ...(stage.devices ? { devices: Object.fromEntries(Object.entries(stage.devices).map(([role, d]) => [role, size(d)])) } : {}),
+    },
+    ...(snap ? { standardValues: snap } : {}),
+    deviation: design.deviation,
+    ...(design.dissipation ? { dissipation: design.dissipation } : {}),
+    operatingPoint: design.analysis,
+    caution: designCaution,
+  };
 }
 
 /** JSON with ±Infinity kept readable (JSON itself has no infinity). */
@@ -87,16 +146,20 @@ export async function main(argv: string[]): Promise<number> {
     format = ext === ".html" || ext === ".htm" ? "html" : ext === ".md" || ext === ".markdown" ? "md" : undefined;
     if (!format) throw new InputError(record, "a record file ending in .html or .md", "--record");
   }
-  const stage = readDesign(file);
-  const { analysis, derivation } = operatingPointOf(stage);
+  const read = readDesignFile(file);
+  const result = read.kind === "analysis" ? operatingPointOf(read.stage) : designOf(read);
   if (record !== undefined) {
     const render = await import("../record/render.js");
-    const data = derivation.toJSON();
+    const data = result.derivation.toJSON();
     const text = format === "html" ? render.renderHtml(data) : render.renderMarkdown(data);
     writeAtomic(record, text, [file]);
   }
-  console.log(toJson({ design: file, ...(record ? { record } : {}), ...analysis }));
+  const head = { design: file, ...(record ? { record } : {}) };
+  const analysis = "analysis" in result ? result.analysis : result.design.analysis;
+  console.log(toJson("analysis" in result ? { ...head, ...result.analysis } : { ...head, ...designSummary(read as Extract<DesignFile, { kind: "specification" }>, result.design) }));
   const failed = analysis.metrics.checks.filter((c) => !c.passed);
   if (failed.length) console.error(`pinchoff op: ${failed.length} check(s) failed: ${failed.map((c) => c.name).join("; ")}`);
+  if ("design" in result && result.design.dissipation && !result.design.dissipation.passed)
+    console.error(`pinchoff op: over its allowed power: ${result.design.dissipation.failures.map((f) => f.name).join("; ")}`);
   return 0;
 }

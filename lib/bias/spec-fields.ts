@@ -1,0 +1,275 @@
+/**
+ * The `specification` section of a design file, as data: for each topology
+ * with a designer, every field of its specification with the dimension it is
+ * parsed in, the range it must lie in, whether it is required, and what is
+ * assumed when it is left out. The design-file reader validates against this
+ * table, its error messages quote it, and `specificationRows` renders it as
+ * the schema documentation, so the three cannot drift apart.
+ *
+ * Left out here on purpose, because the design file states them once for both
+ * analysis and design: the card (`device.card`), `supplies`, `body`,
+ * `options`, `limits` and `name`.
+ */
+import { describeDimension } from "../units/parse.js";
+import type { Dimension } from "../quantity.js";
+import { seriesNames } from "./eseries.js";
+import type { StageSpec } from "./synthesis.js";
+
+/** The range a number must lie in, checked after parsing. */
+export type SpecRange = "positive" | "finite" | "fraction" | "derating";
+
+interface FieldBase {
+  readonly meaning: string;
+  readonly required?: true;
+  /** What the designer assumes when the field is left out. */
+  readonly fallback?: string;
+}
+
+export type SpecField =
+  | (FieldBase & { readonly kind: "quantity"; readonly dim: Dimension; readonly range: SpecRange })
+  | (FieldBase & { readonly kind: "integer"; readonly min: number })
+  | (FieldBase & { readonly kind: "boolean" })
+  | (FieldBase & { readonly kind: "choice"; readonly values: readonly string[] })
+  /** An object; with `oneOf`, exactly one of those keys must be given. */
+  | (FieldBase & { readonly kind: "group"; readonly fields: Readonly<Record<string, SpecField>>; readonly oneOf?: readonly string[] })
+  /** An object keyed by component name, each entry of the one shape. */
+  | (FieldBase & { readonly kind: "byName"; readonly entry: SpecField })
+  /** A device card, read exactly as `device.card` is. */
+  | (FieldBase & { readonly kind: "card" });
+
+export const rangeText: Readonly<Record<SpecRange, string>> = {
+  positive: "> 0",
+  finite: "any finite value",
+  fraction: "0 < f < 1",
+  derating: "0 < f ≤ 1",
+};
+
+/** Whether a parsed number lies in its range. */
+export function inRange(x: number, range: SpecRange): boolean {
+  switch (range) {
+    case "positive":
+      return Number.isFinite(x) && x > 0;
+    case "finite":
+      return Number.isFinite(x);
+    case "fraction":
+      return x > 0 && x < 1;
+    case "derating":
+      return x > 0 && x <= 1;
+  }
+}
+
+const q = (dim: Dimension, range: SpecRange, meaning: string, extra: Omit<FieldBase, "meaning"> = {}): SpecField => ({ kind: "quantity", dim, range, meaning, ...extra });
+
+const rating: SpecField = {
+  kind: "group",
+  meaning: "a part's power rating",
+  fields: {
+    rating: q("power", "positive", "rated power at the intended ambient", { required: true }),
+    derating: q("dimensionless", "derating", "fraction of the rating the design may use", { fallback: "1" }),
+  },
+};
+
+const base = {
+  id: q("current", "positive", "target drain current magnitude (the output current for a mirror)", { required: true }),
+  sizing: {
+    kind: "group",
+    meaning: "the transistor's size: the overdrive with L (W follows from ID), or the drawn W with L (VOV follows)",
+    required: true,
+    oneOf: ["vov", "w"],
+    fields: {
+      vov: q("voltage", "positive", "overdrive VGS − Vt magnitude"),
+      w: q("length", "positive", "drawn channel width W"),
+      l: q("length", "positive", "drawn channel length L", { required: true }),
+    },
+  },
+  series: {
+    kind: "choice",
+    values: [...seriesNames, "exact"],
+    meaning: 'IEC 60063 series the resistors are chosen from; "exact" keeps the ideal values',
+    fallback: "E24",
+  },
+  candidates: { kind: "integer", min: 1, meaning: "standard values tried per resistor, nearest first", fallback: "2 (the neighbours either side)" },
+  dissipation: {
+    kind: "group",
+    meaning: "power limits the chosen design is checked against",
+    fields: {
+      resistor: { ...rating, meaning: "rating for every resistor without its own entry" },
+      resistors: { kind: "byName", entry: rating, meaning: "ratings by component name (e.g. rd), overriding resistor" },
+      transistor: { ...rating, meaning: "the transistor's allowed dissipation (datasheet PD at the intended ambient)" },
+    },
+  },
+} as const satisfies Record<string, SpecField>;
+
+const drain = (fallback: string): SpecField => ({
+  kind: "group",
+  meaning: "where the drain goes: an absolute node voltage, or a gain magnitude (inverting)",
+  oneOf: ["vd", "gain"],
+  fallback,
+  fields: {
+    vd: q("voltage", "finite", "drain node voltage, absolute"),
+    gain: q("dimensionless", "positive", "gain magnitude |vout/vin|"),
+  },
+});
+const sourceBudget = (meaning: string, fallback: string): SpecField => ({
+  kind: "group",
+  meaning,
+  oneOf: ["vrs", "fraction"],
+  fallback,
+  fields: {
+    vrs: q("voltage", "positive", "voltage across the source element"),
+    fraction: q("dimensionless", "fraction", "that voltage as a fraction of the rail span VDD − VSS"),
+  },
+});
+const gate: SpecField = {
+  kind: "group",
+  meaning: "the gate divider: its current, that current as a ratio to ID, or its input resistance RG1 ∥ RG2",
+  oneOf: ["current", "ratio", "rin"],
+  fallback: "ratio 0.1",
+  fields: {
+    current: q("current", "positive", "divider current"),
+    ratio: q("dimensionless", "positive", "divider current / ID"),
+    rin: q("resistance", "positive", "input resistance RG1 ∥ RG2"),
+  },
+};
+const bypassed: SpecField = { kind: "boolean", meaning: "whether RS is bypassed for signal (which gain a gain target means)", fallback: "true" };
+const midSwing = "mid-swing between the triode edge and the drain rail";
+
+type OwnFields<T> = Exclude<keyof T, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
+
+/** Each topology's specification fields; the type makes every field of its Spec type appear, and nothing else. */
+export const specFields = {
+  "four-resistor": {
+    ...base,
+    drain: drain(midSwing),
+    bypassed,
+    gate,
+    source: sourceBudget("voltage budget across RS", "fraction 0.25"),
+  },
+  "fixed-gate": {
+    ...base,
+    drain: drain(midSwing),
+    bypassed: { ...bypassed, meaning: "whether RS (when present) is bypassed for signal" },
+    source: sourceBudget("voltage budget across RS", "no RS: the source at its rail"),
+  },
+  "drain-feedback": {
+    ...base,
+    feedback: {
+      kind: "group",
+      meaning: "the feedback resistor RF, or the input resistance RF/(1 − Av) it should give",
+      oneOf: ["rf", "rin"],
+      fallback: "rf 1 MΩ",
+      fields: { rf: q("resistance", "positive", "feedback resistor RF"), rin: q("resistance", "positive", "input resistance") },
+    },
+    source: sourceBudget("voltage budget across RS", "no RS: the source at its rail"),
+  },
+  "source-follower": {
+    ...base,
+    output: {
+      kind: "group",
+      meaning: "the output (source) node",
+      fallback: "mid-swing between the source rail and the triode edge",
+      fields: { vs: q("voltage", "finite", "source node voltage, absolute", { required: true }) },
+    },
+    gate,
+  },
+  "current-source-bias": {
+    ...base,
+    drain: drain(midSwing),
+    source: sourceBudget("headroom across the current source", "fraction 0.25"),
+  },
+  "current-mirror": {
+    ...base,
+    ratio: q("dimensionless", "positive", "mirror ratio N = (W/L)out/(W/L)ref; id and sizing are the output transistor's", { fallback: "1" }),
+    output: {
+      kind: "group",
+      meaning: "the output node",
+      fallback: "halfway between compliance and the drain rail",
+      fields: { vout: q("voltage", "finite", "output voltage, absolute", { required: true }) },
+    },
+    load: { kind: "choice", values: ["resistor", "source"], meaning: "what holds the output: a designed load resistor to the drain rail, or an ideal source at VOUT", fallback: "resistor" },
+  },
+  "diode-load": {
+    ...base,
+    load: {
+      kind: "group",
+      meaning: "the diode-connected load transistor; its W is designed",
+      required: true,
+      fields: {
+        card: { kind: "card", meaning: "the load's device card (same or complementary type), read like device.card", required: true },
+        l: q("length", "positive", "the load's drawn channel length L", { required: true }),
+      },
+    },
+    output: {
+      kind: "group",
+      meaning: "an absolute output voltage, or a gain magnitude",
+      oneOf: ["vout", "gain"],
+      fallback: "halfway between the driver's triode edge and the load's conduction edge",
+      fields: { vout: q("voltage", "finite", "output voltage, absolute"), gain: q("dimensionless", "positive", "gain magnitude |vout/vin|") },
+    },
+  },
+} as const satisfies { [T in StageSpec["topology"]]: Record<OwnFields<Extract<StageSpec, { topology: T }>>, SpecField> };
+
+export type SpecTopology = keyof typeof specFields;
+
+/** What a field accepts, in words: "a current in A, > 0", `"E24" or …`. */
+export function acceptsText(f: SpecField): string {
+  switch (f.kind) {
+    case "quantity":
+      return `${describeDimension(f.dim)}, ${rangeText[f.range]}`;
+    case "integer":
+      return `a whole number ≥ ${f.min}`;
+    case "boolean":
+      return "true or false";
+    case "choice":
+      return `one of ${f.values.map((v) => JSON.stringify(v)).join(", ")}`;
+    case "group":
+      return f.oneOf ? `an object with exactly one of ${f.oneOf.join(", ")}` : `an object { ${Object.keys(f.fields).join(", ")} }`;
+    case "byName":
+      return "an object keyed by component name";
+    case "card":
+      return "a device card { name, polarity, kp, vt0, … }";
+  }
+}
+
+export interface SpecRow {
+  /** Field path under `specification`, e.g. "sizing.vov" or "dissipation.resistors.<name>.rating". */
+  readonly path: string;
+  readonly accepts: string;
+  /** "yes", "no", or "one of …" for a member of a oneOf group. */
+  readonly required: string;
+  readonly fallback: string;
+  readonly meaning: string;
+}
+
+/** The schema of one topology's specification, flattened to documentation rows. */
+export function specificationRows(topology: SpecTopology): SpecRow[] {
+  const rows: SpecRow[] = [];
+  const walk = (fields: Readonly<Record<string, SpecField>>, prefix: string, oneOf?: readonly string[]) => {
+    for (const [name, f] of Object.entries(fields)) {
+      const path = prefix + name;
+      const required = oneOf?.includes(name) ? `one of ${oneOf.join("/")}` : f.required ? "yes" : "no";
+      rows.push({ path, accepts: acceptsText(f), required, fallback: f.fallback ?? "", meaning: f.meaning });
+      if (f.kind === "group") walk(f.fields, `${path}.`, f.oneOf);
+      if (f.kind === "byName" && f.entry.kind === "group") walk(f.entry.fields, `${path}.<name>.`, f.entry.oneOf);
+    }
+  };
+  walk(specFields[topology], "");
+  return rows;
+}
+
+const cell = (s: string) => s.replace(/\|/g, "\\|");
+
+/** Markdown tables of the specification schema: the shared fields once, then each topology's own. */
+export function specificationMarkdown(): string {
+  const header = "| field | accepts | required | when omitted | meaning |\n|---|---|---|---|---|";
+  const line = (r: SpecRow) => `| \`${r.path}\` | ${cell(r.accepts)} | ${r.required} | ${cell(r.fallback)} | ${cell(r.meaning)} |`;
+  const shared = new Set(Object.keys(base));
+  const topologies = Object.keys(specFields) as SpecTopology[];
+  const sharedRows = specificationRows(topologies[0]!).filter((r) => shared.has(r.path.split(".")[0]!));
+  const parts = [`Every topology:\n\n${header}\n${sharedRows.map(line).join("\n")}`];
+  for (const t of topologies) {
+    const own = specificationRows(t).filter((r) => !shared.has(r.path.split(".")[0]!));
+    parts.push(`\`${t}\`:\n\n${header}\n${own.map(line).join("\n")}`);
+  }
+  return parts.join("\n\n");
+}
