@@ -23,17 +23,24 @@ registerTopology(diodeLoad);
 
 export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias } as const;
 
+/**
+ * Any stage: a typed one (`Stage<"four-resistor", FourResistorComponents>`, as
+ * synthesis returns) or a plain one; components are looked up by name.
+ */
+type AnyStage = Stage<string, object>;
+const plain = (stage: AnyStage): Stage => stage as Stage;
+
 /** Solve a stage's operating point and metrics; records the reasoning when `rec` is given. */
-export function analyzeStage(stage: Stage, rec?: Derivation): StageAnalysis {
-  return topologyFor(stage?.topology, "stage.topology").analyze(stage, rec);
+export function analyzeStage(stage: AnyStage, rec?: Derivation): StageAnalysis {
+  return topologyFor(stage?.topology, "stage.topology").analyze(plain(stage), rec);
 }
 
 /** The stage's SPICE circuit lines with an optional name prefix (for several stages in one deck). */
-export function stageCircuit(stage: Stage, prefix = ""): SpiceCircuit {
-  return topologyFor(stage?.topology, "stage.topology").spice(stage, prefix);
+export function stageCircuit(stage: AnyStage, prefix = ""): SpiceCircuit {
+  return topologyFor(stage?.topology, "stage.topology").spice(plain(stage), prefix);
 }
 
 /** A complete SPICE deck for the stage (Level 1 card, sources, .op). */
-export function spiceDeck(stage: Stage): string {
+export function spiceDeck(stage: AnyStage): string {
   return deckText(`${stage.name ?? stage.topology} (${stage.device.card.polarity}, ${stage.device.card.name})`, stageCircuit(stage));
 }
