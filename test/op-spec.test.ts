@@ -193,6 +193,21 @@ describe("pinchoff op with a specification", () => {
     expect(j.deviation.id.achieved).toBeCloseTo(j.operatingPoint.currents.drain, 15);
   });
 
+  it("checks the chosen parts against their power ratings and says on stderr which are over", async () => {
+    // RD carries about 1 mA: about 2 mW in 2 kΩ, over a 1 mW rating at 50 % derating (invented ratings).
+    const dissipation = { resistor: { rating: "0.25 W" }, resistors: { rd: { rating: "1 mW", derating: 0.5 } }, transistor: { rating: "0.5 W" } };
+    const r = await run([write("power.json", { ...fourResistor, specification: { ...fourResistor.specification, dissipation } })]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    const rd = j.dissipation.items.find((i: { name: string }) => i.name === "rd");
+    const i = j.operatingPoint.currents.rd;
+    expect(rd.power).toBeCloseTo(i * i * j.chosen.components.rd, 12); // Joule's law
+    expect(rd.allowed).toBeCloseTo(0.5e-3, 15);
+    expect(rd.passed).toBe(false);
+    expect(j.dissipation.failures.map((f: { name: string }) => f.name)).toEqual(["rd"]);
+    expect(r.err).toMatch(/over its allowed power: rd/);
+  });
+
   it("exposes the design as a library call with its derivation", () => {
     const f = parseDesignFile(fourResistor, "lib.json");
     expect(f.kind).toBe("specification");
@@ -238,6 +253,9 @@ describe("pinchoff op with a specification", () => {
     expect(bad({ devices: { reference: { card: nCard } } }).message).toMatch(/^f\.json: devices: got \["reference"\], expected no devices with a specification/);
     expect(bad({ specification: { ...s, dissipation: { resistors: { rd: { derating: 0.5 } } } } }).message).toMatch(
       /^f\.json: specification\.dissipation\.resistors\.rd\.rating: got nothing, expected a power in W, > 0/,
+    );
+    expect(bad({ specification: { ...s, dissipation: { resistors: { r_d: { rating: "0.25 W" } } } } }).message).toMatch(
+      /^f\.json: specification\.dissipation\.resistors\.r_d: got "r_d", expected one of the four-resistor resistors rg1, rg2, rd, rs/,
     );
     // A field another topology has is unknown here.
     expect(bad({ specification: { ...s, ratio: 2 } }).message).toMatch(/^f\.json: specification\.ratio: got "ratio", expected one of the fields/);

@@ -221,6 +221,11 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
       throw new InputError(Object.keys(object(d.devices, at("devices"), "no devices with a specification")), "no devices with a specification: the designer sizes the further transistors (a mirror's reference from specification.ratio, a diode load from specification.load)", at("devices"), "invalid-design");
     const card = parseCard(dev.card, "device.card", at);
     const own = specGroup(d.specification, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
+    // A rating under a misspelled name would silently not apply: the names must be the topology's resistors.
+    const resistorNames = topo.components.filter((c) => c.dim === "resistance").map((c) => c.name);
+    const byName = (own.dissipation as { resistors?: Record<string, unknown> } | undefined)?.resistors;
+    for (const k of Object.keys(byName ?? {}))
+      if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     const spec = { topology: topo.id, ...parseCommon(d, at), card, ...own } as unknown as StageSpec;
     return { kind: "specification", origin, spec };
   }
