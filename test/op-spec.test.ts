@@ -208,6 +208,26 @@ describe("pinchoff op with a specification", () => {
     expect(r.err).toMatch(/over its allowed power: rd/);
   });
 
+  it("designs a diode-loaded stage for a gain: the load's card read inside the specification, no resistor to choose", async () => {
+    const file = write("dl.json", {
+      topology: "diode-load",
+      device: { card: { ...nCard, lambda: "0.05 1/V" } },
+      specification: { id: "100 uA", sizing: { vov: "0.2 V", l: "1 um" }, load: { card: { ...pCard, vt0: "-0.55 V", lambda: "0.08 1/V" }, l: "1 um" }, output: { gain: 5 } },
+      supplies: { vdd: "3.3 V" },
+    });
+    const j = JSON.parse((await run([file])).out);
+    expect(j.topology).toBe("diode-load");
+    expect(j.series).toBeNull();
+    expect(j.standardValues).toBeUndefined();
+    // With nothing rounded, the re-solved gain meets the target to solver precision.
+    expect(j.deviation.gain.target).toBe(5);
+    expect(Math.abs(j.deviation.gain.relative)).toBeLessThan(1e-9);
+    expect(j.chosen.devices.load.l).toBe(1e-6);
+    // The driver's gate: VG = Vt + VOV with the source at ground (common practice).
+    expect(j.ideal.components.vg).toBeCloseTo(0.5 + 0.2, 12);
+    expect(j.operatingPoint.region).toBe("saturation");
+  });
+
   it("exposes the design as a library call with its derivation", () => {
     const f = parseDesignFile(fourResistor, "lib.json");
     expect(f.kind).toBe("specification");

@@ -78,7 +78,8 @@ export function designSummary(designFile: Extract<DesignFile, { kind: "specifica
   const size = (d: { w: number; l: number }) => ({ w: d.w, l: d.l });
   return {
     topology: design.topology,
-    series: designFile.spec.series ?? "E24",
+    // The series the resistors were chosen from; "exact" when kept ideal; null when the stage has no resistor to choose.
+    series: snap ? snap.series : designFile.spec.series === "exact" ? "exact" : null,
     ideal: design.ideal,
     chosen: {
       components: stage.components,
