@@ -92,6 +92,7 @@ const base = {
   dissipation: {
     kind: "group",
     meaning: "power limits the chosen design is checked against",
+    fallback: "no power check",
     fields: {
       resistor: { ...rating, meaning: "rating for every resistor without its own entry" },
       resistors: { kind: "byName", entry: rating, meaning: "ratings by component name (e.g. rd), overriding resistor" },
@@ -244,16 +245,19 @@ export interface SpecRow {
 /** The schema of one topology's specification, flattened to documentation rows. */
 export function specificationRows(topology: SpecTopology): SpecRow[] {
   const rows: SpecRow[] = [];
-  const walk = (fields: Readonly<Record<string, SpecField>>, prefix: string, oneOf?: readonly string[]) => {
+  // `parent` is the nearest optional group above: its members are required only when it is given.
+  const walk = (fields: Readonly<Record<string, SpecField>>, prefix: string, oneOf: readonly string[] | undefined, parent: string | undefined) => {
     for (const [name, f] of Object.entries(fields)) {
       const path = prefix + name;
-      const required = oneOf?.includes(name) ? `one of ${oneOf.join("/")}` : f.required ? "yes" : "no";
+      const when = parent ? ` (when ${parent} is given)` : "";
+      const required = oneOf?.includes(name) ? `one of ${oneOf.join("/")}${when}` : f.required ? `yes${when}` : "no";
       rows.push({ path, accepts: acceptsText(f), required, fallback: f.fallback ?? "", meaning: f.meaning });
-      if (f.kind === "group") walk(f.fields, `${path}.`, f.oneOf);
-      if (f.kind === "byName" && f.entry.kind === "group") walk(f.entry.fields, `${path}.<name>.`, f.entry.oneOf);
+      const next = f.required ? parent : path;
+      if (f.kind === "group") walk(f.fields, `${path}.`, f.oneOf, next);
+      if (f.kind === "byName" && f.entry.kind === "group") walk(f.entry.fields, `${path}.<name>.`, f.entry.oneOf, `${path}.<name>`);
     }
   };
-  walk(specFields[topology], "");
+  walk(specFields[topology], "", undefined, undefined);
   return rows;
 }
 
