@@ -124,8 +124,9 @@ function checkFraction(x: number, origin: string): number {
 
 const sign = (p: number) => (p > 0 ? "+" : p < 0 ? "−" : "0");
 
-/** Analyse a stage over its tolerances and temperatures. */
-export function toleranceAnalysis(stage: Stage, spec: ToleranceSpec = {}, rec?: Derivation): ToleranceReport {
+/** Analyse a stage over its tolerances and temperatures; takes a typed stage (as synthesis returns) or a plain one. */
+export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceSpec = {}, rec?: Derivation): ToleranceReport {
+  const stage = typed as Stage;
   if (!stage || typeof stage !== "object" || !stage.device) throw new InputError(stage, "a stage with a device", "tolerance stage");
   const solve = spec.solve ?? ((st: Stage) => topologyFor(st.topology, "stage.topology").analyze(st));
   if (typeof solve !== "function") throw new InputError(solve, "a solve function (stage) → analysis", "tolerance.solve");
