@@ -33,8 +33,12 @@ export interface JupyterSetup {
   readonly python: string;
 }
 
-/** Jupyter on PATH and the interpreter named in its #! line, with nbclient importable. */
-export function findJupyter(env: NodeJS.ProcessEnv = process.env): JupyterSetup {
+/**
+ * Jupyter on PATH and the interpreter named in its #! line, with nbclient
+ * importable (`probe`; a kernel session skips the probe because its driver
+ * reports a missing package itself, and the probe costs a Python start).
+ */
+export function findJupyter(env: NodeJS.ProcessEnv = process.env, probe = true): JupyterSetup {
   const jupyter = onPath("jupyter", env.PATH);
   if (!jupyter) throw new PinchoffError("io", `Jupyter was not found on PATH; ${installHint}`, "jupyter");
   const firstLine = readFileSync(jupyter, "utf8").slice(0, 300).split("\n")[0] ?? "";
@@ -42,8 +46,7 @@ export function findJupyter(env: NodeJS.ProcessEnv = process.env): JupyterSetup 
   let python = m ? (/\/env$/.test(m[1]!) && m[2] ? onPath(m[2], env.PATH) : m[1]) : undefined;
   if (!python || !isAbsolute(python) || !existsSync(python)) python = onPath("python3", env.PATH);
   if (!python) throw new PinchoffError("io", `no Python interpreter found for ${jupyter}; ${installHint}`, "jupyter");
-  const probe = spawnSync(python, ["-c", "import nbclient, nbformat, ipykernel"], { env, encoding: "utf8" });
-  if (probe.status !== 0) throw new PinchoffError("io", `${python} (the Python that runs ${jupyter}) cannot import nbclient, nbformat and ipykernel; ${installHint}`, "jupyter");
+  if (probe && spawnSync(python, ["-c", "import nbclient, nbformat, ipykernel"], { env, encoding: "utf8" }).status !== 0) throw new PinchoffError("io", `${python} (the Python that runs ${jupyter}) cannot import nbclient, nbformat and ipykernel; ${installHint}`, "jupyter");
   return { jupyter, python };
 }
 
@@ -82,37 +85,66 @@ export interface ExecuteOptions {
   readonly env?: NodeJS.ProcessEnv;
 }
 
-/** Execute `input` into `output` with its folder as the kernel's working directory. */
-export async function executeNotebook(input: string, output: string, cwd: string, opts: ExecuteOptions): Promise<ExecutionResult> {
-  const setup = findJupyter(opts.env);
+/**
+ * A kernel started ahead of the notebook it will run: the Python driver starts
+ * tslab at once and waits for `run`, so the start-up overlaps whatever the
+ * caller still has to check and stage. `cancel` stops it without running.
+ */
+export interface KernelSession {
+  run(input: string, output: string, opts: ExecuteOptions): Promise<ExecutionResult>;
+  cancel(): void;
+}
+
+/** Start the kernel in `cwd` (the staging folder, which must exist). */
+export function startKernelSession(cwd: string, opts: { readonly timeout: number; readonly env?: NodeJS.ProcessEnv }): KernelSession {
+  const setup = findJupyter(opts.env, false);
   requireKernel();
-  const args = { input, output, cwd, kernel: kernelName, timeout: opts.timeout, startup: 60 };
+  const args = { cwd, kernel: kernelName, timeout: opts.timeout, startup: 60 };
   const t0 = performance.now();
-  // The whole run may take a per-cell limit per cell plus kernel start-up; past that, stop it.
-  const guardMs = (opts.timeout * Math.max(1, opts.codeCells.length) + 90) * 1000;
-  const { code, stdout, stderr } = await new Promise<{ code: number | null; stdout: string; stderr: string }>((resolve, reject) => {
-    const child = spawn(setup.python, ["-c", driverSource, JSON.stringify(args)], { cwd, env: jupyterEnv(opts.env), detached: true, stdio: ["ignore", "pipe", "pipe"] });
-    let out = "";
-    let err = "";
-    child.stdout.on("data", (d: Buffer) => (out += d.toString()));
-    child.stderr.on("data", (d: Buffer) => (err += d.toString()));
-    const guard = setTimeout(() => {
-      try {
-        process.kill(-child.pid!, "SIGKILL");
-      } catch {
-        /* already gone */
-      }
-    }, guardMs);
-    child.on("error", (e) => {
-      clearTimeout(guard);
-      reject(new PinchoffError("io", `cannot start ${setup.python} (${e.message}); ${installHint}`, "jupyter"));
-    });
-    child.on("close", (c) => {
-      clearTimeout(guard);
-      resolve({ code: c, stdout: out, stderr: err });
-    });
+  const child = spawn(setup.python, ["-c", driverSource, JSON.stringify(args)], { cwd, env: jupyterEnv(opts.env), detached: true, stdio: ["pipe", "pipe", "pipe"] });
+  let out = "";
+  let err = "";
+  child.stdout!.on("data", (d: Buffer) => (out += d.toString()));
+  child.stderr!.on("data", (d: Buffer) => (err += d.toString()));
+  child.stdin!.on("error", () => {
+    /* the driver stopped before reading; its stdout says why */
   });
-  const seconds = (performance.now() - t0) / 1000;
+  const kill = () => {
+    try {
+      process.kill(-child.pid!, "SIGKILL");
+    } catch {
+      /* already gone */
+    }
+  };
+  const done = new Promise<{ code: number | null; stdout: string; stderr: string }>((resolve, reject) => {
+    child.on("error", (e) => reject(new PinchoffError("io", `cannot start ${setup.python} (${e.message}); ${installHint}`, "jupyter")));
+    child.on("close", (c) => resolve({ code: c, stdout: out, stderr: err }));
+  });
+  done.catch(() => undefined); // observed in run(); a cancelled session may never be awaited
+  return {
+    cancel() {
+      child.stdin!.end("\n");
+      setTimeout(kill, 5000).unref();
+    },
+    async run(input, output, runOpts) {
+      child.stdin!.end(JSON.stringify({ input, output }) + "\n");
+      // The whole run may take a per-cell limit per cell plus kernel start-up; past that, stop it.
+      const guard = setTimeout(kill, (runOpts.timeout * Math.max(1, runOpts.codeCells.length) + 90) * 1000);
+      try {
+        return interpret(await done, (performance.now() - t0) / 1000, runOpts);
+      } finally {
+        clearTimeout(guard);
+      }
+    },
+  };
+}
+
+/** Execute `input` into `output` with `cwd` as the kernel's working directory. */
+export async function executeNotebook(input: string, output: string, cwd: string, opts: ExecuteOptions): Promise<ExecutionResult> {
+  return startKernelSession(cwd, opts).run(input, output, opts);
+}
+
+function interpret({ code, stdout, stderr }: { code: number | null; stdout: string; stderr: string }, seconds: number, opts: ExecuteOptions): ExecutionResult {
   const line = stdout.trim().split("\n").pop() ?? "";
   let parsed: { cells?: Record<string, { status?: string }>; fatal?: string; message?: string };
   try {

@@ -10,10 +10,9 @@ import { basename, dirname, extname, join, resolve } from "node:path";
 import { PinchoffError } from "../errors.js";
 import { fingerprint } from "../record/fingerprint.js";
 import { buildReport, reportMarker, type ReportModel } from "../report/html.js";
-import { formulaStyles, renderDerivationHtml } from "../report/derivation-html.js";
 import { checkReplaceable, prepareOutputDir, removeIfEmpty, writeAtomically } from "./atomic-write.js";
 import { allChecks, collect, type CellFailure, type CheckLine, type Collected } from "./collect.js";
-import { executeNotebook, findJupyter, requireKernel } from "./execute.js";
+import { findJupyter, requireKernel, startKernelSession, type KernelSession } from "./execute.js";
 import { applyOverrides, findInputsCell, resolveInputs, type Override, type ParsedInput } from "./inputs-cell.js";
 import { cellSource, ensureCellIds, parseNotebook, readNotebook, type Notebook } from "./notebook-file.js";
 import { kernelName, stagingRoot, toolVersion } from "./paths.js";
@@ -79,10 +78,9 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
   if (!existsSync(source)) throw new PinchoffError("io", "no such notebook", opts.notebook);
   const { notebook, text } = readNotebook(source);
   const cell = findInputsCell(notebook, opts.notebook);
-  const inputs = resolveInputs(cell, opts.overrides ?? [], opts.notebook);
 
-  // Everything that can be checked before executing is checked now.
-  findJupyter(opts.env);
+  // Everything that can be checked before starting a kernel is checked now.
+  findJupyter(opts.env, false);
   requireKernel();
   const stem = stemOf(source);
   const outDir = resolve(opts.outDir ?? join(dirname(source), `${stem}-run`));
@@ -93,20 +91,28 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
   const created = prepareOutputDir(outDir);
   let written = false;
   let stage: string | undefined;
+  let session: KernelSession | undefined;
   try {
     checkReplaceable([executedPath, reportPath], ours);
+    mkdirSync(stagingRoot, { recursive: true });
+    stage = mkdtempSync(join(stagingRoot, `${stem.replace(/[^\w.-]/g, "_").slice(0, 40)}-`));
+    // The kernel starts now; parsing the inputs (mathjs) and loading the renderer (KaTeX) overlap its start-up.
+    session = startKernelSession(stage, { timeout, ...(opts.env ? { env: opts.env } : {}) });
+    const rendering = import("../report/derivation-html.js");
+    rendering.catch(() => undefined); // awaited below; a failed check before then must not leave it unobserved
+    const inputs = resolveInputs(cell, opts.overrides ?? [], opts.notebook);
 
     const copy = applyOverrides(notebook, cell, inputs);
     ensureCellIds(copy);
     copy.metadata.kernelspec = { name: kernelName, display_name: "TypeScript", language: "typescript" };
-    mkdirSync(stagingRoot, { recursive: true });
-    stage = mkdtempSync(join(stagingRoot, `${stem.replace(/[^\w.-]/g, "_").slice(0, 40)}-`));
     const stagedIn = join(stage, "notebook.ipynb");
     const stagedOut = join(stage, "executed.ipynb");
     writeFileSync(stagedIn, JSON.stringify(copy, null, 1));
     const codeCells = copy.cells.flatMap((c, i) => (c.cell_type === "code" ? [i] : []));
 
-    const exec = await executeNotebook(stagedIn, stagedOut, stage, { timeout, codeCells, ...(opts.env ? { env: opts.env } : {}) });
+    const running = session;
+    session = undefined;
+    const exec = await running.run(stagedIn, stagedOut, { timeout, codeCells, ...(opts.env ? { env: opts.env } : {}) });
     if (!existsSync(stagedOut)) throw new PinchoffError("io", `the Jupyter run wrote no notebook${exec.fatal ? ` (${exec.fatal.message})` : ""}`, "jupyter");
     const executed = parseNotebook(readFileSync(stagedOut, "utf8"), "executed notebook");
     const collected = collect(executed, exec.status);
@@ -128,6 +134,7 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
       },
     };
 
+    const { formulaStyles, renderDerivationHtml } = await rendering;
     const model: ReportModel = {
       title: titleOf(notebook, stem),
       notebookPath: source,
@@ -164,6 +171,7 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
       seconds: { total: (performance.now() - t0) / 1000, kernel: exec.seconds },
     };
   } finally {
+    session?.cancel();
     if (stage) rmSync(stage, { recursive: true, force: true });
     if (!written && created) removeIfEmpty(outDir, created);
   }
