@@ -65,6 +65,18 @@ describe("template files", () => {
       const md = nb.cells.filter((c) => c.cell_type === "markdown").map(src).join("\n");
       for (const phrase of [/approximate/i, /simulation/i, /measurement/i, /ratings/i, /local codes/i, /licensed/i]) expect(md).toMatch(phrase);
     });
+    it("has a tolerance section after the design and before the plots, with spreads, temperatures and their limits stated", () => {
+      const heading = (re: RegExp) => nb.cells.findIndex((c) => c.cell_type === "markdown" && re.test(src(c)));
+      const tol = heading(/^## Tolerances and temperature/);
+      expect(tol).toBeGreaterThan(heading(/^## Design(\n|$)/));
+      expect(tol).toBeLessThan(heading(/^## Plots/));
+      const md = src(nb.cells[tol]!);
+      for (const phrase of [/invented/i, /from memory/i, /monotone/i, /mismatch/i, /°C/]) expect(md).toMatch(phrase);
+      expect(src(nb.cells[tol + 1]!)).toMatch(/toleranceAnalysis\(/);
+      const inputs = src(nb.cells.find((c) => c.metadata.tags?.includes("design-inputs"))!);
+      for (const name of ["VT0_SPREAD", "KP_SPREAD", "ID_BAND"]) expect(inputs).toMatch(new RegExp(`^  ${name}: `, "m"));
+      expect(inputs.match(/"temperature"\]/g)?.length ?? 0).toBeGreaterThanOrEqual(2);
+    });
   });
 });
 
@@ -107,6 +119,13 @@ describe("templates run through the tslab kernel", () => {
     const failed = derivations.flatMap((d) => d.checks.filter((c) => !c.passed).map((c) => `${d.title}: ${c.title}`));
     expect(failed).toEqual([]);
     expect(derivations.reduce((n, d) => n + d.checks.length, 0)).toBeGreaterThan(0);
+    // The tolerance section ran its corners and recorded the saturation and drain-current checks.
+    const tolerance = derivations.find((d) => d.title.startsWith("Tolerances and temperature"));
+    expect(tolerance, "a derivation titled Tolerances and temperature").toBeDefined();
+    const tolChecks = tolerance!.checks.map((c) => c.title);
+    expect(tolChecks.some((t) => /^Saturation margin in every case/.test(t))).toBe(true);
+    expect(tolChecks.some((t) => /^Drain current within ±[\d.]+ % of nominal in every case/.test(t))).toBe(true);
+    expect(tolChecks.some((t) => /^No corner out of saturation/.test(t))).toBe(true);
     const output = plots.find((p) => p.kind === "output-characteristics");
     expect(output).toBeDefined();
     const roles = output!.figure.data.map((t) => t.meta?.role);
