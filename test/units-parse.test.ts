@@ -83,6 +83,17 @@ describe("parseQuantity: accepted spellings, exact SI values", () => {
   });
 });
 
+describe("ratios written with %, ‰ or ppm (common practice)", () => {
+  it("read as plain ratios, in dimensionless inputs only", () => {
+    expect(parseQuantity("20 %", "dimensionless")).toBe(0.2);
+    expect(parseQuantity("5%", "dimensionless")).toBe(0.05);
+    expect(parseQuantity("2 ‰", "dimensionless")).toBe(0.002);
+    expect(parseQuantity("50 ppm", "dimensionless")).toBe(5e-5);
+    expect(parseAny("20 %")).toEqual({ value: 0.2, dim: "dimensionless" });
+    expect(() => parseQuantity("20 %", "voltage", "VT0_SPREAD")).toThrow(/VT0_SPREAD: got "20 %", expected a voltage in V/);
+  });
+});
+
 describe("SPICE scale factors (ngspice manual, 'scale factors'; values checked against ngspice in units-spice-number.test.ts)", () => {
   const accepted: Array<[string, Dimension, number]> = [
     ["4.7k", "resistance", 4700],

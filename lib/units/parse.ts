@@ -156,7 +156,12 @@ function readUnitWithEngine(math: MathJsInstance, unitText: string): UnitReading
 }
 
 /** Read a unit text, trying a leading SPICE scale factor when mathjs does not know it. */
+/** Ratios written with a sign mathjs does not read (common practice). */
+const ratioSigns: Readonly<Record<string, number>> = { "%": 1e-2, "‰": 1e-3, ppm: 1e-6 };
+
 function readUnit(unitText: string): UnitReading | string {
+  const ratio = ratioSigns[unitText];
+  if (ratio !== undefined) return { factor: ratio, candidates: ["dimensionless"], names: "", siText: "", text: unitText };
   const cached = readings.get(unitText);
   if (cached !== undefined) return cached;
   const math = unitEngine();
