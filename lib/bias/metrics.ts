@@ -142,8 +142,8 @@ export function stageMetrics(s: SolvedStage, pDev: number, pTotal: number, rec?:
   const lim = s.stage.limits ?? {};
   const checks: StageCheck[] = [];
   const found: Array<[Severity, string]> = [];
-  const pol = s.sign < 0 ? { gs: "VSG", ds: "VSD" } : { gs: "VGS", ds: "VDS" };
-  checks.push(check(`Overdrive ${pol.gs} − |Vt|`, s.vov, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the device must be on"));
+  const pol = s.sign < 0 ? { gs: "VSG", ds: "VSD", vt: "|Vt|" } : { gs: "VGS", ds: "VDS", vt: "Vt" };
+  checks.push(check(`Overdrive ${pol.gs} − ${pol.vt}`, s.vov, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the device must be on"));
   if (s.vov > 0) {
     const m = calc(bf.saturationMargin, [s.vds as Volts, s.vov as Volts], rec, "margin to the triode edge");
     checks.push(check(`Saturation margin ${pol.ds} − VOV`, m, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec));
@@ -151,7 +151,7 @@ export function stageMetrics(s: SolvedStage, pDev: number, pTotal: number, rec?:
     else if (m < near) found.push(["caution", `Saturation margin is only ${r(m)} V: tolerances or temperature may push the device into triode.`]);
     if (s.vov < near) found.push(["caution", `Overdrive is only ${r(s.vov)} V: the device is near weak inversion, where the square law overstates the current (common practice).`]);
   } else {
-    found.push(["warning", `The device is in cutoff: ${pol.gs} − |Vt| = ${r(s.vov)} V ≤ 0, so no channel forms and ID = 0 (subthreshold leakage not modelled). Raise the gate drive or lower |Vt| to turn it on.`]);
+    found.push(["warning", `The device is in cutoff: ${pol.gs} − ${pol.vt} = ${r(s.vov)} V ≤ 0, so no channel forms and ID = 0 (subthreshold leakage not modelled). Raise the gate drive or lower |Vt| to turn it on.`]);
   }
   if (lim.maxDevicePower !== undefined) checks.push(check("Transistor dissipation", pDev, "power", { max: lim.maxDevicePower }, rec));
   if (lim.maxTotalPower !== undefined) checks.push(check("Total supply power", pTotal, "power", { max: lim.maxTotalPower }, rec));

@@ -85,7 +85,7 @@ const isDerivationLike = (x: unknown): x is Derivation | DerivationData =>
 export function derivationBundle(d: Derivation | DerivationData, opts: ShowOptions = {}): MimeBundle {
   if (!isDerivationLike(d)) throw new InputError(d, "a Derivation or its toJSON() data", "show");
   const data = toData(d);
-  const o: ShowOptions = { math: "mathml", ...opts };
+  const o: ShowOptions = { math: "mathml", celsius: true, ...opts };
   return {
     "text/html": `${style}${renderHtmlFragment(data, o)}`,
     "text/markdown": renderMarkdown(data, o),
@@ -104,7 +104,7 @@ function checkRow(r: QuantityRow, origin: string): QuantityRow {
 /** The MIME bundle for a small table of named quantities. */
 export function tableBundle(rows: readonly QuantityRow[], title?: string, opts: FormatOptions = {}): MimeBundle {
   rows.forEach((r, i) => checkRow(r, `table row ${i + 1}`));
-  const shown = rows.map((r) => [r.name, formatQuantity(r.value, r.dim, { ...opts, origin: r.name }), r.note ?? ""] as const);
+  const shown = rows.map((r) => [r.name, formatQuantity(r.value, r.dim, { celsius: true, ...opts, origin: r.name }), r.note ?? ""] as const);
   const hasNote = rows.some((r) => r.note);
   const head = hasNote ? ["quantity", "value", "note"] : ["quantity", "value"];
   const cut = (r: readonly string[]) => (hasNote ? r : r.slice(0, 2));
@@ -119,7 +119,7 @@ export function tableBundle(rows: readonly QuantityRow[], title?: string, opts: 
 /** The MIME bundle for one named quantity: `ID = 81.0 µA`. */
 export function quantityBundle(value: number, dim: Dimension, name?: string, opts: FormatOptions = {}): MimeBundle {
   checkRow({ name: name ?? "value", value, dim }, "quantity");
-  const v = formatQuantity(value, dim, { ...opts, origin: name ?? "quantity" });
+  const v = formatQuantity(value, dim, { celsius: true, ...opts, origin: name ?? "quantity" });
   const text = name ? `${name} = ${v}` : v;
   return {
     "text/html": `<span class="pinchoff" style="font-variant-numeric:tabular-nums">${name ? `<b>${escapeHtml(name)}</b> = ` : ""}${escapeHtml(v)}</span>`,

@@ -25,6 +25,7 @@ export const pinchoffCss = `
 .pinchoff ol.po-steps>li{counter-increment:po-step;position:relative;padding:.35rem 0 .5rem 2.4rem;border-left:2px solid var(--po-rule);margin-left:.8rem}
 .pinchoff ol.po-steps>li::before{content:counter(po-step);position:absolute;left:-.8rem;top:.35rem;width:1.5rem;height:1.5rem;border-radius:50%;background:#fff;border:2px solid var(--po-accent);color:var(--po-accent);font-size:.75rem;font-weight:700;text-align:center;line-height:1.35rem}
 .pinchoff ol.po-steps>li.po-note::before{border-color:var(--po-rule);color:var(--po-muted)}
+.pinchoff li.po-note>p{white-space:pre-line}
 .pinchoff .po-step-title{font-weight:600}
 .pinchoff .po-because{color:var(--po-muted);font-style:italic;margin-left:.4rem;font-weight:400}
 .pinchoff .po-eq{margin:.15rem 0;overflow-x:auto;overflow-y:hidden}

@@ -6,7 +6,7 @@
 import type { DerivationData } from "../record/derivation.js";
 import { htmlStyles, renderHtmlFragment } from "../record/render.js";
 
-export const renderDerivationHtml = (d: DerivationData): string => renderHtmlFragment(d, { omitCautions: true });
+export const renderDerivationHtml = (d: DerivationData): string => renderHtmlFragment(d, { omitCautions: true, celsius: true });
 
 /** The <style> elements the derivation markup needs, once per report (KaTeX's with inlined fonts, and the record's). */
 export const formulaStyles = (): string => htmlStyles({ katex: true });

@@ -51,7 +51,7 @@ export interface ReportModel {
 
 
 const esc = (s: unknown): string => escapeHtml(String(s));
-const q = (v: number | null | undefined, dim: Dimension): string => (typeof v === "number" && !Number.isNaN(v) ? formatQuantity(v, dim) : "—");
+const q = (v: number | null | undefined, dim: Dimension): string => (typeof v === "number" && !Number.isNaN(v) ? formatQuantity(v, dim, { celsius: true }) : "—");
 
 /** JSON inside a <script type="application/json"> block: no "<" survives, so no tag can close it. */
 
