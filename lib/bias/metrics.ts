@@ -9,7 +9,7 @@
  */
 import * as bf from "../formulas/bias.formulas.js";
 import { dimensions, type Dimension, type Ohms, type Ratio, type Siemens, type Volts } from "../quantity.js";
-import type { Derivation, Severity } from "../record/derivation.js";
+import { checkMargin, type Derivation, type Severity } from "../record/derivation.js";
 import type { SolvedStage } from "./stage.js";
 import type { AmplifierMetrics, StageCheck, SwingLimits } from "./topology.js";
 
@@ -123,16 +123,10 @@ export function sourceSwing(s: SolvedStage, rec?: Derivation): SwingLimits {
   return toAbsolute(s, "source", s.sol.vs, Math.max(vmax, s.sol.vs), s.net.vsr, "triode edge VS = VD − VOV (overdrive held, common practice)", "source rail (device cut off)");
 }
 
-function check(name: string, value: number, dim: Dimension, bounds: { min?: number; max?: number }, rec?: Derivation, detail?: string): StageCheck {
-  if (rec) {
-    const e = rec.check(name, value, dim, bounds, detail);
-    return { name, passed: e.passed, value, unit: dimensions[dim].unit, ...bounds, margin: e.margin };
-  }
-  const margins: number[] = [];
-  if (bounds.min !== undefined) margins.push(value - bounds.min);
-  if (bounds.max !== undefined) margins.push(bounds.max - value);
-  const margin = margins.length ? Math.min(...margins) : 0;
-  return { name, passed: margin >= 0, value, unit: dimensions[dim].unit, ...bounds, margin };
+/** A pass/fail check with its margin, recorded when `rec` is given (the rule of Derivation.check). */
+export function stageCheck(name: string, value: number, dim: Dimension, bounds: { min?: number; max?: number }, rec?: Derivation, detail?: string): StageCheck {
+  const { passed, margin } = rec ? rec.check(name, value, dim, bounds, detail) : checkMargin(value, bounds);
+  return { name, passed, value, unit: dimensions[dim].unit, ...bounds, margin };
 }
 
 const near = 0.05; // V: closer than this to a region edge earns a caution (common practice)
@@ -143,21 +137,21 @@ export function stageMetrics(s: SolvedStage, pDev: number, pTotal: number, rec?:
   const checks: StageCheck[] = [];
   const found: Array<[Severity, string]> = [];
   const pol = s.sign < 0 ? { gs: "VSG", ds: "VSD", vt: "|Vt|" } : { gs: "VGS", ds: "VDS", vt: "Vt" };
-  checks.push(check(`Overdrive ${pol.gs} − ${pol.vt}`, s.vov, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the device must be on"));
+  checks.push(stageCheck(`Overdrive ${pol.gs} − ${pol.vt}`, s.vov, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the device must be on"));
   if (s.vov > 0) {
     const m = calc(bf.saturationMargin, [s.vds as Volts, s.vov as Volts], rec, "margin to the triode edge");
-    checks.push(check(`Saturation margin ${pol.ds} − VOV`, m, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec));
+    checks.push(stageCheck(`Saturation margin ${pol.ds} − VOV`, m, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec));
     if (m < 0) found.push(["warning", `The device is in triode: ${pol.ds} = ${r(s.vds)} V is below VOV = ${r(s.vov)} V by ${r(-m)} V; it acts as a voltage-controlled resistor, not an amplifier.`]);
     else if (m < near) found.push(["caution", `Saturation margin is only ${r(m)} V: tolerances or temperature may push the device into triode.`]);
     if (s.vov < near) found.push(["caution", `Overdrive is only ${r(s.vov)} V: the device is near weak inversion, where the square law overstates the current (common practice).`]);
   } else {
     found.push(["warning", `The device is in cutoff: ${pol.gs} − ${pol.vt} = ${r(s.vov)} V ≤ 0, so no channel forms and ID = 0 (subthreshold leakage not modelled). Raise the gate drive or lower |Vt| to turn it on.`]);
   }
-  if (lim.maxDevicePower !== undefined) checks.push(check("Transistor dissipation", pDev, "power", { max: lim.maxDevicePower }, rec));
-  if (lim.maxTotalPower !== undefined) checks.push(check("Total supply power", pTotal, "power", { max: lim.maxTotalPower }, rec));
+  if (lim.maxDevicePower !== undefined) checks.push(stageCheck("Transistor dissipation", pDev, "power", { max: lim.maxDevicePower }, rec));
+  if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", pTotal, "power", { max: lim.maxTotalPower }, rec));
   if (s.net.iss > 0) {
     const head = s.sol.vs - s.net.vsr;
-    checks.push(check("Current-source headroom (source node to its rail)", head, "voltage", { min: lim.minSourceHeadroom ?? 0 }, rec, "a real current source needs some voltage across it"));
+    checks.push(stageCheck("Current-source headroom (source node to its rail)", head, "voltage", { min: lim.minSourceHeadroom ?? 0 }, rec, "a real current source needs some voltage across it"));
     if (head < 0) found.push(["warning", `The source node sits ${r(-head)} V beyond the rail the current source returns to: a real current source cannot do that, so this ideal-source result is not realisable.`]);
     found.push(["note", "The bias current source is ideal (infinite output resistance, no compliance limit)."]);
   }

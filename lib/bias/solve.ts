@@ -162,7 +162,6 @@ function newtonResistive(n: BiasNetwork, out: NetworkSolution, origin: string): 
     return;
   }
   let x = startResistive(n, hi);
-  let step = hi;
   const fb = n.gateToDrain;
   const rail = n.bodyToRail && n.gamma !== 0;
   const sqPhi = Math.sqrt(n.phi);
@@ -197,7 +196,6 @@ function newtonResistive(n: BiasNetwork, out: NetworkSolution, origin: string): 
       return;
     }
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    step = Math.abs(next - x);
     x = next;
     if (hi - lo <= tol) {
       finishResistive(n, out, x, it, hi - lo);
@@ -265,7 +263,6 @@ function newtonFed(n: BiasNetwork, out: NetworkSolution, origin: string): void {
     if (++it > 80) throw new ConvergenceError(`no source voltage carries ISS = ${n.iss} A (searched down to ${lo} V)`, origin);
   }
   let x = 0.5 * (lo + hi);
-  let step = hi - lo;
   for (let k = 1; k <= maxIterations; k++) {
     const g = residualFed(n, x, vd);
     if (g !== g) throw new ConvergenceError(`the residual is not a number at VS = ${x} V (check the network values)`, origin);
@@ -284,7 +281,6 @@ function newtonFed(n: BiasNetwork, out: NetworkSolution, origin: string): void {
       return;
     }
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    step = Math.abs(next - x);
     x = next;
     if (hi - lo <= tol) {
       finishFed(n, out, x, vd, k, hi - lo);

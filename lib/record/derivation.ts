@@ -146,13 +146,10 @@ export class Derivation {
 
   /** A pass/fail check against bounds; margin is the distance to the nearest bound. */
   check(title: string, value: number, dim: Dimension, bounds: { min?: number; max?: number }, detail?: string): CheckEntry {
-    const margins: number[] = [];
-    if (bounds.min !== undefined) margins.push(value - bounds.min);
-    if (bounds.max !== undefined) margins.push(bounds.max - value);
-    const margin = margins.length ? Math.min(...margins) : 0;
+    const { passed, margin } = checkMargin(value, bounds);
     const entry: CheckEntry = {
       title,
-      passed: Number.isFinite(value) ? margin >= 0 : value === Infinity ? bounds.max === undefined : bounds.min === undefined,
+      passed,
       value,
       dim,
       ...(bounds.min !== undefined ? { min: bounds.min } : {}),
@@ -197,6 +194,19 @@ export class Derivation {
       findings: this.findings,
     };
   }
+}
+
+/**
+ * The rule every check follows: the margin is the distance to the nearest bound
+ * (positive inside), and an infinite value passes only where it has no bound on that side.
+ */
+export function checkMargin(value: number, bounds: { min?: number; max?: number }): { passed: boolean; margin: number } {
+  const margins: number[] = [];
+  if (bounds.min !== undefined) margins.push(value - bounds.min);
+  if (bounds.max !== undefined) margins.push(bounds.max - value);
+  const margin = margins.length ? Math.min(...margins) : 0;
+  const passed = Number.isFinite(value) ? margin >= 0 : value === Infinity ? bounds.max === undefined : bounds.min === undefined;
+  return { passed, margin };
 }
 
 /** SI unit string for a dimension (for renderers and the unit parser). */

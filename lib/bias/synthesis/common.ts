@@ -16,7 +16,7 @@ import type { DeviceCard } from "../../device/card.js";
 import { polaritySign } from "../../device/card.js";
 import type { ModelOptions } from "../../device/drain-current.js";
 import { InputError, requirePositive } from "../../errors.js";
-import type { Amperes, Meters, Ohms, Ratio, Volts } from "../../quantity.js";
+import type { Amperes, Meters, Ratio, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
 import type { Formula } from "../../formulas/define.js";
 import type { DissipationLimits, DissipationReport } from "../dissipation.js";

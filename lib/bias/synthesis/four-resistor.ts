@@ -7,7 +7,7 @@
 import { InputError } from "../../errors.js";
 import { sourceResistorForDrop } from "../../formulas/synthesis.formulas.js";
 import type { Derivation } from "../../record/derivation.js";
-import type { Ohms, Volts } from "../../quantity.js";
+import type { Volts } from "../../quantity.js";
 import type { FourResistorComponents } from "../topology.js";
 import { checkSpecBase, deviceRails, evaluate, type SpecBase, type SynthesisResult } from "./common.js";
 import { checkPlanInputs, design, designDivider, finish, recordSpec, type CorePlan, type DividerTarget, type DrainTarget, type SourceBudget } from "./core.js";

@@ -8,10 +8,10 @@ import { defaultPhi, device as makeDevice, polaritySign, type Device, type Devic
 import type { ClmMode } from "../../device/drain-current.js";
 import { smallSignal, type SmallSignal } from "../../device/small-signal.js";
 import { InputError } from "../../errors.js";
-import { dimensions, type Dimension, type Volts, type Watts } from "../../quantity.js";
+import type { Volts, Watts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
 import { spiceNumber } from "../spice.js";
-import type { Stage, StageCheck, StageDeviceAnalysis, SwingLimits } from "../topology.js";
+import type { Stage, StageDeviceAnalysis, SwingLimits } from "../topology.js";
 
 export const stageOrigin = (stage: Stage<string, unknown>): string => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -86,18 +86,7 @@ export function evaluateDevice(dev: Device, t: Terminals, clm: ClmMode, power: n
   };
 }
 
-/** A pass/fail check with its margin, recorded when `rec` is given (same rule as Derivation.check). */
-export function stageCheck(name: string, value: number, dim: Dimension, bounds: { min?: number; max?: number }, rec?: Derivation, detail?: string): StageCheck {
-  if (rec) {
-    const e = rec.check(name, value, dim, bounds, detail);
-    return { name, passed: e.passed, value, unit: dimensions[dim].unit, ...bounds, margin: e.margin };
-  }
-  const margins: number[] = [];
-  if (bounds.min !== undefined) margins.push(value - bounds.min);
-  if (bounds.max !== undefined) margins.push(bounds.max - value);
-  const margin = margins.length ? Math.min(...margins) : 0;
-  return { name, passed: margin >= 0, value, unit: dimensions[dim].unit, ...bounds, margin };
-}
+export { stageCheck } from "../metrics.js";
 
 /** Swing limits given in device polarity, returned in absolute volts (a PMOS flips upper and lower). */
 export function swingInVolts(sign: 1 | -1, node: string, uq: number, uUp: number, uLo: number, upWhy: string, loWhy: string): SwingLimits {
