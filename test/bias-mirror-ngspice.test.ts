@@ -17,22 +17,8 @@ import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { regionOf, type Region } from "../lib/device/region.js";
 import { InfeasibleError } from "../lib/errors.js";
 import { runNgspice } from "./support/ngspice.js";
+import { cardArb, logUniform, maybeZero, uniform, unit } from "./support/arbitraries.js";
 
-const unit = fc.noBias(fc.integer({ min: 0, max: 1 << 30 })).map((i) => i / (1 << 30));
-const uniform = (lo: number, hi: number) => unit.map((x) => lo + x * (hi - lo));
-const logUniform = (lo: number, hi: number) => uniform(Math.log(lo), Math.log(hi)).map(Math.exp);
-const maybeZero = (arb: fc.Arbitrary<number>, pZero: number) => fc.tuple(unit, arb).map(([u, v]) => (u < pZero ? 0 : v));
-
-const cardArb = (polarity: Polarity, name: string): fc.Arbitrary<DeviceCard> =>
-  fc
-    .record({
-      kp: polarity === "nmos" ? logUniform(50e-6, 300e-6) : logUniform(20e-6, 120e-6),
-      vt: uniform(0.3, 1.2),
-      lambda: maybeZero(uniform(0.005, 0.15), 0.3),
-      gamma: maybeZero(uniform(0.1, 0.8), 0.3),
-      phi: uniform(0.55, 0.9),
-    })
-    .map((r) => ({ name, polarity, kp: r.kp, vt0: polarity === "nmos" ? r.vt : -r.vt, lambda: r.lambda, gamma: r.gamma, phi: r.phi }) as DeviceCard);
 
 /** One card for both (matched pair) in 80 % of draws; otherwise the output transistor gets its own card (its threshold may exceed the mirror's VGS: cutoff). */
 function mirrorArb(polarity: Polarity): fc.Arbitrary<Stage> {

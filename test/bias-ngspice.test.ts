@@ -13,23 +13,9 @@ import type { BodyTie, Stage } from "../lib/bias/topology.js";
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { regionOf, type Region } from "../lib/device/region.js";
 import { runNgspice } from "./support/ngspice.js";
+import { cardArb, logUniform, maybeZero, uniform, unit } from "./support/arbitraries.js";
 
 // Uniform draws without fast-check's bias towards the ends of a range (realistic values, not edge cases).
-const unit = fc.noBias(fc.integer({ min: 0, max: 1 << 30 })).map((i) => i / (1 << 30));
-const uniform = (lo: number, hi: number) => unit.map((x) => lo + x * (hi - lo));
-const logUniform = (lo: number, hi: number) => uniform(Math.log(lo), Math.log(hi)).map(Math.exp);
-const maybeZero = (arb: fc.Arbitrary<number>, pZero: number) => fc.tuple(unit, arb).map(([u, v]) => (u < pZero ? 0 : v));
-
-const cardArb = (polarity: Polarity): fc.Arbitrary<DeviceCard> =>
-  fc
-    .record({
-      kp: polarity === "nmos" ? logUniform(50e-6, 300e-6) : logUniform(20e-6, 120e-6),
-      vt: uniform(0.3, 1.2),
-      lambda: maybeZero(uniform(0.005, 0.15), 0.3),
-      gamma: maybeZero(uniform(0.1, 0.8), 0.3),
-      phi: uniform(0.55, 0.9),
-    })
-    .map((r) => ({ name: `rand-${polarity}`, polarity, kp: r.kp, vt0: polarity === "nmos" ? r.vt : -r.vt, lambda: r.lambda, gamma: r.gamma, phi: r.phi }) as DeviceCard);
 
 const resistor = logUniform(100, 1e6);
 
