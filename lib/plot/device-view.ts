@@ -3,7 +3,7 @@
  * (magnitudes VSG, VSD, source→drain current for a PMOS), so one set of figure
  * builders serves both polarities. Numbers come from lib/device.
  */
-import { InputError, requireFinite } from "../errors.js";
+import { InputError, requireFinite, requireNonNegative } from "../errors.js";
 import { defaultPhi, polaritySign, type Device } from "../device/card.js";
 import { drainCurrent, type ClmMode, type OperatingPoint } from "../device/drain-current.js";
 import { thresholdMagnitude } from "../device/threshold.js";
@@ -76,3 +76,29 @@ export function deviceView(dev: Device, vsb: number, clm: ClmMode, origin: strin
 /** Plain-text symbol names for summaries. */
 export const plainSym = (v: DeviceView) =>
   v.pmos ? { vgs: "VSG", vds: "VSD", id: "|ID|", vt: "|Vt|" } : { vgs: "VGS", vds: "VDS", id: "ID", vt: "Vt" };
+
+/** What every device sweep takes besides its own range. */
+export interface SweepOptions {
+  readonly points?: number;
+  /** Source-body voltage (device polarity); the operating point's when omitted, else 0. */
+  readonly vsb?: number;
+  readonly clm?: ClmMode;
+  /** Drawn as a marker. */
+  readonly operatingPoint?: PlotPoint | OperatingPoint;
+  readonly title?: string;
+}
+
+/** Check a sweep's options object and set up the device view (and the operating point, when given). */
+export function sweepSetup(dev: Device, opts: SweepOptions, expected: string, origin: string): { op: PlotPoint | undefined; v: DeviceView; ps: ReturnType<typeof plainSym> } {
+  if (!opts || typeof opts !== "object") throw new InputError(opts, expected, origin);
+  const op = opts.operatingPoint ? plotPoint(opts.operatingPoint, `${origin}.operatingPoint`) : undefined;
+  const v = deviceView(dev, opts.vsb ?? op?.vsb ?? 0, opts.clm ?? "continuous", origin);
+  return { op, v, ps: plainSym(v) };
+}
+
+/** The fixed VDS of a sweep against the gate drive: given, or the operating point's. */
+export function fixedVds(vds: number | undefined, op: PlotPoint | undefined, ps: ReturnType<typeof plainSym>, origin: string): number {
+  const x = vds ?? op?.vds;
+  if (x === undefined) throw new InputError(x, `a fixed ${ps.vds} in V (or an operating point to take it from)`, `${origin}.vds`);
+  return requireNonNegative(x, `${origin}.vds`, `a fixed ${ps.vds} ≥ 0 V in the device's polarity`);
+}

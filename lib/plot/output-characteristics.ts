@@ -5,10 +5,10 @@
  */
 import { InputError, requireFinite, requirePositive } from "../errors.js";
 import type { Device } from "../device/card.js";
-import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
+import type { ClmMode } from "../device/drain-current.js";
 import { regionOf } from "../device/region.js";
 import { formatQuantity } from "../units/format.js";
-import { deviceView, plainSym, plotPoint, type PlotPoint } from "./device-view.js";
+import { deviceView, sweepSetup, type SweepOptions } from "./device-view.js";
 import {
   axisInfo,
   axisTitle,
@@ -39,29 +39,19 @@ export interface LoadCurve {
   readonly label: string;
 }
 
-export interface OutputCharacteristicsOptions {
+export interface OutputCharacteristicsOptions extends SweepOptions {
   /** Gate drives in the device's own polarity (VGS for NMOS, VSG for PMOS), in V. */
   readonly gateDrives: readonly number[];
   /** Right end of the VDS sweep (device polarity), in V. */
   readonly vdsMax: number;
-  readonly points?: number;
-  /** Source-body voltage (device polarity); the operating point's when omitted, else 0. */
-  readonly vsb?: number;
-  readonly clm?: ClmMode;
   readonly loadLine?: LoadLine;
   readonly loadCurve?: LoadCurve;
-  /** Drawn as a marker; its gate drive gets its own highlighted curve. */
-  readonly operatingPoint?: PlotPoint | OperatingPoint;
-  readonly title?: string;
 }
 
 const origin = "outputCharacteristics";
 
 export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOptions): PlotSpec {
-  if (!opts || typeof opts !== "object") throw new InputError(opts, "options { gateDrives, vdsMax, … }", origin);
-  const op = opts.operatingPoint ? plotPoint(opts.operatingPoint, `${origin}.operatingPoint`) : undefined;
-  const v = deviceView(dev, opts.vsb ?? op?.vsb ?? 0, opts.clm ?? "continuous", origin);
-  const ps = plainSym(v);
+  const { op, v, ps } = sweepSetup(dev, opts, "options { gateDrives, vdsMax, … }", origin);
   if (!Array.isArray(opts.gateDrives) || opts.gateDrives.length === 0 || opts.gateDrives.length > 12)
     throw new InputError(opts.gateDrives, "a list of 1 to 12 gate drives in V", `${origin}.gateDrives`);
   opts.gateDrives.forEach((g, i) => requireFinite(g, `${origin}.gateDrives[${i}]`, "a finite gate drive in V"));

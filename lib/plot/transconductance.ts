@@ -2,17 +2,17 @@
  * gm and gm/ID against overdrive at a fixed VDS: the sizing view. Square law
  * only, so gm/ID grows without bound as VOV → 0; the summary says so.
  */
-import { InputError, requireNonNegative, requirePositive } from "../errors.js";
+import { requirePositive } from "../errors.js";
 import type { Device } from "../device/card.js";
-import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
+import type { ClmMode } from "../device/drain-current.js";
 import { regionOf } from "../device/region.js";
 import { transconductanceEfficiency, transconductanceSat, transconductanceTriode } from "../formulas/device.formulas.js";
 import { thermalVoltage, type AmperesPerVoltSquared, type Amperes, type Kelvin, type PerVolt, type Siemens, type Volts } from "../quantity.js";
 import { formatQuantity } from "../units/format.js";
-import { deviceView, plainSym, plotPoint, type PlotPoint } from "./device-view.js";
+import { fixedVds, sweepSetup, type SweepOptions } from "./device-view.js";
 import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
 
-export interface TransconductanceOptions {
+export interface TransconductanceOptions extends SweepOptions {
   /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
   readonly vds?: number;
   /** Subthreshold slope factor n for the weak-inversion ceiling line 1/(n·UT); 1.5 unless told (typical, from memory). */
@@ -22,11 +22,6 @@ export interface TransconductanceOptions {
   /** Overdrive sweep, in V; vovMin defaults to vovMax/20 (gm/ID = 2/VOV is unbounded at 0). */
   readonly vovMin?: number;
   readonly vovMax: number;
-  readonly points?: number;
-  readonly vsb?: number;
-  readonly clm?: ClmMode;
-  readonly operatingPoint?: PlotPoint | OperatingPoint;
-  readonly title?: string;
 }
 
 const origin = "transconductancePlot";
@@ -40,13 +35,8 @@ function gmAt(k: number, vov: number, vds: number, lambda: number, clm: ClmMode)
 }
 
 export function transconductancePlot(dev: Device, opts: TransconductanceOptions): PlotSpec {
-  if (!opts || typeof opts !== "object") throw new InputError(opts, "options { vovMax, vds or operatingPoint, … }", origin);
-  const op = opts.operatingPoint ? plotPoint(opts.operatingPoint, `${origin}.operatingPoint`) : undefined;
-  const v = deviceView(dev, opts.vsb ?? op?.vsb ?? 0, opts.clm ?? "continuous", origin);
-  const ps = plainSym(v);
-  const vds = opts.vds ?? op?.vds;
-  if (vds === undefined) throw new InputError(vds, `a fixed ${ps.vds} in V (or an operating point to take it from)`, `${origin}.vds`);
-  requireNonNegative(vds, `${origin}.vds`, `a fixed ${ps.vds} ≥ 0 V in the device's polarity`);
+  const { op, v, ps } = sweepSetup(dev, opts, "options { vovMax, vds or operatingPoint, … }", origin);
+  const vds = fixedVds(opts.vds, op, ps, origin);
   requirePositive(opts.vovMax, `${origin}.vovMax`, "the largest overdrive to plot, > 0 V");
   const from = opts.vovMin ?? opts.vovMax / 20;
   requirePositive(from, `${origin}.vovMin`, "a smallest overdrive > 0 V (gm/ID = 2/VOV is unbounded at 0)");

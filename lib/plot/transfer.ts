@@ -2,37 +2,26 @@
  * Transfer characteristic: ID against the gate drive at a fixed VDS, with the
  * threshold and the operating point marked.
  */
-import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
+import { InputError, requireFinite, requirePositive } from "../errors.js";
 import type { Device } from "../device/card.js";
-import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
 import { regionOf } from "../device/region.js";
 import { formatQuantity } from "../units/format.js";
-import { deviceView, plainSym, plotPoint, type PlotPoint } from "./device-view.js";
+import { fixedVds, sweepSetup, type SweepOptions } from "./device-view.js";
 import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
 
-export interface TransferOptions {
+export interface TransferOptions extends SweepOptions {
   /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
   readonly vds?: number;
   /** Gate-drive sweep (device polarity), in V; from 0 unless told. */
   readonly vgsMin?: number;
   readonly vgsMax: number;
-  readonly points?: number;
-  readonly vsb?: number;
-  readonly clm?: ClmMode;
-  readonly operatingPoint?: PlotPoint | OperatingPoint;
-  readonly title?: string;
 }
 
 const origin = "transferCharacteristic";
 
 export function transferCharacteristic(dev: Device, opts: TransferOptions): PlotSpec {
-  if (!opts || typeof opts !== "object") throw new InputError(opts, "options { vgsMax, vds or operatingPoint, … }", origin);
-  const op = opts.operatingPoint ? plotPoint(opts.operatingPoint, `${origin}.operatingPoint`) : undefined;
-  const v = deviceView(dev, opts.vsb ?? op?.vsb ?? 0, opts.clm ?? "continuous", origin);
-  const ps = plainSym(v);
-  const vds = opts.vds ?? op?.vds;
-  if (vds === undefined) throw new InputError(vds, `a fixed ${ps.vds} in V (or an operating point to take it from)`, `${origin}.vds`);
-  requireNonNegative(vds, `${origin}.vds`, `a fixed ${ps.vds} ≥ 0 V in the device's polarity`);
+  const { op, v, ps } = sweepSetup(dev, opts, "options { vgsMax, vds or operatingPoint, … }", origin);
+  const vds = fixedVds(opts.vds, op, ps, origin);
   requirePositive(opts.vgsMax, `${origin}.vgsMax`, `the largest ${ps.vgs} to plot, > 0 V`);
   const from = opts.vgsMin ?? 0;
   requireFinite(from, `${origin}.vgsMin`);
