@@ -48,10 +48,10 @@ describe("declarations under TypeScript 5.0.4", () => {
     const r = compile(header);
     expect(r.out).toBe("");
     expect(r.status).toBe(0);
-  });
+  }, 120_000);
   it("still reject a current passed as a voltage", () => {
     const r = compile(`${header}core.operatingPoint(m, { vgs: op.id, vds: core.volts(1) });\n`);
     expect(r.status).not.toBe(0);
     expect(r.out).toMatch(/Type 'Amperes' is not assignable to type 'Volts'/);
-  });
+  }, 120_000);
 });
