@@ -146,11 +146,12 @@ describe("gm and gm/ID", () => {
     expect(pts[1]!.y[0]!).toBeCloseTo(2 / 0.4, 3);
     expect(() => transconductancePlot(mn, { vds: 1, vovMax: 0.5, vovMin: 0 })).toThrow(/vovMin/);
   });
-  it("draws the weak-inversion ceiling 1/(n·UT): 25.8 S/A for n = 1.5 at 300 K (kT/q from the CODATA 2018 exact constants)", () => {
-    const s = transconductancePlot(mn, { vds: 2, vovMax: 0.5 });
+  it("draws the weak-inversion ceiling 1/(n·UT): 25.8 S/A for n = 1.5 at 300 K (kT/q from the CODATA 2018 exact constants), n = 1.3 by default as in the inversion check", () => {
+    const s = transconductancePlot(mn, { vds: 2, vovMax: 0.5, slopeFactor: 1.5 });
     const line = role(s, "threshold")[0]!;
     expect(line.yaxis).toBe("y2");
     near(line.meta!.gmOverIdCeiling as number, 1 / (1.5 * 0.025852), 1e-4);
+    near(role(transconductancePlot(mn, { vds: 2, vovMax: 0.5 }), "threshold")[0]!.meta!.gmOverIdCeiling as number, 1 / (1.3 * 0.025852), 1e-4);
     expect(() => transconductancePlot(mn, { vds: 2, vovMax: 0.5, slopeFactor: 0 })).toThrow(/slopeFactor/);
   });
 });

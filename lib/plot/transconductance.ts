@@ -5,6 +5,7 @@
 import { requirePositive } from "../errors.js";
 import type { Device } from "../device/card.js";
 import type { ClmMode } from "../device/drain-current.js";
+import { defaultSlopeFactor } from "../device/inversion.js";
 import { regionOf } from "../device/region.js";
 import { transconductanceEfficiency, transconductanceSat, transconductanceTriode } from "../formulas/device.formulas.js";
 import { thermalVoltage, type AmperesPerVoltSquared, type Amperes, type Kelvin, type PerVolt, type Siemens, type Volts } from "../quantity.js";
@@ -15,7 +16,7 @@ import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scale
 export interface TransconductanceOptions extends SweepOptions {
   /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
   readonly vds?: number;
-  /** Subthreshold slope factor n for the weak-inversion ceiling line 1/(n·UT); 1.5 unless told (typical, from memory). */
+  /** Subthreshold slope factor n for the weak-inversion ceiling line 1/(n·UT); the device model's default (defaultSlopeFactor) unless told. */
   readonly slopeFactor?: number;
   /** Device temperature for UT = kT/q; 300 K unless told. */
   readonly temperature?: number;
@@ -69,7 +70,7 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
     },
   ];
   // Where the square law's gm/ID = 2/VOV stops meaning anything: weak inversion caps gm/ID near 1/(n·UT).
-  const n = opts.slopeFactor ?? 1.5;
+  const n = opts.slopeFactor ?? defaultSlopeFactor;
   requirePositive(n, `${origin}.slopeFactor`, "a subthreshold slope factor n > 0 (typically 1.2 to 1.6)");
   const ceiling = 1 / (n * thermalVoltage(requirePositive(opts.temperature ?? 300, `${origin}.temperature`, "a temperature > 0 K") as Kelvin));
   data.push({
