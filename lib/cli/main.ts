@@ -15,7 +15,7 @@ export const commands: Record<string, Command> = {
   kernel: { summary: "register the TypeScript kernel for Jupyter", load: () => import("./kernel.js") },
   notebook: { summary: "open the Jupyter Notebook UI on the templates (127.0.0.1)", load: () => import("./notebook.js") },
   demo: { summary: "run the demo template and print its report's path", load: () => import("./demo.js") },
-  op: { summary: "solve a bias stage's operating point from a design file; print JSON", load: () => import("./op.js") },
+  op: { summary: "solve a design file's operating point (or design it from its specification); print JSON", load: () => import("./op.js") },
 };
 
 function usage(): string {
