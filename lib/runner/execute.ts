@@ -58,8 +58,16 @@ export function jupyterEnv(env: NodeJS.ProcessEnv = process.env): NodeJS.Process
 
 /** The kernel spec is registered and notebook cells staged under the package can import "pinchoff". */
 export function requireKernel(): void {
-  if (!existsSync(join(kernelDataDir, "kernels", kernelName, "kernel.json")))
-    throw new PinchoffError("io", `the tslab kernel is not registered in ${kernelDataDir}; run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
+  const spec = join(kernelDataDir, "kernels", kernelName, "kernel.json");
+  if (!existsSync(spec)) throw new PinchoffError("io", `the tslab kernel is not registered in ${kernelDataDir}; run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
+  let binary: unknown;
+  try {
+    binary = (JSON.parse(readFileSync(spec, "utf8")) as { argv?: unknown[] }).argv?.[0];
+  } catch {
+    /* reported below */
+  }
+  if (typeof binary !== "string" || !existsSync(binary))
+    throw new PinchoffError("io", `the kernel spec ${spec} names a tslab that does not exist (${String(binary)}; was the checkout moved?); run pinchoff kernel (or node lib/setup/prepare.mjs kernel)`, "kernel");
   try {
     // Resolution as tslab does it: node_modules folders from the staging area upward.
     createRequire(join(stagingRoot, "notebook.js")).resolve("pinchoff/package.json");

@@ -4,7 +4,7 @@
 // and the project-local tslab kernel. Plain JavaScript: it runs before npm ci.
 //   node lib/setup/prepare.mjs [npm] [build] [ngspice] [jupyter] [chromium] [kernel]
 import { execFileSync, spawnSync } from "node:child_process";
-import { existsSync, mkdirSync, statSync, readdirSync, symlinkSync, lstatSync } from "node:fs";
+import { existsSync, mkdirSync, readFileSync, statSync, readdirSync, symlinkSync, lstatSync } from "node:fs";
 import { dirname, join, resolve } from "node:path";
 import { fileURLToPath } from "node:url";
 
@@ -70,7 +70,10 @@ const steps = {
   kernel() {
     const prefix = join(root, ".kernel");
     const spec = join(prefix, "share/jupyter/kernels/tslab/kernel.json");
-    if (!existsSync(spec)) {
+    // A spec written for another checkout (moved or copied) names a tslab that is not this one's.
+    let current = false;
+    try { current = JSON.parse(readFileSync(spec, "utf8")).argv?.[0] === join(root, "node_modules/.bin/tslab"); } catch { /* absent or unreadable */ }
+    if (!current) {
       say("registering the tslab TypeScript kernel in .kernel/ (project-local)");
       mkdirSync(prefix, { recursive: true });
       run(join(root, "node_modules/.bin/tslab"), ["install", "--python=/usr/bin/python3", `--binary=${join(root, "node_modules/.bin/tslab")}`, `--prefix=${prefix}`]);
