@@ -18,18 +18,18 @@ export { Derivation, unitOf, derivationSchemaVersion } from "./record/derivation
 export type * from "./record/derivation.js";
 export type { Formula, FormulaSpec, SymbolSpec } from "./formulas/define.js";
 export * as deviceFormulas from "./formulas/device.formulas.js";
-// Bias networks (added for the notebook templates; the bias module may widen this).
+// Bias networks: topologies, solver, SPICE export, standard values, synthesis, tolerance, dissipation.
 export * from "./bias/topology.js";
 export * from "./bias/analyze.js";
 export { solveNetwork, newSolution, hasClosedForm, type BiasNetwork, type NetworkSolution } from "./bias/solve.js";
 export { spiceNumber, deckText } from "./bias/spice.js";
 export * as biasFormulas from "./formulas/bias.formulas.js";
-export * from "./bias/synthesis/four-resistor.js";
 export * from "./bias/eseries.js";
 export { snapToSeries, maxCombinations, type SnapProblem, type SnapResult, type SnappedComponent, type SnapObjective } from "./bias/snap.js";
 export {
   synthesize,
   synthesisTopologies,
+  synthesizeFourResistor,
   synthesizeFixedGate,
   synthesizeDrainFeedback,
   synthesizeSourceFollower,
@@ -51,6 +51,8 @@ export {
   type DrainFeedbackSpec,
   type SourceFollowerSpec,
   type CurrentSourceBiasSpec,
+  type FourResistorSpec,
+  type FourResistorResult,
 } from "./bias/synthesis.js";
 export * from "./bias/tolerance.js";
 export * from "./bias/dissipation.js";
