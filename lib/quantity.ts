@@ -32,6 +32,8 @@ export const dimensions = {
   /** Transconductance efficiency gm/ID. */
   inverseVoltageEfficiency: { unit: "S/A", tex: "\\mathrm{S/A}", label: "transconductance efficiency" },
   dimensionless: { unit: "", tex: "", label: "dimensionless ratio" },
+  /** A number of things (cases, corners, iterations): shown without decimals when whole. */
+  count: { unit: "", tex: "", label: "count" },
 } as const;
 
 export type Dimension = keyof typeof dimensions;
@@ -58,6 +60,7 @@ export type Mobility = Quantity<"mobility">;
 export type Seconds = Quantity<"time">;
 export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
 export type Ratio = Quantity<"dimensionless">;
+export type Count = Quantity<"count">;
 
 /** Brand a plain SI number; the caller vouches for the unit. */
 export const volts = (v: number) => v as Volts;

@@ -78,6 +78,15 @@ describe("formatQuantity", () => {
   });
 });
 
+describe("counts", () => {
+  it("show whole counts whole and anything else with significant digits", () => {
+    expect(formatQuantity(23, "count")).toBe("23");
+    expect(formatQuantity(0, "count")).toBe("0");
+    expect(formatQuantity(192, "count")).toBe("192");
+    expect(formatQuantity(2.5, "count")).toBe("2.50");
+  });
+});
+
 describe("formatNumber and texQuantity", () => {
   it("writes plain ratios", () => {
     expect(formatNumber(0.02)).toBe("0.0200");

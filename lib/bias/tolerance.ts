@@ -278,7 +278,7 @@ function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation): voi
   // The margin spread covers only the cases that solved; count the others, so an unsolvable corner fails too.
   const out = r.failures.length + (r.nominal.ok ? 0 : 1);
   const first = r.failures[0];
-  rec.check("No corner out of saturation or unsolvable (count of such cases)", out, "dimensionless", { max: 0 },
+  rec.check("No corner out of saturation or unsolvable (count of such cases)", out, "count", { max: 0 },
     out === 0 ? `${r.cases.length} cases` : `first: ${first?.label ?? "nominal"}: ${first?.error ?? first?.region ?? r.nominal.region}`);
   if (!r.allInSaturation)
     rec.find(

@@ -34,6 +34,7 @@ const typeOfDim: Record<Dimension, string> = {
   time: "Seconds",
   inverseVoltageEfficiency: "SiemensPerAmpere",
   dimensionless: "Ratio",
+  count: "Count",
 };
 
 const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", exp: "Math.exp", log: "Math.log", abs: "Math.abs", max: "Math.max", min: "Math.min" };

@@ -50,6 +50,7 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   time: { text: "s", tex: "\\mathrm{s}", prefix: true },
   inverseVoltageEfficiency: { text: "S/A", tex: "\\mathrm{S/A}", prefix: false },
   dimensionless: { text: "", tex: "", prefix: false },
+  count: { text: "", tex: "", prefix: false },
 };
 
 /** SI prefixes by power of ten (SI Brochure, 9th edition, table 7). */
@@ -110,6 +111,8 @@ function split(value: number, dim: Dimension, opts: FormatOptions): Parts {
   const unit = displayUnits[dim];
   if (!unit) throw new InputError(dim, "a dimension from lib/quantity.ts", opts.origin ?? "format");
   const sign = value < 0 ? "-" : "";
+  // A whole count is shown whole: "23 cases", not "23.0".
+  if (dim === "count" && Number.isSafeInteger(value)) return { sign, digits: String(Math.abs(value)), exponent: 0, unitText: "", unitTex: "" };
   const scaled = Math.abs(value) * (unit.scale ?? 1);
   if (scaled === Infinity) return { sign, digits: "∞", exponent: 0, unitText: unit.text, unitTex: unit.tex };
   const s = significant(scaled, digits);
