@@ -89,6 +89,17 @@ describe("pinchoff op", () => {
     expect(readdirSync(dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
     expect(readFileSync(file, "utf8")).toBe(before);
   });
+  it("replaces its own earlier record, but never a file it did not write unless --force", async () => {
+    const file = write("stage4.json", design);
+    const out = join(dir, "again.md");
+    expect((await run([file, "--record", out])).code).toBe(0);
+    expect((await run([file, "--record", out])).code).toBe(0); // its own record: replaced
+    const notes = write("notes.md", "# my own notes\n");
+    await expect(run([file, "--record", notes])).rejects.toThrow(/notes\.md.*not written by pinchoff op/);
+    expect(readFileSync(notes, "utf8")).toBe("# my own notes\n");
+    expect((await run([file, "--record", notes, "--force"])).code).toBe(0);
+    expect(readFileSync(notes, "utf8")).toContain("written by pinchoff op");
+  });
   it("refuses to write the record over the design file", async () => {
     const file = write("stage3.json", design);
     const before = readFileSync(file, "utf8");

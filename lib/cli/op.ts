@@ -8,7 +8,7 @@
  * design file is never written.
  */
 import { randomBytes } from "node:crypto";
-import { realpathSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, readFileSync, realpathSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { basename, dirname, extname, join, resolve } from "node:path";
 import { parseArgs } from "node:util";
 import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
@@ -31,7 +31,9 @@ values chosen as a set from the series, the deviation from the specification
 and, under "operatingPoint", the operating point of the chosen stage.
 
   --record FILE   also write the derivation (the reasoning, every formula with
-                  its numbers) as HTML (.html) or Markdown (.md)
+                  its numbers) as HTML (.html) or Markdown (.md); an existing
+                  file is replaced only if an earlier pinchoff op wrote it
+  --force         replace an existing record file whatever wrote it
   -h, --help      this text
 
 Hand analysis is approximate: verify by simulation and measurement.`;
@@ -99,8 +101,20 @@ export function toJson(value: unknown): string {
   return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? (Number.isNaN(v) ? "NaN" : v > 0 ? "Infinity" : "-Infinity") : v), 2);
 }
 
-/** Write a file atomically next to its destination; never the protected path. */
-export function writeAtomic(path: string, text: string, protect: string[] = []): void {
+/** Marks a record file as written by `pinchoff op`, so a later run may replace it (and nothing else). */
+export const recordMarker = "written by pinchoff op";
+
+/** The record text with the marker: a generator meta tag in HTML, a comment at the end of Markdown. */
+export function markRecord(text: string, format: "html" | "md"): string {
+  return format === "html" ? text.replace(/<head>/i, `<head><meta name="generator" content="${recordMarker}">`) : `${text.trimEnd()}\n\n<!-- ${recordMarker} -->\n`;
+}
+
+/**
+ * Write a file atomically next to its destination; never the protected paths,
+ * and never over an existing file that an earlier `pinchoff op` did not write
+ * (unless `force`).
+ */
+export function writeAtomic(path: string, text: string, protect: string[] = [], force = false): void {
   const target = resolve(path);
   for (const p of protect) {
     let same = resolve(p) === target;
@@ -110,6 +124,15 @@ export function writeAtomic(path: string, text: string, protect: string[] = []):
       /* target does not exist yet */
     }
     if (same) throw new InputError(path, "an output path other than the design file", "--record", "io");
+  }
+  if (!force && existsSync(target)) {
+    let head = "";
+    try {
+      head = readFileSync(target, "utf8");
+    } catch {
+      /* unreadable: treated as not ours */
+    }
+    if (!head.includes(recordMarker)) throw new InputError(path, "a new file, or a record an earlier pinchoff op wrote (this file exists and was not written by pinchoff op; choose another path, or pass --force to replace it)", "--record", "io");
   }
   const tmp = join(dirname(target), `.${basename(target)}.${randomBytes(6).toString("hex")}.tmp`);
   try {
@@ -125,7 +148,7 @@ export function writeAtomic(path: string, text: string, protect: string[] = []):
 export async function main(argv: string[]): Promise<number> {
   let parsed;
   try {
-    parsed = parseArgs({ args: argv, allowPositionals: true, options: { record: { type: "string" }, help: { type: "boolean", short: "h" } } });
+    parsed = parseArgs({ args: argv, allowPositionals: true, options: { record: { type: "string" }, force: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
   } catch (e) {
     console.error(`pinchoff op: ${(e as Error).message}\n\n${help}`);
     return 2;
@@ -152,8 +175,8 @@ export async function main(argv: string[]): Promise<number> {
   if (record !== undefined) {
     const render = await import("../record/render.js");
     const data = result.derivation.toJSON();
-    const text = format === "html" ? render.renderHtml(data) : render.renderMarkdown(data);
-    writeAtomic(record, text, [file]);
+    const text = markRecord(format === "html" ? render.renderHtml(data) : render.renderMarkdown(data), format!);
+    writeAtomic(record, text, [file], values.force === true);
   }
   const head = { design: file, ...(record ? { record } : {}) };
   const analysis = "analysis" in result ? result.analysis : result.design.analysis;
