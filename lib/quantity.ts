@@ -32,6 +32,8 @@ export const dimensions = {
   /** Transconductance efficiency gm/ID. */
   inverseVoltageEfficiency: { unit: "S/A", tex: "\\mathrm{S/A}", label: "transconductance efficiency" },
   dimensionless: { unit: "", tex: "", label: "dimensionless ratio" },
+  /** A ratio read and shown in per cent (tolerances, spreads, bands): 0.05 is "5 %". */
+  fraction: { unit: "", tex: "\\%", label: "fraction" },
   /** A number of things (cases, corners, iterations): shown without decimals when whole. */
   count: { unit: "", tex: "", label: "count" },
 } as const;
@@ -61,6 +63,7 @@ export type Seconds = Quantity<"time">;
 export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
 export type Ratio = Quantity<"dimensionless">;
 export type Count = Quantity<"count">;
+export type Fraction = Quantity<"fraction">;
 
 /** Brand a plain SI number; the caller vouches for the unit. */
 export const volts = (v: number) => v as Volts;

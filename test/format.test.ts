@@ -78,6 +78,13 @@ describe("formatQuantity", () => {
   });
 });
 
+describe("fractions", () => {
+  it("show in per cent", () => {
+    expect(formatQuantity(0.05, "fraction")).toBe("5.00 %");
+    expect(formatQuantity(0.469, "fraction")).toBe("46.9 %");
+  });
+});
+
 describe("counts", () => {
   it("show whole counts whole and anything else with significant digits", () => {
     expect(formatQuantity(23, "count")).toBe("23");

@@ -90,6 +90,8 @@ describe("ratios written with %, ‰ or ppm (common practice)", () => {
     expect(parseQuantity("2 ‰", "dimensionless")).toBe(0.002);
     expect(parseQuantity("50 ppm", "dimensionless")).toBe(5e-5);
     expect(parseAny("20 %")).toEqual({ value: 0.2, dim: "dimensionless" });
+    expect(parseQuantity("20 %", "fraction")).toBe(0.2);
+    expect(parseQuantity("0.2", "fraction")).toBe(0.2);
     expect(() => parseQuantity("20 %", "voltage", "VT0_SPREAD")).toThrow(/VT0_SPREAD: got "20 %", expected a voltage in V/);
   });
 });

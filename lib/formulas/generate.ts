@@ -35,6 +35,7 @@ const typeOfDim: Record<Dimension, string> = {
   inverseVoltageEfficiency: "SiemensPerAmpere",
   dimensionless: "Ratio",
   count: "Count",
+  fraction: "Fraction",
 };
 
 const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", exp: "Math.exp", log: "Math.log", abs: "Math.abs", max: "Math.max", min: "Math.min" };

@@ -51,6 +51,7 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   inverseVoltageEfficiency: { text: "S/A", tex: "\\mathrm{S/A}", prefix: false },
   dimensionless: { text: "", tex: "", prefix: false },
   count: { text: "", tex: "", prefix: false },
+  fraction: { text: "%", tex: "\\%", prefix: false, scale: 100 },
 };
 
 /** SI prefixes by power of ten (SI Brochure, 9th edition, table 7). */

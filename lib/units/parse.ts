@@ -161,7 +161,7 @@ const ratioSigns: Readonly<Record<string, number>> = { "%": 1e-2, "‰": 1e-3, p
 
 function readUnit(unitText: string): UnitReading | string {
   const ratio = ratioSigns[unitText];
-  if (ratio !== undefined) return { factor: ratio, candidates: ["dimensionless"], names: "", siText: "", text: unitText };
+  if (ratio !== undefined) return { factor: ratio, candidates: ["dimensionless", "fraction"], names: "", siText: "", text: unitText };
   const cached = readings.get(unitText);
   if (cached !== undefined) return cached;
   const math = unitEngine();
@@ -215,6 +215,7 @@ const article = (label: string) => (/^[aeiou]/i.test(label) ? "an" : "a");
 /** "a current in A", "a dimensionless ratio (a plain number)". */
 export function describeDimension(dim: Dimension): string {
   const d = dimensions[dim];
+  if (dim === "fraction") return `a fraction (in %, e.g. "5 %", or a plain number, 0.05)`;
   return d.unit === "" ? `${article(d.label)} ${d.label} (a plain number)` : `${article(d.label)} ${d.label} in ${d.unit}`;
 }
 
