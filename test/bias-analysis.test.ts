@@ -235,7 +235,7 @@ describe("bias analysis: model options", () => {
       const plain = k * (a.op.vov - vds / 2) * vds;
       expect(a.currents.drain).toBeCloseTo(clm === "continuous" ? plain * (1 + 0.04 * vds) : plain, 15);
       // KCL: the same current through RD.
-      expect((5 - a.nodes.drain) / 20e3).toBeCloseTo(a.currents.drain!, 15);
+      expect((5 - a.nodes.drain!) / 20e3).toBeCloseTo(a.currents.drain!, 15);
     }
   });
 });

@@ -23,6 +23,7 @@ import { analyzeStage, stageCircuit } from "../lib/bias/analyze.js";
 import type { BodyTie, Stage } from "../lib/bias/topology.js";
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { regionOf, type Region } from "../lib/device/region.js";
+import { meters, volts } from "../lib/quantity.js";
 import { runNgspice } from "./support/ngspice.js";
 import { cardArb, logUniform, maybeZero, uniform, unit } from "./support/arbitraries.js";
 
@@ -43,16 +44,16 @@ function stageArb(polarity: Polarity, loadPolarity: Polarity): fc.Arbitrary<Stag
       at: unit,
       body: fc.constantFrom<BodyTie>("source", "rail"),
     })
-    .map((r) => {
-      const vss = -r.neg;
+    .map((r): Stage => {
+      const vss = volts(-r.neg);
       return {
         topology: "diode-load",
-        device: { card: r.drv, w: r.w1, l: r.l1 },
-        devices: { load: { card: r.load, w: r.w2, l: r.l2 } },
+        device: { card: r.drv, w: meters(r.w1), l: meters(r.l1) },
+        devices: { load: { card: r.load, w: meters(r.w2), l: meters(r.l2) } },
         components: { vg: vss + r.at * (r.vdd - vss) },
-        supplies: { vdd: r.vdd, vss },
+        supplies: { vdd: volts(r.vdd), vss },
         body: r.body,
-      } as Stage;
+      };
     })
     .filter((st) => st.supplies.vdd - (st.supplies.vss ?? 0) > Math.abs(st.devices!.load!.card.vt0)); // a load that can never conduct is a typed error
 }
@@ -95,11 +96,14 @@ describe("common source with a diode-connected load against ngspice Level 1 (Deb
         const s = polarity === "nmos" ? 1 : -1;
         const sl = loadPolarity === "nmos" ? 1 : -1;
         stages.forEach((st, i) => {
-          const [vd, id, von1, von2] = rows.slice(i * 4, i * 4 + 4).map((r) => r[1]!);
+          // rows.length was checked against prints above, so each slice holds exactly these four values.
+          const [vd, id, von1, von2] = rows.slice(i * 4, i * 4 + 4).map((r) => r[1]) as [number, number, number, number];
           const a = analyses[i]!;
           const load = a.devices!.load!;
           const where = `diode-load ${polarity}/${loadType} #${i}: ${JSON.stringify(st)}`;
-          const close = (ours: number, ref: number, abs: number, what: string) => {
+          const close = (value: number | undefined, ref: number, abs: number, what: string) => {
+            expect(value, `${what} missing from our analysis — ${where}`).toBeDefined();
+            const ours = value!;
             if (Math.abs(ref) > abs) worstRel = Math.max(worstRel, Math.abs(ours - ref) / Math.abs(ref));
             expect(Math.abs(ours - ref), `${what} ours ${ours} ngspice ${ref} — ${where}`).toBeLessThanOrEqual(Math.max(1e-6 * Math.abs(ref), abs));
           };
@@ -120,7 +124,8 @@ describe("common source with a diode-connected load against ngspice Level 1 (Deb
             const k2 = (load.op.k as number);
             const slack = Math.sqrt((4 * isDefault) / k2) + 1e-6;
             const u = s * vd;
-            expect(u, `cutoff output above the load's edge — ${where}`).toBeGreaterThanOrEqual(s * a.nodes.drain - slack);
+            expect(a.nodes.drain, `our output — ${where}`).toBeDefined();
+            expect(u, `cutoff output above the load's edge — ${where}`).toBeGreaterThanOrEqual(s * a.nodes.drain! - slack);
             expect(u, `cutoff output below the rail — ${where}`).toBeLessThanOrEqual(s * drainRail + 1e-6);
             expect(load.region, `load region — ${where}`).toBe("cutoff");
             // ngspice's load is cut off too, or conducts no more than junction leakage at the very edge.

@@ -15,21 +15,21 @@ import { InfeasibleError, InputError, type PinchoffError } from "../lib/errors.j
 import * as bf from "../lib/formulas/bias.formulas.js";
 import * as df from "../lib/formulas/device.formulas.js";
 import * as mf from "../lib/formulas/mirror.formulas.js";
-import type { SqrtVolts, Volts } from "../lib/quantity.js";
+import { amperesPerVoltSquared, meters, perVolt, sqrtVolts, volts, type SqrtVolts, type Volts } from "../lib/quantity.js";
 import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
 
 // Invented cards for the tests.
-const n = (over: Partial<DeviceCard> = {}): DeviceCard => ({ name: "invented-n", polarity: "nmos", kp: 200e-6, vt0: 0.6, lambda: 0, gamma: 0, phi: 0.7, ...over }) as DeviceCard;
-const p = (over: Partial<DeviceCard> = {}): DeviceCard => ({ name: "invented-p", polarity: "pmos", kp: 80e-6, vt0: -0.7, lambda: 0, gamma: 0, phi: 0.7, ...over }) as DeviceCard;
+const n = (over: Partial<DeviceCard> = {}): DeviceCard => ({ name: "invented-n", polarity: "nmos", kp: amperesPerVoltSquared(200e-6), vt0: volts(0.6), lambda: perVolt(0), gamma: sqrtVolts(0), phi: volts(0.7), ...over });
+const p = (over: Partial<DeviceCard> = {}): DeviceCard => ({ name: "invented-p", polarity: "pmos", kp: amperesPerVoltSquared(80e-6), vt0: volts(-0.7), lambda: perVolt(0), gamma: sqrtVolts(0), phi: volts(0.7), ...over });
 
 function stage(o: { drv?: DeviceCard; load?: DeviceCard; w1?: number; w2?: number; vg?: number; vdd?: number; vss?: number; body?: BodyTie } = {}): DiodeLoadStage {
   return {
     topology: "diode-load",
     name: "invented diode-load stage",
-    device: { card: o.drv ?? n(), w: o.w1 ?? 20e-6, l: 1e-6 },
-    devices: { load: { card: o.load ?? p(), w: o.w2 ?? 5e-6, l: 1e-6 } },
-    components: { vg: o.vg ?? 1 },
-    supplies: { vdd: o.vdd ?? 3.3, vss: o.vss ?? 0 },
+    device: { card: o.drv ?? n(), w: meters(o.w1 ?? 20e-6), l: meters(1e-6) },
+    devices: { load: { card: o.load ?? p(), w: meters(o.w2 ?? 5e-6), l: meters(1e-6) } },
+    components: { vg: volts(o.vg ?? 1) },
+    supplies: { vdd: volts(o.vdd ?? 3.3), vss: volts(o.vss ?? 0) },
     ...(o.body ? { body: o.body } : {}),
   };
 }
@@ -53,9 +53,10 @@ describe("gain of a common source with a diode-connected load (Razavi, Design of
     expect(a.metrics.amplifiers[0]!.gain).toBeCloseTo(expected, 12);
   });
   it("same-type load with body effect: Av = −√((W/L)1/(W/L)2)/(1 + η) at the solved VSB", () => {
-    const st = stage({ load: n({ gamma: 0.45 }), w2: 2e-6, vg: 0.9, body: "rail" });
+    const st = stage({ load: n({ gamma: sqrtVolts(0.45) }), w2: 2e-6, vg: 0.9, body: "rail" });
     const a = analyzeStage(st);
-    const vsb = a.nodes.drain - 0;
+    expect(a.nodes.drain).toBeDefined();
+    const vsb = a.nodes.drain! - 0;
     const eta = 0.45 / (2 * Math.sqrt(0.7 + vsb));
     expect(a.region).toBe("saturation");
     expect(a.metrics.amplifiers[0]!.gain).toBeCloseTo(-Math.sqrt(20 / 2) / (1 + eta), 9);
@@ -78,11 +79,13 @@ describe("operating point", () => {
       fc.property(fc.double({ min: 0.61, max: 3.3, noNaN: true }), fc.double({ min: 1e-6, max: 50e-6, noNaN: true }), fc.boolean(), (vg, w2, same) => {
         const load = same ? n({ name: "invented-n-load" }) : p();
         const exact = analyzeStage(stage({ vg, w2, load }));
-        const numeric = analyzeStage(stage({ vg, w2, load: { ...load, lambda: 1e-13 }, drv: n({ lambda: 1e-13 }) }));
+        const numeric = analyzeStage(stage({ vg, w2, load: { ...load, lambda: perVolt(1e-13) }, drv: n({ lambda: perVolt(1e-13) }) }));
         expect(exact.solver.method).toBe("closed-form");
         expect(numeric.solver.method).toBe("bracketed-regula-falsi");
         expect(numeric.region).toBe(exact.region);
-        expect(Math.abs(numeric.nodes.drain - exact.nodes.drain)).toBeLessThan(1e-9);
+        expect(numeric.nodes.drain).toBeDefined();
+        expect(exact.nodes.drain).toBeDefined();
+        expect(Math.abs(numeric.nodes.drain! - exact.nodes.drain!)).toBeLessThan(1e-9);
       }),
       { seed: 91, numRuns: 80 },
     );
@@ -92,16 +95,18 @@ describe("operating point", () => {
   });
   it("with λ and body effect, the load and driver currents balance (KCL) and the record shows the iteration", () => {
     const rec = new Derivation("diode load");
-    const a = analyzeStage(stage({ drv: n({ lambda: 0.08 }), load: n({ name: "invented-n-load", lambda: 0.05, gamma: 0.5 }), w2: 3e-6, vg: 1.1, body: "rail" }), rec);
-    expect(Math.abs(Math.abs(a.devices!.load!.op.channelCurrent) - a.currents.drain)).toBeLessThan(1e-12 * a.currents.drain);
+    const a = analyzeStage(stage({ drv: n({ lambda: perVolt(0.08) }), load: n({ name: "invented-n-load", lambda: perVolt(0.05), gamma: sqrtVolts(0.5) }), w2: 3e-6, vg: 1.1, body: "rail" }), rec);
+    expect(a.currents.drain).toBeDefined();
+    expect(Math.abs(Math.abs(a.devices!.load!.op.channelCurrent) - a.currents.drain!)).toBeLessThan(1e-12 * a.currents.drain!);
     expect(rec.checks.find((c) => c.title.startsWith("Load current equals"))!.passed).toBe(true);
     expect(rec.steps.some((s) => s.kind === "note" && s.title === "Exact solution")).toBe(true);
     expect(expectStepsReplay(rec)).toBeGreaterThan(20);
   });
   it("a PMOS driver with an NMOS diode load is the NMOS stage reflected through the rails", () => {
-    const a = analyzeStage(stage({ drv: n({ lambda: 0.03 }), load: p({ lambda: 0.02 }), vg: 1.2 }));
-    const b = analyzeStage(stage({ drv: p({ ...n({ lambda: 0.03 }), polarity: "pmos", vt0: -0.6, name: "invented-p-drv" }), load: n({ ...p({ lambda: 0.02 }), polarity: "nmos", vt0: 0.7, name: "invented-n-load" }), vg: -1.2, vdd: 0, vss: -3.3 }));
-    expect(b.nodes.drain).toBeCloseTo(-a.nodes.drain, 12);
+    const a = analyzeStage(stage({ drv: n({ lambda: perVolt(0.03) }), load: p({ lambda: perVolt(0.02) }), vg: 1.2 }));
+    const b = analyzeStage(stage({ drv: p({ ...n({ lambda: perVolt(0.03) }), polarity: "pmos", vt0: volts(-0.6), name: "invented-p-drv" }), load: n({ ...p({ lambda: perVolt(0.02) }), polarity: "nmos", vt0: volts(0.7), name: "invented-n-load" }), vg: -1.2, vdd: 0, vss: -3.3 }));
+    expect(a.nodes.drain).toBeDefined();
+    expect(b.nodes.drain).toBeCloseTo(-a.nodes.drain!, 12);
     expect(b.op.id).toBeCloseTo(-a.op.id, 17);
     expect(b.metrics.amplifiers[0]!.gain).toBeCloseTo(a.metrics.amplifiers[0]!.gain, 10);
   });
@@ -118,22 +123,26 @@ describe("cutoff and swing", () => {
     expect(a.findings.some((f) => f.includes("cutoff") && f.includes("leakage"))).toBe(true);
   });
   it("with a body-affected load the edge satisfies VDD − VOUT = Vt2(VSB = VOUT)", () => {
-    const a = analyzeStage(stage({ vg: 0.2, load: n({ name: "invented-n-load", gamma: 0.6 }), body: "rail" }));
+    const a = analyzeStage(stage({ vg: 0.2, load: n({ name: "invented-n-load", gamma: sqrtVolts(0.6) }), body: "rail" }));
     const vout = a.nodes.drain;
-    const vt2 = thresholdMagnitude(0.6 as Volts, 0.6 as SqrtVolts, 0.7 as Volts, vout as Volts);
-    expect(3.3 - vout).toBeCloseTo(vt2, 12);
+    expect(vout).toBeDefined();
+    const vt2 = thresholdMagnitude(0.6 as Volts, 0.6 as SqrtVolts, 0.7 as Volts, vout!);
+    expect(3.3 - vout!).toBeCloseTo(vt2, 12);
     expect(a.devices!.load!.region).toBe("cutoff");
   });
   it("swing: up to the load's edge, down to the driver's triode edge where (k1/2)·VOUT² = load current", () => {
-    for (const st of [stage({ vg: 1 }), stage({ vg: 1, drv: n({ lambda: 0.05 }), load: n({ name: "invented-n-load", gamma: 0.4, lambda: 0.05 }), w2: 2e-6, body: "rail" })]) {
+    for (const st of [stage({ vg: 1 }), stage({ vg: 1, drv: n({ lambda: perVolt(0.05) }), load: n({ name: "invented-n-load", gamma: sqrtVolts(0.4), lambda: perVolt(0.05) }), w2: 2e-6, body: "rail" })]) {
       const a = analyzeStage(st);
       const sw = a.metrics.swing[0]!;
       const k1 = 200e-6 * 20;
       const lambda1 = st.device.card.lambda ?? 0;
       const edge = (k1 / 2) * sw.lower ** 2 * (1 + lambda1 * sw.lower);
-      const loadAt = analyzeStage({ ...st, components: { vg: sw.lower + 0.6 } }); // gate where the driver sits at its triode edge
-      expect(Math.abs(loadAt.currents.drain - edge) / edge).toBeLessThan(1e-9);
-      expect(sw.upper).toBeCloseTo(analyzeStage({ ...st, components: { vg: 0 } }).nodes.drain, 12);
+      const loadAt = analyzeStage({ ...st, components: { vg: volts(sw.lower + 0.6) } }); // gate where the driver sits at its triode edge
+      expect(loadAt.currents.drain).toBeDefined();
+      expect(Math.abs(loadAt.currents.drain! - edge) / edge).toBeLessThan(1e-9);
+      const upperEdge = analyzeStage({ ...st, components: { vg: volts(0) } }).nodes.drain;
+      expect(upperEdge).toBeDefined();
+      expect(sw.upper).toBeCloseTo(upperEdge!, 12);
       expect(sw.lower).toBeLessThan(sw.quiescent);
       expect(sw.upper).toBeGreaterThan(sw.quiescent);
     }
@@ -142,7 +151,7 @@ describe("cutoff and swing", () => {
 
 describe("deck and bad input", () => {
   it("the SPICE deck: same-type load with its body at the rail, driver ammeter, gate source", () => {
-    const deck = spiceDeck(stage({ load: n({ name: "invented-n-load", gamma: 0.4 }), body: "rail" }));
+    const deck = spiceDeck(stage({ load: n({ name: "invented-n-load", gamma: sqrtVolts(0.4) }), body: "rail" }));
     expect(deck).toMatch(/^VG g 0 1$/m);
     expect(deck).toMatch(/^VID out d 0$/m);
     expect(deck).toMatch(/^M1 d g vss vss moddrv /m);
@@ -162,7 +171,7 @@ describe("deck and bad input", () => {
     expect(low).toBeInstanceOf(InfeasibleError);
     expect(low.message).toContain("0.65 V");
     expect(low.message).toContain("|Vt| = 0.7 V");
-    const dep = err(() => analyzeStage(stage({ load: n({ vt0: -0.4 }) })));
+    const dep = err(() => analyzeStage(stage({ load: n({ vt0: volts(-0.4) }) })));
     expect(dep).toBeInstanceOf(InputError);
     expect(dep.message).toContain("devices.load.card.vt0");
     expect(err(() => analyzeStage({ ...stage(), components: { vg: 1, rd: 1e3 } } as never)).message).toContain("components.rd");

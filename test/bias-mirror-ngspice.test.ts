@@ -16,6 +16,7 @@ import type { Stage } from "../lib/bias/topology.js";
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { regionOf, type Region } from "../lib/device/region.js";
 import { InfeasibleError } from "../lib/errors.js";
+import { meters, volts } from "../lib/quantity.js";
 import { runNgspice } from "./support/ngspice.js";
 import { cardArb, logUniform, maybeZero, uniform, unit } from "./support/arbitraries.js";
 
@@ -39,8 +40,8 @@ function mirrorArb(polarity: Polarity): fc.Arbitrary<Stage> {
       at: unit,
       rload: maybeZero(logUniform(100, 1e6), 0.05),
     })
-    .map((r) => {
-      const vss = -r.neg;
+    .map((r): Stage => {
+      const vss = volts(-r.neg);
       const span = r.vdd - vss;
       const pmos = polarity === "pmos";
       // Output position above the source rail: half the held outputs within 1 V of it (mostly below compliance).
@@ -48,11 +49,11 @@ function mirrorArb(polarity: Polarity): fc.Arbitrary<Stage> {
       const vout = pmos ? r.vdd - above : vss + above;
       return {
         topology: "current-mirror",
-        device: { card: r.ownCard ? r.other : r.card, w: r.w2, l: r.l2 },
-        devices: { reference: { card: r.card, w: r.w1, l: r.l1 } },
+        device: { card: r.ownCard ? r.other : r.card, w: meters(r.w2), l: meters(r.l2) },
+        devices: { reference: { card: r.card, w: meters(r.w1), l: meters(r.l1) } },
         components: r.held ? { rref: r.rref, vout } : { rref: r.rref, rload: r.rload },
-        supplies: { vdd: r.vdd, vss },
-      } as Stage;
+        supplies: { vdd: volts(r.vdd), vss },
+      };
     });
 }
 
@@ -67,6 +68,7 @@ function solvable(stage: Stage): boolean {
   }
 }
 
+type Eight = [number, number, number, number, number, number, number, number];
 const perBatch = 30;
 const tally: Record<Region, number> = { cutoff: 0, triode: 0, saturation: 0 };
 let total = 0;
@@ -94,10 +96,13 @@ describe("current mirror against ngspice Level 1 (Debian ngspice, batch mode)", 
       expect(rows.length).toBe(prints.length);
       const s = polarity === "nmos" ? 1 : -1;
       stages.forEach((st, i) => {
-        const [vg, vd, iout, iref, von1, von2, gds2, gm2] = rows.slice(i * 8, i * 8 + 8).map((r) => r[1]!);
+        // rows.length was checked against prints above, so each slice holds exactly these eight values.
+        const [vg, vd, iout, iref, von1, von2, gds2, gm2] = rows.slice(i * 8, i * 8 + 8).map((r) => r[1]) as Eight;
         const a = analyzeStage(st) as MirrorAnalysis;
         const where = `mirror ${polarity} #${i}: ${JSON.stringify(st)}`;
-        const close = (ours: number, ref: number, abs: number, what: string) => {
+        const close = (value: number | undefined, ref: number, abs: number, what: string) => {
+          expect(value, `${what} missing from our analysis — ${where}`).toBeDefined();
+          const ours = value!;
           if (Math.abs(ref) > abs) worstRel = Math.max(worstRel, Math.abs(ours - ref) / Math.abs(ref));
           expect(Math.abs(ours - ref), `${what} ours ${ours} ngspice ${ref} — ${where}`).toBeLessThanOrEqual(Math.max(1e-6 * Math.abs(ref), abs));
         };

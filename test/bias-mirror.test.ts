@@ -12,20 +12,33 @@ import { InfeasibleError, InputError, PinchoffError } from "../lib/errors.js";
 import * as bf from "../lib/formulas/bias.formulas.js";
 import * as df from "../lib/formulas/device.formulas.js";
 import * as mf from "../lib/formulas/mirror.formulas.js";
+import { amperesPerVoltSquared, meters, ohms, perVolt, volts } from "../lib/quantity.js";
 import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
 
-const nmos = (over: Partial<DeviceCard> = {}): DeviceCard => ({ name: "invented-n", polarity: "nmos", kp: 200e-6, vt0: 0.7, lambda: 0, provenance: "invented for the tests", ...over }) as DeviceCard;
-const pmosOf = (c: DeviceCard): DeviceCard => ({ ...c, name: `${c.name}-p`, polarity: "pmos", vt0: -c.vt0 }) as DeviceCard;
+const nmos = (over: Partial<DeviceCard> = {}): DeviceCard => ({ name: "invented-n", polarity: "nmos", kp: amperesPerVoltSquared(200e-6), vt0: volts(0.7), lambda: perVolt(0), provenance: "invented for the tests", ...over });
+const pmosOf = (c: DeviceCard): DeviceCard => ({ ...c, name: `${c.name}-p`, polarity: "pmos", vt0: volts(-c.vt0) });
 
-function mirror(over: { card?: DeviceCard; out?: DeviceCard; w1?: number; w2?: number; components?: Record<string, number>; vdd?: number; vss?: number } = {}): CurrentMirrorStage {
+/** Component values given in plain SI numbers; only the fields given are set (the bad-input tests rely on absent ones). */
+interface PlainComponents {
+  readonly rref: number;
+  readonly vout?: number;
+  readonly rload?: number;
+}
+const branded = (c: PlainComponents): CurrentMirrorStage["components"] => ({
+  rref: ohms(c.rref),
+  ...(c.vout !== undefined ? { vout: volts(c.vout) } : {}),
+  ...(c.rload !== undefined ? { rload: ohms(c.rload) } : {}),
+});
+
+function mirror(over: { card?: DeviceCard; out?: DeviceCard; w1?: number; w2?: number; components?: PlainComponents; vdd?: number; vss?: number } = {}): CurrentMirrorStage {
   const card = over.card ?? nmos();
   return {
     topology: "current-mirror",
     name: "invented mirror",
-    device: { card: over.out ?? card, w: over.w2 ?? 10e-6, l: 1e-6 },
-    devices: { reference: { card, w: over.w1 ?? 10e-6, l: 1e-6 } },
-    components: (over.components ?? { rref: 19.84e3, vout: 1.5 }) as CurrentMirrorStage["components"],
-    supplies: { vdd: over.vdd ?? 3, vss: over.vss ?? 0 },
+    device: { card: over.out ?? card, w: meters(over.w2 ?? 10e-6), l: meters(1e-6) },
+    devices: { reference: { card, w: meters(over.w1 ?? 10e-6), l: meters(1e-6) } },
+    components: branded(over.components ?? { rref: 19.84e3, vout: 1.5 }),
+    supplies: { vdd: volts(over.vdd ?? 3), vss: volts(over.vss ?? 0) },
   };
 }
 
@@ -64,7 +77,7 @@ describe("Sedra & Smith, Microelectronic Circuits, 6th ed., Example 8.1 (basic M
     expect(a.devices!.reference!.region).toBe("saturation");
   });
   it("with λ = 1/VA = 1/(20 V/µm · 1 µm): ro ≈ 200 kΩ and a +1 V output step adds ≈ 5 µA", () => {
-    const st = mirror({ card: nmos({ lambda: 0.05 }) });
+    const st = mirror({ card: nmos({ lambda: perVolt(0.05) }) });
     const a = analyzeMirror(st);
     // Level 1 gives gds = λ·(k/2)·VOV², without the (1 + λ·VDS) the book's ro = VA/IO folds in, and the reference
     // current itself rises by (1 + λ·VGS); so within 5 % of the book's figures, not equal to them.
@@ -101,10 +114,10 @@ describe("square-law relations of the mirror", () => {
         fc.double({ min: 5e3, max: 500e3, noNaN: true }),
         fc.double({ min: 0.3, max: 1, noNaN: true }),
         (lambda, n, rref, at) => {
-          const st = mirror({ card: nmos({ lambda }), w2: 10e-6 * n, components: { rref, vout: 0 }, vdd: 5 });
+          const st = mirror({ card: nmos({ lambda: perVolt(lambda) }), w2: 10e-6 * n, components: { rref, vout: 0 }, vdd: 5 });
           const vgs = analyzeMirror(st).mirror.gateSource;
           const vout = vgs - 0.7 + at * (5 - (vgs - 0.7)); // above compliance
-          const a = analyzeMirror({ ...st, components: { rref, vout } });
+          const a = analyzeMirror({ ...st, components: branded({ rref, vout }) });
           const expected = a.mirror.referenceCurrent * n * ((1 + lambda * vout) / (1 + lambda * vgs));
           expect(a.region).toBe("saturation");
           expect(Math.abs(a.mirror.outputCurrent - expected)).toBeLessThanOrEqual(1e-12 * expected);
@@ -115,7 +128,7 @@ describe("square-law relations of the mirror", () => {
   });
 
   it("below compliance M2 is in triode with k2·(VOV − VDS/2)·VDS·(1 + λVDS), and the finding says how far short it falls", () => {
-    const a = analyzeMirror(mirror({ card: nmos({ lambda: 0.04 }), components: { rref: 19.84e3, vout: 0.1 } }));
+    const a = analyzeMirror(mirror({ card: nmos({ lambda: perVolt(0.04) }), components: { rref: 19.84e3, vout: 0.1 } }));
     const vov = a.mirror.gateSource - 0.7;
     expect(a.region).toBe("triode");
     expect(a.mirror.complianceMargin).toBeCloseTo(0.1 - vov, 15);
@@ -126,20 +139,20 @@ describe("square-law relations of the mirror", () => {
   });
 
   it("the output characteristic is continuous at compliance and matches the analysis at each held voltage", () => {
-    const st = mirror({ card: nmos({ lambda: 0.05 }) });
+    const st = mirror({ card: nmos({ lambda: perVolt(0.05) }) });
     const vc = analyzeMirror(st).mirror.compliance;
     const vs = [0, 0.05, 0.2, vc - 1e-9, vc, vc + 1e-9, 1, 2, 3];
     const curve = mirrorOutputCurve(st, vs);
-    vs.forEach((v, i) => expect(curve[i]).toBeCloseTo(analyzeMirror({ ...st, components: { rref: 19.84e3, vout: v } }).op.id, 18));
+    vs.forEach((v, i) => expect(curve[i]).toBeCloseTo(analyzeMirror({ ...st, components: branded({ rref: 19.84e3, vout: v }) }).op.id, 18));
     expect(Math.abs(curve[4]! - curve[3]!)).toBeLessThan(1e-12);
     expect(Math.abs(curve[5]! - curve[4]!)).toBeLessThan(1e-12);
   });
 
   it("a load resistor: VOUT = VDD − IOUT·RLOAD, triode when RLOAD is too large for the current", () => {
     for (const rload of [0, 1e3, 20e3, 200e3]) {
-      const a = analyzeMirror(mirror({ card: nmos({ lambda: 0.03 }), components: { rref: 19.84e3, rload } }));
+      const a = analyzeMirror(mirror({ card: nmos({ lambda: perVolt(0.03) }), components: { rref: 19.84e3, rload } }));
       expect(a.nodes.drain).toBeCloseTo(3 - a.mirror.outputCurrent * rload, 9);
-      expect(a.region).toBe(a.nodes.drain - 0 >= a.mirror.compliance ? "saturation" : "triode");
+      expect(a.region).toBe(a.nodes.drain! - 0 >= a.mirror.compliance ? "saturation" : "triode");
       expect(a.currents.supply).toBeCloseTo(a.mirror.referenceCurrent + a.mirror.outputCurrent, 18);
     }
     expect(analyzeMirror(mirror({ components: { rref: 19.84e3, rload: 200e3 } })).region).toBe("triode");
@@ -148,8 +161,8 @@ describe("square-law relations of the mirror", () => {
   it("a PMOS mirror is the NMOS one reflected through the rails: nodes negated, currents the same magnitude", () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: 0.12, noNaN: true }), fc.double({ min: 2e3, max: 1e6, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (lambda, rref, at) => {
-        const n = mirror({ card: nmos({ lambda }), components: { rref, vout: -at * 3 }, vdd: 0, vss: -3 });
-        const p = mirror({ card: pmosOf(nmos({ lambda })), components: { rref, vout: at * 3 }, vdd: 3, vss: 0 });
+        const n = mirror({ card: nmos({ lambda: perVolt(lambda) }), components: { rref, vout: -at * 3 }, vdd: 0, vss: -3 });
+        const p = mirror({ card: pmosOf(nmos({ lambda: perVolt(lambda) })), components: { rref, vout: at * 3 }, vdd: 3, vss: 0 });
         const an = analyzeMirror(n);
         const ap = analyzeMirror(p);
         for (const node of ["gate", "drain", "source"] as const) expect(ap.nodes[node]).toBeCloseTo(-an.nodes[node]!, 12);
@@ -162,7 +175,7 @@ describe("square-law relations of the mirror", () => {
   });
 
   it("an output transistor on another card mirrors by its own parameters and says so", () => {
-    const a = analyzeMirror(mirror({ out: nmos({ name: "invented-n2", vt0: 0.8 }) }));
+    const a = analyzeMirror(mirror({ out: nmos({ name: "invented-n2", vt0: volts(0.8) }) }));
     const vov = a.mirror.gateSource - 0.8;
     expect(a.mirror.outputCurrent).toBeCloseTo(1e-3 * vov * vov, 18);
     expect(a.findings.some((f) => f.includes("different cards"))).toBe(true);
@@ -172,7 +185,7 @@ describe("square-law relations of the mirror", () => {
 describe("the mirror's record", () => {
   it("every recorded formula replays exactly; recording does not change the numbers; checks carry margins", () => {
     for (const components of [{ rref: 33e3, vout: 2.2 }, { rref: 33e3, vout: 0.05 }, { rref: 33e3, rload: 10e3 }]) {
-      const st = mirror({ card: nmos({ lambda: 0.02 }), components, vdd: 3.3 });
+      const st = mirror({ card: nmos({ lambda: perVolt(0.02) }), components, vdd: 3.3 });
       const rec = new Derivation("mirror");
       const a = analyzeMirror(st, rec);
       expect(expectStepsReplay(rec)).toBeGreaterThan(15);
@@ -184,7 +197,7 @@ describe("the mirror's record", () => {
     }
   });
   it("the SPICE deck holds both models, RREF with its ammeter, both instances and the held output", () => {
-    const deck = spiceDeck(mirror({ card: pmosOf(nmos({ lambda: 0.02 })), components: { rref: 10e3, vout: 1 } }));
+    const deck = spiceDeck(mirror({ card: pmosOf(nmos({ lambda: perVolt(0.02) })), components: { rref: 10e3, vout: 1 } }));
     expect(deck).toMatch(/^\.model modref pmos level=1 vto=-0\.7 kp=0\.0002 lambda=0\.02/m);
     expect(deck).toMatch(/^RREF vss y 10000$/m);
     expect(deck).toMatch(/^VIR y g 0$/m);
@@ -234,7 +247,7 @@ describe("bad input to the mirror", () => {
     expect(err(() => analyzeStage(mirror({ components: { rref: 1e4, vout: 3.5 } }))).message).toContain("components.vout");
     expect(err(() => analyzeStage(mirror({ components: { rref: 1e4, rload: -5 } }))).message).toContain("components.rload");
     expect(err(() => analyzeStage(mirror({ out: pmosOf(nmos()) }))).message).toContain("polarity");
-    const dep = err(() => analyzeStage(mirror({ card: nmos({ vt0: -0.5 }) })));
+    const dep = err(() => analyzeStage(mirror({ card: nmos({ vt0: volts(-0.5) }) })));
     expect(dep).toBeInstanceOf(InputError);
     expect(dep.message).toContain("devices.reference.card.vt0");
     expect(dep.message).toContain("enhancement");

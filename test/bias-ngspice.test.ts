@@ -12,6 +12,7 @@ import { analyzeStage, stageCircuit } from "../lib/bias/analyze.js";
 import type { BodyTie, Stage } from "../lib/bias/topology.js";
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { regionOf, type Region } from "../lib/device/region.js";
+import { meters, volts } from "../lib/quantity.js";
 import { runNgspice } from "./support/ngspice.js";
 import { cardArb, logUniform, maybeZero, uniform, unit } from "./support/arbitraries.js";
 
@@ -22,7 +23,7 @@ const resistor = logUniform(100, 1e6);
 function stageArb(topology: string, polarity: Polarity): fc.Arbitrary<Stage> {
   const supplies = fc
     .tuple(uniform(1.8, 15), maybeZero(uniform(0.5, 5), 0.5))
-    .map(([vdd, neg]) => ({ vdd, vss: -neg }));
+    .map(([vdd, neg]) => ({ vdd: volts(vdd), vss: volts(-neg) }));
   const u = unit;
   const comps = (s: { vdd: number; vss: number }) => {
     const vgIn = u.map((x) => s.vss + x * (s.vdd - s.vss));
@@ -41,7 +42,7 @@ function stageArb(topology: string, polarity: Polarity): fc.Arbitrary<Stage> {
   };
   return fc
     .record({ card: cardArb(polarity), w: logUniform(1e-6, 100e-6), l: logUniform(0.5e-6, 5e-6), supplies, body: fc.constantFrom<BodyTie>("source", "rail") })
-    .chain((r) => comps(r.supplies).map((components) => ({ topology, device: { card: r.card, w: r.w, l: r.l }, components, supplies: r.supplies, body: r.body }) as Stage));
+    .chain((r) => comps(r.supplies).map((components): Stage => ({ topology, device: { card: r.card, w: meters(r.w), l: meters(r.l) }, components, supplies: r.supplies, body: r.body })));
 }
 
 /** A circuit SPICE can compare against the square-law model: no forward-biased junction (the model has no junction diodes). */
@@ -85,7 +86,9 @@ describe("bias analysis against ngspice Level 1 (Debian ngspice, batch mode)", (
           const a = analyzeStage(st);
           const where = `${topology} ${polarity} #${i}: ${JSON.stringify(st)}`;
           methods[a.solver.method] = (methods[a.solver.method] ?? 0) + 1;
-          const close = (ours: number, ref: number, abs: number, what: string) => {
+          const close = (value: number | undefined, ref: number, abs: number, what: string) => {
+            expect(value, `${what} missing from our analysis — ${where}`).toBeDefined();
+            const ours = value!;
             if (Math.abs(ref) > abs) worstRel = Math.max(worstRel, Math.abs(ours - ref) / Math.abs(ref));
             expect(Math.abs(ours - ref), `${what} ours ${ours} ngspice ${ref} — ${where}`).toBeLessThanOrEqual(Math.max(1e-6 * Math.abs(ref), abs));
           };

@@ -9,7 +9,13 @@ const pChip: DeviceCard = { name: "inv-p-chip", polarity: "pmos", kp: amperesPer
 const one = meters(1e-6);
 
 const role = (s: PlotSpec, r: string): Trace[] => s.figure.data.filter((t) => t.meta?.role === r);
-const opOf = (s: PlotSpec) => role(s, "operating-point")[0]!.meta as { vds: number; id: number };
+/** The operating-point marker's meta; meta is open-ended, so its numbers are checked before use. */
+function opOf(s: PlotSpec): { vds: number; id: number } {
+  const meta = role(s, "operating-point")[0]?.meta;
+  expect(typeof meta?.vds).toBe("number");
+  expect(typeof meta?.id).toBe("number");
+  return { vds: meta!.vds as number, id: meta!.id as number };
+}
 
 /** Linear interpolation of a trace (in SI) at x. */
 function at(s: PlotSpec, t: Trace, x: number): number {

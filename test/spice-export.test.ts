@@ -71,7 +71,9 @@ describe("SPICE deck export", () => {
         const m = /^\s*d\s+([-+0-9.eE]+)\s*$/m.exec(out);
         expect(m, out.slice(0, 2000)).not.toBeNull();
         const vd = Number(m![1]);
-        expect(Math.abs(vd - analyzeStage(st).nodes.drain)).toBeLessThanOrEqual(1e-5 * Math.max(1, Math.abs(vd)));
+        const drain = analyzeStage(st).nodes.drain;
+        expect(drain).toBeDefined();
+        expect(Math.abs(vd - drain!)).toBeLessThanOrEqual(1e-5 * Math.max(1, Math.abs(vd)));
       } finally {
         rmSync(dir, { recursive: true, force: true });
       }

@@ -7,7 +7,7 @@ import { isStandard } from "../lib/bias/eseries.js";
 import { InfeasibleError, InputError } from "../lib/errors.js";
 import { Derivation } from "../lib/record/derivation.js";
 import type { DeviceCard } from "../lib/device/card.js";
-import type { Amperes, Meters, Volts, Watts } from "../lib/quantity.js";
+import { amperesPerVoltSquared, perVolt, sqrtVolts, type Amperes, type Meters, type Volts, type Watts } from "../lib/quantity.js";
 import { runNgspice } from "./support/ngspice.js";
 
 // Cards invented for the tests.
@@ -113,9 +113,10 @@ const specArb = fc.record({
   gain: fc.option(fc.double({ min: 1, max: 6, noNaN: true }), { nil: undefined }),
   bypassed: fc.boolean(),
 });
-const toSpec = (g: fc.RecordValue<typeof specArb extends fc.Arbitrary<infer T> ? T : never> | any, series: FourResistorSpec["series"]): FourResistorSpec => ({
+type SpecDraw = typeof specArb extends fc.Arbitrary<infer T> ? T : never;
+const toSpec = (g: SpecDraw, series: FourResistorSpec["series"]): FourResistorSpec => ({
   topology: "four-resistor",
-  card: { name: "random (invented)", polarity: g.pmos ? "pmos" : "nmos", kp: g.kp, vt0: g.pmos ? -g.vt : g.vt, lambda: g.lambda, gamma: g.gamma, phi: 0.7 } as DeviceCard,
+  card: { name: "random (invented)", polarity: g.pmos ? "pmos" : "nmos", kp: amperesPerVoltSquared(g.kp), vt0: V(g.pmos ? -g.vt : g.vt), lambda: perVolt(g.lambda), gamma: sqrtVolts(g.gamma), phi: V(0.7) },
   supplies: { vdd: V(g.vdd), vss: V(g.vss) },
   id: A(g.id),
   sizing: { vov: V(g.vov), l: m(1e-6) },

@@ -65,7 +65,7 @@ describe("Sedra & Smith, Microelectronic Circuits, 5th ed. (2004), chapter 4 —
     expect(a.region).toBe("triode");
     expect(a.nodes.drain).toBeCloseTo(0.1, 9);
     expect(a.currents.drain).toBeCloseTo(0.395e-3, 12);
-    expect(a.nodes.drain / a.currents.drain!).toBeCloseTo(253.2, 1);
+    expect(a.nodes.drain! / a.currents.drain!).toBeCloseTo(253.2, 1);
     // The record shows the saturation assumption failing and the triode re-solve.
     const titles = rec.steps.map((s) => s.title);
     expect(titles).toContain("Assumption fails");
