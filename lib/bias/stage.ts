@@ -233,7 +233,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   }
   const pDev = bf.devicePower.fn(idNet as Amperes, solved.vds as Volts);
   rec?.step(bf.devicePower, [idNet, solved.vds], pDev, "transistor dissipation");
-  currents.supply = (idNet + dividerCurrent) as Amperes;
+  const supply = (idNet + dividerCurrent) as Amperes;
   const total = (Object.values(power).reduce((a, p) => a + p, 0) + pDev) as Watts;
   const amplifiers = op.region === "cutoff" ? [] : spec.amplifiers(solved, rec);
   if (op.region === "cutoff") rec?.note("Small-signal gain", "The device is in cutoff: there is no transconductance and no gain.");
@@ -245,7 +245,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     polarity: card.polarity,
     region: op.region,
     nodes: { gate: vG, source: vS, drain: vD, body: vB, vdd, vss },
-    currents,
+    currents: { ...currents, drain: idNet as Amperes, supply },
     op,
     smallSignal: ss,
     metrics: { amplifiers, swing, checks: checks as StageCheck[] },

@@ -239,20 +239,25 @@ export interface StageDeviceAnalysis {
   readonly power: Watts;
 }
 
+/** Node voltages every topology reports, plus any of its own. */
+export type StageNodes = Readonly<Record<"gate" | "source" | "drain" | "body" | "vdd" | "vss", Volts> & Record<string, Volts>>;
+/** Branch currents every topology reports (the channel current and the supply current), plus its components'. */
+export type StageCurrents = Readonly<Record<"drain" | "supply", Amperes> & Record<string, Amperes>>;
+
 /** The analysis of a stage at its DC operating point. */
 export interface StageAnalysis {
   readonly topology: string;
   readonly name?: string;
   readonly polarity: Polarity;
   readonly region: Region;
-  /** Absolute node voltages: at least gate, source, drain, body, vdd, vss. */
-  readonly nodes: Readonly<Record<string, Volts>>;
+  /** Absolute node voltages: gate, source, drain, body, vdd, vss always; further nodes by name. */
+  readonly nodes: StageNodes;
   /**
    * Branch currents, absolute values in the conventional direction of normal
    * operation: `drain` is the channel current; `supply` the current drawn from
    * vdd; resistor currents by component name.
    */
-  readonly currents: Readonly<Record<string, Amperes>>;
+  readonly currents: StageCurrents;
   /** The device operating point at the solved terminal voltages. */
   readonly op: OperatingPoint;
   readonly smallSignal: StageSmallSignal;

@@ -261,7 +261,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     rec.step(bf.devicePower, [iout, vds2], p2, "M2 dissipation");
   }
   // Current drawn from vdd: a PMOS mirror feeds both branches from vdd; an NMOS sink only RREF, plus RLOAD when it returns there.
-  currents.supply = (iref + (pmos || c.rload !== undefined ? iout : 0)) as Amperes;
+  const supply = (iref + (pmos || c.rload !== undefined ? iout : 0)) as Amperes;
   const total = (Object.values(power).reduce((a, p) => a + p, 0) + p1 + p2) as Watts;
 
   // Checks and findings.
@@ -309,7 +309,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     polarity: out.card.polarity,
     region: m2.small.op.region,
     nodes: { gate: gateAbs as Volts, source: srcAbs as Volts, drain: vOut as Volts, body: srcAbs as Volts, reference: gateAbs as Volts, vdd, vss },
-    currents,
+    currents: { ...currents, drain: iout as Amperes, supply },
     op: m2.small.op,
     smallSignal: gs,
     metrics: { amplifiers: [], swing: [swing], checks },
