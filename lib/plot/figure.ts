@@ -140,5 +140,19 @@ export function sweep(from: number, to: number, points: number, origin: string):
 }
 
 /** Round for the JSON: 6 significant digits is far finer than a plot can show and keeps outputs small. */
+/** A single-point marker trace at plotted (already scaled) coordinates: how every plot marks its bias point. */
+export function pointTrace(name: string, x: number, y: number, meta: NonNullable<Trace["meta"]>, extra: Partial<Trace> = {}): Trace {
+  return {
+    type: "scatter",
+    mode: "markers",
+    name,
+    x: [trim(x)],
+    y: [trim(y)],
+    marker: { color: palette.highlight, size: 12, symbol: "diamond", line: { color: "#ffffff", width: 1.5 } },
+    meta,
+    ...extra,
+  };
+}
+
 export const trim = (v: number): number => (v === 0 || !Number.isFinite(v) ? v : Number(v.toPrecision(6)));
 export const scaled = (values: readonly number[], divisor: number): number[] => values.map((v) => trim(v / divisor));

@@ -16,6 +16,7 @@ import {
   baseLayout,
   palette,
   plotSchema,
+  pointTrace,
   scaled,
   scaleFor,
   sweep,
@@ -147,16 +148,11 @@ export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOp
   let opText = "";
   if (op) {
     const region = regionOf(op.vgs - v.vt, op.vds);
-    data.push({
-      type: "scatter",
-      mode: "markers",
-      name: `operating point (${region})`,
-      x: [Number((op.vds / xs.divisor).toPrecision(6))],
-      y: [Number((op.id / ys.divisor).toPrecision(6))],
-      marker: { color: palette.highlight, size: 12, symbol: "diamond", line: { color: "#ffffff", width: 1.5 } },
-      hovertemplate: `operating point (${region})<br>${v.sym.vds} = %{x:.4g} ${xs.unit}<br>${v.sym.id} = %{y:.4g} ${ys.unit}<extra></extra>`,
-      meta: { role: "operating-point", vgs: op.vgs, vds: op.vds, id: op.id, region },
-    });
+    data.push(
+      pointTrace(`operating point (${region})`, op.vds / xs.divisor, op.id / ys.divisor, { role: "operating-point", vgs: op.vgs, vds: op.vds, id: op.id, region }, {
+        hovertemplate: `operating point (${region})<br>${v.sym.vds} = %{x:.4g} ${xs.unit}<br>${v.sym.id} = %{y:.4g} ${ys.unit}<extra></extra>`,
+      }),
+    );
     opText = ` Operating point: ${ps.vgs} = ${formatQuantity(op.vgs, "voltage")}, ${ps.vds} = ${formatQuantity(op.vds, "voltage")}, ${ps.id} = ${formatQuantity(op.id, "current")} (${region}; ${ps.vds} − VOV = ${formatQuantity(op.vds - (op.vgs - v.vt), "voltage")}).`;
   }
 

@@ -11,7 +11,7 @@ import { transconductanceEfficiency, transconductanceSat, transconductanceTriode
 import { thermalVoltage, type AmperesPerVoltSquared, type Amperes, type Kelvin, type PerVolt, type Siemens, type Volts } from "../quantity.js";
 import { formatQuantity } from "../units/format.js";
 import { fixedVds, sweepSetup, type SweepOptions } from "./device-view.js";
-import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
+import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, pointTrace, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
 
 export interface TransconductanceOptions extends SweepOptions {
   /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
@@ -89,11 +89,10 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
     const g = gmAt(v.k, ov, op.vds, v.lambda, v.clm);
     if (ov > 0) {
       const e = g / op.id;
-      const x = Number((ov / xs.divisor).toPrecision(6));
-      const marker = { color: palette.highlight, size: 11, symbol: "diamond", line: { color: "#ffffff", width: 1.5 } };
       // One marker per axis: gm on the left axis, gm/ID on the right.
-      data.push({ type: "scatter", mode: "markers", name: `bias g<sub>m</sub> = ${formatQuantity(g, "conductance")}`, x: [x], y: [Number((g / ys.divisor).toPrecision(6))], marker, meta: { role: "operating-point", vov: ov, gm: g } });
-      data.push({ type: "scatter", mode: "markers", name: `bias g<sub>m</sub>/I<sub>D</sub> = ${formatQuantity(e, "inverseVoltageEfficiency")}`, x: [x], y: [Number(e.toPrecision(6))], yaxis: "y2", marker: { ...marker, color: palette.second }, meta: { role: "operating-point", vov: ov, gmOverId: e } });
+      const gmMark = pointTrace(`bias g<sub>m</sub> = ${formatQuantity(g, "conductance")}`, ov / xs.divisor, g / ys.divisor, { role: "operating-point", vov: ov, gm: g });
+      data.push(gmMark);
+      data.push(pointTrace(`bias g<sub>m</sub>/I<sub>D</sub> = ${formatQuantity(e, "inverseVoltageEfficiency")}`, ov / xs.divisor, e, { role: "operating-point", vov: ov, gmOverId: e }, { yaxis: "y2", marker: { ...gmMark.marker!, color: palette.second } }));
       opText = ` At the operating point VOV = ${formatQuantity(ov, "voltage")}: gm = ${formatQuantity(g, "conductance")}, gm/ID = ${formatQuantity(e, "inverseVoltageEfficiency")}.`;
     }
   }

@@ -7,7 +7,7 @@ import type { Device } from "../device/card.js";
 import { regionOf } from "../device/region.js";
 import { formatQuantity } from "../units/format.js";
 import { fixedVds, sweepSetup, type SweepOptions } from "./device-view.js";
-import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
+import { axisInfo, axisTitle, baseConfig, baseLayout, palette, plotSchema, pointTrace, scaled, scaleFor, sweep, type PlotSpec, type Trace } from "./figure.js";
 
 export interface TransferOptions extends SweepOptions {
   /** Fixed drain-source voltage (device polarity); the operating point's when omitted. */
@@ -56,15 +56,7 @@ export function transferCharacteristic(dev: Device, opts: TransferOptions): Plot
   let opText = "";
   if (op) {
     const region = regionOf(op.vgs - v.vt, op.vds);
-    data.push({
-      type: "scatter",
-      mode: "markers",
-      name: `operating point (${region})`,
-      x: [Number((op.vgs / xs.divisor).toPrecision(6))],
-      y: [Number((op.id / ys.divisor).toPrecision(6))],
-      marker: { color: palette.highlight, size: 12, symbol: "diamond", line: { color: "#ffffff", width: 1.5 } },
-      meta: { role: "operating-point", vgs: op.vgs, vds: op.vds, id: op.id, region },
-    });
+    data.push(pointTrace(`operating point (${region})`, op.vgs / xs.divisor, op.id / ys.divisor, { role: "operating-point", vgs: op.vgs, vds: op.vds, id: op.id, region }));
     opText = ` Operating point: ${ps.vgs} = ${formatQuantity(op.vgs, "voltage")}, ${ps.id} = ${formatQuantity(op.id, "current")} (${region}).`;
   }
   const title = opts.title ?? `Transfer characteristic, ${v.name}`;

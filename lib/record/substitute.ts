@@ -7,7 +7,7 @@
 import { parse, type MathNode } from "mathjs";
 import { PinchoffError } from "../errors.js";
 import { formatQuantity, texQuantity, type FormatOptions } from "../units/format.js";
-import type { FormulaStep } from "./derivation.js";
+import type { FormulaStep, RecordedValue } from "./derivation.js";
 
 /** Left side of the recorded TeX (`I_{D}` of `I_{D} = …`), as the generator writes it. */
 export function resultTex(step: Pick<FormulaStep, "tex">): string {
@@ -24,21 +24,26 @@ function parsed(step: FormulaStep): MathNode {
   }
 }
 
-export function substitutedTex(step: FormulaStep, opts: FormatOptions = {}): string {
+/**
+ * A mathjs print handler that puts each input's formatted value in place of its
+ * symbol. Values with a unit, or negative, go in parentheses so powers and
+ * products read unambiguously; function names (sqrt) and constants pass through.
+ */
+function substituting(step: FormulaStep, show: (v: RecordedValue, origin: string) => string, bare: (text: string) => string, paren: (text: string) => string) {
   const values = new Map(step.inputs.map((i) => [i.name, i]));
-  return parsed(step).toTex({
-    parenthesis: "auto",
-    implicit: "hide",
-    handler: (n: MathNode) => {
-      const s = n as MathNode & { name?: string };
-      if (n.type !== "SymbolNode" || !s.name) return undefined;
-      const v = values.get(s.name);
-      if (!v) return undefined; // function names (sqrt) and constants
-      const tex = texQuantity(v.value, v.dim, { ...opts, origin: `step "${step.title}" input ${v.name}` });
-      // Values with a unit, or negative, go in parentheses so powers and products read unambiguously.
-      return v.dim === "dimensionless" && v.value >= 0 ? `{${tex}}` : `\\left(${tex}\\right)`;
-    },
-  } as never);
+  return (n: MathNode): string | undefined => {
+    const s = n as MathNode & { name?: string };
+    if (n.type !== "SymbolNode" || !s.name) return undefined;
+    const v = values.get(s.name);
+    if (!v) return undefined;
+    const text = show(v, `step "${step.title}" input ${v.name}`);
+    return (v.dim === "dimensionless" || v.dim === "count") && v.value >= 0 ? bare(text) : paren(text);
+  };
+}
+
+export function substitutedTex(step: FormulaStep, opts: FormatOptions = {}): string {
+  const handler = substituting(step, (v, origin) => texQuantity(v.value, v.dim, { ...opts, origin }), (t) => `{${t}}`, (t) => `\\left(${t}\\right)`);
+  return parsed(step).toTex({ parenthesis: "auto", implicit: "hide", handler } as never);
 }
 
 /** The three parts of a typeset step: formula, substituted formula, result. */
@@ -53,17 +58,6 @@ export function stepTex(step: FormulaStep, opts: FormatOptions = {}): { formula:
 
 /** Plain-text form of the substituted right side, for terminals: `(2.00 mA/V²) / 2 * (300 mV) ^ 2`. */
 export function substitutedText(step: FormulaStep, opts: FormatOptions = {}): string {
-  const values = new Map(step.inputs.map((i) => [i.name, i]));
-  return parsed(step).toString({
-    parenthesis: "auto",
-    implicit: "hide",
-    handler: (n: MathNode) => {
-      const s = n as MathNode & { name?: string };
-      if (n.type !== "SymbolNode" || !s.name) return undefined;
-      const v = values.get(s.name);
-      if (!v) return undefined;
-      const text = formatQuantity(v.value, v.dim, { ...opts, origin: `step "${step.title}" input ${v.name}` });
-      return v.dim === "dimensionless" && v.value >= 0 ? text : `(${text})`;
-    },
-  } as never);
+  const handler = substituting(step, (v, origin) => formatQuantity(v.value, v.dim, { ...opts, origin }), (t) => t, (t) => `(${t})`);
+  return parsed(step).toString({ parenthesis: "auto", implicit: "hide", handler } as never);
 }
