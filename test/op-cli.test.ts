@@ -6,8 +6,9 @@
 import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { main } from "../lib/cli/op.js";
+import { captureCli } from "./support/cli.js";
 import { parseDesign } from "../lib/bias/design-file.js";
 import { InputError } from "../lib/errors.js";
 
@@ -26,18 +27,7 @@ const write = (name: string, value: unknown) => {
   writeFileSync(p, typeof value === "string" ? value : JSON.stringify(value));
   return p;
 };
-async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
-  const out: string[] = [];
-  const err: string[] = [];
-  const log = vi.spyOn(console, "log").mockImplementation((s: unknown) => void out.push(String(s)));
-  const error = vi.spyOn(console, "error").mockImplementation((s: unknown) => void err.push(String(s)));
-  try {
-    return { code: await main(argv), out: out.join("\n"), err: err.join("\n") };
-  } finally {
-    log.mockRestore();
-    error.mockRestore();
-  }
-}
+const run = (argv: string[]) => captureCli(main, argv);
 
 beforeAll(() => {
   dir = mkdtempSync(join(tmpdir(), "pinchoff-op-"));

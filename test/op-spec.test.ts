@@ -12,8 +12,9 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { dirname, join, resolve } from "node:path";
 import { fileURLToPath } from "node:url";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { designOf, main } from "../lib/cli/op.js";
+import { captureCli } from "./support/cli.js";
 import { parseDesign, parseDesignFile } from "../lib/bias/design-file.js";
 import { isStandard } from "../lib/bias/eseries.js";
 import { specFields, specificationMarkdown, specificationRows, type SpecField, type SpecTopology } from "../lib/bias/spec-fields.js";
@@ -36,18 +37,7 @@ const write = (name: string, value: unknown) => {
   writeFileSync(p, typeof value === "string" ? value : JSON.stringify(value));
   return p;
 };
-async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
-  const out: string[] = [];
-  const err: string[] = [];
-  const log = vi.spyOn(console, "log").mockImplementation((s: unknown) => void out.push(String(s)));
-  const error = vi.spyOn(console, "error").mockImplementation((s: unknown) => void err.push(String(s)));
-  try {
-    return { code: await main(argv), out: out.join("\n"), err: err.join("\n") };
-  } finally {
-    log.mockRestore();
-    error.mockRestore();
-  }
-}
+const run = (argv: string[]) => captureCli(main, argv);
 /** Catch the error a call throws, to look at its fields. */
 function thrown(f: () => unknown): PinchoffError {
   try {
