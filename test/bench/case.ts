@@ -2,6 +2,9 @@
  * The shape of a benchmark case; see the comment at the top of run.ts.
  * Case files in test/bench/cases/ export `cases: BenchCase[]`.
  */
+import { existsSync } from "node:fs";
+import { dirname, join, resolve } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
 
 export interface BenchFigure {
   /** Unit of the figure as printed: "evals/s", "ms", "µs", "MB". */
@@ -42,3 +45,12 @@ export interface BenchCase {
 
 /** Identity helper that checks a case file's export against the shape. */
 export const defineCases = (cases: readonly BenchCase[]): readonly BenchCase[] => cases;
+
+/** The repository root, and the built numeric core (cases measure dist/, which `npm run bench` builds first). */
+export const repoRoot = resolve(dirname(fileURLToPath(import.meta.url)), "../..");
+export type Core = typeof import("../../lib/index.js");
+export async function builtCore(): Promise<Core> {
+  const file = join(repoRoot, "dist/index.js");
+  if (!existsSync(file)) throw new Error("bench: dist/index.js is missing: run `npm run bench` (it builds first)");
+  return (await import(pathToFileURL(file).href)) as Core;
+}

@@ -2,21 +2,15 @@
  * The numeric core: drain-current evaluations per second on plain numbers,
  * and what importing the built core adds to a bare node start.
  */
-import { existsSync } from "node:fs";
-import { dirname, join, resolve } from "node:path";
-import { fileURLToPath, pathToFileURL } from "node:url";
+import { join } from "node:path";
+import { pathToFileURL } from "node:url";
 import type { Device } from "../../../lib/index.js";
-import { defineCases } from "../case.js";
+import { builtCore as core, defineCases, repoRoot, type Core } from "../case.js";
 import { esmScript, timeNode } from "../spawn.js";
 
-const root = resolve(dirname(fileURLToPath(import.meta.url)), "../../..");
+const root = repoRoot;
 const coreUrl = pathToFileURL(join(root, "dist/index.js")).href;
 
-type Core = typeof import("../../../lib/index.js");
-async function core(): Promise<Core> {
-  if (!existsSync(join(root, "dist/index.js"))) throw new Error("bench: dist/index.js is missing: run `npm run bench` (it builds first)");
-  return (await import(coreUrl)) as Core;
-}
 
 // Inputs: a fixed pseudo-random spread over cutoff, triode and saturation, with
 // and without body bias, so no branch is always taken and nothing can be hoisted.

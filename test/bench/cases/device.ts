@@ -3,19 +3,9 @@
  * (which allocate one result object each) and inverse design, per second,
  * without a derivation record.
  */
-import { existsSync } from "node:fs";
-import { dirname, join, resolve } from "node:path";
-import { fileURLToPath, pathToFileURL } from "node:url";
 import type { Device } from "../../../lib/index.js";
-import { defineCases } from "../case.js";
+import { builtCore as core, defineCases, type Core } from "../case.js";
 
-const root = resolve(dirname(fileURLToPath(import.meta.url)), "../../..");
-const coreUrl = pathToFileURL(join(root, "dist/index.js")).href;
-type Core = typeof import("../../../lib/index.js");
-async function core(): Promise<Core> {
-  if (!existsSync(join(root, "dist/index.js"))) throw new Error("bench: dist/index.js is missing: run `npm run bench` (it builds first)");
-  return (await import(coreUrl)) as Core;
-}
 
 const points = 4096;
 const vgs = new Float64Array(points);
