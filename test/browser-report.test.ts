@@ -72,7 +72,7 @@ describe("offline pages in headless Chromium", () => {
   }, 120_000);
 
   it("an nbconvert HTML export of the executed notebook draws every plot output", async () => {
-    const executed = readdirSync(out).find((f) => f.endsWith(".executed.ipynb"))!;
+    const executed = readdirSync(out).find((f) => f === "notebook-as-run.ipynb")!;
     execFileSync("jupyter", ["nbconvert", "--to", "html", join(out, executed), "--output-dir", out, "--output", "export"], { cwd: out, stdio: "pipe", timeout: 120_000 });
     browser.refused.length = 0;
     browser.errors.length = 0;
