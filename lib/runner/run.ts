@@ -187,6 +187,7 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
       derivations: collected.derivations.map((d) => ({ title: d.data.title, cell: d.cell, ...(d.fingerprint ? { fingerprint: d.fingerprint } : {}), html: renderDerivationHtml(d.data) })),
       checks,
       plots: collected.plots,
+      parts: collected.parts,
       failures: collected.failures,
       skipped: collected.skipped,
       ...(collected.derivations.length ? { formulaStyles: formulaStyles() } : {}),
