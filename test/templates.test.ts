@@ -110,6 +110,7 @@ describe("templates run through the tslab kernel", () => {
     const problems: string[] = [];
     const derivations: Array<{ title: string; checks: Array<{ title: string; passed: boolean; value: number; max?: number; margin: number }>; findings?: Array<{ severity: string; text: string }> }> = [];
     const plots: Array<{ kind: string; figure: { data: Array<{ meta?: { role?: string } }> } }> = [];
+    const parts: string[] = [];
     let libraryCarriers = 0;
     nb.cells.forEach((c, i) => {
       for (const o of c.outputs ?? []) {
@@ -120,6 +121,8 @@ describe("templates run through the tslab kernel", () => {
         if (d) derivations.push(d as (typeof derivations)[number]);
         const p = o.data?.["application/vnd.pinchoff.plot+json"];
         if (p) plots.push(p as (typeof plots)[number]);
+        const part = o.data?.["application/vnd.pinchoff.part+json"] as { part?: string } | undefined;
+        if (part?.part) parts.push(part.part);
         if (text(o.data?.["text/html"] as string | string[] | undefined).includes("data-pinchoff-plot-library")) libraryCarriers++;
       }
     });
@@ -149,5 +152,7 @@ describe("templates run through the tslab kernel", () => {
     expect(roles).toContain("boundary");
     expect(roles.some((r) => r === "load-line" || r === "load-curve")).toBe(true);
     expect(libraryCarriers).toBe(1);
+    // The report's results box, corner spread and deck come from these marked outputs.
+    expect(parts.sort()).toEqual(["corner-spread", "spice-deck", "summary"]);
   }, 600_000);
 });
