@@ -6,10 +6,10 @@
 import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
-import { defaultPhi, polaritySign, type Device } from "./card.js";
+import { checkDevice, defaultPhi, isDevice, polaritySign, type Device } from "./card.js";
 import { regionOf, regionReason, type Region } from "./region.js";
 import { thresholdMagnitude } from "./threshold.js";
-import { requireFinite } from "../errors.js";
+import { InputError, requireFinite } from "../errors.js";
 import { inversion, type InversionOptions } from "./inversion.js";
 
 /**
@@ -66,9 +66,12 @@ export function channelCurrent(k: number, vov: number, vds: number, lambda: numb
 
 /**
  * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb. Plain numbers in,
- * plain number out, no allocation: the form for sweeps and Monte Carlo.
+ * plain number out, no allocation: the form for sweeps and Monte Carlo. The
+ * device must come from `device()`/`checkDevice()` (one WeakSet look-up proves
+ * it); the card's values are then known good and are not checked again.
  */
 export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm: ClmMode = "continuous"): Amperes {
+  if (!isDevice(dev)) throw new InputError(dev, "a device made by device(card, W, L) or checkDevice(...)", "drainCurrent.dev");
   const c = dev.card;
   const s = c.polarity === "nmos" ? 1 : -1;
   let g = s * vgs;
@@ -86,7 +89,9 @@ export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm
 }
 
 /** The whole operating point at given terminal voltages, recorded step by step when `rec` is given. */
-export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+export function operatingPoint(device: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+  const dev = checkDevice(device, "operatingPoint.dev");
+  if (!bias || typeof bias !== "object") throw new InputError(bias, "terminal voltages { vgs, vds, vsb? } in V", "operatingPoint.bias");
   requireFinite(bias.vgs, "bias.vgs", "a finite VGS in V");
   requireFinite(bias.vds, "bias.vds", "a finite VDS in V");
   if (bias.vsb !== undefined) requireFinite(bias.vsb, "bias.vsb", "a finite VSB in V");
