@@ -95,7 +95,7 @@ describe("bias analysis: the record", () => {
     expect(titles).toContain("First cut");
     expect(titles).toContain("Exact solution");
     expect(steps(rec).some((s) => s.formula === "bodyEffectThreshold")).toBe(true);
-    expect(rec.checks.find((c) => c.title.startsWith("Device current equals"))?.passed).toBe(true);
+    expect(rec.checks.find((c) => c.title.startsWith("Solver: device current equals"))?.passed).toBe(true);
   });
 });
 

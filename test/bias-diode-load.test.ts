@@ -98,7 +98,7 @@ describe("operating point", () => {
     const a = analyzeStage(stage({ drv: n({ lambda: perVolt(0.08) }), load: n({ name: "invented-n-load", lambda: perVolt(0.05), gamma: sqrtVolts(0.5) }), w2: 3e-6, vg: 1.1, body: "rail" }), rec);
     expect(a.currents.drain).toBeDefined();
     expect(Math.abs(Math.abs(a.devices!.load!.op.channelCurrent) - a.currents.drain!)).toBeLessThan(1e-12 * a.currents.drain!);
-    expect(rec.checks.find((c) => c.title.startsWith("Load current equals"))!.passed).toBe(true);
+    expect(rec.checks.find((c) => c.title.startsWith("Solver: load current equals"))!.passed).toBe(true);
     expect(rec.steps.some((s) => s.kind === "note" && s.title === "Exact solution")).toBe(true);
     expect(expectStepsReplay(rec)).toBeGreaterThan(20);
   });
