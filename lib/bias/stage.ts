@@ -201,7 +201,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     vov: op.vov,
   };
   // Currents and power.
-  const currents: Record<string, Amperes> = { drain: idNet as Amperes };
+  const currents: Record<string, Amperes> = { drainMagnitude: idNet as Amperes };
   const power: Record<string, Watts> = {};
   const c = comps as Record<string, number | undefined>;
   const resistorPower = (name: string, i: number, r: number) => {
@@ -244,7 +244,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     polarity: card.polarity,
     region: op.region,
     nodes: { gate: vG, source: vS, drain: vD, body: vB, vdd, vss },
-    currents: { ...currents, drain: idNet as Amperes, supply },
+    currents: { ...currents, drainMagnitude: idNet as Amperes, supply },
     op,
     smallSignal: ss,
     metrics: { amplifiers, swing, checks: checks as StageCheck[] },

@@ -190,7 +190,7 @@ export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceS
         ...base,
         ok: a.region === "saturation",
         region: a.region,
-        id: a.currents.drain!,
+        id: a.currents.drainMagnitude!,
         vd: a.nodes.drain!,
         vs: a.nodes.source!,
         vov: a.op.vov,

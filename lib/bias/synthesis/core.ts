@@ -301,7 +301,7 @@ export function finish<C extends object>(a: FinishArgs<C>, rec?: Derivation): Sy
   const label = `root-sum-square of ΔID/ID, ΔV${a.output.node === "drain" ? "D" : "S"}/(VDD − VSS)${a.gain ? ", ΔAv/Av" : ""}`;
   const scoreOf = (an: StageAnalysis): number => {
     if (an.region !== "saturation") throw new InfeasibleError(`the stage falls into ${an.region}`, "candidate");
-    const di = (an.currents.drain! - id) / id;
+    const di = (an.currents.drainMagnitude! - id) / id;
     const dv = (an.nodes[a.output.node]! - a.output.target) / vspan;
     const g = a.gain ? (gainOf(an)! - a.gain.target) / a.gain.target : 0;
     return Math.sqrt(di * di + dv * dv + g * g);
@@ -337,7 +337,7 @@ export function finish<C extends object>(a: FinishArgs<C>, rec?: Derivation): Sy
   const analysis = topo.analyze(stage, rec);
   const achievedGain = gainOf(analysis);
   const deviation: SpecDeviation = {
-    id: figure(id, analysis.currents.drain!),
+    id: figure(id, analysis.currents.drainMagnitude!),
     output: figure(a.output.target, analysis.nodes[a.output.node]!),
     ...(a.gain && achievedGain !== undefined ? { gain: figure(a.gain.target, achievedGain) } : {}),
     vov: analysis.op.vov,

@@ -253,7 +253,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   }
 
   // Currents and power.
-  const currents: Record<string, Amperes> = { drain: iout as Amperes, reference: iref, rref: iref };
+  const currents: Record<string, Amperes> = { drainMagnitude: iout as Amperes, reference: iref, rref: iref };
   const power: Record<string, Watts> = {};
   const pr = bf.resistorPower.fn(iref, c.rref as Ohms);
   power.rref = pr;
@@ -321,7 +321,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     polarity: out.card.polarity,
     region: m2.small.op.region,
     nodes: { gate: gateAbs as Volts, source: srcAbs as Volts, drain: vOut as Volts, body: srcAbs as Volts, reference: gateAbs as Volts, vdd, vss },
-    currents: { ...currents, drain: iout as Amperes, supply },
+    currents: { ...currents, drainMagnitude: iout as Amperes, supply },
     op: m2.small.op,
     smallSignal: gs,
     metrics: { amplifiers: [], swing: [swing], checks },

@@ -323,7 +323,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     polarity: drv.card.polarity,
     region: m1.small.op.region,
     nodes: { gate: c.vg as Volts, source: railS as Volts, drain: out as Volts, body: railS as Volts, vdd, vss },
-    currents: { drain: idNet as Amperes, load: idNet as Amperes, supply: idNet as Amperes },
+    currents: { drainMagnitude: idNet as Amperes, load: idNet as Amperes, supply: idNet as Amperes },
     op: m1.small.op,
     smallSignal: m1.analysis.smallSignal,
     metrics: { amplifiers, swing, checks },
