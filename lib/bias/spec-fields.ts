@@ -10,8 +10,7 @@
  * analysis and design: the card (`device.card`), `supplies`, `body`,
  * `options`, `limits` and `name`.
  */
-import { describeDimension } from "../units/parse.js";
-import type { Dimension } from "../quantity.js";
+import { describeDimension, type Dimension } from "../quantity.js";
 import { seriesNames } from "./eseries.js";
 import type { StageSpec } from "./synthesis.js";
 

@@ -6,9 +6,10 @@
  * small-signal parameters and metrics, recording each step when asked.
  */
 import { device as makeDevice, polaritySign, defaultPhi, type Device } from "../device/card.js";
-import type { ClmMode } from "../device/drain-current.js";
+import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
+import { inversion, inversionFinding, type InversionOptions } from "../device/inversion.js";
 import { smallSignal } from "../device/small-signal.js";
-import { InfeasibleError, InputError, requireFinite } from "../errors.js";
+import { InfeasibleError, InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
 import * as bf from "../formulas/bias.formulas.js";
 import type { Amperes, Ohms, Volts, Watts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
@@ -21,6 +22,7 @@ import {
   type Stage,
   type StageAnalysis,
   type StageCheck,
+  type StageLimits,
   type StageSmallSignal,
   type SwingLimits,
   type Topology,
@@ -94,10 +96,33 @@ export function checkStage(stage: Stage): Device {
   const vss = requireFinite(stage.supplies.vss ?? 0, `${o}: supplies.vss`, "a finite supply voltage in V (0 V when omitted)");
   if (!(vdd > vss)) throw new InfeasibleError(`supplies.vdd = ${vdd} V must be above supplies.vss = ${vss} V`, o);
   if (stage.body !== undefined && !bodyTies.includes(stage.body)) throw new InputError(stage.body, `"source" or "rail"`, `${o}: body`, "invalid-design");
+  checkLimits(stage.limits, o);
   const clm = stage.options?.clm;
   if (clm !== undefined && clm !== "continuous" && clm !== "saturation-only")
     throw new InputError(clm, `"continuous" or "saturation-only"`, `${o}: options.clm`, "invalid-design");
   return dev;
+}
+
+/** Each limit's range: power limits > 0, margins and headroom ≥ 0. */
+const limitRanges: Readonly<Record<keyof StageLimits, { positive: boolean; what: string }>> = {
+  maxDevicePower: { positive: true, what: "a transistor power limit > 0 in W" },
+  maxTotalPower: { positive: true, what: "a total power limit > 0 in W" },
+  minSaturationMargin: { positive: false, what: "a saturation margin ≥ 0 in V" },
+  minOverdrive: { positive: false, what: "an overdrive ≥ 0 in V" },
+  minSourceHeadroom: { positive: false, what: "a current-source headroom ≥ 0 in V" },
+};
+
+/** Validate a stage's limits: known names, numbers in range (a negative power limit cannot be met by any design). */
+export function checkLimits(limits: StageLimits | undefined, o: string): void {
+  if (limits === undefined) return;
+  if (!limits || typeof limits !== "object") throw new InputError(limits, "limits { maxDevicePower?, maxTotalPower?, minSaturationMargin?, minOverdrive?, minSourceHeadroom? }", `${o}: limits`, "invalid-design");
+  for (const [key, v] of Object.entries(limits)) {
+    const r = limitRanges[key as keyof StageLimits];
+    if (!r) throw new InputError(key, `a limit name (${Object.keys(limitRanges).join(", ")})`, `${o}: limits.${key}`, "invalid-design");
+    if (v === undefined) continue;
+    if (r.positive) requirePositive(v as number, `${o}: limits.${key}`, r.what);
+    else requireNonNegative(v as number, `${o}: limits.${key}`, r.what);
+  }
 }
 
 /** Check the component record against the topology's fields: known names, required present, finite, resistors ≥ 0. */
@@ -124,6 +149,8 @@ export function checkComponents<C>(spec: { id: string; components: readonly Comp
 
 function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, stage: Stage<Id, C>, rec?: Derivation): StageAnalysis {
   const dev = checkStage(stage as Stage);
+  if (stage.devices !== undefined)
+    throw new InputError(Object.keys(stage.devices ?? {}), `no devices: the ${spec.id} topology has one transistor, given by device (devices holds the further transistors of current-mirror and diode-load)`, `${origin(stage as Stage)}: devices`, "invalid-design");
   const comps = checkComponents(spec, stage);
   const o = origin(stage as Stage);
   const card = dev.card;
@@ -169,7 +196,8 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     iss: map.iss ?? 0,
     bodyToRail,
   };
-  if (net.vt0 <= 0) rec?.find("caution", `The card's threshold ${card.vt0} V describes a depletion-mode device; the bias equations still hold.`);
+  const depletion = depletionFinding(card);
+  if (depletion) rec?.find("caution", depletion);
   const sol = solveNetwork(net, newSolution(), o, rec);
   if (rec && sol.method === "bracketed-newton" && net.iss <= 0) {
     rec.step(bf.sourceNode, [net.vsr, sol.id, net.rs], sol.vs, "at the solved drain current");
@@ -237,7 +265,12 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   const amplifiers = op.region === "cutoff" ? [] : spec.amplifiers(solved, rec);
   if (op.region === "cutoff") rec?.note("Small-signal gain", "The device is in cutoff: there is no transconductance and no gain.");
   const swing = op.region === "cutoff" ? [] : spec.swing(solved, rec);
-  const { checks, findings } = stageMetrics(solved, pDev, total, rec);
+  const metrics = stageMetrics(solved, pDev, total, rec);
+  const checks = metrics.checks;
+  const findings = depletion ? [depletion, ...metrics.findings] : metrics.findings;
+  // The inversion-level finding the record carries (operatingPoint records it), in the analysis findings too.
+  const inv = stageInversionFinding(op, stage.options);
+  if (inv) findings.splice(findings.length - 1, 0, inv);
   return {
     topology: stage.topology,
     ...(stage.name ? { name: stage.name } : {}),
@@ -252,4 +285,24 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     solver: { method: sol.method, iterations: sol.iterations, tolerance: sol.tolerance, unknown: sol.method === "direct" ? "none" : net.iss > 0 ? "source voltage" : "drain current" },
     findings,
   };
+}
+
+/**
+ * A card whose threshold has the other sign from an enhancement device of its
+ * polarity (NMOS vt0 ≤ 0, PMOS vt0 ≥ 0) describes a depletion-mode device: it
+ * conducts at VGS = 0. The square law holds for it unchanged; say so.
+ */
+export function depletionFinding(card: { readonly polarity: string; readonly vt0: number; readonly name?: string }): string | undefined {
+  const s = card.polarity === "nmos" ? 1 : -1;
+  if (s * card.vt0 > 0) return undefined;
+  const sign = card.polarity === "nmos" ? "VTO ≤ 0 for an NMOS" : "VTO ≥ 0 for a PMOS";
+  return `Depletion-mode device: card ${card.name ? `"${card.name}" ` : ""}has VTO = ${card.vt0} V (${sign}), so it conducts with VGS = 0. The square-law equations still hold; check that a depletion device is what was meant (an enhancement ${card.polarity === "nmos" ? "NMOS has VTO > 0" : "PMOS has VTO < 0"}).`;
+}
+
+/** The inversion-level finding at an operating point (none in strong inversion or cutoff), worded as the record words it. */
+export function stageInversionFinding(op: OperatingPoint, opts: InversionOptions | undefined): string | undefined {
+  if (op.region === "cutoff") return undefined;
+  const forward = (op.k / 2) * op.vov * op.vov;
+  if (!Number.isFinite(forward)) return undefined;
+  return inversionFinding(inversion(forward as Amperes, op.k, opts ?? {}))?.text;
 }
