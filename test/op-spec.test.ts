@@ -257,7 +257,7 @@ describe("pinchoff op with a specification", () => {
     expect(wrongUnit.message).toMatch(/^f\.json: specification\.id: got "1 V", expected a current in A, but it is a voltage/);
     expect(bad({ specification: { ...s, source: { fraction: 1.5 } } }).message).toMatch(/^f\.json: specification\.source\.fraction: got 1\.5, expected a dimensionless ratio \(a plain number\), 0 < f < 1/);
     expect(bad({ specification: { ...s, series: "E25" } }).message).toMatch(/^f\.json: specification\.series: got "E25", expected one of "E3", .*"exact"/);
-    expect(bad({ specification: { ...s, candidates: 2.5 } }).message).toMatch(/^f\.json: specification\.candidates: got 2\.5, expected a whole number ≥ 1/);
+    expect(bad({ specification: { ...s, candidates: 2.5 } }).message).toMatch(/^f\.json: specification\.candidates: got 2\.5, expected a whole number from 1 to 8/);
     expect(bad({ specification: { ...s, bypassed: "yes" } }).message).toMatch(/^f\.json: specification\.bypassed: got "yes", expected true or false/);
     expect(bad({ device: { card: nCard, w: "10 um" } }).message).toMatch(/^f\.json: device\.w: got "10 um", expected no device\.w with a specification: the size comes from specification\.sizing/);
     expect(bad({ devices: { reference: { card: nCard } } }).message).toMatch(/^f\.json: devices: got \["reference"\], expected no devices with a specification/);

@@ -20,6 +20,7 @@ import { drainNode } from "../../formulas/bias.formulas.js";
 import * as sf from "../../formulas/synthesis.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, SqrtVolts, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
+import { contrastDigits } from "../../units/format.js";
 import "../analyze.js"; // registers the built-in topologies
 import { stageDissipation } from "../dissipation.js";
 import { eSeries } from "../eseries.js";
@@ -200,12 +201,16 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
     if (vd > vdr) throw new InfeasibleError(`a drain at ${v(s * vd)} lies beyond the drain rail ${v(s * vdr)}: RD would come out negative`, `${o}.drain.vd`);
     rd = calc(sf.drainResistorForNode, [vdr, vd, id]);
   }
-  if (vd < vg - vt)
+  if (vd < vg - vt) {
+    // Enough digits that the drain and the edge, and VDS and VOV, read differently (they differ).
+    const dg = Math.max(contrastDigits(s * vd, s * (vg - vt), 4), contrastDigits(vd - vs, vov, 4));
+    const v = (x: number) => `${+x.toPrecision(dg)} V`;
     throw new InfeasibleError(
       (dr.kind === "target" && dr.target && "gain" in dr.target ? `a gain of ${dr.target.gain} needs RD = ${+rd.toPrecision(4)} Ω, and with it ` : "") +
         `the drain at ${v(s * vd)} is ${s > 0 ? "below" : "above"} the triode edge ${s > 0 ? "VG − Vt" : "VG + |Vt|"} = ${v(s * (vg - vt))} (${s > 0 ? "VDS" : "VSD"} = ${v(vd - vs)} < VOV = ${v(vov)}): the device would be in triode`,
       dr.kind === "target" && dr.target ? `${o}.drain` : o,
     );
+  }
   if (dr.kind !== "rail" && !(rd > 0)) throw new InfeasibleError(`RD would be ${+rd.toPrecision(4)} Ω: the drain target leaves no drop across RD`, `${o}.drain`);
   const w = "vov" in spec.sizing ? sf.widthForRatio.fn(wl, l) : spec.sizing.w;
   return { vrs, vs, vt, vsb, vov, wl, k, vg, vd, rd, gm, gds, gmb, w, l };
