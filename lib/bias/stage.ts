@@ -177,9 +177,12 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     rec.assume("No DC gate current (insulated gate).");
     rec.assume(`Square law (SPICE Level 1), channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
     rec.assume(bodyToRail ? `Body tied to the ${pmos ? "upper (VDD)" : "lower (VSS)"} rail: the body effect applies when the source is off that rail.` : "Body tied to the source: VSB = 0, no body effect.");
-    if (pmos) rec.note("PMOS", "Voltages in the equations are in the device's own polarity: each node voltage is negated, so VGS stands for VSG, VDS for VSD and Vt for |Vt|; the drain rail is then the more positive one.");
+    if (pmos)
+      rec.note("Sign convention (PMOS)", pmosConvention);
   }
   const map = spec.map(comps, stage, rec);
+  if (pmos && rec && map.vg !== undefined)
+    rec.note("Gate in device polarity", `Mirrored for the PMOS equations: VG = −(${fmtV(map.vg)}) = ${fmtV(-map.vg)} (VDR = −VSS = ${fmtV(-vss)}, VSR = −VDD = ${fmtV(-vdd)}).`);
   const net: BiasNetwork = {
     k: (card.kp * dev.w) / dev.l,
     vt0: s * card.vt0,
@@ -208,12 +211,11 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   const vS = (s * sol.vs) as Volts;
   const vD = (s * sol.vd) as Volts;
   const vB = (bodyToRail ? s * net.vsr : vS) as Volts;
+  if (pmos) rec?.note("Node voltages to ground", `Mirrored back: VG = ${fmtV(vG)}, VS = ${fmtV(vS)}, VD = ${fmtV(vD)}; the device sees VSG = ${fmtV(vS - vG)} and VSD = ${fmtV(vS - vD)}.`);
   rec?.note("Device at the solved node voltages", "The operating point of the transistor at these terminal voltages, region and current from the device model:");
   const small = smallSignal(dev, { vgs: (vG - vS) as Volts, vds: (vD - vS) as Volts, vsb: (vS - vB) as Volts }, { clm }, rec);
   const op = small.op;
   const idNet = sol.id;
-  // solveNetwork verified KCL and the region conditions (verify.ts); the record shows the residual it found.
-  rec?.check("Solver: device current equals network current (KCL)", sol.kcl, "current", { max: sol.kclTolerance }, "residual of the solved operating point; tolerance 1e-9·I + G·δV (verify.ts)");
   const ss: StageSmallSignal = { gm: small.gm, gmb: small.gmb, gds: small.gds, ro: small.ro };
   const gmbEff = bodyToRail ? small.gmb : 0;
   const solved: SolvedStage = {
@@ -266,6 +268,8 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   if (op.region === "cutoff") rec?.note("Small-signal gain", "The device is in cutoff: there is no transconductance and no gain.");
   const swing = op.region === "cutoff" ? [] : spec.swing(solved, rec);
   const metrics = stageMetrics(solved, pDev, total, rec);
+  // solveNetwork verified KCL and the region conditions (verify.ts); the record shows the residual it found, after the design checks.
+  rec?.check("Solver: device current equals network current (KCL)", sol.kcl, "current", { max: sol.kclTolerance }, "residual of the solved operating point; tolerance 1e-9·I + G·δV (verify.ts)");
   const checks = metrics.checks;
   const findings = depletion ? [depletion, ...metrics.findings] : metrics.findings;
   // The inversion-level finding the record carries (operatingPoint records it), in the analysis findings too.
@@ -306,3 +310,9 @@ export function stageInversionFinding(op: OperatingPoint, opts: InversionOptions
   if (!Number.isFinite(forward)) return undefined;
   return inversionFinding(inversion(forward as Amperes, op.k, opts ?? {}))?.text;
 }
+
+const fmtV = (x: number) => `${+x.toPrecision(6)} V`;
+
+/** The one sign convention every PMOS record states at its top (analysis and synthesis alike). */
+export const pmosConvention =
+  "Inputs, targets and the node voltages reported at the end are node voltages to ground. The equations in between are in the device's own polarity: every node voltage is mirrored (V → −V), so VG, VS, VD, VDR and VSR there are mirrored node voltages (VDR = −VSS, VSR = −VDD) and VGS, VDS, Vt stand for VSG, VSD, |Vt|; the drain rail is then the more positive one. Checks and margins are in the device's polarity (VSG − |Vt|, VSD − VOV).";

@@ -27,6 +27,7 @@ import { cardAtTemperature } from "../device/temperature.js";
 import { InputError, PinchoffError, requireNonNegative, requirePositive } from "../errors.js";
 import type { Kelvin, Volts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
+import { formatQuantity } from "../units/format.js";
 import { seriesOf, toleranceOf, type SeriesName } from "./eseries.js";
 import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
 
@@ -293,12 +294,13 @@ function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation): voi
       (r.temperatures[0] !== undefined ? `, at ${r.temperatures.map((t) => `${+(t! - 273.15).toFixed(2)} °C`).join(", ")}` : "") +
       (r.method === "corners" ? "; each parameter at both ends of its band." : "; seeded, reproducible; the result is a sample, not a bound."),
   );
-  const f = (x: number, unit: string) => `${+x.toPrecision(4)} ${unit}`;
-  const line = (name: string, s: FigureSpread, unit: string) =>
-    `${name}: ${f(s.min, unit)} (${s.minAt}) to ${f(s.max, unit)} (${s.maxAt}), nominal ${f(s.nominal, unit)}`;
+  // Engineering units (566.1 µA, not 0.0005661 A), four digits.
+  const f = (x: number, dim: "current" | "voltage") => formatQuantity(x, dim, { digits: 4 });
+  const line = (name: string, s: FigureSpread, dim: "current" | "voltage") =>
+    `${name}: ${f(s.min, dim)} (${s.minAt}) to ${f(s.max, dim)} (${s.maxAt}), nominal ${f(s.nominal, dim)}`;
   rec.note(
     "Spread of the bias",
-    [line("ID", r.id, "A"), line("VD", r.vd, "V"), line("VS", r.vs, "V"), line("VOV", r.vov, "V"), line("VDS − VOV", r.saturationMargin, "V")].join("\n"),
+    [line("ID", r.id, "current"), line("VD", r.vd, "voltage"), line("VS", r.vs, "voltage"), line("VOV", r.vov, "voltage"), line("VDS − VOV", r.saturationMargin, "voltage")].join("\n"),
   );
   const minMargin = stage.limits?.minSaturationMargin ?? 0;
   rec.check(`Saturation margin in every case ≥ ${minMargin} V`, r.saturationMargin.min, "voltage", { min: minMargin }, `worst case ${r.saturationMargin.minAt}`);

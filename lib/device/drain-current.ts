@@ -3,7 +3,7 @@
  * `drainCurrent` is the allocation-free hot path; `operatingPoint` returns the
  * whole picture and records its steps. Both go through `channelCurrent`.
  */
-import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
+import { deviceGain, forwardCurrent, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
 import { checkDevice, defaultPhi, isDevice, polaritySign, type Device } from "./card.js";
@@ -131,7 +131,7 @@ export function operatingPoint(device: Device, bias: TerminalVoltages, opts: Mod
   if (rec && region !== "cutoff") {
     // The inversion level rests on the forward current ½·k·VOV² (no λ), in triode as in saturation.
     const plainSat = region === "saturation" && lambda === 0;
-    const forward = plainSat ? (ich as Amperes) : rec.calc(saturationCurrent, [k, vov], "forward current, for the inversion level");
+    const forward = plainSat ? (ich as Amperes) : rec.calc(forwardCurrent, [k, vov], "for the inversion level");
     inversion(forward, k, opts, rec);
   }
   const channel = ((reversed ? -1 : 1) * ich) as Amperes;

@@ -189,7 +189,7 @@ export const formulas = defineFormulas({
   feedbackInput: { title: "Drain-feedback input resistance (Miller)", result: "Rin", expr: "RF / (1 - Av)", source: smallSignal },
   feedbackOutput: { title: "Drain-feedback output resistance RD ∥ RF ∥ ro", result: "Rout", expr: "RD * RF / (RD + RF + gds * RD * RF)", source: smallSignal },
   // swing
-  triodeEdgeDrain: { title: "Lowest drain voltage in saturation (gate held)", result: "Vmin", expr: "VG - Vt", source: "square-law region boundary (common practice)" },
+  triodeEdgeDrain: { title: "Drain at the triode edge (gate held; the swing limit toward the source rail, in device polarity)", result: "Vmin", expr: "VG - Vt", source: "square-law region boundary (common practice)" },
   followerUpperSwing: {
     title: "Highest follower output before triode (overdrive held)",
     result: "Vmax",

@@ -576,10 +576,10 @@ export const feedbackOutput = {
   fn: (RD: Ohms, RF: Ohms, gds: Siemens): Ohms => ((RD * RF) / (((RD + RF) + ((gds * RD) * RF)))) as Ohms,
 } as const satisfies Formula;
 
-/** Lowest drain voltage in saturation (gate held): Vmin = VG - Vt */
+/** Drain at the triode edge (gate held; the swing limit toward the source rail, in device polarity): Vmin = VG - Vt */
 export const triodeEdgeDrain = {
   id: "triodeEdgeDrain",
-  title: "Lowest drain voltage in saturation (gate held)",
+  title: "Drain at the triode edge (gate held; the swing limit toward the source rail, in device polarity)",
   expr: "VG - Vt",
   tex: "V_{min} = {V_{G}}-{V_{t}}",
   result: "Vmin",

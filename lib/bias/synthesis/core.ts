@@ -23,6 +23,7 @@ import type { Derivation } from "../../record/derivation.js";
 import { contrastDigits } from "../../units/format.js";
 import "../analyze.js"; // registers the built-in topologies
 import { stageDissipation } from "../dissipation.js";
+import { pmosConvention } from "../stage.js";
 import { eSeries } from "../eseries.js";
 import { snapToSeries, type SnapResult } from "../snap.js";
 import { topologyFor, type AmplifierKind, type Stage, type StageAnalysis, type StageDevice } from "../topology.js";
@@ -126,7 +127,9 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
   } else if (src.kind === "follower") {
     if (src.vs !== undefined) {
       vs = (s * src.vs) as Volts;
-      rec?.input("VS (device polarity)", vs, "voltage", `${o}.output.vs`);
+      // Inputs are node voltages to ground, as given; the mirrored value the PMOS equations use is said once.
+      rec?.input("VS", src.vs, "voltage", `${o}.output.vs`);
+      if (s < 0) rec?.note("Output in device polarity", `VS mirrored for the PMOS equations: −VS = ${v(vs)}.`);
     } else {
       rec?.assume("Follower output at mid-swing between the source rail and the triode edge VDR − VOV (common practice).");
       vs = calc(sf.followerMidSwing, [vdr, vov, vsr]);
@@ -193,7 +196,8 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
   } else {
     if (dr.target && "vd" in dr.target) {
       vd = (s * dr.target.vd) as Volts;
-      rec?.input("VD (device polarity)", vd, "voltage", `${o}.drain.vd`);
+      rec?.input("VD", dr.target.vd, "voltage", `${o}.drain.vd`);
+      if (s < 0) rec?.note("Drain in device polarity", `VD mirrored for the PMOS equations: −VD = ${v(vd)}.`);
     } else {
       rec?.assume("Drain at mid-swing between the triode edge VG − Vt and the drain rail (common practice: the largest symmetric output swing).");
       vd = calc(sf.midSwingDrain, [vdr, vg, vt]);
@@ -252,7 +256,7 @@ export function designDivider(spec: SpecBase, d: CoreDesign, target: DividerTarg
     let idiv: Amperes;
     if (target && "current" in target) {
       idiv = requirePositive(target.current, `${origin}.gate.current`, "a divider current > 0 in A");
-      rec?.input("Idiv", idiv, "current", `${origin}.gate.current`);
+      rec?.input("IDIV", idiv, "current", `${origin}.gate.current`);
     } else {
       const n = (target && "ratio" in target ? target.ratio : 0.1) as Ratio;
       requirePositive(n, `${origin}.gate.ratio`, "a divider current ratio > 0 (0.1 for a tenth of ID)");
@@ -378,5 +382,5 @@ export function recordSpec(spec: SpecBase, origin: string, rec?: Derivation): vo
   if ("vov" in spec.sizing) rec.input("VOV", spec.sizing.vov, "voltage", `${origin}.sizing.vov`);
   else rec.input("W", spec.sizing.w, "length", `${origin}.sizing.w`);
   rec.input("L", spec.sizing.l, "length", `${origin}.sizing.l`);
-  if (s < 0) rec.note("PMOS in device polarity", `Node voltages are negated so the drain rail is the higher: VDR = −VSS = ${v(vdr)}, VSR = −VDD = ${v(vsr)}.`);
+  if (s < 0) rec.note("Sign convention (PMOS)", `${pmosConvention} Here VDR = −VSS = ${v(vdr)}, VSR = −VDD = ${v(vsr)}.`);
 }

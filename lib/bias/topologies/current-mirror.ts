@@ -241,10 +241,6 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const g2 = m2.small.gm + m2.small.gds + (c.rload ? 1 / c.rload : 0);
   const kcl1 = verifyCurrent("the reference diode M1", Math.abs(m1.small.op.channelCurrent), iref, g1, vScale, o);
   const kcl2 = verifyCurrent("the output M2", Math.abs(m2.small.op.channelCurrent), iout, g2, vScale, o);
-  if (rec) {
-    rec.check("Solver: M1 current equals the current through RREF (KCL)", kcl1, "current", { max: kclTolerance(iref, iref, g1, vScale) }, "residual of the solved reference branch; tolerance 1e-9·I + G·δV");
-    rec.check("Solver: M2 current equals the output current (KCL)", kcl2, "current", { max: kclTolerance(iout, iout, g2, vScale) }, "residual of the solved output; tolerance 1e-9·I + G·δV");
-  }
   const ro2 = m2.small.ro;
   if (rec) {
     if (m2.small.op.region === "saturation" && Number.isFinite(ro2)) rec.note("Output resistance", `The current source's output resistance is ro2 = 1/gds2 = ${fmt(ro2)} Ω: IOUT changes by about ΔVOUT/ro2.`);
@@ -288,6 +284,11 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     checks.push(stageCheck("M2 dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  // The solver's own checks (verify.ts) come after the design checks.
+  if (rec) {
+    rec.check("Solver: M1 current equals the current through RREF (KCL)", kcl1, "current", { max: kclTolerance(iref, iref, g1, vScale) }, "residual of the solved reference branch; tolerance 1e-9·I + G·δV");
+    rec.check("Solver: M2 current equals the output current (KCL)", kcl2, "current", { max: kclTolerance(iout, iout, g2, vScale) }, "residual of the solved output; tolerance 1e-9·I + G·δV");
+  }
   const findings: string[] = [];
   const ideal = (iref * ratio) as Amperes;
   if (m2.small.op.region === "triode")

@@ -275,7 +275,6 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
   const g = m1.small.gm + m1.small.gds + m2.small.gm + m2.small.gmb + m2.small.gds;
   const vScale = Math.max(Math.abs(railD), Math.abs(railS), Math.abs(c.vg), Math.abs(out));
   const kcl = verifyCurrent("the output node", iLoad, idNet, g, vScale, o);
-  rec?.check("Solver: load current equals driver current (KCL at the output)", kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
   if (rec) {
     rec.step(bf.devicePower, [idNet, vds1], p1, "driver dissipation");
     rec.step(bf.devicePower, [idNet, vload], p2, "load dissipation");
@@ -314,6 +313,8 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     checks.push(stageCheck("Load dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  // The solver's own check (verify.ts) comes after the design checks.
+  rec?.check("Solver: load current equals driver current (KCL at the output)", kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
   if (p.sameType && stage.body !== "rail" && (load.card.gamma ?? 0) > 0) findings.push("The load's body is tied to its own source: that needs a separate well. On a common substrate set body to \"rail\" for the body effect.");
   findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
   recordFindings(findings, rec);
