@@ -97,3 +97,18 @@ describe("record hygiene (item 20)", () => {
     expect(fwd.tex).toContain("I_{F}");
   });
 });
+
+describe("dissipation is computed once (item 20)", () => {
+  it("a synthesis with ratings reuses the analysis' dissipation figures instead of deriving them again", () => {
+    const rec = new Derivation("t");
+    const r = synthesize(
+      { topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) }, dissipation: { resistors: { rd: { rating: 0.125 as never } }, transistor: { rating: 0.2 as never } } },
+      rec,
+    );
+    const rdPower = formulas(rec).filter((s) => s.formula === "resistorPower" && s.inputs.some((i) => i.value === r.stage.components.rd));
+    expect(rdPower).toHaveLength(1);
+    expect(formulas(rec).filter((s) => s.formula === "devicePower")).toHaveLength(1);
+    const item = r.dissipation!.items.find((i) => i.name === "rd")!;
+    expect(item.power).toBe(r.analysis.power.components.rd);
+  });
+});
