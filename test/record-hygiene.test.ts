@@ -112,3 +112,19 @@ describe("dissipation is computed once (item 20)", () => {
     expect(item.power).toBe(r.analysis.power.components.rd);
   });
 });
+
+describe("the tolerance record's fingerprint covers its own inputs (item 20)", () => {
+  it("records the bands, nominal values, temperatures and Monte Carlo settings, so different runs fingerprint differently", () => {
+    const st: Stage = { ...pStage, device: { ...pStage.device, card: ncard } };
+    const fp = (spec: Parameters<typeof toleranceAnalysis>[1]) => {
+      const rec = new Derivation("tol");
+      toleranceAnalysis(st, spec, rec);
+      return rec;
+    };
+    const a = fp({ resistors: 0.05 });
+    expect(a.inputs.find((i) => i.name === "RD band")!.value).toBe(0.05);
+    expect(a.fingerprint()).not.toBe(new Derivation("empty").fingerprint());
+    expect(fp({ resistors: 0.01 }).fingerprint()).not.toBe(a.fingerprint());
+    expect(fp({ resistors: 0.05, monteCarlo: { samples: 10, seed: 1 } }).fingerprint()).not.toBe(fp({ resistors: 0.05, monteCarlo: { samples: 10, seed: 2 } }).fingerprint());
+  });
+});

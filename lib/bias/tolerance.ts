@@ -282,11 +282,22 @@ export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceS
     allInSaturation: nominal.ok && failureCount === 0,
     failures,
   };
-  if (rec) recordTolerance(report, stage, rec);
+  if (rec) recordTolerance(report, stage, rec, spec.monteCarlo);
   return report;
 }
 
-function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation): void {
+function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation, mc?: MonteCarlo): void {
+  // The inputs of this analysis, so its fingerprint covers what produced it (not only the stage's own record).
+  for (const p of r.parameters) {
+    const dim = p.name === "Vt" ? "voltage" : p.name === "k'" ? "transconductanceParameter" : "resistance";
+    rec.input(p.name === "Vt" ? "VTO" : p.name === "k'" ? "KP" : p.name.toUpperCase(), p.nominal, dim, p.name === "Vt" || p.name === "k'" ? `card ${stage.device.card.name}` : `components.${p.name}`);
+    rec.input(`${p.name === "Vt" ? "VTO" : p.name === "k'" ? "KP" : p.name.toUpperCase()} band`, p.band, p.relative ? "fraction" : "voltage", p.relative ? "relative half-width" : "absolute half-width");
+  }
+  r.temperatures.forEach((t, i) => t !== undefined && rec.input(`T${r.temperatures.length > 1 ? i + 1 : ""}`, t, "temperature", "tolerance.temperatures"));
+  if (mc) {
+    rec.input("samples", mc.samples, "count", "tolerance.monteCarlo.samples");
+    rec.input("seed", mc.seed, "count", "tolerance.monteCarlo.seed");
+  }
   const band = (p: ToleranceParameter) => (p.relative ? `±${+(p.band * 100).toPrecision(3)} %` : `±${+(p.band * 1e3).toPrecision(3)} mV`);
   rec.note(
     r.method === "corners" ? "Worst-case corners" : "Monte Carlo",
