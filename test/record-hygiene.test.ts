@@ -128,3 +128,13 @@ describe("the tolerance record's fingerprint covers its own inputs (item 20)", (
     expect(fp({ resistors: 0.05, monteCarlo: { samples: 10, seed: 1 } }).fingerprint()).not.toBe(fp({ resistors: 0.05, monteCarlo: { samples: 10, seed: 2 } }).fingerprint());
   });
 });
+
+describe("text records keep a note's lines (item 20)", () => {
+  it("the spread of the bias prints one figure per line", async () => {
+    const { renderText } = await import("../lib/record/render-text.js");
+    const rec = new Derivation("tol");
+    toleranceAnalysis({ ...pStage, device: { ...pStage.device, card: ncard } }, { resistors: 0.05 }, rec);
+    const text = renderText(rec);
+    for (const figure of ["ID", "VD", "VS", "VOV"]) expect(text).toMatch(new RegExp(`\\n {5}${figure}: `));
+  });
+});
