@@ -118,3 +118,23 @@ describe("verification throws ConvergenceError with the residual rather than ret
     expect(() => analyzeStage(st)).toThrow(/four-resistor stage: the solved operating point fails its check/);
   });
 });
+
+describe("the record says when a closed form was rejected", () => {
+  it("a current-fed stage with ISS = 1e-100 A: the closed form is spoiled by rounding, the record notes it and the bracketed solution", () => {
+    const rec = new Derivation("t");
+    const st: Stage = {
+      topology: "current-source-bias",
+      device: { card: { ...flat(ncard), kp: amperesPerVoltSquared(1e-9) }, w: meters(1e-6), l: meters(1e-6) },
+      components: { vg: volts(3), iss: 1e-100 as never, rd: ohms(1e3) },
+      supplies: { vdd: volts(5) },
+    };
+    const a = analyzeStage(st, rec);
+    const titles = rec.steps.map((s) => s.title);
+    const rejected = titles.findIndex((t) => t.startsWith("Closed form"));
+    expect(rejected).toBeGreaterThanOrEqual(0);
+    expect(titles.indexOf("Exact solution", rejected)).toBeGreaterThan(rejected);
+    expect(a.solver.method).toBe("bracketed-newton");
+    expect(a.nodes.source).toBeCloseTo(2.5, 9); // VG − Vt, the overdrive for 1e-100 A being negligible
+    expect(rec.checks.find((c) => c.title.startsWith("Solver:"))!.passed).toBe(true);
+  });
+});

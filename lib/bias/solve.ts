@@ -103,6 +103,7 @@ export function solveNetwork(n: BiasNetwork, out: NetworkSolution, origin = "sta
     if (n.iss > 0) newtonFed(n, out, origin);
     else newtonResistive(n, out, origin);
     verifyNetwork(n, out, origin);
+    rec?.note("Exact solution", `By the bracketed iteration: ID = ${fmt(out.id)} A, VS = ${fmt(out.vs)} V, VD = ${fmt(out.vd)} V (device polarity) in ${out.iterations} iterations; KCL residual ${out.kcl.toExponential(2)} A.`);
     return out;
   }
   if (rec) {

@@ -219,7 +219,7 @@ function solveOutput(p: Pair, o: string, rec?: Derivation): { u: number; method:
   const r = decreasingRoot((u) => loadCurrent(p, u) - driverCurrent(p, u), p.vsr, p.vdr, o);
   rec?.note(
     "Exact solution",
-    `${p.l1 !== 0 || p.l2 !== 0 ? "λ ≠ 0" : ""}${(p.l1 !== 0 || p.l2 !== 0) && p.body ? " and " : ""}${p.body ? "the body effect on the load" : ""}: no closed form. Equal currents in the output voltage, solved by bracketed regula falsi (Illinois) between the rails to VOUT = ${fmt(p.s * r.u)} V in ${r.iterations} iterations (bracket ${r.width.toExponential(2)} V).`,
+    `${closed ? "The closed form was rejected above" : `${p.l1 !== 0 || p.l2 !== 0 ? "λ ≠ 0" : ""}${(p.l1 !== 0 || p.l2 !== 0) && p.body ? " and " : ""}${p.body ? "the body effect on the load" : ""}: no closed form`}. Equal currents in the output voltage, solved by bracketed regula falsi (Illinois) between the rails to VOUT = ${fmt(p.s * r.u)} V in ${r.iterations} iterations (bracket ${r.width.toExponential(2)} V).`,
   );
   return { u: r.u, method: "bracketed-regula-falsi", iterations: r.iterations, tolerance: r.width, cutoff: false };
 }
