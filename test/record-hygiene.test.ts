@@ -12,7 +12,9 @@ import type { Stage } from "../lib/bias/topology.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import { amperes, amperesPerVoltSquared, meters, ohms, perVolt, volts } from "../lib/quantity.js";
 import { Derivation, type FormulaStep, type NoteStep } from "../lib/record/derivation.js";
+import { renderHtml } from "../lib/record/render-html.js";
 import { renderMarkdown } from "../lib/record/render-markdown.js";
+import { renderText } from "../lib/record/render-text.js";
 
 // Invented cards (not a real process).
 const pcard: DeviceCard = { name: "hy-p", polarity: "pmos", kp: amperesPerVoltSquared(80e-6), vt0: volts(-0.7), lambda: perVolt(0.02) };
@@ -61,6 +63,26 @@ describe("record hygiene (item 20)", () => {
       const last = rec.checks[rec.checks.length - 1]!;
       expect(last.title).toMatch(/^Solver: /);
       expect(rec.checks.filter((c) => c.title.startsWith("Solver:"))).toHaveLength(1);
+    }
+  });
+  it("each renderer prints the solver's checks under a heading of their own, after the design checks", () => {
+    const rec = new Derivation("t");
+    analyzeStage(pStage, rec);
+    const kcl = "device current equals";
+    const text = renderText(rec);
+    const md = renderMarkdown(rec);
+    const html = renderHtml(rec);
+    for (const [out, heading, designHeading] of [
+      [text, "\nSolver checks\n", "\nChecks\n"],
+      [md, "**Solver checks**", "**Checks**"],
+      [html, ">Solver checks</h3>", ">Checks</h3>"],
+    ] as const) {
+      const h = out.indexOf(heading);
+      expect(h, heading).toBeGreaterThan(out.indexOf(designHeading));
+      expect(out.indexOf(kcl)).toBeGreaterThan(h);
+      expect(out).not.toContain(`Solver: ${kcl}`);
+      const designAt = rec.checks.find((c) => !c.title.startsWith("Solver:"))!.title;
+      expect(out.indexOf(designAt)).toBeLessThan(h);
     }
   });
   it("no input is stated twice under two names (IDIV, not Idiv beside it)", () => {

@@ -12,7 +12,7 @@ import { smallSignal } from "../device/small-signal.js";
 import { InfeasibleError, InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
 import * as bf from "../formulas/bias.formulas.js";
 import type { Amperes, Ohms, Volts, Watts } from "../quantity.js";
-import type { Derivation } from "../record/derivation.js";
+import { solverCheckPrefix, type Derivation } from "../record/derivation.js";
 import { newSolution, solveNetwork, type BiasNetwork, type NetworkSolution } from "./solve.js";
 import {
   bodyTies,
@@ -269,7 +269,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   const swing = op.region === "cutoff" ? [] : spec.swing(solved, rec);
   const metrics = stageMetrics(solved, pDev, total, rec);
   // solveNetwork verified KCL and the region conditions (verify.ts); the record shows the residual it found, after the design checks.
-  rec?.check("Solver: device current equals network current (KCL)", sol.kcl, "current", { max: sol.kclTolerance }, "residual of the solved operating point; tolerance 1e-9·I + G·δV (verify.ts)");
+  rec?.check(`${solverCheckPrefix}device current equals network current (KCL)`, sol.kcl, "current", { max: sol.kclTolerance }, "residual of the solved operating point; tolerance 1e-9·I + G·δV (verify.ts)");
   const checks = metrics.checks;
   const findings = depletion ? [depletion, ...metrics.findings] : metrics.findings;
   // The inversion-level finding the record carries (operatingPoint records it), in the analysis findings too.

@@ -6,7 +6,7 @@
 import escapeHtml from "escape-html";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, checkGroups, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 
 /** Escape a user string for Markdown text and table cells. */
@@ -50,12 +50,12 @@ function one(d: DerivationData, opts: RenderOptions): string {
       }
     });
   }
-  if (d.checks.length) {
-    out.push("**Checks**", "");
+  for (const g of checkGroups(d)) {
+    out.push(`**${g.heading}**`, "");
     out.push(
       table(
         ["", "Check", "Value", "Required", "Margin"],
-        d.checks.map((c) => [c.passed ? "✓ pass" : "✗ **FAIL**", cell(c.title) + (c.detail ? ` — ${cell(c.detail)}` : ""), cell(valueText(c, opts)), cell(boundText(c, opts)), cell(marginText(c, opts))]),
+        g.checks.map((c) => [c.passed ? "✓ pass" : "✗ **FAIL**", cell(c.title) + (c.detail ? ` — ${cell(c.detail)}` : ""), cell(valueText(c, opts)), cell(boundText(c, opts)), cell(marginText(c, opts))]),
       ),
       "",
     );

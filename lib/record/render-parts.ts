@@ -5,7 +5,7 @@
  */
 import { InputError } from "../errors.js";
 import { contrastDigits, formatQuantity, type FormatOptions } from "../units/format.js";
-import type { CheckEntry, Derivation, DerivationData } from "./derivation.js";
+import { solverCheckPrefix, type CheckEntry, type Derivation, type DerivationData } from "./derivation.js";
 
 /** What renderers accept: a live record or its JSON data. */
 export type DerivationLike = Derivation | DerivationData;
@@ -24,6 +24,24 @@ export const fingerprintOf = (d: DerivationData): string => d.fingerprint ?? fin
 export const shortFingerprintOf = (d: DerivationData): string => shortFingerprint(fingerprintOf(d));
 /** Said beside the fingerprint when it covers nothing: every record without inputs has the same one. */
 export const noInputsNote = (d: DerivationData): string => (d.inputs.length ? "" : " (no inputs recorded)");
+
+/**
+ * A record's checks in the order they are printed: the design checks, then the
+ * solver's own (titles starting with solverCheckPrefix) under a heading of their
+ * own, the prefix dropped there. Empty groups are left out.
+ */
+export function checkGroups(d: DerivationData): { heading: string; checks: CheckEntry[] }[] {
+  const design: CheckEntry[] = [];
+  const solver: CheckEntry[] = [];
+  for (const c of d.checks) {
+    if (c.title.startsWith(solverCheckPrefix)) solver.push({ ...c, title: c.title.slice(solverCheckPrefix.length) });
+    else design.push(c);
+  }
+  const groups: { heading: string; checks: CheckEntry[] }[] = [];
+  if (design.length) groups.push({ heading: "Checks", checks: design });
+  if (solver.length) groups.push({ heading: "Solver checks", checks: solver });
+  return groups;
+}
 
 export function verdict(d: DerivationData): { passed: boolean; text: string } {
   const n = d.checks.length;

@@ -21,7 +21,7 @@ import * as bf from "../../formulas/bias.formulas.js";
 import * as df from "../../formulas/device.formulas.js";
 import * as mf from "../../formulas/mirror.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, PerVolt, Ratio, Volts, Watts } from "../../quantity.js";
-import type { Derivation } from "../../record/derivation.js";
+import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
 import { checkComponents, checkStage } from "../stage.js";
 import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
 import { kclTolerance, verifyCurrent } from "../verify.js";
@@ -286,8 +286,8 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
   // The solver's own checks (verify.ts) come after the design checks.
   if (rec) {
-    rec.check("Solver: M1 current equals the current through RREF (KCL)", kcl1, "current", { max: kclTolerance(iref, iref, g1, vScale) }, "residual of the solved reference branch; tolerance 1e-9·I + G·δV");
-    rec.check("Solver: M2 current equals the output current (KCL)", kcl2, "current", { max: kclTolerance(iout, iout, g2, vScale) }, "residual of the solved output; tolerance 1e-9·I + G·δV");
+    rec.check(`${solverCheckPrefix}M1 current equals the current through RREF (KCL)`, kcl1, "current", { max: kclTolerance(iref, iref, g1, vScale) }, "residual of the solved reference branch; tolerance 1e-9·I + G·δV");
+    rec.check(`${solverCheckPrefix}M2 current equals the output current (KCL)`, kcl2, "current", { max: kclTolerance(iout, iout, g2, vScale) }, "residual of the solved output; tolerance 1e-9·I + G·δV");
   }
   const findings: string[] = [];
   const ideal = (iref * ratio) as Amperes;

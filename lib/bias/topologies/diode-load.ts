@@ -25,7 +25,7 @@ import * as bf from "../../formulas/bias.formulas.js";
 import * as df from "../../formulas/device.formulas.js";
 import * as mf from "../../formulas/mirror.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, Ratio, Siemens, SqrtVolts, Volts, Watts } from "../../quantity.js";
-import type { Derivation } from "../../record/derivation.js";
+import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
 import { checkComponents, checkStage } from "../stage.js";
 import { spiceNumber } from "../spice.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
@@ -314,7 +314,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
   // The solver's own check (verify.ts) comes after the design checks.
-  rec?.check("Solver: load current equals driver current (KCL at the output)", kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
+  rec?.check(`${solverCheckPrefix}load current equals driver current (KCL at the output)`, kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
   if (p.sameType && stage.body !== "rail" && (load.card.gamma ?? 0) > 0) findings.push("The load's body is tied to its own source: that needs a separate well. On a common substrate set body to \"rail\" for the body effect.");
   findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
   recordFindings(findings, rec);
