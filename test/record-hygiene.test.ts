@@ -7,8 +7,11 @@
 import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { synthesize } from "../lib/bias/synthesis.js";
+import { pmosConvention } from "../lib/bias/stage.js";
 import { toleranceAnalysis } from "../lib/bias/tolerance.js";
 import type { Stage } from "../lib/bias/topology.js";
+import type { CurrentMirrorStage } from "../lib/bias/topologies/current-mirror.js";
+import type { DiodeLoadStage } from "../lib/bias/topologies/diode-load.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import { amperes, amperesPerVoltSquared, meters, ohms, perVolt, volts } from "../lib/quantity.js";
 import { Derivation, type FormulaStep, type NoteStep } from "../lib/record/derivation.js";
@@ -53,6 +56,38 @@ describe("PMOS records state one sign convention and follow it (item 19)", () =>
     expect(rec.inputs.some((i) => /device polarity/.test(i.name))).toBe(false);
     expect(notes(rec).find((n) => n.title === "Drain in device polarity")!.text).toMatch(/−VD = -3 V/);
   });
+});
+
+describe("the two-transistor PMOS records state the same convention (item 19)", () => {
+  const pMirror: CurrentMirrorStage = {
+    topology: "current-mirror",
+    device: { card: pcard, w: meters(20e-6), l: meters(1e-6) },
+    devices: { reference: { card: pcard, w: meters(10e-6), l: meters(1e-6) } },
+    components: { rref: ohms(20e3), rload: ohms(2e3) },
+    supplies: { vdd: volts(5) },
+  };
+  // PMOS driver from VDD, NMOS diode load to ground.
+  const pDiode: DiodeLoadStage = {
+    topology: "diode-load",
+    device: { card: pcard, w: meters(40e-6), l: meters(1e-6) },
+    devices: { load: { card: ncard, w: meters(5e-6), l: meters(1e-6) } },
+    components: { vg: volts(3.5) },
+    supplies: { vdd: volts(5) },
+  };
+  for (const [name, st] of [["current mirror", pMirror], ["diode load", pDiode]] as const)
+    it(`${name}: the shared statement among the first steps, node voltages to ground at the end`, () => {
+      const rec = new Derivation(name);
+      const a = analyzeStage(st, rec);
+      const conv = notes(rec).filter((n) => n.title === "Sign convention (PMOS)");
+      expect(conv).toHaveLength(1);
+      expect(conv[0]!.text.startsWith(pmosConvention)).toBe(true);
+      expect(rec.steps.indexOf(conv[0]!)).toBeLessThan(rec.steps.findIndex((s) => s.kind === "formula"));
+      expect(notes(rec).some((n) => n.title === "PMOS" || n.title === "PMOS driver")).toBe(false);
+      const back = notes(rec).find((n) => n.title === "Node voltages to ground")!;
+      const vout = a.nodes.drain;
+      expect(vout).toBeGreaterThan(0); // a node voltage to ground between the rails
+      expect(back.text).toContain(`output at ${+vout.toPrecision(6)} V`);
+    });
 });
 
 describe("record hygiene (item 20)", () => {

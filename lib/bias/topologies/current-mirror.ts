@@ -22,7 +22,7 @@ import * as df from "../../formulas/device.formulas.js";
 import * as mf from "../../formulas/mirror.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, PerVolt, Ratio, Volts, Watts } from "../../quantity.js";
 import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
-import { checkComponents, checkStage } from "../stage.js";
+import { checkComponents, checkStage, pmosConvention } from "../stage.js";
 import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
 import { kclTolerance, verifyCurrent } from "../verify.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
@@ -181,7 +181,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     rec.assume("Both sources sit at their rail, so VSB = 0 and there is no body effect, whichever way the body is tied.");
     rec.assume("M1 and M2 are matched (same threshold and k' on one die); mismatch is not modelled.");
     if (pmos)
-      rec.note("PMOS", "Voltages in the equations are in the device's own polarity: each node voltage is negated, so VGS stands for VSG, VDS for VSD and Vt for |Vt|; the sources sit at VDD and RREF returns to VSS.");
+      rec.note("Sign convention (PMOS)", `${pmosConvention} Here VDR = −VSS = ${fmt(vdr)} V, VSR = −VDD = ${fmt(vsr)} V; the sources sit at VDD and RREF returns to VSS.`);
   }
   rec?.note("Reference branch", `RREF from the ${pmos ? "lower rail to the drain and gate of M1, whose source is at VDD" : "upper rail to the drain and gate of M1, whose source is at VSS"}.`);
   const r = solveReference(ref, c.rref, vdr, vsr, clm, o, rec);
@@ -209,7 +209,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   let tolerance = r.tolerance;
   if (c.vout !== undefined) {
     vds2 = sign * c.vout - vsr;
-    rec?.note("Output held", `An ideal source holds the output at ${fmt(c.vout)} V, so VDS2 = ${fmt(vds2)} V${vds2 >= vov2 ? " ≥ VOV: M2 is saturated" : " < VOV: below compliance, M2 is in triode"}.`);
+    rec?.note("Output held", `An ideal source holds the output at ${fmt(c.vout)} V to ground, so VDS2 = ${pmos ? `−VOUT − VSR = ${fmt(-c.vout)} − (${fmt(vsr)})` : `VOUT − VSR`} = ${fmt(vds2)} V${vds2 >= vov2 ? " ≥ VOV: M2 is saturated" : " < VOV: below compliance, M2 is in triode"}.`);
     iout = outputCurrent(vov2, vds2, k2, lambda2, clm, iref, ratio, vgs, matched, rec);
   } else {
     rec?.note("Output branch", `M2's gate is held at the mirror's gate voltage and RLOAD returns its drain to the ${pmos ? "lower" : "upper"} rail: a fixed-gate network, solved the same way.`);
@@ -242,6 +242,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const kcl1 = verifyCurrent("the reference diode M1", Math.abs(m1.small.op.channelCurrent), iref, g1, vScale, o);
   const kcl2 = verifyCurrent("the output M2", Math.abs(m2.small.op.channelCurrent), iout, g2, vScale, o);
   const ro2 = m2.small.ro;
+  if (pmos) rec?.note("Node voltages to ground", `Mirrored back: gates and M1's drain at ${fmt(gateAbs)} V, sources at ${fmt(srcAbs)} V, output at ${fmt(vOut)} V; compliance: the output stays below ${fmt(sign * compliance)} V. The devices see VSG = ${fmt(vgs)} V and VSD2 = ${fmt(vds2)} V.`);
   if (rec) {
     if (m2.small.op.region === "saturation" && Number.isFinite(ro2)) rec.note("Output resistance", `The current source's output resistance is ro2 = 1/gds2 = ${fmt(ro2)} Ω: IOUT changes by about ΔVOUT/ro2.`);
     else if (m2.small.op.region === "saturation") rec.note("Output resistance", "λ = 0: the square law gives M2 no output conductance, so the mirror's output resistance is unbounded. Give λ for a usable figure.");

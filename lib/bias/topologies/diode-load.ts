@@ -26,7 +26,7 @@ import * as df from "../../formulas/device.formulas.js";
 import * as mf from "../../formulas/mirror.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, Ratio, Siemens, SqrtVolts, Volts, Watts } from "../../quantity.js";
 import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
-import { checkComponents, checkStage } from "../stage.js";
+import { checkComponents, checkStage, pmosConvention } from "../stage.js";
 import { spiceNumber } from "../spice.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
 import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
@@ -248,7 +248,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
             : "Same-type load with its body tied to its own source (a separate well): VSB = 0, no body effect. On a common substrate give body: \"rail\"."
         : "Complementary load: its source sits at its own rail, so VSB = 0 and there is no body effect.",
     );
-    if (pmos) rec.note("PMOS driver", "Voltages in the equations are in the driver's own polarity: each node voltage is negated, so VGS stands for VSG, VDS for VSD and Vt for |Vt|.");
+    if (pmos) rec.note("Sign convention (PMOS)", `${pmosConvention} Here, for the PMOS driver, VDR = −VSS = ${fmt(p.vdr)} V and VSR = −VDD = ${fmt(p.vsr)} V.`);
   }
   const r = solveOutput(p, o, rec);
   const u = r.u;
@@ -275,6 +275,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
   const g = m1.small.gm + m1.small.gds + m2.small.gm + m2.small.gmb + m2.small.gds;
   const vScale = Math.max(Math.abs(railD), Math.abs(railS), Math.abs(c.vg), Math.abs(out));
   const kcl = verifyCurrent("the output node", iLoad, idNet, g, vScale, o);
+  if (pmos) rec?.note("Node voltages to ground", `Mirrored back: output at ${fmt(out)} V, driver source at ${fmt(railS)} V, load rail at ${fmt(railD)} V, gate at ${fmt(c.vg)} V. The driver sees VSG = ${fmt(railS - c.vg)} V and VSD = ${fmt(railS - out)} V.`);
   if (rec) {
     rec.step(bf.devicePower, [idNet, vds1], p1, "driver dissipation");
     rec.step(bf.devicePower, [idNet, vload], p2, "load dissipation");
