@@ -54,6 +54,14 @@ describe("pinchoff op", () => {
     expect(ratio).toBeCloseTo((2 * (1 + 0.05 * 1.5)) / (1 + 0.05 * vgs), 9);
     expect(() => parseDesign({ ...mirror, devices: { reference: { card, w: "-1 um", l: "1 um" } } }, "m.json")).toThrow(/m\.json: devices\.reference\.w/);
   });
+  it("names the design file in the analysis' refusals: devices on a single-transistor stage (issue 7 item 14)", async () => {
+    const card = design.device.card;
+    const esc = (t: string) => t.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+    const file = write("one-device.json", { ...design, devices: { reference: { card, w: "10 um", l: "1 um" } } });
+    await expect(run([file])).rejects.toThrow(new RegExp(`^${esc(file)}: devices: got \\["reference"\\], expected no devices`));
+    const unnamed = write("one-device-unnamed.json", { ...design, name: undefined, devices: { reference: { card, w: "10 um", l: "1 um" } } });
+    await expect(run([unnamed])).rejects.toThrow(new RegExp(`^${esc(unnamed)}: devices: `));
+  });
   it("prints the operating point as JSON, values parsed from text with units", async () => {
     const file = write("stage.json", design);
     const r = await run([file]);
