@@ -61,6 +61,10 @@ describe("pinchoff op", () => {
     await expect(run([file])).rejects.toThrow(new RegExp(`^${esc(file)}: devices: got \\["reference"\\], expected no devices`));
     const unnamed = write("one-device-unnamed.json", { ...design, name: undefined, devices: { reference: { card, w: "10 um", l: "1 um" } } });
     await expect(run([unnamed])).rejects.toThrow(new RegExp(`^${esc(unnamed)}: devices: `));
+    // A refusal from inside a two-transistor analysis (a depletion card in a diode-connected reference; invented card).
+    const dep = { name: "dep-n", polarity: "nmos", kp: "200 uA/V^2", vt0: "-0.5 V" };
+    const mirror = write("depletion-mirror.json", { name: "m", topology: "current-mirror", device: { card: dep, w: "20 um", l: "1 um" }, devices: { reference: { card: dep, w: "10 um", l: "1 um" } }, components: { rref: "20k", vout: "1.5 V" }, supplies: { vdd: "3.3 V" } });
+    await expect(run([mirror])).rejects.toThrow(new RegExp(`^${esc(mirror)}: devices\\.reference\\.card\\.vt0: got -0\\.5, expected an enhancement-mode card`));
   });
   it("prints the operating point as JSON, values parsed from text with units", async () => {
     const file = write("stage.json", design);
