@@ -54,6 +54,18 @@ describe("pinchoff op", () => {
     expect(ratio).toBeCloseTo((2 * (1 + 0.05 * 1.5)) / (1 + 0.05 * vgs), 9);
     expect(() => parseDesign({ ...mirror, devices: { reference: { card, w: "-1 um", l: "1 um" } } }, "m.json")).toThrow(/m\.json: devices\.reference\.w/);
   });
+  it("names the design file in the analysis' refusals: devices on a single-transistor stage (issue 7 item 14)", async () => {
+    const card = design.device.card;
+    const esc = (t: string) => t.replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
+    const file = write("one-device.json", { ...design, devices: { reference: { card, w: "10 um", l: "1 um" } } });
+    await expect(run([file])).rejects.toThrow(new RegExp(`^${esc(file)}: devices: got \\["reference"\\], expected no devices`));
+    const unnamed = write("one-device-unnamed.json", { ...design, name: undefined, devices: { reference: { card, w: "10 um", l: "1 um" } } });
+    await expect(run([unnamed])).rejects.toThrow(new RegExp(`^${esc(unnamed)}: devices: `));
+    // A refusal from inside a two-transistor analysis (a depletion card in a diode-connected reference; invented card).
+    const dep = { name: "dep-n", polarity: "nmos", kp: "200 uA/V^2", vt0: "-0.5 V" };
+    const mirror = write("depletion-mirror.json", { name: "m", topology: "current-mirror", device: { card: dep, w: "20 um", l: "1 um" }, devices: { reference: { card: dep, w: "10 um", l: "1 um" } }, components: { rref: "20k", vout: "1.5 V" }, supplies: { vdd: "3.3 V" } });
+    await expect(run([mirror])).rejects.toThrow(new RegExp(`^${esc(mirror)}: devices\\.reference\\.card\\.vt0: got -0\\.5, expected an enhancement-mode card`));
+  });
   it("prints the operating point as JSON, values parsed from text with units", async () => {
     const file = write("stage.json", design);
     const r = await run([file]);
@@ -61,7 +73,7 @@ describe("pinchoff op", () => {
     const j = JSON.parse(r.out);
     expect(j.region).toBe("saturation");
     expect(j.nodes.gate).toBeCloseTo(5 / 3, 12);
-    expect(j.currents.rd).toBeCloseTo(j.currents.drain, 15);
+    expect(j.currents.rd).toBeCloseTo(j.currents.drainMagnitude, 15);
     expect(j.metrics.checks.every((c: { passed: boolean }) => c.passed)).toBe(true);
     expect(j.design).toBe(file);
   });

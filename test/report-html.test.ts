@@ -84,7 +84,7 @@ describe("report", () => {
     expect(html).toMatch(/class="fail">FAIL/);
     expect(html).toContain("-100 mV"); // margin of -0.1 V
     expect(html).toContain("2026-01-02T03:04:05.000Z");
-    expect(html).toContain("a".repeat(64));
+    expect(html).toContain(Array(8).fill("a".repeat(8)).join("<wbr>"));
     for (const c of cautions) expect(html).toContain(c.replace(/'/g, "&#39;"));
   });
 
@@ -100,6 +100,17 @@ describe("report", () => {
     expect(Buffer.byteLength(none)).toBeLessThan(50_000);
   });
 
+  it("lets a fingerprint wrap only between blocks of 8 digits, never inside a block (issue 7 item 20)", () => {
+    const fp = "0123456789abcdef".repeat(4);
+    const html = buildReport(model({ inputsFingerprint: fp }));
+    expect(html).not.toMatch(/break-all/);
+    const code = html.match(/<dt>Inputs fingerprint<\/dt><dd><code class="fp">(.*?)<\/code>/)![1]!;
+    const blocks = code.split("<wbr>");
+    expect(blocks).toHaveLength(8);
+    expect(blocks.every((b) => /^[0-9a-f]{8}$/.test(b))).toBe(true);
+    expect(blocks.join("")).toBe(fp);
+    expect(html).toMatch(/code\.fp\{overflow-wrap:normal;word-break:normal\}/);
+  });
   it("says the run is incomplete when a cell failed", () => {
     const html = buildReport(model({ failures: [{ cell: 4, status: "error", lines: ["Error: invented"], source: "throw 1" }], skipped: [5] }));
     expect(html).toContain("Incomplete: cell 5 failed, 1 later cell(s) not run");

@@ -15,6 +15,7 @@ import { analyzeStage } from "../bias/analyze.js";
 import { readDesignFile, type DesignFile } from "../bias/design-file.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
+import { stageOrigin } from "../bias/topologies/two-transistor.js";
 import { Derivation } from "../record/derivation.js";
 import { writeFileAtomic } from "../io/atomic-write.js";
 
@@ -38,23 +39,42 @@ and, under "operatingPoint", the operating point of the chosen stage.
 
 Hand analysis is approximate: verify by simulation and measurement.`;
 
-/** The op result as a library call: the stage, its analysis and the recorded derivation. */
-export function operatingPointOf(stage: Stage): { analysis: StageAnalysis; derivation: Derivation } {
+/**
+ * The op result as a library call: the stage, its analysis and the recorded
+ * derivation. Given the design file, errors (solver, refused fields) name the file.
+ */
+export function operatingPointOf(stage: Stage, file?: string): { analysis: StageAnalysis; derivation: Derivation } {
   const derivation = new Derivation(`Operating point: ${stage.name ?? stage.topology} (${stage.device.card.polarity})`);
-  const analysis = analyzeStage(stage, derivation);
-  return { analysis, derivation };
+  try {
+    const analysis = analyzeStage(stage, derivation);
+    return { analysis, derivation };
+  } catch (e) {
+    throw file !== undefined && e instanceof PinchoffError ? relocateStage(e, stage, file) : e;
+  }
 }
 
-/** The same error, its origin moved from the designer's "<topology> spec.<path>" to the file's "specification.<path>". */
-function relocate(e: PinchoffError, topology: string, file: string): PinchoffError {
+/** The same error with a new origin (its message without the old origin's prefix). */
+function withOrigin(e: PinchoffError, origin: string): PinchoffError {
   const raw = e.origin && e.message.startsWith(`${e.origin}: `) ? e.message.slice(e.origin.length + 2) : e.message;
-  const prefix = `${topology} spec`;
-  const where = e.origin?.startsWith(prefix) ? `specification${e.origin.slice(prefix.length)}` : e.origin ? `specification (${e.origin})` : "specification";
-  const origin = `${file}: ${where}`;
   if (e instanceof InputError) return new InputError(e.value, e.expected, origin, e.code);
   if (e instanceof InfeasibleError) return new InfeasibleError(raw, origin);
   if (e instanceof ConvergenceError) return new ConvergenceError(raw, origin);
   return new PinchoffError(e.code, raw, origin);
+}
+
+/** An analysis error, its origin moved from the stage ('stage "x": devices') to the file ("f.json: devices"). */
+function relocateStage(e: PinchoffError, stage: Stage, file: string): PinchoffError {
+  if (e.origin?.startsWith(file)) return e;
+  const from = stageOrigin(stage);
+  const where = e.origin === undefined || e.origin === from ? "" : e.origin.startsWith(`${from}: `) ? e.origin.slice(from.length + 2) : e.origin;
+  return withOrigin(e, where ? `${file}: ${where}` : file);
+}
+
+/** The same error, its origin moved from the designer's "<topology> spec.<path>" to the file's "specification.<path>". */
+function relocate(e: PinchoffError, topology: string, file: string): PinchoffError {
+  const prefix = `${topology} spec`;
+  const where = e.origin?.startsWith(prefix) ? `specification${e.origin.slice(prefix.length)}` : e.origin ? `specification (${e.origin})` : "specification";
+  return withOrigin(e, `${file}: ${where}`);
 }
 
 /**
@@ -163,7 +183,7 @@ export async function main(argv: string[]): Promise<number> {
     if (!format) throw new InputError(record, "a record file ending in .html or .md", "--record");
   }
   const read = readDesignFile(file);
-  const result = read.kind === "analysis" ? operatingPointOf(read.stage) : designOf(read);
+  const result = read.kind === "analysis" ? operatingPointOf(read.stage, read.origin) : designOf(read);
   if (record !== undefined) {
     const render = await import("../record/render.js");
     const data = result.derivation.toJSON();

@@ -81,6 +81,12 @@ export interface DerivationData {
   readonly findings: readonly Finding[];
 }
 
+/**
+ * Title prefix of a check on the solver's own result (a KCL residual), not on
+ * the design: renderers list these under a solver heading of their own.
+ */
+export const solverCheckPrefix = "Solver: ";
+
 export class Derivation {
   readonly inputs: InputEntry[] = [];
   readonly steps: Step[] = [];

@@ -18,7 +18,7 @@ import { PinchoffError } from "../errors.js";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData, FormulaStep, Step } from "./derivation.js";
 import { fingerprint, shortFingerprint } from "./fingerprint.js";
-import { asList, boundText, cautions, fingerprintOf, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, checkGroups, fingerprintOf, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 import { pinchoffCss } from "./styles.js";
 
@@ -107,9 +107,9 @@ function record(d: DerivationData, opts: HtmlOptions): string {
     out.push(`</tbody></table>`);
   }
   if (d.steps.length) out.push(`<h3 class="po-part">Working</h3><ol class="po-steps">${d.steps.map((s) => step(s, opts)).join("")}</ol>`);
-  if (d.checks.length) {
-    out.push(`<h3 class="po-part">Checks</h3><table class="po-checks"><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th></tr></thead><tbody>`);
-    for (const c of d.checks)
+  for (const g of checkGroups(d)) {
+    out.push(`<h3 class="po-part">${esc(g.heading)}</h3><table class="po-checks"><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th></tr></thead><tbody>`);
+    for (const c of g.checks)
       out.push(
         `<tr class="${c.passed ? "po-passed" : "po-failed"}"><td class="${c.passed ? "po-pass" : "po-fail"}">${c.passed ? "✓ pass" : "✗ FAIL"}</td><td>${esc(c.title)}${c.detail ? `<div class="po-source">${esc(c.detail)}</div>` : ""}</td><td class="po-num">${esc(valueText(c, opts))}</td><td class="po-num">${esc(boundText(c, opts))}</td><td class="po-num">${esc(marginText(c, opts))}</td></tr>`,
       );

@@ -6,7 +6,7 @@
 import escapeHtml from "escape-html";
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, checkGroups, marginText, noInputsNote, shortFingerprintOf, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { stepTex } from "./substitute.js";
 
 /** Escape a user string for Markdown text and table cells. */
@@ -42,19 +42,20 @@ function one(d: DerivationData, opts: RenderOptions): string {
     out.push("**Working**", "");
     d.steps.forEach((s, n) => {
       out.push(`${n + 1}. **${escapeMarkdown(s.title)}**${s.kind === "formula" && s.because ? ` — ${escapeMarkdown(s.because)}` : ""}`, "");
-      if (s.kind === "note") out.push(`   ${escapeMarkdown(s.text)}`, "");
+      // A note's own line breaks are kept (a hard break per line), so a list in a note stays a list.
+      if (s.kind === "note") out.push(s.text.split("\n").map((l) => `   ${escapeMarkdown(l)}`).join("  \n"), "");
       else {
         const t = stepTex(s, opts);
         out.push(`   $$${t.formula}$$`, "", `   $$${t.substituted}$$`, "", `   $$${t.result}$$`, "");
       }
     });
   }
-  if (d.checks.length) {
-    out.push("**Checks**", "");
+  for (const g of checkGroups(d)) {
+    out.push(`**${g.heading}**`, "");
     out.push(
       table(
         ["", "Check", "Value", "Required", "Margin"],
-        d.checks.map((c) => [c.passed ? "✓ pass" : "✗ **FAIL**", cell(c.title) + (c.detail ? ` — ${cell(c.detail)}` : ""), cell(valueText(c, opts)), cell(boundText(c, opts)), cell(marginText(c, opts))]),
+        g.checks.map((c) => [c.passed ? "✓ pass" : "✗ **FAIL**", cell(c.title) + (c.detail ? ` — ${cell(c.detail)}` : ""), cell(valueText(c, opts)), cell(boundText(c, opts)), cell(marginText(c, opts))]),
       ),
       "",
     );

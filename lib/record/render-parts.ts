@@ -4,8 +4,8 @@
  * only lay these out.
  */
 import { InputError } from "../errors.js";
-import { formatQuantity, type FormatOptions } from "../units/format.js";
-import type { CheckEntry, Derivation, DerivationData } from "./derivation.js";
+import { contrastDigits, formatQuantity, type FormatOptions } from "../units/format.js";
+import { solverCheckPrefix, type CheckEntry, type Derivation, type DerivationData } from "./derivation.js";
 
 /** What renderers accept: a live record or its JSON data. */
 export type DerivationLike = Derivation | DerivationData;
@@ -25,6 +25,24 @@ export const shortFingerprintOf = (d: DerivationData): string => shortFingerprin
 /** Said beside the fingerprint when it covers nothing: every record without inputs has the same one. */
 export const noInputsNote = (d: DerivationData): string => (d.inputs.length ? "" : " (no inputs recorded)");
 
+/**
+ * A record's checks in the order they are printed: the design checks, then the
+ * solver's own (titles starting with solverCheckPrefix) under a heading of their
+ * own, the prefix dropped there. Empty groups are left out.
+ */
+export function checkGroups(d: DerivationData): { heading: string; checks: CheckEntry[] }[] {
+  const design: CheckEntry[] = [];
+  const solver: CheckEntry[] = [];
+  for (const c of d.checks) {
+    if (c.title.startsWith(solverCheckPrefix)) solver.push({ ...c, title: c.title.slice(solverCheckPrefix.length) });
+    else design.push(c);
+  }
+  const groups: { heading: string; checks: CheckEntry[] }[] = [];
+  if (design.length) groups.push({ heading: "Checks", checks: design });
+  if (solver.length) groups.push({ heading: "Solver checks", checks: solver });
+  return groups;
+}
+
 export function verdict(d: DerivationData): { passed: boolean; text: string } {
   const n = d.checks.length;
   const failed = d.checks.filter((c) => !c.passed).length;
@@ -33,16 +51,24 @@ export function verdict(d: DerivationData): { passed: boolean; text: string } {
   return { passed: false, text: `${failed} of ${n} checks fail` };
 }
 
+/** Digits at which a check's value and its bounds print differently when they differ (see contrastDigits). */
+function checkDigits(c: CheckEntry, opts: FormatOptions): FormatOptions {
+  const base = opts.digits ?? 3;
+  const d = Math.max(contrastDigits(c.value, c.min ?? c.value, base), contrastDigits(c.value, c.max ?? c.value, base));
+  return d === base ? opts : { ...opts, digits: d };
+}
+
 /** `≥ 200 mV`, `≤ 4.50 V`, `200 mV … 4.50 V`, or "recorded" when the check has no bound. */
 export function boundText(c: CheckEntry, opts: FormatOptions = {}): string {
-  const f = (v: number) => formatQuantity(v, c.dim, { ...opts, origin: `check "${c.title}" bound` });
+  const o = checkDigits(c, opts);
+  const f = (v: number) => formatQuantity(v, c.dim, { ...o, origin: `check "${c.title}" bound` });
   if (c.min !== undefined && c.max !== undefined) return `${f(c.min)} … ${f(c.max)}`;
   if (c.min !== undefined) return `≥ ${f(c.min)}`;
   if (c.max !== undefined) return `≤ ${f(c.max)}`;
   return "no bound";
 }
 
-export const valueText = (c: CheckEntry, opts: FormatOptions = {}): string => formatQuantity(c.value, c.dim, { ...opts, origin: `check "${c.title}" value` });
+export const valueText = (c: CheckEntry, opts: FormatOptions = {}): string => formatQuantity(c.value, c.dim, { ...checkDigits(c, opts), origin: `check "${c.title}" value` });
 
 /** Margin to the nearest bound, signed: `+120 mV` passed, `-35.0 mV` failed. */
 export function marginText(c: CheckEntry, opts: FormatOptions = {}): string {

@@ -4,7 +4,7 @@
  */
 import { formatQuantity } from "../units/format.js";
 import type { DerivationData } from "./derivation.js";
-import { asList, boundText, cautions, marginText, noInputsNote, shortFingerprintOf, statusText, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
+import { asList, boundText, cautions, checkGroups, marginText, noInputsNote, shortFingerprintOf, statusText, valueText, verdict, type DerivationLike, type RenderOptions } from "./render-parts.js";
 import { substitutedText } from "./substitute.js";
 
 /** Columns padded to their widest cell (code points, which suits the symbols we print). */
@@ -17,6 +17,8 @@ export function textTable(header: readonly string[], rows: ReadonlyArray<readonl
 }
 
 function wrap(text: string, width: number, indent: string): string {
+  // The text's own line breaks stay (a list in a note is one entry per line); each line is wrapped on its own.
+  if (text.includes("\n")) return text.split("\n").map((l) => wrap(l, width, indent)).join("\n");
   const words = text.split(/\s+/).filter(Boolean);
   const lines: string[] = [];
   let cur = "";
@@ -63,12 +65,12 @@ function one(d: DerivationData, opts: RenderOptions): string {
     });
     out.push("");
   }
-  if (d.checks.length) {
-    out.push("Checks");
+  for (const g of checkGroups(d)) {
+    out.push(g.heading);
     out.push(
       textTable(
         ["", "check", "value", "required", "margin"],
-        d.checks.map((c) => [statusText(c), c.title, valueText(c, opts), boundText(c, opts), marginText(c, opts) + (c.detail ? `  ${c.detail}` : "")]),
+        g.checks.map((c) => [statusText(c), c.title, valueText(c, opts), boundText(c, opts), marginText(c, opts) + (c.detail ? `  ${c.detail}` : "")]),
       ),
       "",
     );

@@ -87,7 +87,7 @@ table{border-collapse:collapse;width:100%;margin:6px 0 12px}th,td{text-align:lef
 th{background:var(--band);font-weight:600}td.num{font-variant-numeric:tabular-nums;white-space:nowrap}
 .pass{color:var(--good);font-weight:600}.fail{color:var(--bad);font-weight:600}
 .set{background:var(--mark-bg);color:var(--mark);border-radius:3px;padding:0 5px;font-size:.85em;font-weight:600}
-dl.meta{display:grid;grid-template-columns:max-content 1fr;gap:2px 14px;margin:0}dl.meta dt{color:var(--muted)}dl.meta dd{margin:0;word-break:break-all}
+dl.meta{display:grid;grid-template-columns:max-content 1fr;gap:2px 14px;margin:0}dl.meta dt{color:var(--muted)}dl.meta dd{margin:0;overflow-wrap:anywhere}dl.meta code.fp{overflow-wrap:normal;word-break:normal}
 code,pre{font-family:ui-monospace,"DejaVu Sans Mono",monospace;font-size:.9em}pre{background:var(--band);padding:8px 10px;overflow-x:auto;white-space:pre-wrap}
 section.derivation{border-left:3px solid var(--line);padding-left:14px;margin:18px 0}
 .plot{width:100%;height:420px}
@@ -133,9 +133,9 @@ export function buildReport(m: ReportModel): string {
   out.push(`<dt>Notebook</dt><dd><code>${esc(m.notebookPath)}</code></dd>`);
   out.push(`<dt>Run on</dt><dd>${esc(m.date.toISOString())}</dd>`);
   out.push(`<dt>Tool</dt><dd>${esc(m.toolVersion)}</dd>`);
-  out.push(`<dt>Notebook fingerprint</dt><dd><code>${esc(m.sourceFingerprint)}</code> (SHA-256 of the source file, before overrides)</dd>`);
-  out.push(`<dt>Inputs fingerprint</dt><dd><code>${esc(m.inputsFingerprint)}</code> (SHA-256 of the design inputs as run)</dd>`);
-  for (const d of m.derivations) if (d.fingerprint) out.push(`<dt>Derivation fingerprint</dt><dd><code>${esc(d.fingerprint)}</code> — ${esc(d.title)}</dd>`);
+  out.push(`<dt>Notebook fingerprint</dt><dd>${fingerprintCode(m.sourceFingerprint)} (SHA-256 of the source file, before overrides)</dd>`);
+  out.push(`<dt>Inputs fingerprint</dt><dd>${fingerprintCode(m.inputsFingerprint)} (SHA-256 of the design inputs as run)</dd>`);
+  for (const d of m.derivations) if (d.fingerprint) out.push(`<dt>Derivation fingerprint</dt><dd>${fingerprintCode(d.fingerprint)} — ${esc(d.title)}</dd>`);
   out.push(`</dl>`);
 
   out.push(`<h2>Design inputs</h2><table><thead><tr><th>Name</th><th>As written</th><th>Value</th><th>Dimension</th><th></th></tr></thead><tbody>`);
@@ -175,4 +175,13 @@ export function buildReport(m: ReportModel): string {
   out.push(`<footer>Written by ${esc(m.toolVersion)} on ${esc(m.date.toISOString())}. Numbers are SI values shown with three significant digits; the notebook as run and the run record (JSON) beside this file hold the full record.</footer>`);
   out.push(`</main></body></html>\n`);
   return out.join("\n");
+}
+
+/**
+ * A fingerprint that wraps only between blocks of 8 hex digits (a <wbr> between
+ * blocks; copying still gives the unbroken digest), never inside a block.
+ */
+function fingerprintCode(fp: string): string {
+  const blocks = fp.match(/.{1,8}/gs) ?? [fp];
+  return `<code class="fp">${blocks.map(esc).join("<wbr>")}</code>`;
 }

@@ -21,9 +21,10 @@ import * as bf from "../../formulas/bias.formulas.js";
 import * as df from "../../formulas/device.formulas.js";
 import * as mf from "../../formulas/mirror.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, PerVolt, Ratio, Volts, Watts } from "../../quantity.js";
-import type { Derivation } from "../../record/derivation.js";
-import { checkComponents, checkStage } from "../stage.js";
+import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
+import { checkComponents, checkStage, pmosConvention } from "../stage.js";
 import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
+import { kclTolerance, verifyCurrent } from "../verify.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
 import { spiceNumber } from "../spice.js";
 import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
@@ -128,7 +129,12 @@ function solveReference(ref: Device, rref: number, vdr: number, vsr: number, clm
     rec.step(mf.referenceGateSourceRejected, [vt, k1, rr, span], r2);
     rec.note("Root rejected", `VGS1' = ${fmt(r2)} V lies below Vt = ${fmt(vt)} V, where the transistor is off and the square law does not apply: rejected. VGS1 = ${fmt(vgs0)} V.`);
   }
-  if (closed) {
+  // The closed form is verified (KCL at the diode); rounding at extreme values sends it to the bracketed solve.
+  const iref0 = mf.referenceCurrent.fn(span, vgs0, rr);
+  const idiode0 = mf.referenceCurrentDiode.fn(k1, vgs0, vt, lambda);
+  const closedHolds = closed && Math.abs(idiode0 - iref0) <= kclTolerance(idiode0, iref0, k1 * Math.max(vgs0 - vt, 0) * 2 + 1 / rref, Math.max(Math.abs(vdr), Math.abs(vsr)));
+  if (closed && !closedHolds) rec?.note("Closed form rejected", `At VGS1 = ${fmt(vgs0)} V the diode carries ${fmt(idiode0)} A but RREF carries ${fmt(iref0)} A: rounding spoils the closed form at these values. Solved again by the bracketed iteration.`);
+  if (closedHolds) {
     const iref = mf.referenceCurrent.fn(span, vgs0, rr);
     if (rec) {
       rec.step(mf.referenceCurrent, [span, vgs0, rr], iref);
@@ -175,7 +181,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     rec.assume("Both sources sit at their rail, so VSB = 0 and there is no body effect, whichever way the body is tied.");
     rec.assume("M1 and M2 are matched (same threshold and k' on one die); mismatch is not modelled.");
     if (pmos)
-      rec.note("PMOS", "Voltages in the equations are in the device's own polarity: each node voltage is negated, so VGS stands for VSG, VDS for VSD and Vt for |Vt|; the sources sit at VDD and RREF returns to VSS.");
+      rec.note("Sign convention (PMOS)", `${pmosConvention} Here VDR = −VSS = ${fmt(vdr)} V, VSR = −VDD = ${fmt(vsr)} V; the sources sit at VDD and RREF returns to VSS.`);
   }
   rec?.note("Reference branch", `RREF from the ${pmos ? "lower rail to the drain and gate of M1, whose source is at VDD" : "upper rail to the drain and gate of M1, whose source is at VSS"}.`);
   const r = solveReference(ref, c.rref, vdr, vsr, clm, o, rec);
@@ -203,7 +209,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   let tolerance = r.tolerance;
   if (c.vout !== undefined) {
     vds2 = sign * c.vout - vsr;
-    rec?.note("Output held", `An ideal source holds the output at ${fmt(c.vout)} V, so VDS2 = ${fmt(vds2)} V${vds2 >= vov2 ? " ≥ VOV: M2 is saturated" : " < VOV: below compliance, M2 is in triode"}.`);
+    rec?.note("Output held", `An ideal source holds the output at ${fmt(c.vout)} V to ground, so VDS2 = ${pmos ? `−VOUT − VSR = ${fmt(-c.vout)} − (${fmt(vsr)})` : `VOUT − VSR`} = ${fmt(vds2)} V${vds2 >= vov2 ? " ≥ VOV: M2 is saturated" : " < VOV: below compliance, M2 is in triode"}.`);
     iout = outputCurrent(vov2, vds2, k2, lambda2, clm, iref, ratio, vgs, matched, rec);
   } else {
     rec?.note("Output branch", `M2's gate is held at the mirror's gate voltage and RLOAD returns its drain to the ${pmos ? "lower" : "upper"} rail: a fixed-gate network, solved the same way.`);
@@ -229,11 +235,14 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const p2 = bf.devicePower.fn(iout as Amperes, vds2 as Volts);
   const m1 = evaluateDevice(ref, { gate: gateAbs, source: srcAbs, drain: gateAbs, body: srcAbs }, clm, p1, "M1 at the solved node voltages", rec);
   const m2 = evaluateDevice(out, { gate: gateAbs, source: srcAbs, drain: vOut, body: srcAbs }, clm, p2, "M2 at the solved node voltages", rec);
-  if (rec) {
-    rec.check("M1 current equals the current through RREF (KCL)", Math.abs(Math.abs(m1.small.op.channelCurrent) - iref), "current", { max: 1e-9 * iref + 1e-15 }, "residual of the solved reference branch");
-    rec.check("M2 current equals the output current (KCL)", Math.abs(Math.abs(m2.small.op.channelCurrent) - iout), "current", { max: 1e-9 * Math.max(iout, 1e-9) + 1e-15 }, "residual of the solved output");
-  }
+  // Verify both branches (verify.ts): KCL at M1's drain and at the output, or ConvergenceError.
+  const vScale = Math.max(Math.abs(vdr), Math.abs(vsr), Math.abs(vOut));
+  const g1 = m1.small.gm + m1.small.gds + 1 / c.rref;
+  const g2 = m2.small.gm + m2.small.gds + (c.rload ? 1 / c.rload : 0);
+  const kcl1 = verifyCurrent("the reference diode M1", Math.abs(m1.small.op.channelCurrent), iref, g1, vScale, o);
+  const kcl2 = verifyCurrent("the output M2", Math.abs(m2.small.op.channelCurrent), iout, g2, vScale, o);
   const ro2 = m2.small.ro;
+  if (pmos) rec?.note("Node voltages to ground", `Mirrored back: gates and M1's drain at ${fmt(gateAbs)} V, sources at ${fmt(srcAbs)} V, output at ${fmt(vOut)} V; compliance: the output stays below ${fmt(sign * compliance)} V. The devices see VSG = ${fmt(vgs)} V and VSD2 = ${fmt(vds2)} V.`);
   if (rec) {
     if (m2.small.op.region === "saturation" && Number.isFinite(ro2)) rec.note("Output resistance", `The current source's output resistance is ro2 = 1/gds2 = ${fmt(ro2)} Ω: IOUT changes by about ΔVOUT/ro2.`);
     else if (m2.small.op.region === "saturation") rec.note("Output resistance", "λ = 0: the square law gives M2 no output conductance, so the mirror's output resistance is unbounded. Give λ for a usable figure.");
@@ -241,7 +250,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   }
 
   // Currents and power.
-  const currents: Record<string, Amperes> = { drain: iout as Amperes, reference: iref, rref: iref };
+  const currents: Record<string, Amperes> = { drainMagnitude: iout as Amperes, reference: iref, rref: iref };
   const power: Record<string, Watts> = {};
   const pr = bf.resistorPower.fn(iref, c.rref as Ohms);
   power.rref = pr;
@@ -276,6 +285,11 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     checks.push(stageCheck("M2 dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  // The solver's own checks (verify.ts) come after the design checks.
+  if (rec) {
+    rec.check(`${solverCheckPrefix}M1 current equals the current through RREF (KCL)`, kcl1, "current", { max: kclTolerance(iref, iref, g1, vScale) }, "residual of the solved reference branch; tolerance 1e-9·I + G·δV");
+    rec.check(`${solverCheckPrefix}M2 current equals the output current (KCL)`, kcl2, "current", { max: kclTolerance(iout, iout, g2, vScale) }, "residual of the solved output; tolerance 1e-9·I + G·δV");
+  }
   const findings: string[] = [];
   const ideal = (iref * ratio) as Amperes;
   if (m2.small.op.region === "triode")
@@ -309,7 +323,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     polarity: out.card.polarity,
     region: m2.small.op.region,
     nodes: { gate: gateAbs as Volts, source: srcAbs as Volts, drain: vOut as Volts, body: srcAbs as Volts, reference: gateAbs as Volts, vdd, vss },
-    currents: { ...currents, drain: iout as Amperes, supply },
+    currents: { ...currents, drainMagnitude: iout as Amperes, supply },
     op: m2.small.op,
     smallSignal: gs,
     metrics: { amplifiers: [], swing: [swing], checks },
