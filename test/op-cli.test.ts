@@ -11,6 +11,7 @@ import { main } from "../lib/cli/op.js";
 import { captureCli } from "./support/cli.js";
 import { parseDesign } from "../lib/bias/design-file.js";
 import { InputError } from "../lib/errors.js";
+import { UsageError } from "../lib/cli/args.js";
 
 let dir: string;
 const design = {
@@ -118,7 +119,7 @@ describe("pinchoff op", () => {
     await expect(run([join(dir, "nope.json")])).rejects.toThrow(/nope\.json: cannot read the design file \(ENOENT\)/);
     const bad = write("bad.json", "{ not json");
     await expect(run([bad])).rejects.toThrow(/bad\.json: got .* expected JSON/);
-    expect((await run([])).code).toBe(2);
+    await expect(run([])).rejects.toThrow(UsageError);
     expect((await run(["--help"])).code).toBe(0);
   });
 });
