@@ -16,7 +16,7 @@ import { readDesignFile, type DesignFile } from "../bias/design-file.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
 import { Derivation } from "../record/derivation.js";
-import { defineCommand, type CommandSpec } from "./args.js";
+import { defineCommand, exitStatus, type CommandSpec } from "./args.js";
 
 export const command = {
   name: "op",
@@ -164,9 +164,10 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   const head = { design: file, ...(record ? { record } : {}) };
   const analysis = "analysis" in result ? result.analysis : result.design.analysis;
   console.log(toJson("analysis" in result ? { ...head, ...result.analysis } : { ...head, ...designSummary(read as Extract<DesignFile, { kind: "specification" }>, result.design) }));
-  const failed = analysis.metrics.checks.filter((c) => !c.passed);
-  if (failed.length) console.error(`pinchoff op: ${failed.length} check(s) failed: ${failed.map((c) => c.name).join("; ")}`);
-  if ("design" in result && result.design.dissipation && !result.design.dissipation.passed)
-    console.error(`pinchoff op: over its allowed power: ${result.design.dissipation.failures.map((f) => f.name).join("; ")}`);
-  return 0;
+  const failures = [
+    ...analysis.metrics.checks.filter((c) => !c.passed).map((c) => `${c.name}: ${c.value} ${c.unit} (margin ${c.margin} ${c.unit})`),
+    ...("design" in result && result.design.dissipation ? result.design.dissipation.failures.map((f) => `${f.name} over its allowed power: ${f.power} W > ${f.allowed} W`) : []),
+  ];
+  for (const f of failures) console.error(`check failed: ${f}`);
+  return failures.length ? exitStatus.failed : exitStatus.ok;
 });
