@@ -3,6 +3,9 @@
  * command's usage line and one "pinchoff <cmd>:" prefix, never a stack trace;
  * help and version on every command; the usage line lists every option.
  */
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { helpText, parseCommand, usageLine, UsageError, type CommandSpec } from "../lib/cli/args.js";
 import { cli, commands } from "../lib/cli/main.js";
@@ -76,6 +79,24 @@ describe("command-line arguments", () => {
         expect(help.out).toMatch(new RegExp(`^  --${opt}\\b`, "m"));
       }
       expect(usageLine(spec)).toContain("[-h|--help] [--version]");
+    }
+  });
+
+  it("prints a file or design error once, prefixed by the command, exit 1", async () => {
+    const dir = mkdtempSync(join(tmpdir(), "pinchoff-args-"));
+    try {
+      const existing = join(dir, "mine.ipynb");
+      writeFileSync(existing, "{}");
+      const name = (await run(["list"])).out.split("\n")[0]!.split(" ")[0]!;
+      const r = await run(["new", name, existing]);
+      expect(r.code).toBe(1);
+      expect(r.err).toBe(`pinchoff new: ${existing}: already exists; it was left untouched (use --force to replace it)`);
+      const missing = await run(["run", join(dir, "none.ipynb")]);
+      expect(missing.code).toBe(1);
+      expect(missing.err).toMatch(/^pinchoff run: (?!pinchoff)/);
+      expect(missing.err.match(/pinchoff run:/g)).toHaveLength(1);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
     }
   });
 
