@@ -1,9 +1,10 @@
 /** pinchoff new: copy a template notebook to a path, never over a file without --force. */
-import { copyFileSync, constants as fsc, existsSync, mkdirSync, statSync } from "node:fs";
+import { existsSync, lstatSync, mkdirSync, readFileSync, statSync, type Stats } from "node:fs";
 import { dirname, resolve } from "node:path";
 import { PinchoffError } from "../errors.js";
 import { findTemplate, type Template } from "../templates.js";
 import { defineCommand, type CommandSpec } from "./args.js";
+import { errnoOf, writeFileAtomic, type FileSystemSeam } from "../io/atomic-write.js";
 
 export const command = {
   name: "new",
@@ -20,19 +21,30 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   return 0;
 });
 
-/** Copy template `name` to `path` (a file, or a folder to put `<name>.ipynb` in); never replaces a file unless `force`. */
-export function newNotebook(name: string, path: string, force: boolean, dir?: string): { dest: string; template: Template } {
+/**
+ * Copy template `name` to `path` (a file, or a folder to put `<name>.ipynb` in);
+ * never replaces anything unless `force`. With `force` a symbolic link at the
+ * destination is itself replaced (rename over the link), never its target.
+ */
+export function newNotebook(name: string, path: string, force: boolean, dir?: string, fs?: FileSystemSeam): { dest: string; template: Template } {
   const t = findTemplate(name, dir);
   let dest = resolve(path);
   if (existsSync(dest) && statSync(dest).isDirectory()) dest = resolve(dest, `${t.name}.ipynb`);
-  if (existsSync(dest) && !force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
-  if (existsSync(dest) && !statSync(dest).isFile()) throw new PinchoffError("io", "exists and is not a file", dest);
+  let st: Stats | undefined;
+  try {
+    st = lstatSync(dest);
+  } catch {
+    /* nothing there */
+  }
+  if (st && !force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
+  if (st && !st.isFile() && !st.isSymbolicLink()) throw new PinchoffError("io", "exists and is not a file", dest);
+  const content = readFileSync(t.path);
   try {
     mkdirSync(dirname(dest), { recursive: true });
-    // COPYFILE_EXCL makes the no-overwrite promise hold even if the file appears meanwhile.
-    copyFileSync(t.path, dest, force ? 0 : fsc.COPYFILE_EXCL);
   } catch (e) {
-    throw new PinchoffError("io", `cannot write the notebook (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, dest);
+    throw new PinchoffError("io", `cannot create the folder (${errnoOf(e)})`, dirname(dest));
   }
+  // Without --force the file is linked into place, which fails if the name appeared meanwhile.
+  writeFileAtomic(dest, content, { exclusive: !force, ...(fs ? { fs } : {}) });
   return { dest, template: t };
 }

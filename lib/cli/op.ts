@@ -4,12 +4,11 @@
  * and metrics as JSON; with --record also write the derivation. A design file
  * with a specification instead of components is designed first: ideal values,
  * standard values chosen as a set, the re-solve and the deviation from the
- * specification. Files are written atomically (temp file + rename) and the
+ * specification. Files are written through the one atomic writer (lib/io/atomic-write.ts) and the
  * design file is never written.
  */
-import { randomBytes } from "node:crypto";
-import { existsSync, readFileSync, realpathSync, renameSync, rmSync, writeFileSync } from "node:fs";
-import { basename, dirname, extname, join, resolve } from "node:path";
+import { existsSync, readFileSync, realpathSync } from "node:fs";
+import { extname, resolve } from "node:path";
 import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
 import { analyzeStage } from "../bias/analyze.js";
 import { readDesignFile, type DesignFile } from "../bias/design-file.js";
@@ -17,6 +16,7 @@ import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
 import { Derivation } from "../record/derivation.js";
 import { defineCommand, exitStatus, type CommandSpec } from "./args.js";
+import { writeFileAtomic } from "../io/atomic-write.js";
 
 export const command = {
   name: "op",
@@ -133,15 +133,7 @@ export function writeAtomic(path: string, text: string, protect: string[] = [], 
     }
     if (!head.includes(recordMarker)) throw new InputError(path, "a new file, or a record an earlier pinchoff op wrote (this file exists and was not written by pinchoff op; choose another path, or pass --force to replace it)", "--record", "io");
   }
-  const tmp = join(dirname(target), `.${basename(target)}.${randomBytes(6).toString("hex")}.tmp`);
-  try {
-    writeFileSync(tmp, text, { flag: "wx" });
-    renameSync(tmp, target);
-  } catch (e) {
-    rmSync(tmp, { force: true });
-    if (e instanceof PinchoffError) throw e;
-    throw new PinchoffError("io", `cannot write (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
-  }
+  writeFileAtomic(target, text);
 }
 
 export const main = defineCommand(command, async ({ values, positionals }) => {
