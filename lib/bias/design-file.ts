@@ -26,6 +26,7 @@
  *     "notes": "free text"                         optional, ignored
  *   }
  */
+import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
@@ -279,6 +280,10 @@ function readJson(path: string): unknown {
   } catch (e) {
     throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
   }
+  return parseJsonText(text, path);
+}
+
+function parseJsonText(text: string, path: string): unknown {
   try {
     return JSON.parse(text);
   } catch (e) {
@@ -289,6 +294,21 @@ function readJson(path: string): unknown {
 /** Read and parse a design file, with components or a specification; errors name the file (and the field path). */
 export function readDesignFile(path: string): DesignFile {
   return parseDesignFile(readJson(path), path);
+}
+
+/**
+ * Read a design file once and parse it, with the SHA-256 (hex) of the exact
+ * bytes read, so a record can name the file it came from without a second read.
+ */
+export function readDesignSource(path: string): { design: DesignFile; sha256: string } {
+  let bytes: Buffer;
+  try {
+    bytes = readFileSync(path);
+  } catch (e) {
+    throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
+  }
+  const raw = parseJsonText(bytes.toString("utf8"), path);
+  return { design: parseDesignFile(raw, path), sha256: createHash("sha256").update(bytes).digest("hex") };
 }
 
 /** Read and parse a design file with components; errors name the file (and the field path). */

@@ -11,9 +11,13 @@ import { existsSync, readFileSync, realpathSync } from "node:fs";
 import { extname, resolve } from "node:path";
 import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
 import { analyzeStage } from "../bias/analyze.js";
-import { readDesignFile, type DesignFile } from "../bias/design-file.js";
+import { readDesignSource, type DesignFile } from "../bias/design-file.js";
+import type { PartRating } from "../bias/dissipation.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
-import type { Stage, StageAnalysis } from "../bias/topology.js";
+import type { Stage, StageAnalysis, StageLimits } from "../bias/topology.js";
+import type { Dimension } from "../quantity.js";
+import { checkStamp, stampRecord } from "../record/stamp.js";
+import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
 import { defineCommand, exitStatus, type CommandSpec } from "./args.js";
 import { writeFileAtomic } from "../io/atomic-write.js";
@@ -22,7 +26,7 @@ export const command = {
   name: "op",
   positionals: [{ name: "design.json" }],
   options: {
-    record: { kind: "value", placeholder: "FILE", help: "also write the derivation (the reasoning, every formula with\nits numbers) as HTML (.html) or Markdown (.md); an existing\nfile is replaced only if an earlier pinchoff op wrote it" },
+    record: { kind: "value", placeholder: "FILE", help: "also write the derivation (the reasoning, every formula with\nits numbers) as HTML (.html) or Markdown (.md); an existing\nfile is replaced only if it is a record pinchoff wrote,\nunchanged since (its stamp is checked)" },
     force: { kind: "flag", help: "replace an existing record file whatever wrote it" },
   },
   description: `Solves the DC operating point of the bias stage in the design file and prints
@@ -100,20 +104,12 @@ export function toJson(value: unknown): string {
   return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? (Number.isNaN(v) ? "NaN" : v > 0 ? "Infinity" : "-Infinity") : v), 2);
 }
 
-/** Marks a record file as written by `pinchoff op`, so a later run may replace it (and nothing else). */
-export const recordMarker = "written by pinchoff op";
-
-/** The record text with the marker: a generator meta tag in HTML, a comment at the end of Markdown. */
-export function markRecord(text: string, format: "html" | "md"): string {
-  return format === "html" ? text.replace(/<head>/i, `<head><meta name="generator" content="${recordMarker}">`) : `${text.trimEnd()}\n\n<!-- ${recordMarker} -->\n`;
-}
-
 /**
- * Write a file atomically next to its destination; never the protected paths,
- * and never over an existing file that an earlier `pinchoff op` did not write
- * (unless `force`).
+ * Write the record atomically; never over the design file, and never over an
+ * existing file unless it is an intact record the tool wrote (its stamp checks
+ * out, lib/record/stamp.ts) or `force` is given.
  */
-export function writeAtomic(path: string, text: string, protect: string[] = [], force = false): void {
+export function writeRecord(path: string, text: string, protect: readonly string[] = [], force = false): void {
   const target = resolve(path);
   for (const p of protect) {
     let same = resolve(p) === target;
@@ -125,15 +121,45 @@ export function writeAtomic(path: string, text: string, protect: string[] = [], 
     if (same) throw new InputError(path, "an output path other than the design file", "--record", "io");
   }
   if (!force && existsSync(target)) {
-    let head = "";
+    let existing: string | undefined;
     try {
-      head = readFileSync(target, "utf8");
-    } catch {
-      /* unreadable: treated as not ours */
+      existing = readFileSync(target, "utf8");
+    } catch (e) {
+      throw new PinchoffError("io", `exists and cannot be read to check what wrote it (${(e as NodeJS.ErrnoException).code ?? (e as Error).message}); it was left untouched (--force replaces it)`, path);
     }
-    if (!head.includes(recordMarker)) throw new InputError(path, "a new file, or a record an earlier pinchoff op wrote (this file exists and was not written by pinchoff op; choose another path, or pass --force to replace it)", "--record", "io");
+    const own = checkStamp(existing);
+    if (!own.ok) throw new InputError(path, `a new file, or an unchanged record pinchoff wrote; this file exists and ${own.reason}, so it was left untouched (choose another path, or pass --force to replace it)`, "--record", "io");
   }
   writeFileAtomic(target, text);
+}
+
+/** Named limits of a design file, as recorded inputs (they decide checks, so they belong to the inputs and their fingerprint). */
+const limitInputs: Record<keyof StageLimits, [string, Dimension]> = {
+  maxDevicePower: ["P transistor, max", "power"],
+  maxTotalPower: ["P supply, max", "power"],
+  minSaturationMargin: ["saturation margin, min", "voltage"],
+  minOverdrive: ["VOV, min", "voltage"],
+  minSourceHeadroom: ["source headroom, min", "voltage"],
+};
+
+/** Record what the design file states as limits and ratings (and the specification's power ratings) as inputs. */
+export function recordLimits(rec: Derivation, file: DesignFile): void {
+  const at = (f: string) => `${file.origin}: ${f}`;
+  const limits = file.kind === "analysis" ? file.stage.limits : file.spec.limits;
+  for (const [k, v] of Object.entries(limits ?? {})) {
+    const [name, dim] = limitInputs[k as keyof StageLimits];
+    if (typeof v === "number") rec.input(name, v, dim, at(`limits.${k}`));
+  }
+  if (file.kind !== "specification" || !file.spec.dissipation) return;
+  const d = file.spec.dissipation;
+  const rating = (who: string, r: PartRating | undefined, f: string) => {
+    if (!r) return;
+    rec.input(`P rating, ${who}`, r.rating, "power", at(`${f}.rating`));
+    if (r.derating !== undefined) rec.input(`derating, ${who}`, r.derating, "dimensionless", at(`${f}.derating`));
+  };
+  rating("resistors", d.resistor, "specification.dissipation.resistor");
+  for (const [n, r] of Object.entries(d.resistors ?? {})) rating(n, r, `specification.dissipation.resistors.${n}`);
+  rating("transistor", d.transistor, "specification.dissipation.transistor");
 }
 
 export const main = defineCommand(command, async ({ values, positionals }) => {
@@ -145,13 +171,19 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
     format = ext === ".html" || ext === ".htm" ? "html" : ext === ".md" || ext === ".markdown" ? "md" : undefined;
     if (!format) throw new InputError(record, "a record file ending in .html or .md", "--record");
   }
-  const read = readDesignFile(file);
+  const { design: read, sha256: designSha256 } = readDesignSource(file);
   const result = read.kind === "analysis" ? operatingPointOf(read.stage) : designOf(read);
   if (record !== undefined) {
+    const rec = result.derivation;
+    recordLimits(rec, read);
+    const written = new Date().toISOString();
+    rec.describe(`From design file ${file} (SHA-256 ${designSha256}); ${toolVersion()}; written ${written.replace("T", " ").replace(/\.\d+Z$/, " UTC")}`);
     const render = await import("../record/render.js");
-    const data = result.derivation.toJSON();
-    const text = markRecord(format === "html" ? render.renderHtml(data) : render.renderMarkdown(data), format!);
-    writeAtomic(record, text, [file], values.force === true);
+    const data = rec.toJSON();
+    const body = format === "html" ? render.renderHtml(data) : render.renderMarkdown(data);
+    const version = toolVersion().replace(/^pinchoff /, "");
+    const text = stampRecord(body, format!, { version, command: "op", written, design: { path: file, sha256: designSha256 }, inputs: rec.fingerprint() });
+    writeRecord(record, text, [file], values.force === true);
   }
   const head = { design: file, ...(record ? { record } : {}) };
   const analysis = "analysis" in result ? result.analysis : result.design.analysis;
