@@ -23,6 +23,8 @@
  *     "options": { "clm": "continuous" | "saturation-only" },   optional
  *     "limits": { "maxDevicePower": "50 mW", "maxTotalPower": …, "minSaturationMargin": "0.2 V",
  *                 "minOverdrive": …, "minSourceHeadroom": … },  optional
+ *     "tolerance": { "resistors": "1 %", "process": { "vt0": "50 mV", "kp": "10 %" }, … },
+ *                                                  optional: see ./tolerance-file.ts
  *     "notes": "free text"                         optional, ignored
  *   }
  */
@@ -34,10 +36,11 @@ import type { Dimension } from "../quantity.js";
 import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
+import { parseToleranceSection, type ToleranceSection } from "./tolerance-file.js";
 import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -195,8 +198,8 @@ function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path
 
 /** A design file read: a stage to analyse, or a specification to design. */
 export type DesignFile =
-  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage }
-  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec };
+  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection }
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection };
 
 /** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
 export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
@@ -206,6 +209,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
   const topo = topologyFor(d.topology, at("topology"));
   if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
   if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
+  const tolerance = d.tolerance === undefined ? {} : { tolerance: parseToleranceSection(d.tolerance, at("tolerance")) };
   const given = (["components", "specification"] as const).filter((k) => d[k] !== undefined);
   if (given.length !== 1)
     throw new InputError(given.length ? given : undefined, "exactly one of components (the values, to analyse the stage) or specification (the targets, to design it)", at("components/specification"), "invalid-design");
@@ -228,7 +232,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     for (const k of Object.keys(byName ?? {}))
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     const spec = { topology: topo.id, ...parseCommon(d, at), card, ...own } as unknown as StageSpec;
-    return { kind: "specification", origin, spec };
+    return { kind: "specification", origin, spec, ...tolerance };
   }
 
   const device = parseStageDevice(d.device, "device", at);
@@ -262,7 +266,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     ...(common.options ? { options: common.options } : {}),
     ...(common.limits ? { limits: common.limits } : {}),
   };
-  return { kind: "analysis", origin, stage };
+  return { kind: "analysis", origin, stage, ...tolerance };
 }
 
 /** Validate and parse a design with components into a stage; `origin` names the file. */

@@ -14,12 +14,14 @@ import { analyzeStage } from "../bias/analyze.js";
 import { readDesignSource, type DesignFile } from "../bias/design-file.js";
 import type { PartRating } from "../bias/dissipation.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
-import type { Stage, StageAnalysis, StageLimits } from "../bias/topology.js";
+import type { Stage, StageAnalysis, StageCheck, StageLimits } from "../bias/topology.js";
 import type { Dimension } from "../quantity.js";
 import { checkStamp, stampRecord } from "../record/stamp.js";
 import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
-import { defineCommand, exitStatus, type CommandSpec } from "./args.js";
+import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
+import { checkLine, formatChecked, opText } from "./op-text.js";
+import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
 import { writeFileAtomic } from "../io/atomic-write.js";
 
 export const command = {
@@ -28,16 +30,22 @@ export const command = {
   options: {
     record: { kind: "value", placeholder: "FILE", help: "also write the derivation (the reasoning, every formula with\nits numbers) as HTML (.html) or Markdown (.md); an existing\nfile is replaced only if it is a record pinchoff wrote,\nunchanged since (its stamp is checked)" },
     force: { kind: "flag", help: "replace an existing record file whatever wrote it" },
+    json: { kind: "flag", help: "print JSON (the default when the output is not a terminal)" },
+    text: { kind: "flag", help: "print the readable summary (the default at a terminal)" },
   },
-  description: `Solves the DC operating point of the bias stage in the design file and prints
-it as JSON: region, node voltages, currents, device operating point,
-small-signal parameters, gain/resistance/swing metrics, checks with margins,
-power per component. Infinite values are written as the string "Infinity".
+  description: `Solves the DC operating point of the bias stage in the design file. At a
+terminal it prints a summary: the values with units, the operating point,
+region and margins, every check with pass/FAIL and its margin. Otherwise (or
+with --json) it prints JSON: region, node voltages, currents, device operating
+point, small-signal parameters, metrics, checks with margins, power, and
+"failedChecks". Infinite values are written as the string "Infinity".
 
 When the design file gives a "specification" instead of "components", the
-stage is designed first and the JSON holds the ideal values, the standard
-values chosen as a set from the series, the deviation from the specification
-and, under "operatingPoint", the operating point of the chosen stage.`,
+stage is designed first: the ideal values, the standard values chosen as a set
+from the series, the deviation from the specification and the operating point
+of the chosen stage. A "tolerance" section adds worst-case corners or a Monte
+Carlo run over part tolerances and temperatures: the spread of the bias and the
+yield of every check (corners must all pass).`,
   notes: "Hand analysis is approximate: verify by simulation and measurement.",
 } as const satisfies CommandSpec;
 
@@ -162,7 +170,17 @@ export function recordLimits(rec: Derivation, file: DesignFile): void {
   rating("transistor", d.transistor, "specification.dissipation.transistor");
 }
 
+/** The failed checks of an outcome, one line each, with enough digits to show why. */
+function failedChecks(analysis: StageAnalysis, design: SynthesisResult | undefined, tolerance: ToleranceChecks | undefined, extra: readonly StageCheck[]): string[] {
+  return [
+    ...[...analysis.metrics.checks, ...extra].filter((c) => !c.passed).map(checkLine),
+    ...(design?.dissipation?.failures ?? []).map((f) => `FAIL  ${f.name} over its allowed power: ${formatChecked(f.power, "W")} > ${formatChecked(f.allowed!, "W")}`),
+    ...(tolerance?.checks ?? []).filter((c) => !c.ok).map((c) => `FAIL  over tolerances, ${c.name}: ${c.passed} of ${c.cases} cases pass (${+(c.yield * 100).toPrecision(4)} %)`),
+  ];
+}
+
 export const main = defineCommand(command, async ({ values, positionals }) => {
+  if (values.json && values.text) throw new UsageError("--json and --text exclude each other", usageLine(command));
   const file = positionals[0]!;
   const record = values.record;
   let format: "html" | "md" | undefined;
@@ -173,8 +191,13 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   }
   const { design: read, sha256: designSha256 } = readDesignSource(file);
   const result = read.kind === "analysis" ? operatingPointOf(read.stage) : designOf(read);
+  const rec = result.derivation;
+  const design = "design" in result ? result.design : undefined;
+  const stage = design ? (design.stage as Stage) : (read as Extract<DesignFile, { kind: "analysis" }>).stage;
+  const analysis = design ? design.analysis : (result as { analysis: StageAnalysis }).analysis;
+  const tolerance = read.tolerance ? toleranceChecks(stage, read.tolerance, record !== undefined ? rec : undefined) : undefined;
+  const extraChecks: StageCheck[] = [];
   if (record !== undefined) {
-    const rec = result.derivation;
     recordLimits(rec, read);
     const written = new Date().toISOString();
     rec.describe(`From design file ${file} (SHA-256 ${designSha256}); ${toolVersion()}; written ${written.replace("T", " ").replace(/\.\d+Z$/, " UTC")}`);
@@ -185,13 +208,14 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
     const text = stampRecord(body, format!, { version, command: "op", written, design: { path: file, sha256: designSha256 }, inputs: rec.fingerprint() });
     writeRecord(record, text, [file], values.force === true);
   }
-  const head = { design: file, ...(record ? { record } : {}) };
-  const analysis = "analysis" in result ? result.analysis : result.design.analysis;
-  console.log(toJson("analysis" in result ? { ...head, ...result.analysis } : { ...head, ...designSummary(read as Extract<DesignFile, { kind: "specification" }>, result.design) }));
-  const failures = [
-    ...analysis.metrics.checks.filter((c) => !c.passed).map((c) => `${c.name}: ${c.value} ${c.unit} (margin ${c.margin} ${c.unit})`),
-    ...("design" in result && result.design.dissipation ? result.design.dissipation.failures.map((f) => `${f.name} over its allowed power: ${f.power} W > ${f.allowed} W`) : []),
-  ];
-  for (const f of failures) console.error(`check failed: ${f}`);
+  const failures = failedChecks(analysis, design, tolerance, extraChecks);
+  const asText = values.text === true || (values.json !== true && process.stdout.isTTY === true);
+  if (asText) console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }));
+  else {
+    const head = { design: file, ...(record ? { record } : {}) };
+    const body = design ? designSummary(read as Extract<DesignFile, { kind: "specification" }>, design) : analysis;
+    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), failedChecks: failures }));
+    for (const f of failures) console.error(`check failed: ${f.replace(/^FAIL\s+/, "")}`);
+  }
   return failures.length ? exitStatus.failed : exitStatus.ok;
 });
