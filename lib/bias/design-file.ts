@@ -12,6 +12,9 @@
  *                 "lambda": "0.05 1/V", "gamma": 0.4, "phi": "0.7 V", "provenance": "…" },
  *       "w": "10 um", "l": "1 um"
  *     },
+ *     — or, for a discrete part from its datasheet, instead of card, w and l:
+ *     "device": { "part": { "name": "…", "polarity": "nmos", "threshold": …, "forwardTransconductance": …,
+ *                           "onResistance": …, "ratings": … }, "ambient": "40 degC" },   see ./part-file.ts
  *     "components": { "rg1": "200k", "rg2": "100k", "rd": "5k", "rs": "1k" },
  *     — or, to design the stage, instead of components:
  *     "specification": { "id": "1 mA", "sizing": { "vov": "0.3 V", "l": "1 um" }, "drain": { "vd": "3 V" }, … },
@@ -32,7 +35,12 @@ import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
-import type { Dimension } from "../quantity.js";
+import type { Dimension, Kelvin } from "../quantity.js";
+import { partModel } from "../device/discrete-part.js";
+import { parsePartCard } from "./part-file.js";
+
+/** Ambient of a discrete part when the design file states none: 25 °C, where datasheets state their figures (common practice). */
+const roomTemperature = 298.15;
 import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
@@ -106,9 +114,17 @@ function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCa
   return card as unknown as DeviceCard;
 }
 
-/** Parse one transistor `{ card, w, l }` found at field path `f`. */
+/** Parse one transistor `{ card, w, l }`, or a discrete part `{ part, ambient? }`, found at field path `f`. */
 function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
-  const dev = object(raw, at(f), "a device { card, w, l }");
+  const dev = object(raw, at(f), "a device { card, w, l } or a discrete part { part, ambient? }");
+  if (dev.part !== undefined) {
+    onlyKeys(dev, ["part", "ambient"], at(f));
+    const part = parsePartCard(dev.part, at(`${f}.part`));
+    const ambient = dev.ambient === undefined ? roomTemperature : quantity(dev.ambient, "temperature", at(`${f}.ambient`));
+    if (!(ambient > 0)) throw new InputError(dev.ambient, "an ambient temperature above absolute zero", at(`${f}.ambient`));
+    const model = partModel(part, undefined, at(`${f}.part`));
+    return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
+  }
   onlyKeys(dev, ["card", "w", "l"], at(f));
   const card = parseCard(dev.card, `${f}.card`, at);
   const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
@@ -255,6 +271,9 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     components[f.name] = quantity(v, f.dim, at(`components.${f.name}`));
   }
   const common = parseCommon(d, at);
+  for (const [role, dv] of [["device", device] as const, ...Object.entries(devices ?? {}).map(([r, dv]) => [`devices.${r}`, dv] as const)])
+    if (dv.part && common.body === "rail")
+      throw new InputError("rail", `body "source" (or omitted): the discrete part at ${role} has its body tied to its source inside the package`, at("body"), "invalid-design");
   const stage: Stage = {
     topology: topo.id,
     ...(common.name !== undefined ? { name: common.name } : {}),
