@@ -137,4 +137,22 @@ describe("ratings checked in a design that uses the part", () => {
     const a = analyzeStage(stage);
     expect(a.metrics.checks.filter((c) => c.name.startsWith("QN-60")).length).toBe(5);
   });
+
+  it("checks each part of a two-transistor stage under its own label (mirror, diode load)", () => {
+    // A discrete 1:1 mirror from two of the invented parts: 12 V, RREF 1 kΩ, output held at 6 V.
+    const mirror = parseDesign({ topology: "current-mirror", device: { part: partJson }, devices: { reference: { part: partJson } }, components: { rref: "1k", vout: "6 V" }, supplies: { vdd: "12 V" } }, "m.json");
+    const names = analyzeStage(mirror).metrics.checks.map((c) => c.name);
+    expect(names).toContain("M1 QN-60 (invented): ID within ID(max)");
+    expect(names).toContain("M2 QN-60 (invented): |VDS| within VDS(max)");
+    // RREF of 10 Ω forces about (12 − VGS)/10 ≈ 0.9 A through M1: over its 300 mA rating.
+    const hard = parseDesign({ topology: "current-mirror", device: { part: partJson }, devices: { reference: { part: partJson } }, components: { rref: "10", vout: "6 V" }, supplies: { vdd: "12 V" } }, "m.json");
+    const m1 = analyzeStage(hard).metrics.checks.find((c) => c.name === "M1 QN-60 (invented): ID within ID(max)")!;
+    expect(m1.passed).toBe(false);
+    expect(m1.value).toBeGreaterThan(0.3);
+    const pPart = { ...partJson, name: "QP-60 (invented)", polarity: "pmos" };
+    const dl = parseDesign({ topology: "diode-load", device: { part: partJson }, devices: { load: { part: pPart } }, components: { vg: "2.3 V" }, supplies: { vdd: "12 V" } }, "d.json");
+    const dlNames = analyzeStage(dl).metrics.checks.map((c) => c.name);
+    expect(dlNames).toContain("driver QN-60 (invented): |VGS| within VGS(max)");
+    expect(dlNames).toContain("load QP-60 (invented): junction temperature within TJ(max)");
+  });
 });

@@ -19,6 +19,7 @@ import type { Dimension } from "../quantity.js";
 import { checkStamp, stampRecord } from "../record/stamp.js";
 import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
+import { partModel } from "../device/discrete-part.js";
 import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
@@ -52,6 +53,12 @@ yield of every check (corners must all pass).`,
 /** The op result as a library call: the stage, its analysis and the recorded derivation. */
 export function operatingPointOf(stage: Stage): { analysis: StageAnalysis; derivation: Derivation } {
   const derivation = new Derivation(`Operating point: ${stage.name ?? stage.topology} (${stage.device.card.polarity})`);
+  // A discrete part's model is derived from its datasheet first, each step recorded.
+  for (const d of [stage.device, ...Object.values(stage.devices ?? {})])
+    if (d.part) {
+      partModel(d.part.part, derivation);
+      derivation.input(`ambient (${d.part.part.name})`, d.part.ambient, "temperature", "device.ambient");
+    }
   const analysis = analyzeStage(stage, derivation);
   return { analysis, derivation };
 }

@@ -192,11 +192,11 @@ export interface PartStress {
  * `check` records each check (a Derivation's rule); the formulas are recorded
  * with `rec`.
  */
-export function ratingChecks<T>(use: PartInUse, stress: PartStress, check: (name: string, value: number, dim: "voltage" | "current" | "power" | "temperature", max: number, detail?: string) => T, rec?: Derivation): T[] {
+export function ratingChecks<T>(use: PartInUse, stress: PartStress, check: (name: string, value: number, dim: "voltage" | "current" | "power" | "temperature", max: number, detail?: string) => T, rec?: Derivation, label = use.part.name): T[] {
   const { part, ambient } = use;
   const r = part.ratings;
   const out: T[] = [];
-  const n = `${part.name}`;
+  const n = label;
   out.push(check(`${n}: |VDS| within VDS(max)`, Math.abs(stress.vds), "voltage", r.vds, "absolute maximum rating"));
   out.push(check(`${n}: |VGS| within VGS(max)`, Math.abs(stress.vgs), "voltage", r.vgs, "absolute maximum rating"));
   out.push(check(`${n}: ID within ID(max)`, Math.abs(stress.id), "current", r.id, "continuous rating"));
