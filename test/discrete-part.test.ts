@@ -10,7 +10,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
-import { parseDesign } from "../lib/bias/design-file.js";
+import { parseDesign, parseDesignFile } from "../lib/bias/design-file.js";
 import { parsePartCard } from "../lib/bias/part-file.js";
 import { main } from "../lib/cli/op.js";
 import { partModel } from "../lib/device/discrete-part.js";
@@ -154,5 +154,18 @@ describe("ratings checked in a design that uses the part", () => {
     const dlNames = analyzeStage(dl).metrics.checks.map((c) => c.name);
     expect(dlNames).toContain("driver QN-60 (invented): |VGS| within VGS(max)");
     expect(dlNames).toContain("load QP-60 (invented): junction temperature within TJ(max)");
+  });
+
+  it("designs a stage from a specification around the part: its size fixed, its ratings checked on the chosen values", async () => {
+    const spec = { id: "10 mA", drain: { vd: "8.5 V" }, source: { vrs: "4 V" }, gate: { current: "50 uA" }, series: "E96" };
+    const file = write("spec.json", { name: "QN-60 line stage (invented)", topology: "four-resistor", device: { part: partJson, ambient: "40 degC" }, specification: spec, supplies: { vdd: "12 V" } });
+    const r = await run([file, "--json"]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.chosen.device).toEqual({ w: 1e-6, l: 1e-6 });
+    expect(j.deviation.id.relative).toBeLessThan(0.02);
+    const names = j.operatingPoint.metrics.checks.map((c: { name: string }) => c.name);
+    expect(names).toContain("QN-60 (invented): junction temperature within TJ(max)");
+    expect(() => parseDesignFile({ topology: "four-resistor", device: { part: partJson }, specification: { ...spec, sizing: { vov: "0.3 V", l: "1 um" } }, supplies: { vdd: "12 V" } }, "s.json")).toThrow(/s\.json: specification\.sizing: .*size is fixed by the part/);
   });
 });

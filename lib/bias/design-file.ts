@@ -36,7 +36,7 @@ import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
 import type { Dimension, Kelvin } from "../quantity.js";
-import { partModel } from "../device/discrete-part.js";
+import { partModel, type PartInUse } from "../device/discrete-part.js";
 import { parsePartCard } from "./part-file.js";
 
 /** Ambient of a discrete part when the design file states none: 25 °C, where datasheets state their figures (common practice). */
@@ -215,7 +215,7 @@ function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path
 /** A design file read: a stage to analyse, or a specification to design. */
 export type DesignFile =
   | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection }
-  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection };
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection; readonly part?: PartInUse };
 
 /** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
 export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
@@ -234,21 +234,36 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     if (!Object.prototype.hasOwnProperty.call(specFields, topo.id))
       throw new InputError(topo.id, `a topology with a designer for a specification: ${Object.keys(specFields).map((t) => JSON.stringify(t)).join(", ")}`, at("topology"), "invalid-design");
     const fields = specFields[topo.id as SpecTopology] as Readonly<Record<string, SpecField>>;
-    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing)");
+    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing), or a discrete part { part, ambient? }");
     for (const k of ["w", "l"] as const)
       if (dev[k] !== undefined) throw new InputError(dev[k], `no device.${k} with a specification: the size comes from specification.sizing (vov or w, and l)`, at(`device.${k}`), "invalid-design");
-    onlyKeys(dev, ["card"], at("device"));
     if (d.devices !== undefined)
       throw new InputError(Object.keys(object(d.devices, at("devices"), "no devices with a specification")), "no devices with a specification: the designer sizes the further transistors (a mirror's reference from specification.ratio, a diode load from specification.load)", at("devices"), "invalid-design");
-    const card = parseCard(dev.card, "device.card", at);
-    const own = specGroup(d.specification, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
+    // A discrete part: its model's card, and its size fixed (W = L, k absorbed in KP), so the specification gives no sizing.
+    let part: PartInUse | undefined;
+    let rawSpec = d.specification;
+    let card: DeviceCard;
+    if (dev.part !== undefined) {
+      const used = parseStageDevice(dev, "device", at);
+      part = used.part!;
+      card = used.card;
+      const sp = object(d.specification, at("specification"), "a specification");
+      if (sp.sizing !== undefined)
+        throw new InputError(sp.sizing, "no specification.sizing with a discrete part: its size is fixed by the part (W/L is absorbed in its k)", at("specification.sizing"), "invalid-design");
+      if (d.body === "rail") throw new InputError("rail", `body "source" (or omitted): the discrete part has its body tied to its source inside the package`, at("body"), "invalid-design");
+      rawSpec = { ...sp, sizing: { w: used.w, l: used.l } };
+    } else {
+      onlyKeys(dev, ["card"], at("device"));
+      card = parseCard(dev.card, "device.card", at);
+    }
+    const own = specGroup(rawSpec, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
     // A rating under a misspelled name would silently not apply: the names must be the topology's resistors.
     const resistorNames = topo.components.filter((c) => c.dim === "resistance").map((c) => c.name);
     const byName = (own.dissipation as { resistors?: Record<string, unknown> } | undefined)?.resistors;
     for (const k of Object.keys(byName ?? {}))
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     const spec = { topology: topo.id, ...parseCommon(d, at), card, ...own } as unknown as StageSpec;
-    return { kind: "specification", origin, spec, ...tolerance };
+    return { kind: "specification", origin, spec, ...(part ? { part } : {}), ...tolerance };
   }
 
   const device = parseStageDevice(d.device, "device", at);

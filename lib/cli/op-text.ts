@@ -7,7 +7,8 @@
  */
 import type { ToleranceChecks } from "../bias/check-yield.js";
 import type { SynthesisResult } from "../bias/synthesis/common.js";
-import type { Stage, StageAnalysis, StageCheck } from "../bias/topology.js";
+import type { Stage, StageAnalysis, StageCheck, StageDevice } from "../bias/topology.js";
+import { partModel } from "../device/discrete-part.js";
 import { dimensions, type Dimension } from "../quantity.js";
 import { cautions } from "../record/cautions.js";
 import { formatQuantity } from "../units/format.js";
@@ -29,17 +30,17 @@ export interface OpOutcome {
 
 const dimOfUnit = (unit: string): Dimension | undefined => (Object.keys(dimensions) as Dimension[]).find((d) => dimensions[d].unit === unit && d !== "fraction" && d !== "count");
 
-/** A checked value with enough digits that value, bound and margin never contradict each other. */
-export function formatChecked(value: number, unit: string, digits = 4): string {
+/** A checked value with enough digits that value, bound and margin never contradict each other; a difference (a margin) gets no °C. */
+export function formatChecked(value: number, unit: string, digits = 4, difference = false): string {
   const dim = dimOfUnit(unit);
   if (!Number.isFinite(value)) return `${value > 0 ? "∞" : "−∞"}${unit ? ` ${unit}` : ""}`;
-  return dim ? formatQuantity(value, dim, { digits }) : `${+value.toPrecision(digits)}${unit ? ` ${unit}` : ""}`;
+  return dim ? formatQuantity(value, dim, { digits, celsius: !difference }) : `${+value.toPrecision(digits)}${unit ? ` ${unit}` : ""}`;
 }
 
 /** One check as a line: verdict, name, value, bound, margin. */
 export function checkLine(c: StageCheck): string {
   const bound = [c.min !== undefined ? `≥ ${formatChecked(c.min, c.unit)}` : "", c.max !== undefined ? `≤ ${formatChecked(c.max, c.unit)}` : ""].filter(Boolean).join(", ");
-  return `${c.passed ? "pass" : "FAIL"}  ${c.name}: ${formatChecked(c.value, c.unit)}${bound ? ` (needs ${bound}; margin ${formatChecked(c.margin, c.unit)})` : ""}`;
+  return `${c.passed ? "pass" : "FAIL"}  ${c.name}: ${formatChecked(c.value, c.unit)}${bound ? ` (needs ${bound}; margin ${formatChecked(c.margin, c.unit, 4, true)})` : ""}`;
 }
 
 const componentDim = (name: string, stage: Stage): Dimension => (name === "vg" || name === "vout" ? "voltage" : name === "iss" ? "current" : stage && name.startsWith("r") ? "resistance" : "dimensionless");
@@ -52,9 +53,12 @@ export function opText(o: OpOutcome): string {
   out.push(`${o.design ? "Designed" : "Operating point of"} ${title}`, `design file: ${o.file}${o.record ? `; record: ${o.record}` : ""}`, "");
   out.push(o.design ? `Chosen values${o.design.snap ? ` (${o.design.snap.series})` : ""}` : "Values");
   for (const [n, v] of Object.entries(o.stage.components)) out.push(`  ${n.toUpperCase().padEnd(6)} ${q(v, componentDim(n, o.stage))}`);
-  const dev = o.stage.device;
-  out.push(`  device ${dev.card.name ?? "card"}: W ${q(dev.w, "length")}, L ${q(dev.l, "length")}`);
-  for (const [role, d] of Object.entries(o.stage.devices ?? {})) out.push(`  ${role} ${d.card.name ?? "card"}: W ${q(d.w, "length")}, L ${q(d.l, "length")}`);
+  const device = (label: string, d: StageDevice) =>
+    d.part
+      ? `  ${label} ${d.part.part.name}: discrete part, model k = ${q(d.card.kp, "transconductanceParameter")}, Vt = ${q(Math.abs(d.card.vt0), "voltage")} from its datasheet; ambient ${formatQuantity(d.part.ambient, "temperature", { celsius: true })}`
+      : `  ${label} ${d.card.name ?? "card"}: W ${q(d.w, "length")}, L ${q(d.l, "length")}`;
+  out.push(device("device", o.stage.device));
+  for (const [role, d] of Object.entries(o.stage.devices ?? {})) out.push(device(role, d));
   out.push(`  supplies: VDD ${q(o.stage.supplies.vdd, "voltage")}${o.stage.supplies.vss ? `, VSS ${q(o.stage.supplies.vss, "voltage")}` : ""}`, "");
   out.push(`Operating point: ${a.region}`);
   out.push(`  VG ${q(a.nodes.gate, "voltage")}   VS ${q(a.nodes.source, "voltage")}   VD ${q(a.nodes.drain, "voltage")}`);
@@ -85,9 +89,11 @@ export function opText(o: OpOutcome): string {
       out.push(`  ${c.ok ? "pass" : "FAIL"}  ${c.name}: ${c.passed}/${c.cases} (${+(c.yield * 100).toPrecision(4)} %), value ${formatChecked(c.min, c.unit)} … ${formatChecked(c.max, c.unit)}`);
     if (t.unsolved) out.push(`  ${t.unsolved} case(s) could not be solved and count as failing every check`);
   }
-  if (a.findings.length) {
+  const partFindings = [o.stage.device, ...Object.values(o.stage.devices ?? {})].flatMap((d) => (d.part ? partModel(d.part.part).findings : []));
+  const findings = [...partFindings, ...a.findings];
+  if (findings.length) {
     out.push("", "Findings");
-    for (const f of a.findings) out.push(`  - ${f}`);
+    for (const f of findings) out.push(`  - ${f}`);
   }
   out.push("", o.failures.length ? `${o.failures.length} check(s) FAILED (exit status 1)` : "Every check passed.", "", cautions);
   return out.join("\n");

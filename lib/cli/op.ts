@@ -19,7 +19,7 @@ import type { Dimension } from "../quantity.js";
 import { checkStamp, stampRecord } from "../record/stamp.js";
 import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
-import { partModel } from "../device/discrete-part.js";
+import { partModel, ratingChecks } from "../device/discrete-part.js";
 import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
@@ -84,7 +84,16 @@ export function designOf(designFile: Extract<DesignFile, { kind: "specification"
   const { spec, origin } = designFile;
   const derivation = new Derivation(`Design from a specification: ${spec.name ?? spec.topology} (${spec.card.polarity})`);
   try {
-    return { design: synthesize(spec, derivation), derivation };
+    const use = designFile.part;
+    if (!use) return { design: synthesize(spec, derivation), derivation };
+    // A discrete part: its model first, then the design with it, then the chosen stage against the part's ratings.
+    partModel(use.part, derivation);
+    derivation.input(`ambient (${use.part.name})`, use.ambient, "temperature", "device.ambient");
+    const design = synthesize(spec, derivation);
+    const stage = { ...design.stage, device: { ...design.stage.device, part: use } };
+    const analysis = analyzeStage(stage);
+    ratingChecks(use, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drain, power: analysis.power.transistor }, (name, value, dim, max, detail) => derivation.check(name, value, dim, { max }, detail), derivation);
+    return { design: { ...design, stage, analysis }, derivation };
   } catch (e) {
     throw e instanceof PinchoffError ? relocate(e, spec.topology, origin) : e;
   }
