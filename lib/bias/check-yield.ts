@@ -76,7 +76,8 @@ const dimOfUnit = (unit: string): Dimension | undefined => (Object.keys(dimensio
  * every check per case. With `rec`, the tolerance analysis is recorded and each
  * check's yield is recorded as a check of its own.
  */
-export function toleranceChecks(stage: Stage, section: ToleranceSection, rec?: Derivation): ToleranceChecks {
+export function toleranceChecks(typed: Stage<string, object>, section: ToleranceSection, rec?: Derivation): ToleranceChecks {
+  const stage = typed as Stage;
   const topo = topologyFor(stage.topology, "stage.topology");
   const nominal = topo.analyze(stage);
   const idNominal = nominal.currents.drain;
