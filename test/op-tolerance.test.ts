@@ -42,7 +42,7 @@ describe("pinchoff op tolerance section", () => {
     const j = JSON.parse(r.out);
     // Independent count: each of the 2^4 resistor corners solved here.
     const stage = parseDesign(design, "d");
-    const idNom = analyzeStage(stage).currents.drain;
+    const idNom = analyzeStage(stage).currents.drainMagnitude;
     const names = ["rg1", "rg2", "rd", "rs"] as const;
     let inside = 0;
     let lo = Infinity;
@@ -50,7 +50,7 @@ describe("pinchoff op tolerance section", () => {
     for (let m = 0; m < 16; m++) {
       const comps: Record<string, number> = { ...stage.components };
       names.forEach((n, i) => (comps[n] = stage.components[n]! * (1 + ((m >> i) & 1 ? 0.05 : -0.05))));
-      const id = analyzeStage({ ...stage, components: comps }).currents.drain;
+      const id = analyzeStage({ ...stage, components: comps }).currents.drainMagnitude;
       if (Math.abs(id / idNom - 1) <= band) inside++;
       lo = Math.min(lo, id);
       hi = Math.max(hi, id);
@@ -73,8 +73,8 @@ describe("pinchoff op tolerance section", () => {
     const j = JSON.parse(r.out);
     expect(j.tolerance.cases).toBe(2 ** 6 * 2);
     expect(j.tolerance.checks.every((c: { yield: number }) => c.yield === 1)).toBe(true);
-    expect(j.tolerance.spread.id.min).toBeLessThan(j.currents.drain);
-    expect(j.tolerance.spread.id.max).toBeGreaterThan(j.currents.drain);
+    expect(j.tolerance.spread.id.min).toBeLessThan(j.currents.drainMagnitude);
+    expect(j.tolerance.spread.id.max).toBeGreaterThan(j.currents.drainMagnitude);
     expect(j.failedChecks).toEqual([]);
   });
 

@@ -61,7 +61,7 @@ export const idBandCheckName = (band: number) => `Drain current within ±${+(ban
 function caseChecks(a: StageAnalysis, idNominal: number, band: number | undefined): StageCheck[] {
   const checks = [...a.metrics.checks];
   if (band !== undefined) {
-    const id = a.currents.drain;
+    const id = a.currents.drainMagnitude;
     const lo = idNominal * (1 - band);
     const hi = idNominal * (1 + band);
     checks.push({ name: idBandCheckName(band), passed: id >= lo && id <= hi, value: id, unit: "A", min: lo, max: hi, margin: Math.min(id - lo, hi - id) });
@@ -80,7 +80,7 @@ export function toleranceChecks(typed: Stage<string, object>, section: Tolerance
   const stage = typed as Stage;
   const topo = topologyFor(stage.topology, "stage.topology");
   const nominal = topo.analyze(stage);
-  const idNominal = nominal.currents.drain;
+  const idNominal = nominal.currents.drainMagnitude;
   const tallies = new Map<string, Tally>();
   let calls = 0;
   let unsolved = 0;

@@ -62,7 +62,7 @@ export function opText(o: OpOutcome): string {
   out.push(`  supplies: VDD ${q(o.stage.supplies.vdd, "voltage")}${o.stage.supplies.vss ? `, VSS ${q(o.stage.supplies.vss, "voltage")}` : ""}`, "");
   out.push(`Operating point: ${a.region}`);
   out.push(`  VG ${q(a.nodes.gate, "voltage")}   VS ${q(a.nodes.source, "voltage")}   VD ${q(a.nodes.drain, "voltage")}`);
-  out.push(`  ID ${q(a.currents.drain, "current")}   VOV ${q(a.op.vov, "voltage")}   Vt ${q(a.op.vt, "voltage")}   saturation margin ${q(a.op.saturationMargin, "voltage")}`);
+  out.push(`  ID ${q(a.currents.drainMagnitude, "current")}   VOV ${q(a.op.vov, "voltage")}   Vt ${q(a.op.vt, "voltage")}   saturation margin ${q(a.op.saturationMargin, "voltage")}`);
   out.push(`  gm ${q(a.smallSignal.gm, "conductance")}   ro ${Number.isFinite(a.smallSignal.ro) ? q(a.smallSignal.ro, "resistance") : "∞"}   transistor ${q(a.power.transistor, "power")}   supply ${q(a.power.total, "power")}`);
   for (const m of a.metrics.amplifiers) out.push(`  ${m.kind}: gain ${+m.gain.toPrecision(4)}, Rin ${Number.isFinite(m.rin) ? q(m.rin, "resistance") : "∞"}, Rout ${q(m.rout, "resistance")}`);
   if (o.design) {

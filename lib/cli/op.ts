@@ -92,7 +92,7 @@ export function designOf(designFile: Extract<DesignFile, { kind: "specification"
     const design = synthesize(spec, derivation);
     const stage = { ...design.stage, device: { ...design.stage.device, part: use } };
     const analysis = analyzeStage(stage);
-    ratingChecks(use, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drain, power: analysis.power.transistor }, (name, value, dim, max, detail) => derivation.check(name, value, dim, { max }, detail), derivation);
+    ratingChecks(use, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drainMagnitude, power: analysis.power.transistor }, (name, value, dim, max, detail) => derivation.check(name, value, dim, { max }, detail), derivation);
     return { design: { ...design, stage, analysis }, derivation };
   } catch (e) {
     throw e instanceof PinchoffError ? relocate(e, spec.topology, origin) : e;

@@ -3,13 +3,13 @@
  * `drainCurrent` is the allocation-free hot path; `operatingPoint` returns the
  * whole picture and records its steps. Both go through `channelCurrent`.
  */
-import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
+import { deviceGain, forwardCurrent, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
-import { defaultPhi, polaritySign, type Device } from "./card.js";
+import { checkDevice, defaultPhi, isDevice, polaritySign, type Device } from "./card.js";
 import { regionOf, regionReason, type Region } from "./region.js";
 import { thresholdMagnitude } from "./threshold.js";
-import { requireFinite } from "../errors.js";
+import { InputError, requireFinite } from "../errors.js";
 import { inversion, type InversionOptions } from "./inversion.js";
 
 /**
@@ -66,9 +66,12 @@ export function channelCurrent(k: number, vov: number, vds: number, lambda: numb
 
 /**
  * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb. Plain numbers in,
- * plain number out, no allocation: the form for sweeps and Monte Carlo.
+ * plain number out, no allocation: the form for sweeps and Monte Carlo. The
+ * device must come from `device()`/`checkDevice()` (one WeakSet look-up proves
+ * it); the card's values are then known good and are not checked again.
  */
 export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm: ClmMode = "continuous"): Amperes {
+  if (!isDevice(dev)) throw new InputError(dev, "a device made by device(card, W, L) or checkDevice(...)", "drainCurrent.dev");
   const c = dev.card;
   const s = c.polarity === "nmos" ? 1 : -1;
   let g = s * vgs;
@@ -86,7 +89,9 @@ export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm
 }
 
 /** The whole operating point at given terminal voltages, recorded step by step when `rec` is given. */
-export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+export function operatingPoint(device: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+  const dev = checkDevice(device, "operatingPoint.dev");
+  if (!bias || typeof bias !== "object") throw new InputError(bias, "terminal voltages { vgs, vds, vsb? } in V", "operatingPoint.bias");
   requireFinite(bias.vgs, "bias.vgs", "a finite VGS in V");
   requireFinite(bias.vds, "bias.vds", "a finite VDS in V");
   if (bias.vsb !== undefined) requireFinite(bias.vsb, "bias.vsb", "a finite VSB in V");
@@ -126,7 +131,7 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
   if (rec && region !== "cutoff") {
     // The inversion level rests on the forward current ½·k·VOV² (no λ), in triode as in saturation.
     const plainSat = region === "saturation" && lambda === 0;
-    const forward = plainSat ? (ich as Amperes) : rec.calc(saturationCurrent, [k, vov], "forward current, for the inversion level");
+    const forward = plainSat ? (ich as Amperes) : rec.calc(forwardCurrent, [k, vov], "for the inversion level");
     inversion(forward, k, opts, rec);
   }
   const channel = ((reversed ? -1 : 1) * ich) as Amperes;
