@@ -17,7 +17,7 @@ export const exitStatus = { ok: 0, failed: 1, usage: 2 } as const;
 
 export const exitStatusHelp = `Exit status: 0 done and every check passed; 1 a check failed, or the design
 could not be read, solved or written; 2 a usage error (unknown option, missing
-value, wrong number of arguments).`;
+value, wrong number of arguments); 130/143 a run stopped by SIGINT/SIGTERM.`;
 
 /** A command-line usage mistake (not a design or file problem): exit 2 with the usage line. */
 export class UsageError extends Error {
