@@ -91,6 +91,9 @@ describe("command-line arguments", () => {
       const r = await run(["new", name, existing]);
       expect(r.code).toBe(1);
       expect(r.err).toBe(`pinchoff new: ${existing}: already exists; it was left untouched (use --force to replace it)`);
+      const noFolder = await run(["notebook", join(dir, "no-such-folder")]);
+      expect(noFolder.code).toBe(1);
+      expect(noFolder.err.match(/pinchoff notebook:/g)).toHaveLength(1);
       const missing = await run(["run", join(dir, "none.ipynb")]);
       expect(missing.code).toBe(1);
       expect(missing.err).toMatch(/^pinchoff run: (?!pinchoff)/);
