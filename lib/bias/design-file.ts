@@ -12,6 +12,9 @@
  *                 "lambda": "0.05 1/V", "gamma": 0.4, "phi": "0.7 V", "provenance": "…" },
  *       "w": "10 um", "l": "1 um"
  *     },
+ *     — or, for a discrete part from its datasheet, instead of card, w and l:
+ *     "device": { "part": { "name": "…", "polarity": "nmos", "threshold": …, "forwardTransconductance": …,
+ *                           "onResistance": …, "ratings": … }, "ambient": "40 degC" },   see ./part-file.ts
  *     "components": { "rg1": "200k", "rg2": "100k", "rd": "5k", "rs": "1k" },
  *     — or, to design the stage, instead of components:
  *     "specification": { "id": "1 mA", "sizing": { "vov": "0.3 V", "l": "1 um" }, "drain": { "vd": "3 V" }, … },
@@ -23,21 +26,30 @@
  *     "options": { "clm": "continuous" | "saturation-only" },   optional
  *     "limits": { "maxDevicePower": "50 mW", "maxTotalPower": …, "minSaturationMargin": "0.2 V",
  *                 "minOverdrive": …, "minSourceHeadroom": … },  optional
+ *     "tolerance": { "resistors": "1 %", "process": { "vt0": "50 mV", "kp": "10 %" }, … },
+ *                                                  optional: see ./tolerance-file.ts
  *     "notes": "free text"                         optional, ignored
  *   }
  */
+import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
-import type { Dimension } from "../quantity.js";
+import type { Dimension, Kelvin } from "../quantity.js";
+import { partModel, type PartInUse } from "../device/discrete-part.js";
+import { parsePartCard } from "./part-file.js";
+
+/** Ambient of a discrete part when the design file states none: 25 °C, where datasheets state their figures (common practice). */
+const roomTemperature = 298.15;
 import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
+import { parseToleranceSection, type ToleranceSection } from "./tolerance-file.js";
 import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
 import { checkLimits } from "./stage.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -103,9 +115,17 @@ function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCa
   return card as unknown as DeviceCard;
 }
 
-/** Parse one transistor `{ card, w, l }` found at field path `f`. */
+/** Parse one transistor `{ card, w, l }`, or a discrete part `{ part, ambient? }`, found at field path `f`. */
 function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
-  const dev = object(raw, at(f), "a device { card, w, l }");
+  const dev = object(raw, at(f), "a device { card, w, l } or a discrete part { part, ambient? }");
+  if (dev.part !== undefined) {
+    onlyKeys(dev, ["part", "ambient"], at(f));
+    const part = parsePartCard(dev.part, at(`${f}.part`));
+    const ambient = dev.ambient === undefined ? roomTemperature : quantity(dev.ambient, "temperature", at(`${f}.ambient`));
+    if (!(ambient > 0)) throw new InputError(dev.ambient, "an ambient temperature above absolute zero", at(`${f}.ambient`));
+    const model = partModel(part, undefined, at(`${f}.part`));
+    return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
+  }
   onlyKeys(dev, ["card", "w", "l"], at(f));
   const card = parseCard(dev.card, `${f}.card`, at);
   const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
@@ -199,8 +219,8 @@ function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path
 
 /** A design file read: a stage to analyse, or a specification to design. */
 export type DesignFile =
-  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage }
-  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec };
+  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection }
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection; readonly part?: PartInUse };
 
 /** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
 export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
@@ -210,6 +230,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
   const topo = topologyFor(d.topology, at("topology"));
   if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
   if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
+  const tolerance = d.tolerance === undefined ? {} : { tolerance: parseToleranceSection(d.tolerance, at("tolerance")) };
   const given = (["components", "specification"] as const).filter((k) => d[k] !== undefined);
   if (given.length !== 1)
     throw new InputError(given.length ? given : undefined, "exactly one of components (the values, to analyse the stage) or specification (the targets, to design it)", at("components/specification"), "invalid-design");
@@ -218,21 +239,36 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     if (!Object.prototype.hasOwnProperty.call(specFields, topo.id))
       throw new InputError(topo.id, `a topology with a designer for a specification: ${Object.keys(specFields).map((t) => JSON.stringify(t)).join(", ")}`, at("topology"), "invalid-design");
     const fields = specFields[topo.id as SpecTopology] as Readonly<Record<string, SpecField>>;
-    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing)");
+    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing), or a discrete part { part, ambient? }");
     for (const k of ["w", "l"] as const)
       if (dev[k] !== undefined) throw new InputError(dev[k], `no device.${k} with a specification: the size comes from specification.sizing (vov or w, and l)`, at(`device.${k}`), "invalid-design");
-    onlyKeys(dev, ["card"], at("device"));
     if (d.devices !== undefined)
       throw new InputError(Object.keys(object(d.devices, at("devices"), "no devices with a specification")), "no devices with a specification: the designer sizes the further transistors (a mirror's reference from specification.ratio, a diode load from specification.load)", at("devices"), "invalid-design");
-    const card = parseCard(dev.card, "device.card", at);
-    const own = specGroup(d.specification, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
+    // A discrete part: its model's card, and its size fixed (W = L, k absorbed in KP), so the specification gives no sizing.
+    let part: PartInUse | undefined;
+    let rawSpec = d.specification;
+    let card: DeviceCard;
+    if (dev.part !== undefined) {
+      const used = parseStageDevice(dev, "device", at);
+      part = used.part!;
+      card = used.card;
+      const sp = object(d.specification, at("specification"), "a specification");
+      if (sp.sizing !== undefined)
+        throw new InputError(sp.sizing, "no specification.sizing with a discrete part: its size is fixed by the part (W/L is absorbed in its k)", at("specification.sizing"), "invalid-design");
+      if (d.body === "rail") throw new InputError("rail", `body "source" (or omitted): the discrete part has its body tied to its source inside the package`, at("body"), "invalid-design");
+      rawSpec = { ...sp, sizing: { w: used.w, l: used.l } };
+    } else {
+      onlyKeys(dev, ["card"], at("device"));
+      card = parseCard(dev.card, "device.card", at);
+    }
+    const own = specGroup(rawSpec, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
     // A rating under a misspelled name would silently not apply: the names must be the topology's resistors.
     const resistorNames = topo.components.filter((c) => c.dim === "resistance").map((c) => c.name);
     const byName = (own.dissipation as { resistors?: Record<string, unknown> } | undefined)?.resistors;
     for (const k of Object.keys(byName ?? {}))
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     const spec = { topology: topo.id, ...parseCommon(d, at, origin), card, ...own } as unknown as StageSpec;
-    return { kind: "specification", origin, spec };
+    return { kind: "specification", origin, spec, ...(part ? { part } : {}), ...tolerance };
   }
 
   const device = parseStageDevice(d.device, "device", at);
@@ -259,6 +295,9 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     components[f.name] = x;
   }
   const common = parseCommon(d, at, origin);
+  for (const [role, dv] of [["device", device] as const, ...Object.entries(devices ?? {}).map(([r, dv]) => [`devices.${r}`, dv] as const)])
+    if (dv.part && common.body === "rail")
+      throw new InputError("rail", `body "source" (or omitted): the discrete part at ${role} has its body tied to its source inside the package`, at("body"), "invalid-design");
   const stage: Stage = {
     topology: topo.id,
     ...(common.name !== undefined ? { name: common.name } : {}),
@@ -270,7 +309,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     ...(common.options ? { options: common.options } : {}),
     ...(common.limits ? { limits: common.limits } : {}),
   };
-  return { kind: "analysis", origin, stage };
+  return { kind: "analysis", origin, stage, ...tolerance };
 }
 
 /** Validate and parse a design with components into a stage; `origin` names the file. */
@@ -288,6 +327,10 @@ function readJson(path: string): unknown {
   } catch (e) {
     throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
   }
+  return parseJsonText(text, path);
+}
+
+function parseJsonText(text: string, path: string): unknown {
   // A byte-order mark is how some editors start a UTF-8 file; it is not part of the JSON.
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
@@ -300,6 +343,21 @@ function readJson(path: string): unknown {
 /** Read and parse a design file, with components or a specification; errors name the file (and the field path). */
 export function readDesignFile(path: string): DesignFile {
   return parseDesignFile(readJson(path), path);
+}
+
+/**
+ * Read a design file once and parse it, with the SHA-256 (hex) of the exact
+ * bytes read, so a record can name the file it came from without a second read.
+ */
+export function readDesignSource(path: string): { design: DesignFile; sha256: string } {
+  let bytes: Buffer;
+  try {
+    bytes = readFileSync(path);
+  } catch (e) {
+    throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
+  }
+  const raw = parseJsonText(bytes.toString("utf8"), path);
+  return { design: parseDesignFile(raw, path), sha256: createHash("sha256").update(bytes).digest("hex") };
 }
 
 /** Read and parse a design file with components; errors name the file (and the field path). */

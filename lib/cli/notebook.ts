@@ -8,17 +8,20 @@
 import { spawn } from "node:child_process";
 import { existsSync, realpathSync, statSync } from "node:fs";
 import { relative, resolve, isAbsolute } from "node:path";
-import { parseArgs } from "node:util";
 import { InputError, PinchoffError } from "../errors.js";
 import { findJupyter, jupyterEnv, requireKernel } from "../runner/execute.js";
 import { templatesDir } from "../runner/paths.js";
+import { defineCommand, type CommandSpec } from "./args.js";
 
-export const help = `usage: pinchoff notebook [FOLDER] [--port N]
-
-Opens the Jupyter Notebook UI (Debian package jupyter-notebook) on FOLDER
+export const command = {
+  name: "notebook",
+  positionals: [{ name: "FOLDER", optional: true }],
+  options: { port: { kind: "value", placeholder: "N", help: "TCP port on 127.0.0.1 (default 8888)" } },
+  description: `Opens the Jupyter Notebook UI (Debian package jupyter-notebook) on FOLDER
 (default: the current directory), bound to 127.0.0.1 only, with the project's
 TypeScript kernel. The shipped templates are never served: copy one into your
-folder with pinchoff new <template> <path> and open that.`;
+folder with pinchoff new <template> <path> and open that.`,
+} as const satisfies CommandSpec;
 
 export interface NotebookLaunch {
   readonly command: string;
@@ -34,7 +37,7 @@ const inside = (child: string, parent: string) => {
 /** The Jupyter command line for a folder; refuses the templates folder (or anything inside it) and a folder that does not exist. */
 export function notebookLaunch(opts: { readonly jupyter: string; readonly folder: string; readonly port: number; readonly root: boolean; readonly templates?: string }): NotebookLaunch {
   const folder = resolve(opts.folder);
-  if (!existsSync(folder) || !statSync(folder).isDirectory()) throw new InputError(opts.folder, "an existing folder to work in", "pinchoff notebook");
+  if (!existsSync(folder) || !statSync(folder).isDirectory()) throw new InputError(opts.folder, "an existing folder to work in", "FOLDER");
   const real = realpathSync(folder);
   const templates = opts.templates ?? templatesDir;
   const shipped = existsSync(templates) ? realpathSync(templates) : resolve(templates);
@@ -45,13 +48,7 @@ export function notebookLaunch(opts: { readonly jupyter: string; readonly folder
   return { command: opts.jupyter, args, folder: real };
 }
 
-export async function main(argv: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({ args: argv, allowPositionals: true, options: { port: { type: "string" }, help: { type: "boolean", short: "h" } } });
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
-  if (positionals.length > 1) throw new InputError(positionals.join(" "), "at most one folder", "pinchoff notebook");
+export const main = defineCommand(command, async ({ values, positionals }) => {
   const port = values.port === undefined ? 8888 : Number(values.port);
   if (!Number.isInteger(port) || port < 1 || port > 65535) throw new InputError(values.port, "a TCP port number 1 to 65535", "--port");
   const { jupyter } = findJupyter();
@@ -59,11 +56,8 @@ export async function main(argv: string[]): Promise<number> {
   const launch = notebookLaunch({ jupyter, folder: positionals[0] ?? process.cwd(), port, root: process.getuid?.() === 0 });
   console.log(`starting Jupyter Notebook on http://127.0.0.1:${port}/ in ${launch.folder} (open the address Jupyter prints; Ctrl-C stops it)`);
   const child = spawn(launch.command, [...launch.args], { stdio: "inherit", env: jupyterEnv() });
-  return await new Promise<number>((done) => {
-    child.on("error", (e) => {
-      console.error(`pinchoff notebook: cannot start ${jupyter} notebook (${e.message}); install the Debian package jupyter-notebook`);
-      done(1);
-    });
+  return await new Promise<number>((done, fail) => {
+    child.on("error", (e) => fail(new PinchoffError("io", `cannot start ${jupyter} notebook (${e.message}); install the Debian package jupyter-notebook`)));
     child.on("close", (code) => done(code ?? 1));
   });
-}
+});

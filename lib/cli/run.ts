@@ -1,15 +1,21 @@
 /** pinchoff run <notebook> [--set NAME=VALUE ...] [--out DIR] [--timeout S]: one design run into a design-run folder. */
 import { relative } from "node:path";
-import { parseArgs } from "node:util";
 import { InputError } from "../errors.js";
 import { parseOverride } from "../runner/inputs-cell.js";
 import { interruptOnSignals } from "../runner/interrupt.js";
 import { defaultTimeout, RunInterrupted, runNotebook } from "../runner/run.js";
 import { summarize } from "../runner/summary.js";
+import { defineCommand, type CommandSpec } from "./args.js";
 
-export const help = `usage: pinchoff run <notebook.ipynb> [--set NAME=VALUE ...] [--out DIR] [--timeout S]
-
-Runs the design notebook headless with the TypeScript kernel and writes a
+export const command = {
+  name: "run",
+  positionals: [{ name: "notebook.ipynb" }],
+  options: {
+    set: { kind: "value", repeatable: true, placeholder: "NAME=VALUE", help: "replace one design input (checked against its declared\ndimension before anything runs), e.g. --set ID=300uA" },
+    out: { kind: "value", placeholder: "DIR", help: "the design-run folder" },
+    timeout: { kind: "value", placeholder: "S", help: `time limit per cell in seconds (default ${defaultTimeout})` },
+  },
+  description: `Runs the design notebook headless with the TypeScript kernel and writes a
 design-run folder DIR (default: <name>-design-run/ beside the notebook):
 
   report.html            the report a reviewer signs (opens offline)
@@ -21,26 +27,11 @@ design-run folder DIR (default: <name>-design-run/ beside the notebook):
 The source notebook is never modified. Files are replaced only when an
 earlier run wrote them, and only once every new file is complete on disk.
 Only one run at a time may write into a folder (it is locked while in use).
+Interrupted (SIGINT/SIGTERM), it stops the kernel, writes nothing and exits
+130/143.`,
+} as const satisfies CommandSpec;
 
-  --set NAME=VALUE  replace one design input (checked against its declared
-                    dimension before anything runs), e.g. --set ID=300uA
-  --out DIR         the design-run folder
-  --timeout S       time limit per cell in seconds (default ${defaultTimeout})
-
-Exit status: 0 when every cell ran and every check passed, 1 otherwise,
-130/143 when interrupted (SIGINT/SIGTERM; nothing is written).`;
-
-export async function main(argv: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({
-    args: argv,
-    allowPositionals: true,
-    options: { set: { type: "string", multiple: true }, out: { type: "string" }, timeout: { type: "string" }, help: { type: "boolean", short: "h" } },
-  });
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
-  if (positionals.length !== 1) throw new InputError(positionals.length ? positionals.join(" ") : undefined, "exactly one notebook path", "pinchoff run");
+export const main = defineCommand(command, async ({ values, positionals }) => {
   let timeout = defaultTimeout;
   if (values.timeout !== undefined) {
     timeout = Number(values.timeout);
@@ -61,4 +52,4 @@ export async function main(argv: string[]): Promise<number> {
   } finally {
     stop.dispose();
   }
-}
+});

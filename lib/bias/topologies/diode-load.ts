@@ -29,7 +29,7 @@ import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
 import { checkComponents, checkStage, pmosConvention } from "../stage.js";
 import { spiceNumber } from "../spice.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
-import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
+import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
 export const diodeLoadComponents: readonly ComponentField[] = [{ name: "vg", dim: "voltage", required: true, meaning: "driver gate bias voltage (absolute, from an ideal source)" }];
 
@@ -314,6 +314,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     checks.push(stageCheck("Load dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  checks.push(...partChecks(stage.device, { vgs: s * c.vg - p.vsr, vds: vds1, id: idNet, power: p1 }, "driver", rec), ...partChecks(stage.devices?.load, { vgs: vload, vds: vload, id: idNet, power: p2 }, "load", rec));
   // The solver's own check (verify.ts) comes after the design checks.
   rec?.check(`${solverCheckPrefix}load current equals driver current (KCL at the output)`, kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
   if (p.sameType && stage.body !== "rail" && (load.card.gamma ?? 0) > 0) findings.push("The load's body is tied to its own source: that needs a separate well. On a common substrate set body to \"rail\" for the body effect.");
