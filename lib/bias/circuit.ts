@@ -13,8 +13,9 @@
  * does not converge in 150 iterations: gmin stepping (a conductance from every
  * unknown node to ground, 1e-3 S down to 0 by decades), then source stepping
  * (all held voltages and source currents ramped from 10 % to 100 %).
- * Tolerance: every node step below 1e-13 V + 1e-12·|V|; then the KCL residual
- * is verified at every node: |ΣI| ≤ 1e-15 A + 1e-9·Σ|I| (the sum of the
+ * Tolerance: every node step below 1e-13 V + 1e-12·|V| (or below 1 nV where
+ * KCL already holds: a node at the edge of conduction is a double root, where
+ * Newton converges only linearly); then the KCL residual is verified at every node: |ΣI| ≤ 1e-15 A + 1e-9·Σ|I| (the sum of the
  * magnitudes of the branch currents meeting there). Failure mode: a
  * ConvergenceError naming the circuit, the node and its residual.
  * Allocation: `compileNetlist` allocates the index and scratch arrays once; the
@@ -79,6 +80,13 @@ export interface CircuitSolution {
   readonly iterations: number;
   /** Largest KCL residual at any unknown node, A. */
   readonly residual: number;
+  /**
+   * Solved nodes that float: no current flows through them and every device on
+   * them is off (branch currents below 0.1 pA, conductance below 10 nS), so their
+   * voltage is not determined by the circuit (any value that keeps those devices
+   * off is a solution). Reported, never hidden.
+   */
+  readonly floating: readonly string[];
 }
 
 /** The netlist with nodes as indices and preallocated scratch. Unknown nodes first, then the held ones. */
@@ -325,8 +333,13 @@ function newton(c: CompiledNetlist, gmin: number, scale: number): number {
     residual(c, gmin, scale, true);
     for (let i = 0; i < n; i++) dv[i] = -f[i]!;
     if (!solveDense(c.jac, w, n, dv)) return -1;
+    let kclOk = true;
+    for (let i = 0; i < n; i++) if (Math.abs(f[i]!) > 1e-15 + 1e-9 * c.mag[i]!) kclOk = false;
     let big = 0;
     for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(dv[i]!));
+    // Kirchhoff already holds and the step is below 1 nV: a node at the edge of
+    // conduction (a double root, where Newton only halves the distance) is settled.
+    if (kclOk && big < 1e-9) return it;
     if (!Number.isFinite(big)) return -1;
     const damp = big > maxStep ? maxStep / big : 1;
     let done = damp === 1;
@@ -410,7 +423,10 @@ export function solveNetlist(net: Netlist): CircuitSolution & { readonly compile
   const branch: Record<string, number> = {};
   net.resistors.forEach((r, e) => (branch[r.name] = (c.v[c.ra[e]!]! - c.v[c.rb[e]!]!) * c.rg[e]!));
   net.sources.forEach((s) => (branch[s.name] = s.i));
-  return { nodes, drain, branch, ...r, compiled: c };
+  residual(c, 0, 1, true);
+  const w = c.names.length;
+  const floating = c.names.slice(0, c.n).filter((_, i) => c.mag[i]! < 1e-13 && c.jac[i * w + i]! - regularisation < 1e-8);
+  return { nodes, drain, branch, ...r, floating, compiled: c };
 }
 
 /**

@@ -12,7 +12,7 @@
  *   edge of saturation and the compliance drops by one threshold.
  * Solved by nodal analysis in every region.
  */
-import { InputError } from "../../errors.js";
+import { InfeasibleError, InputError } from "../../errors.js";
 import * as pf from "../../formulas/pair.formulas.js";
 import type { Amperes, Farads, Ohms, Ratio, Volts } from "../../quantity.js";
 import type { Netlist, NetMosfet } from "../circuit.js";
@@ -152,6 +152,18 @@ export const cascodeMirrorSpec: CircuitTopologySpec<"cascode-mirror", CascodeMir
       { name: "3", role: "reference cascode", device: cas, d: "a", g: gCas, s: "m", b: body("m") },
       { name: "4", role: "output cascode", device: cas, d: "out", g: gCas, s: "x", b: body("x") },
     ];
+    if (wide) {
+      // M3 carries IREF only if, with M1 fully on (its drain at the rail), VG3 − VSR exceeds Vt3 by enough.
+      const vov = rails.sign * c.vcas! - rails.vsr - Math.abs(cas.card.vt0);
+      const span = rails.vdr - rails.vsr;
+      const k3 = (cas.card.kp * cas.w) / cas.l;
+      const most = vov > 0 ? (k3 / 2) * vov * vov * (1 + (cas.card.lambda ?? 0) * span) : 0;
+      if (most < c.iref)
+        throw new InfeasibleError(
+          `the reference current cannot flow: with the cascode gate at vcas = ${fmt(c.vcas!)} V the reference cascode M3 passes at most ${fmt(most)} A (overdrive ${fmt(vov)} V with M1's drain at the rail and its drain at the far rail), below IREF = ${fmt(c.iref)} A. Expected vcas at least ${fmt(rails.sign * (rails.vsr + Math.abs(cas.card.vt0) + Math.sqrt((2 * c.iref) / k3)))} V (device polarity: VSR + Vt3 + √(2·IREF/k3)) plus the lower device's saturation voltage`,
+          `${o}: components.vcas`,
+        );
+    }
     const fixed: Record<string, number> = { vdd: rails.vdd, vss: rails.vss, out: c.vout };
     if (wide) fixed.vcas = c.vcas!;
     const step = Math.abs(main.card.vt0) + 0.3;

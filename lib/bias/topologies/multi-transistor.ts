@@ -182,6 +182,8 @@ export function analyzeCircuit<Id extends string, C, X>(spec: CircuitTopologySpe
     if (want) checks.push(stageCheck(`M${m.name} (${m.role}) saturated: VDS − VOV`, d.op.saturationMargin, "voltage", { min: stage.limits?.minSaturationMargin ?? 0 }, rec, d.op.reason));
     if (want && d.region !== "saturation") findings.push(`M${m.name} (${m.role}) is in ${d.region}, not saturation as assumed: ${d.op.reason}`);
   }
+  for (const n of sol.floating)
+    findings.push(`Node ${n} floats: every device on it is off and no current flows through it, so its voltage (${fmt(sol.nodes[n]!)} V here) is not set by the circuit; a simulator places it by its leakage and gmin.`);
   const solved: Solved = {
     stage: plain,
     rails,
