@@ -63,4 +63,5 @@ export { solveNetlist, smallSignalResponse, netlistSpice, compileNetlist, solveC
 export { diffPair, mirrorLoadPair, type DiffPairComponents, type MirrorLoadPairComponents, type PairFigures } from "./bias/topologies/diff-pair.js";
 export { cascodeStage, cascodeMirror, type CascodeStageComponents, type CascodeMirrorComponents, type CascodeFigures, type CascodeStageFigures, type CascodeMirrorFigures } from "./bias/topologies/cascode.js";
 export * from "./bias/mismatch.js";
+export { designMirrorLoadPair, type MirrorLoadPairSpec, type MirrorLoadPairDesign } from "./bias/synthesis/mirror-load-pair.js";
 export * as pairFormulas from "./formulas/pair.formulas.js";

@@ -152,3 +152,41 @@ describe("bad input", () => {
     expect(() => analyzeStage({ topology: "diff-pair-mirror-load", device: d(n1, 10e-6, 1e-6), devices: { load: d(n1, 10e-6, 1e-6) }, components: { vcm: 1.5, itail: 1e-4 }, supplies: { vdd: volts(3.3) } })).toThrow(/devices.load.card.polarity/);
   });
 });
+
+describe("designing the five-transistor amplifier from a specification", () => {
+  // Invented specification: 3.3 V, 100 µA tail, gain 40, input common mode 1.2–2.0 V, output up to 2.6 V.
+  const spec = {
+    input: { ...n1, lambda: perVolt(0.06) },
+    load: { ...p1, lambda: perVolt(0.06) },
+    supplies: { vdd: volts(3.3) },
+    itail: 100e-6 as never,
+    gain: 40 as never,
+    commonModeMin: volts(1.2),
+    commonModeMax: volts(2.0),
+    outputMax: volts(2.6),
+    lInput: meters(1e-6),
+    lLoad: meters(1e-6),
+  };
+  it("sizes every device, and the re-solved stage meets the specification within the square law's first-order error", async () => {
+    const { designMirrorLoadPair } = await import("../lib/bias/synthesis/mirror-load-pair.js");
+    const rec = new Derivation("design");
+    const dsg = designMirrorLoadPair(spec, rec);
+    // VOV1 = 2/(40·0.12) = 0.41667 V (hand calculation).
+    expect(dsg.overdrive.input).toBeCloseTo(2 / (40 * 0.12), 12);
+    const a = dsg.analysis;
+    for (const m of ["M2", "M3", "M4", "M5"]) expect(a.devices![m]!.region).toBe("saturation");
+    expect(a.region).toBe("saturation");
+    // (1 + λ·VDS) raises the currents and lowers the gain a little against the λ-free design: within 20 %.
+    expect(Math.abs(a.pair.tailCurrent / 100e-6 - 1)).toBeLessThan(0.2);
+    expect(Math.abs(a.pair.differentialGain / 40 - 1)).toBeLessThan(0.2);
+    expect(a.pair.commonModeRange.lower).toBeLessThanOrEqual(1.2);
+    expect(a.pair.commonModeRange.upper).toBeGreaterThanOrEqual(2.0);
+    expectReevaluates(rec);
+  });
+  it("a common-mode range the supply cannot hold is an InfeasibleError in numbers", async () => {
+    const { designMirrorLoadPair } = await import("../lib/bias/synthesis/mirror-load-pair.js");
+    expect(() => designMirrorLoadPair({ ...spec, commonModeMin: volts(0.9) })).toThrow(InfeasibleError);
+    expect(() => designMirrorLoadPair({ ...spec, commonModeMin: volts(0.9) })).toThrow(/lowest input common mode 0.9 V/);
+    expect(() => designMirrorLoadPair({ ...spec, commonModeMax: volts(3.2) })).toThrow(/highest input common mode/);
+  });
+});

@@ -53,6 +53,11 @@ export const symbols = defineSymbols({
   VGSlow: { tex: "V_{GS1}", dim: "voltage", meaning: "gate-source voltage of the lower (mirror) device" },
   VCASmax: { tex: "V_{CAS,max}", dim: "voltage", meaning: "highest wide-swing cascode gate bias that keeps the reference cascode saturated (device polarity)" },
   VCASws: { tex: "V_{CAS}", dim: "voltage", meaning: "wide-swing cascode gate bias (device polarity)" },
+  lambdaN: { tex: "\\lambda_{1}", dim: "inverseVoltage", meaning: "channel-length modulation of the input devices" },
+  lambdaP: { tex: "\\lambda_{3}", dim: "inverseVoltage", meaning: "channel-length modulation of the load devices" },
+  AvTarget: { tex: "A_{v}^{*}", dim: "dimensionless", meaning: "target differential gain" },
+  VICmaxT: { tex: "V_{IC,max}^{*}", dim: "voltage", meaning: "highest input common mode the specification asks for (device polarity)" },
+  VICminT: { tex: "V_{IC,min}^{*}", dim: "voltage", meaning: "lowest input common mode the specification asks for (device polarity)" },
   // mismatch
   AVT: { tex: "A_{V_t}", dim: "voltageLength", meaning: "Pelgrom threshold-mismatch coefficient" },
   ABETA: { tex: "A_{\\beta}", dim: "length", meaning: "Pelgrom current-factor mismatch coefficient" },
@@ -161,6 +166,25 @@ export const formulas = defineFormulas({
     title: "Highest wide-swing cascode gate bias: the reference cascode, whose drain is the lower devices' gate, stays saturated",
     result: "VCASmax",
     expr: "VSR + VGSlow + VtCas",
+    source: regionEdge,
+  },
+  // --- design of the five-transistor amplifier ---
+  mirrorLoadOverdriveForGain: {
+    title: "Input overdrive for a target gain: Adm = gm1/(gds2 + gds4) = 2/(VOV1·(λ1 + λ3)) with equal currents",
+    result: "VOVin",
+    expr: "2 / (AvTarget * (lambdaN + lambdaP))",
+    source: smallSignal,
+  },
+  mirrorLoadOverdriveForRange: {
+    title: "Largest load overdrive that keeps the highest input common mode: from VIC,max = VDR − Vt3 − VOV3 + Vt1",
+    result: "VOVld",
+    expr: "VDR - VtLd + VtIn - VICmaxT",
+    source: regionEdge,
+  },
+  tailOverdriveForRange: {
+    title: "Largest tail overdrive that keeps the lowest input common mode: from VIC,min = VSR + VOV5 + Vt1 + VOV1",
+    result: "VOVtail",
+    expr: "VICminT - VSR - VtIn - VOVin",
     source: regionEdge,
   },
   // --- mismatch ---
