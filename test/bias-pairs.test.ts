@@ -190,3 +190,20 @@ describe("designing the five-transistor amplifier from a specification", () => {
     expect(() => designMirrorLoadPair({ ...spec, commonModeMax: volts(3.2) })).toThrow(/highest input common mode/);
   });
 });
+
+describe("pair transfer plot", () => {
+  it("sweeps vid through the nodal solve: the five-transistor output rises monotonically through the bias point and saturates at both ends", async () => {
+    const { pairTransferPlot } = await import("../lib/plot/pair.js");
+    const st: Stage = { topology: "diff-pair-mirror-load", device: d(n1, 10e-6, 1e-6), devices: { load: d(p1, 10e-6, 1e-6), tail: d(n1, 20e-6, 1e-6) }, components: { vcm: 1.5, vtail: 0.8 }, supplies: { vdd: volts(3.3) } };
+    const a = analyzeStage(st);
+    const plot = pairTransferPlot(st, a, { range: 0.5, points: 41 });
+    const curve = plot.figure.data[0]!;
+    expect(curve.x.length).toBe(41);
+    for (let i = 1; i < curve.y.length; i++) expect(curve.y[i]!).toBeGreaterThanOrEqual(curve.y[i - 1]! - 1e-9);
+    // Ends: pulled toward the rail by M4 (high) and down to about VS + VDS(triode) of M2 (low); the middle is the bias point.
+    expect(curve.y[40]!).toBeGreaterThan(3.0);
+    expect(curve.y[0]!).toBeLessThan(a.nodes.out! - 0.5);
+    expect(curve.y[20]!).toBeCloseTo(a.nodes.out!, 3);
+    expect(plot.figure.data.some((t) => t.meta?.role === "operating-point")).toBe(true);
+  });
+});
