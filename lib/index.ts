@@ -65,3 +65,10 @@ export type { ToleranceSection } from "./bias/tolerance-file.js";
 export * from "./bias/dissipation.js";
 export * as synthesisFormulas from "./formulas/synthesis.formulas.js";
 export * as mirrorFormulas from "./formulas/mirror.formulas.js";
+// Multi-transistor stages (differential pairs, cascodes), their nodal solver, and mismatch.
+export { solveNetlist, smallSignalResponse, netlistSpice, compileNetlist, solveCompiled, type Netlist, type NetMosfet, type NetResistor, type NetCurrentSource, type CircuitSolution, type CircuitMethod } from "./bias/circuit.js";
+export { diffPair, mirrorLoadPair, type DiffPairComponents, type MirrorLoadPairComponents, type PairFigures } from "./bias/topologies/diff-pair.js";
+export { cascodeStage, cascodeMirror, type CascodeStageComponents, type CascodeMirrorComponents, type CascodeFigures, type CascodeStageFigures, type CascodeMirrorFigures } from "./bias/topologies/cascode.js";
+export * from "./bias/mismatch.js";
+export { designMirrorLoadPair, type MirrorLoadPairSpec, type MirrorLoadPairDesign } from "./bias/synthesis/mirror-load-pair.js";
+export * as pairFormulas from "./formulas/pair.formulas.js";

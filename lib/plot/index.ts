@@ -7,3 +7,4 @@ export * from "./transconductance.js";
 export * from "./html.js";
 export * from "./notebook.js";
 export * from "./stage.js";
+export * from "./pair.js";

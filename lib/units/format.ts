@@ -40,6 +40,10 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   sqrtVoltage: { text: "√V", tex: "\\sqrt{\\mathrm{V}}", prefix: false },
   voltagePerKelvin: { text: "V/K", tex: "\\mathrm{V/K}", prefix: true },
   length: { text: "m", tex: "\\mathrm{m}", prefix: true },
+  // Gate areas, slew rates and Pelgrom coefficients in the units the trade quotes them (common practice).
+  area: { text: "µm²", tex: "\\mathrm{\\mu m^{2}}", prefix: false, scale: 1e12 },
+  slewRate: { text: "V/µs", tex: "\\mathrm{V/\\mu s}", prefix: false, scale: 1e-6 },
+  voltageLength: { text: "mV·µm", tex: "\\mathrm{mV\\,\\mu m}", prefix: false, scale: 1e9 },
   temperature: { text: "K", tex: "\\mathrm{K}", prefix: false },
   power: { text: "W", tex: "\\mathrm{W}", prefix: true },
   // Datasheets quote RθJA in °C/W; a kelvin step equals a degree Celsius step.
