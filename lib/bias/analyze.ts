@@ -15,20 +15,22 @@ import { fixedGate } from "./topologies/fixed-gate.js";
 import { fourResistor } from "./topologies/four-resistor.js";
 import { sourceFollower } from "./topologies/source-follower.js";
 
-registerTopology(fixedGate);
-registerTopology(fourResistor);
-registerTopology(drainFeedback);
-registerTopology(sourceFollower);
-registerTopology(currentSourceBias);
-registerTopology(currentMirror);
-registerTopology(diodeLoad);
-registerTopology(diffPair);
-registerTopology(mirrorLoadPair);
-registerTopology(cascodeStage);
-registerTopology(cascodeMirror);
-
 /** Every built-in topology, keyed by a camel-case name (the registry holds them by id). */
-export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias, currentMirror, diodeLoad } as const;
+export const builtinTopologies = {
+  fixedGate,
+  fourResistor,
+  drainFeedback,
+  sourceFollower,
+  currentSourceBias,
+  currentMirror,
+  diodeLoad,
+  diffPair,
+  mirrorLoadPair,
+  cascodeStage,
+  cascodeMirror,
+} as const;
+// One list: what is built in is what is registered.
+for (const t of Object.values(builtinTopologies)) registerTopology(t);
 
 /**
  * Any stage: a typed one (`Stage<"four-resistor", FourResistorComponents>`, as
