@@ -3,8 +3,7 @@
  * IEEE JSSC 31(9), 1264–1273, 1996): the table gives, at a chosen gm/ID, L, VDS
  * and VSB, the current per width and the per-width or per-current small-signal
  * figures; the design scales them by W. Between two characterised lengths the
- * current density is interpolated as a power of L (straight in log–log), the
- * other figures linearly in ln L.
+ * current density is interpolated linearly in 1/L.
  */
 import { defineFormulas, defineSymbols } from "./define.js";
 
@@ -37,8 +36,8 @@ export const formulas = defineFormulas({
   currentDensityBetweenLengths: {
     title: "Current per width between two characterised lengths",
     result: "JD",
-    expr: "JD1 * (JD2 / JD1) ^ (log(L / L1) / log(L2 / L1))",
-    source: "power-law interpolation in L (straight line in log–log), common practice",
+    expr: "JD1 + (JD2 - JD1) * (1 / L - 1 / L1) / (1 / L2 - 1 / L1)",
+    source: "linear interpolation in 1/L: exact for a current density that scales as 1/L, and the coordinate binned BSIM4 parameters are linear in (common practice)",
   },
   widthForCurrentDensity: { title: "Width from the current per width", result: "W", expr: "ID / JD", source: method },
   transconductanceFromEfficiency: { title: "Transconductance from gm/ID", result: "gm", expr: "gmId * ID", source: method },

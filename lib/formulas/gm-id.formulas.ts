@@ -2,18 +2,18 @@
 import type { Formula } from "./define.js";
 import type { Amperes, AmperesPerMeter, Farads, FaradsPerMeter, Hertz, Meters, Siemens, SiemensPerAmpere, Volts, Watts } from "../quantity.js";
 
-/** Current per width between two characterised lengths: JD = JD1 * (JD2 / JD1) ^ (log(L / L1) / log(L2 / L1)) */
+/** Current per width between two characterised lengths: JD = JD1 + (JD2 - JD1) * (1 / L - 1 / L1) / (1 / L2 - 1 / L1) */
 export const currentDensityBetweenLengths = {
   id: "currentDensityBetweenLengths",
   title: "Current per width between two characterised lengths",
-  expr: "JD1 * (JD2 / JD1) ^ (log(L / L1) / log(L2 / L1))",
-  tex: "I_{D}/W = {(I_{D}/W)_{1}}\\cdot\\left({\\frac{{(I_{D}/W)_{2}}}{{(I_{D}/W)_{1}}}}\\right)^{\\frac{\\ln\\left(\\frac{{L}}{{L_{1}}}\\right)}{\\ln\\left(\\frac{{L_{2}}}{{L_{1}}}\\right)}}",
+  expr: "JD1 + (JD2 - JD1) * (1 / L - 1 / L1) / (1 / L2 - 1 / L1)",
+  tex: "I_{D}/W = {(I_{D}/W)_{1}}+\\frac{\\left({(I_{D}/W)_{2}}-{(I_{D}/W)_{1}}\\right)\\cdot\\left(\\frac{1}{{L}}-\\frac{1}{{L_{1}}}\\right)}{\\frac{1}{{L_{2}}}-\\frac{1}{{L_{1}}}}",
   result: "JD",
   resultDim: "currentPerWidth",
   vars: ["JD1","JD2","L","L1","L2"],
   dims: ["currentPerWidth","currentPerWidth","length","length","length"],
-  source: "power-law interpolation in L (straight line in log–log), common practice",
-  fn: (JD1: AmperesPerMeter, JD2: AmperesPerMeter, L: Meters, L1: Meters, L2: Meters): AmperesPerMeter => (JD1 * (((JD2 / JD1)) ** ((Math.log((L / L1)) / Math.log((L2 / L1)))))) as AmperesPerMeter,
+  source: "linear interpolation in 1/L: exact for a current density that scales as 1/L, and the coordinate binned BSIM4 parameters are linear in (common practice)",
+  fn: (JD1: AmperesPerMeter, JD2: AmperesPerMeter, L: Meters, L1: Meters, L2: Meters): AmperesPerMeter => (JD1 + ((((JD2 - JD1)) * (((1 / L) - (1 / L1)))) / (((1 / L2) - (1 / L1))))) as AmperesPerMeter,
 } as const satisfies Formula;
 
 /** Width from the current per width: W = ID / JD */
