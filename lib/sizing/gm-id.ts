@@ -211,6 +211,8 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
   }
   const r = atEfficiency(lk, l, gmId, vds, vsb);
   const ls = table.grid.l;
+  if (r.p.vdsat > vds)
+    throw new InfeasibleError(`gm/ID ${gmId} S/A needs |VGS| = ${r.vgs.toFixed(3)} V, where VDsat = ${r.p.vdsat.toFixed(3)} V exceeds |VDS| = ${vds} V: the device would be in triode; raise gm/ID or |VDS| (${table.model}, L = ${l} m, table ${fp})`, "gmId");
   let jd = r.p.idw;
   if (rec) {
     rec.input("L", l, "length", spec.l !== undefined ? "specification" : "chosen for the intrinsic gain");
