@@ -24,6 +24,8 @@ export const dimensions = {
   length: { unit: "m", tex: "\\mathrm{m}", label: "length" },
   temperature: { unit: "K", tex: "\\mathrm{K}", label: "temperature" },
   power: { unit: "W", tex: "\\mathrm{W}", label: "power" },
+  /** Junction-to-ambient or junction-to-case thermal resistance RθJA, RθJC. */
+  thermalResistance: { unit: "K/W", tex: "\\mathrm{K/W}", label: "thermal resistance" },
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
   /** Cox, gate capacitance per area. */
   capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
@@ -61,6 +63,7 @@ export type VoltsPerKelvin = Quantity<"voltagePerKelvin">;
 export type Meters = Quantity<"length">;
 export type Kelvin = Quantity<"temperature">;
 export type Watts = Quantity<"power">;
+export type KelvinPerWatt = Quantity<"thermalResistance">;
 export type Farads = Quantity<"capacitance">;
 export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
 export type Mobility = Quantity<"mobility">;

@@ -28,6 +28,7 @@ const typeOfDim: Record<Dimension, string> = {
   length: "Meters",
   temperature: "Kelvin",
   power: "Watts",
+  thermalResistance: "KelvinPerWatt",
   capacitance: "Farads",
   capacitancePerArea: "FaradsPerSquareMeter",
   mobility: "Mobility",
