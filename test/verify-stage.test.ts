@@ -66,7 +66,7 @@ describe("stage verification with the open 180 nm library (ngspice 39 BSIM4, GF1
     expect(column(again.raw["op.raw"]![0]!, "i(@m1[id])")[0]).toBe(m.id.sim);
     // Nodes and branch currents are saved too, for the reviewer.
     expect(again.raw["op.raw"]![0]!.names).toContain("v(d)");
-  });
+  }, 60_000);
 
   it("verifies PMOS stages and two-transistor stages with each device's own model", async () => {
     const p: Stage = { ...fourResistor("pmos stage"), device: dev(pmos, 40e-6, 1e-6), components: { rg1: 100e3, rg2: 250e3, rd: 10e3, rs: 300 } };
@@ -78,14 +78,14 @@ describe("stage verification with the open 180 nm library (ngspice 39 BSIM4, GF1
     const m = await verifyStage(mirror, proc);
     expect(m.devices.map((d) => d.role)).toEqual(["device", "reference"]);
     expect(m.devices.every((d) => d.model === "nmos_3p3" && d.simRegion === "saturation")).toBe(true);
-  });
+  }, 60_000);
 
   it("fails the check when the tolerance is tighter than the deviation", async () => {
     const rec = new Derivation("tight");
     const v = await verifyStage(mirror, proc, { tolerance: 0.001 }, rec);
     expect(v.passed).toBe(false);
     expect(rec.passed).toBe(false);
-  });
+  }, 60_000);
 });
 
 describe("correction from the simulated current", () => {
@@ -99,7 +99,7 @@ describe("correction from the simulated current", () => {
       expect(rec.steps.filter((s) => s.kind === "note" && s.title.startsWith("Correction")).length).toBe(c.steps.length);
       console.log(`four-resistor by ${adjust}: ${c.steps.map((s) => `${s.value.toPrecision(5)} → ${(100 * s.deviation).toFixed(2)} %`).join(", ")}`);
     }
-  });
+  }, 60_000);
 
   it("brings a hand-designed current mirror within 1 % of its target in at most 3 simulations", async () => {
     const c = await correctStage(mirror, proc, { target: 200e-6 });
@@ -107,7 +107,7 @@ describe("correction from the simulated current", () => {
     expect(c.iterations).toBeLessThanOrEqual(3);
     expect(Math.abs(c.verification.devices[0]!.id.sim / 200e-6 - 1)).toBeLessThanOrEqual(0.01);
     console.log(`mirror by W: ${c.steps.map((s) => `${s.value.toPrecision(5)} → ${(100 * s.deviation).toFixed(2)} %`).join(", ")}`);
-  });
+  }, 60_000);
 
   it("says why when the target cannot be reached", async () => {
     const rec = new Derivation("unreachable");
@@ -115,7 +115,7 @@ describe("correction from the simulated current", () => {
     expect(c.converged).toBe(false);
     expect(c.why).toMatch(/outside/);
     expect(rec.findings.some((f) => f.severity === "warning" && /Correction stopped/.test(f.text))).toBe(true);
-  });
+  }, 60_000);
 });
 
 describe("verification input and injection", () => {
@@ -128,12 +128,12 @@ describe("verification input and injection", () => {
     expect(v.deck).not.toMatch(/^shell/m);
     runDeckSync({ deck: v.deck });
     expect(existsSync(target)).toBe(false);
-  });
+  }, 60_000);
 
   it("refuses a W or L outside the process's range, a bad tolerance and an unknown component to adjust", async () => {
     await expect(verifyStage({ ...fourResistor(), device: dev(nmos, 200e-6, 1e-6) }, proc)).rejects.toThrow(/device W: got 0.0002, expected W from 2.2e-7 m to 0.0001 m \(nmos_3p3 in gf180-3v3/);
     await expect(verifyStage({ ...fourResistor(), device: dev(nmos, 20e-6, 0.18e-6) }, proc)).rejects.toThrow(InputError);
     await expect(verifyStage(fourResistor(), proc, { tolerance: 5 })).rejects.toThrow(/relative tolerance/);
     await expect(correctStage(fourResistor(), proc, { adjust: "rx" })).rejects.toThrow(/rg1, rg2, rd, rs/);
-  });
+  }, 60_000);
 });
