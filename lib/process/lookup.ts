@@ -38,6 +38,8 @@ export interface DeviceLookup {
   readonly lnJ: Float64Array;
   readonly slope: Float64Array;
   readonly invL: Float64Array;
+  /** VGS grid step (V). */
+  readonly hVgs: number;
 }
 
 /** Floor below which a point is treated as carrying no current (A/m). */
@@ -52,7 +54,7 @@ export function deviceLookup(table: DeviceTable): DeviceLookup {
     lnJ[i] = j > noCurrent ? Math.log(j) : Number.NEGATIVE_INFINITY;
     slope[i] = j > noCurrent ? table.data.gmw[i]! / j : 0;
   }
-  return { table, lnJ, slope, invL: Float64Array.from(table.grid.l, (l) => 1 / l) };
+  return { table, lnJ, slope, invL: Float64Array.from(table.grid.l, (l) => 1 / l), hVgs: table.grid.vgs.length > 1 ? table.grid.vgs[1]! - table.grid.vgs[0]! : 1 };
 }
 
 interface Axis {
@@ -88,7 +90,7 @@ function alongVgs(lk: DeviceLookup, base: number, res: { lnJ: number; g: number;
   const k = base + ag.i;
   const t = ag.t;
   const y0 = lk.lnJ[k]!, y1 = lk.lnJ[k + 1]!;
-  const h = lk.table.grid.vgs.length > 1 ? lk.table.grid.vgs[1]! - lk.table.grid.vgs[0]! : 1;
+  const h = lk.hVgs;
   if (y0 > Number.NEGATIVE_INFINITY && y1 > Number.NEGATIVE_INFINITY) {
     const m0 = lk.slope[k]! * h, m1 = lk.slope[k + 1]! * h;
     const t2 = t * t, t3 = t2 * t;
@@ -196,18 +198,17 @@ const p1 = emptyPoint();
  * capacitance per area (C/(W·L)) linearly in 1/L, voltages and gm/ID linearly in 1/L.
  */
 export function mixLengths(a: PointValues, b: PointValues, t: number, la: number, lb: number, out: PointValues): PointValues {
-  const lin = (x: number, y: number) => x + t * (y - x);
-  const l = 1 / lin(1 / la, 1 / lb);
-  const area = (x: number, y: number) => l * lin(x / la, y / lb);
-  out.idw = lin(a.idw, b.idw);
-  out.gmId = lin(a.gmId, b.gmId);
-  out.gdsw = lin(a.gdsw, b.gdsw);
-  out.gmbw = lin(a.gmbw, b.gmbw);
-  out.vth = lin(a.vth, b.vth);
-  out.vdsat = lin(a.vdsat, b.vdsat);
-  out.cggw = area(a.cggw, b.cggw);
-  out.cgsw = area(a.cgsw, b.cgsw);
-  out.cgdw = area(a.cgdw, b.cgdw);
+  const u = 1 - t;
+  const l = 1 / (u / la + t / lb);
+  out.idw = u * a.idw + t * b.idw;
+  out.gmId = u * a.gmId + t * b.gmId;
+  out.gdsw = u * a.gdsw + t * b.gdsw;
+  out.gmbw = u * a.gmbw + t * b.gmbw;
+  out.vth = u * a.vth + t * b.vth;
+  out.vdsat = u * a.vdsat + t * b.vdsat;
+  out.cggw = l * (u * (a.cggw / la) + t * (b.cggw / lb));
+  out.cgsw = l * (u * (a.cgsw / la) + t * (b.cgsw / lb));
+  out.cgdw = l * (u * (a.cgdw / la) + t * (b.cgdw / lb));
   return out;
 }
 
