@@ -94,7 +94,11 @@ export function processCircuit(stage: Stage, p: ProcessDescription, circuit: Spi
 }
 
 /** Simulate the stage with the process library and compare with the hand analysis. */
-export async function verifyStage(stage: Stage, p: ProcessDescription, opts: VerifyOptions = {}, rec?: Derivation): Promise<StageVerification> {
+/** Any topology's stage (its components typed as that topology declares them, as `analyzeStage` takes it). */
+type AnyStage = Stage<string, object>;
+
+export async function verifyStage(anyStage: AnyStage, p: ProcessDescription, opts: VerifyOptions = {}, rec?: Derivation): Promise<StageVerification> {
+  const stage = anyStage as Stage;
   const tolerance = opts.tolerance ?? 0.1;
   if (typeof tolerance !== "number" || !(tolerance > 0) || tolerance >= 1) throw new InputError(tolerance, "a relative tolerance between 0 and 1 (0.1 is ±10 %)", "verification tolerance");
   const hand: StageAnalysis = analyzeStage(stage);
@@ -200,7 +204,8 @@ export interface StageCorrection {
 }
 
 /** Re-size W or a bias component until the simulated drain current is within `accuracy` of the target. */
-export async function correctStage(stage: Stage, p: ProcessDescription, opts: CorrectionOptions = {}, rec?: Derivation): Promise<StageCorrection> {
+export async function correctStage(anyStage: AnyStage, p: ProcessDescription, opts: CorrectionOptions = {}, rec?: Derivation): Promise<StageCorrection> {
+  const stage = anyStage as Stage;
   const adjust = opts.adjust ?? "w";
   const accuracy = opts.accuracy ?? 0.01;
   const maxIt = Math.min(opts.maxIterations ?? 5, 5);
