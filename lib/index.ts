@@ -72,3 +72,15 @@ export { cascodeStage, cascodeMirror, type CascodeStageComponents, type CascodeM
 export * from "./bias/mismatch.js";
 export { designMirrorLoadPair, type MirrorLoadPairSpec, type MirrorLoadPairDesign } from "./bias/synthesis/mirror-load-pair.js";
 export * as pairFormulas from "./formulas/pair.formulas.js";
+// Simulator in the loop: the SPICE home (deck writer, ngspice runner, raw files), process
+// descriptions, characterisation tables, gm/ID sizing, stage verification and correction.
+export { spiceIdentifier, spiceNode, spiceText, spicePath, element, modelCard, libLine, includeLine, writeDeck, type DeckParts } from "./spice/deck.js";
+export { findNgspice, runDeck, runDeckSync, SimulatorError, printedValues, type SimulatorRun, type SimulatorResult } from "./spice/run.js";
+export { parseRaw, column, type RawPlot } from "./spice/raw.js";
+export { readProcess, checkProcess, builtinProcessFile, cornerSection, checkGeometry, snapToGrid, type ProcessDescription, type ProcessDevice } from "./process/description.js";
+export { characterize, defaultGrid, defaultLengths, evenGrid, tableCsv, tableJson, tableFingerprint, cacheFolder, tableQuantities, type DeviceTable, type SweepGrid, type CharacterizeOptions } from "./process/characterize.js";
+export { deviceLookup, lookupInto, emptyPoint, type DeviceLookup, type PointValues } from "./process/lookup.js";
+export { simulateDevices, type DeviceBias, type SimulatedDevice } from "./process/device-check.js";
+export { sizeByEfficiency, squareLawCard, vgsForEfficiency, type EfficiencySpec, type EfficiencyDesign, type SquareLawDesign } from "./sizing/gm-id.js";
+export { verifyStage, correctStage, processCircuit, type StageVerification, type DeviceVerification, type CorrectionOptions, type StageCorrection, type VerifyOptions } from "./bias/simulation-check.js";
+export * as gmIdFormulas from "./formulas/gm-id.formulas.js";

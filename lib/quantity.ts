@@ -39,6 +39,11 @@ export const dimensions = {
   time: { unit: "s", tex: "\\mathrm{s}", label: "time" },
   /** Transconductance efficiency gm/ID. */
   inverseVoltageEfficiency: { unit: "S/A", tex: "\\mathrm{S/A}", label: "transconductance efficiency" },
+  /** Drain current per unit width, the gm/ID method's current density. */
+  currentPerWidth: { unit: "A/m", tex: "\\mathrm{A/m}", label: "current per width" },
+  /** Gate capacitance per unit width. */
+  capacitancePerWidth: { unit: "F/m", tex: "\\mathrm{F/m}", label: "capacitance per width" },
+  frequency: { unit: "Hz", tex: "\\mathrm{Hz}", label: "frequency" },
   dimensionless: { unit: "", tex: "", label: "dimensionless ratio" },
   /** A ratio read and shown in per cent (tolerances, spreads, bands): 0.05 is "5 %". */
   fraction: { unit: "", tex: "\\%", label: "fraction" },
@@ -74,6 +79,9 @@ export type Mobility = Quantity<"mobility">;
 export type Seconds = Quantity<"time">;
 export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
 export type Ratio = Quantity<"dimensionless">;
+export type AmperesPerMeter = Quantity<"currentPerWidth">;
+export type FaradsPerMeter = Quantity<"capacitancePerWidth">;
+export type Hertz = Quantity<"frequency">;
 export type Count = Quantity<"count">;
 export type Fraction = Quantity<"fraction">;
 

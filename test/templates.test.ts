@@ -61,7 +61,7 @@ describe("template files", () => {
       expect(first.cell_type).toBe("markdown");
       expect(src(first)).toMatch(/^# /);
       expect(src(first)).toMatch(/invented/i);
-      expect(all).toMatch(/provenance: "invented/);
+      expect(all).toMatch(/provenance: "(invented|fitted to the characterisation table)/);
       const md = nb.cells.filter((c) => c.cell_type === "markdown").map(src).join("\n");
       for (const phrase of [/approximate/i, /simulation/i, /measurement/i, /ratings/i, /local codes/i, /licensed/i]) expect(md).toMatch(phrase);
     });

@@ -25,6 +25,7 @@ import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } fr
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
 import { writeFileAtomic } from "../io/atomic-write.js";
+import { verificationFailure, verificationText, verifyFromCommandLine } from "./verify-text.js";
 
 export const command = {
   name: "op",
@@ -34,6 +35,9 @@ export const command = {
     force: { kind: "flag", help: "replace an existing record file whatever wrote it" },
     json: { kind: "flag", help: "print JSON (the default when the output is not a terminal)" },
     text: { kind: "flag", help: "print the readable summary (the default at a terminal)" },
+    verify: { kind: "value", placeholder: "PROCESS.json", help: "simulate the stage with a process description's model\nlibrary (ngspice) and compare with the hand values; fails\nwhen the drain current is off by more than the tolerance" },
+    "verify-tolerance": { kind: "value", placeholder: "FRACTION", help: "allowed relative drain-current deviation (default 0.1)" },
+    "verify-deck": { kind: "value", placeholder: "FILE", help: "write the verification deck (re-run: ngspice -b FILE)" },
   },
   description: `Solves the DC operating point of the bias stage in the design file. At a
 terminal it prints a summary: the values with units, the operating point,
@@ -233,6 +237,7 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   const analysis = design ? design.analysis : (result as { analysis: StageAnalysis }).analysis;
   const tolerance = read.tolerance ? toleranceChecks(stage, read.tolerance, record !== undefined ? rec : undefined) : undefined;
   const extraChecks: StageCheck[] = [];
+  const verification = values.verify !== undefined ? await verifyFromCommandLine(stage, values.verify, values["verify-tolerance"], values["verify-deck"], rec) : undefined;
   if (record !== undefined) {
     recordLimits(rec, read);
     const written = new Date().toISOString();
@@ -244,13 +249,13 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
     const text = stampRecord(body, format!, { version, command: "op", written, design: { path: file, sha256: designSha256 }, inputs: rec.fingerprint() });
     writeRecord(record, text, [file], values.force === true);
   }
-  const failures = failedChecks(analysis, design, tolerance, extraChecks);
+  const failures = [...failedChecks(analysis, design, tolerance, extraChecks), ...(verification && !verification.passed ? [verificationFailure(verification)] : [])];
   const asText = values.text === true || (values.json !== true && process.stdout.isTTY === true);
-  if (asText) console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }));
+  if (asText) console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }) + (verification ? `\n${verificationText(verification)}` : ""));
   else {
     const head = { design: file, ...(record ? { record } : {}) };
     const body = design ? designSummary(read as Extract<DesignFile, { kind: "specification" }>, design) : analysis;
-    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), failedChecks: failures }));
+    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), ...(verification ? { verification } : {}), failedChecks: failures }));
     for (const f of failures) console.error(`check failed: ${f.replace(/^FAIL\s+/, "")}`);
   }
   return failures.length ? exitStatus.failed : exitStatus.ok;

@@ -55,6 +55,10 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   mobility: { text: "cm²/(V·s)", tex: "\\mathrm{cm^{2}/(V\\,s)}", prefix: false, scale: 1e4 },
   time: { text: "s", tex: "\\mathrm{s}", prefix: true },
   inverseVoltageEfficiency: { text: "S/A", tex: "\\mathrm{S/A}", prefix: false },
+  // Current density and gate capacitance per width are quoted per micrometre of width (common practice).
+  currentPerWidth: { text: "A/µm", tex: "\\mathrm{A/\\mu m}", prefix: true, scale: 1e-6 },
+  capacitancePerWidth: { text: "F/µm", tex: "\\mathrm{F/\\mu m}", prefix: true, scale: 1e-6 },
+  frequency: { text: "Hz", tex: "\\mathrm{Hz}", prefix: true },
   dimensionless: { text: "", tex: "", prefix: false },
   count: { text: "", tex: "", prefix: false },
   fraction: { text: "%", tex: "\\%", prefix: false, scale: 100 },
