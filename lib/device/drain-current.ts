@@ -73,7 +73,7 @@ export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm
   }
   const model = c.model;
   if (model === "ekv")
-    return (s * dir * ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, thermalVoltage(cardTemperature(c)), g, d, b)) as Amperes;
+    return (s * dir * ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.thetaB ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, thermalVoltage(cardTemperature(c)), g, d, b)) as Amperes;
   const vt = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts);
   if (model === "square-law-mobility") return (s * dir * mobilityChannelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? Infinity, dev.l)) as Amperes;
   return (s * dir * channelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, clm)) as Amperes;

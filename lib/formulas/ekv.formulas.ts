@@ -115,18 +115,32 @@ export const ekvEquivalentLength = {
   fn: (L: Meters, VDS: Volts, Vip: Volts, Ecrit: VoltsPerMeter): Meters => (L + ((((VDS / 2) + Vip)) / Ecrit)) as Meters,
 } as const satisfies Formula;
 
-/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * VP) */
+/** Normalised inversion charge at the source: qF = sqrt(1 / 4 + IC) - 1 / 2 */
+export const ekvForwardCharge = {
+  id: "ekvForwardCharge",
+  title: "Normalised inversion charge at the source",
+  expr: "sqrt(1 / 4 + IC) - 1 / 2",
+  tex: "q_{f} = \\sqrt{\\frac{1}{4}+{IC}}-\\frac{1}{2}",
+  result: "qF",
+  resultDim: "dimensionless",
+  vars: ["IC"],
+  dims: ["dimensionless"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
+  fn: (IC: Ratio): Ratio => (Math.sqrt(((1 / 4) + IC)) - (1 / 2)) as Ratio,
+} as const satisfies Formula;
+
+/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB) */
 export const ekvGainFactor = {
   id: "ekvGainFactor",
   title: "Gain factor with mobility degradation",
-  expr: "kp * W / Leq / (1 + theta * VP)",
-  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot{V_{P}}}",
+  expr: "kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB)",
+  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{U_{T}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
   result: "beta",
   resultDim: "transconductanceParameter",
-  vars: ["kp","W","Leq","theta","VP"],
-  dims: ["transconductanceParameter","length","length","inverseVoltage","voltage"],
-  source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, VP: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / ((1 + (theta * VP)))) as AmperesPerVoltSquared,
+  vars: ["kp","W","Leq","theta","n","UT","qF","thetaB","VSB"],
+  dims: ["transconductanceParameter","length","length","inverseVoltage","dimensionless","voltage","dimensionless","inverseVoltage","voltage"],
+  source: "mobility degradation µ0/(1 + θ·VOV + θB·VSB) (Tsividis & McAndrew, 3rd ed., 2011, from memory) with VOV as the EKV source-end charge 2·n·UT·qf; EKV 2.6 uses θ·VP instead",
+  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, n: Ratio, UT: Volts, qF: Ratio, thetaB: PerVolt, VSB: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * UT) * qF)) + (thetaB * VSB)))) as AmperesPerVoltSquared,
 } as const satisfies Formula;
 
 /** Specific current: IS = 2 * n * beta * UT^2 */

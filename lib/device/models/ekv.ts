@@ -8,6 +8,7 @@ import {
   ekvDrainCurrent,
   ekvEffectiveGate,
   ekvEquivalentLength,
+  ekvForwardCharge,
   ekvForwardCurrent,
   ekvGainFactor,
   ekvLimitedDrainVoltage,
@@ -30,7 +31,7 @@ export const defaultEkvCriticalField = 2e6 as VoltsPerMeter;
  * voltage) the channel carries nothing and 0 is returned.
  */
 export function ekvChannelCurrent(
-  kp: number, w: number, l: number, vt0: number, gamma: number, phi: number, lambda: number, theta: number, ecrit: number, sigma: number, ut: number,
+  kp: number, w: number, l: number, vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, ecrit: number, sigma: number, ut: number,
   vgs: number, vds: number, vsb: number,
 ): number {
   const u = ut as Volts;
@@ -44,8 +45,9 @@ export function ekvChannelCurrent(
   const vdss = ekvSaturationVoltage.fn(u, ic, e, len);
   const vip = ekvLimitedDrainVoltage.fn(vdss, u, vds as Volts);
   const ir = ekvReverseCurrent.fn(vp, vsb as Volts, vds as Volts, vip, u);
-  const beta = ekvGainFactor.fn(kp as AmperesPerVoltSquared, w as Meters, ekvEquivalentLength.fn(len, vds as Volts, vip, e), theta as PerVolt, vp);
-  const is = ekvSpecificCurrent.fn(ekvSlopeFactor.fn(g, vp, ph, u), beta, u);
+  const n = ekvSlopeFactor.fn(g, vp, ph, u);
+  const beta = ekvGainFactor.fn(kp as AmperesPerVoltSquared, w as Meters, ekvEquivalentLength.fn(len, vds as Volts, vip, e), theta as PerVolt, n, u, ekvForwardCharge.fn(ic), thetaB as PerVolt, vsb as Volts);
+  const is = ekvSpecificCurrent.fn(n, beta, u);
   return ekvDrainCurrent.fn(is, ic, ir, lambda as PerVolt, vds as Volts);
 }
 
@@ -60,11 +62,12 @@ export function ekvInversionCoefficient(vt0: number, gamma: number, phi: number,
 export const ekvParameters: readonly ModelParameter[] = [
   ...mobilityParameters.filter((q) => q.name !== "ecrit"),
   { name: "ecrit", dim: "electricField", meaning: "critical field for velocity saturation (EKV UCRIT)", min: 1e5, max: 1e9, initial: 5e6, absent: defaultEkvCriticalField, geometryScaled: false },
+  { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0, absent: 0, geometryScaled: false },
   { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0, absent: 0, geometryScaled: false },
 ];
 
 const forward = (p: Float64Array, vgs: number, vds: number, vsb: number): number =>
-  ekvChannelCurrent(p[1]!, p[8]!, p[9]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[6]!, p[7]!, thermalVoltage(p[10]! as Kelvin), vgs, vds, vsb);
+  ekvChannelCurrent(p[1]!, p[9]!, p[10]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, thermalVoltage(p[11]! as Kelvin), vgs, vds, vsb);
 
 export const ekv: DeviceModel = {
   id: "ekv",
