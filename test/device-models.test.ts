@@ -164,6 +164,7 @@ describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995)"
     const p = parameterVector(longEkv(gamma));
     for (const vgs of [0.05, 0.15, 0.25]) {
       const vp = ekvFormulas.ekvPinchOffVoltage.fn(ekvFormulas.ekvEffectiveGate.fn(vgs as never, 0 as never, 0.5 as never, 0 as never, 0 as never, 0.7 as never, gamma as never), 0.7 as never, gamma as never);
+      expect(vp).toBeGreaterThan(-0.7);
       const n = 1 + gamma / (2 * Math.sqrt(vp + 0.7));
       const id = ekv.current(p, vgs, 1, 0);
       conductances(ekv, p, vgs, 1, 0, g);

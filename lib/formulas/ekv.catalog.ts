@@ -47,12 +47,29 @@ export const symbols = defineSymbols({
   VDSS: { tex: "V_{DSS}'", dim: "voltage", meaning: "saturation voltage of the normalised drain-source voltage (EKV)" },
   Vip: { tex: "V_{ip}", dim: "voltage", meaning: "half drain-source voltage, smoothly limited at VDSS' (EKV)" },
   Leq: { tex: "L_{eq}", dim: "length", meaning: "equivalent channel length with velocity saturation (EKV)" },
+  Vt: { tex: "V_{t}", dim: "voltage", meaning: "threshold voltage" },
+  VDsat: { tex: "V_{D,sat}", dim: "voltage", meaning: "drain-source saturation voltage" },
   qF: { tex: "q_{f}", dim: "dimensionless", meaning: "normalised inversion charge at the source (EKV)" },
   beta: { tex: "\\beta", dim: "transconductanceParameter", meaning: "gain factor k'·W/Leq with mobility degradation (EKV)" },
   IS: { tex: "I_{S}", dim: "current", meaning: "specific current 2·n·β·UT² (EKV)" },
 });
 
 export const formulas = defineFormulas({
+  ekvThreshold: {
+    title: "Threshold (VP = VS), with body effect and drain-induced lowering",
+    // Solving VP(VG) = VS with the pinch-off voltage below gives this exactly.
+    result: "Vt",
+    expr: "Vt0 + gamma * (sqrt(phi + VSB) - sqrt(phi)) - sigma * VDS",
+    source: ekv95,
+  },
+  ekvDrainSaturationVoltage: {
+    title: "Drain-source saturation voltage, all regions",
+    // 2·VDSS of EKV 2.6 (→ VP − VS in strong inversion, lowered by velocity saturation) plus the
+    // 4·UT a weakly inverted channel needs to saturate (common practice).
+    result: "VDsat",
+    expr: "2 * UT * sqrt(IC) / (sqrt(1 / 4 + UT * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * UT",
+    source: ekv26,
+  },
   ekvEffectiveGate: {
     title: "Effective gate voltage",
     result: "VGp",
@@ -60,11 +77,17 @@ export const formulas = defineFormulas({
     source: ekv26,
   },
   ekvPinchOffVoltage: {
-    title: "Pinch-off voltage",
-    // Below VG' = 0 the channel holds no charge and VP stays at −2φF, as in EKV 2.6; VP and dVP/dVG' are continuous there.
+    title: "Pinch-off voltage (VG' > 0)",
     result: "VP",
-    expr: "max(VGp, 0) - phi - gamma * (sqrt(max(VGp, 0) + gamma^2 / 4) - gamma / 2)",
+    expr: "VGp - phi - gamma * (sqrt(VGp + gamma^2 / 4) - gamma / 2)",
     source: ekv95,
+  },
+  ekvPinchOffFloor: {
+    title: "Pinch-off voltage (VG' ≤ 0)",
+    // The channel holds no charge below VG' = 0, as in EKV 2.6; VP and dVP/dVG' are continuous with the form above there.
+    result: "VP",
+    expr: "-phi",
+    source: ekv26,
   },
   ekvSlopeFactor: {
     title: "Slope factor",
