@@ -6,6 +6,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
+import { parseDesignFile } from "../lib/bias/design-file.js";
 import { topologyIds, type Stage } from "../lib/bias/topology.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import { drainCurrent } from "../lib/device/drain-current.js";
@@ -55,5 +56,28 @@ describe("bias topologies with every model", () => {
     expect(ids).not.toContain("saturationCurrent");
     expect(a.solver.method).toBe("bracketed-regula-falsi");
     expectReevaluates(rec);
+  });
+});
+
+describe("design files name the model and its parameters", { timeout: 60_000 }, () => {
+  const file = (card: Record<string, unknown>) => ({
+    topology: "four-resistor",
+    device: { card: { name: "invented-n", polarity: "nmos", kp: "150 uA/V^2", vt0: "0.6 V", lambda: 0.04, gamma: 0.45, phi: 0.7, ...card }, w: "20 um", l: "1 um" },
+    components: { rg1: "300k", rg2: "100k", rd: "4.7k", rs: "1k" },
+    supplies: { vdd: 9 },
+    body: "rail",
+  });
+  it("reads an EKV card with units and analyses the stage with it", () => {
+    const d = parseDesignFile(file({ model: "ekv", theta: "0.2 1/V", thetaB: 0.05, ecrit: "4 V/um", sigma: 0.01 }), "stage.json");
+    expect(d.kind).toBe("analysis");
+    if (d.kind !== "analysis") return;
+    expect(d.stage.device.card.model).toBe("ekv");
+    expect(d.stage.device.card.ecrit).toBeCloseTo(4e6, 6);
+    expect(analyzeStage(d.stage).op.model).toBe("ekv");
+  });
+  it("refuses an unknown model and a parameter the card's model does not use, naming the file and field", () => {
+    expect(() => parseDesignFile(file({ model: "level-99" }), "stage.json")).toThrow(/stage\.json: device\.card.*model/);
+    expect(() => parseDesignFile(file({ theta: 0.2 }), "stage.json")).toThrow(/stage\.json: device\.card.*theta/);
+    expect(() => parseDesignFile(file({ model: "ekv", ecrit: "4 V" }), "stage.json")).toThrow(/stage\.json: device\.card\.ecrit/);
   });
 });
