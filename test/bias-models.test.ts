@@ -7,6 +7,7 @@
 import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { parseDesignFile } from "../lib/bias/design-file.js";
+import { toleranceAnalysis } from "../lib/bias/tolerance.js";
 import { topologyIds, type Stage } from "../lib/bias/topology.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import { drainCurrent } from "../lib/device/drain-current.js";
@@ -79,5 +80,23 @@ describe("design files name the model and its parameters", { timeout: 60_000 }, 
     expect(() => parseDesignFile(file({ model: "level-99" }), "stage.json")).toThrow(/stage\.json: device\.card.*model/);
     expect(() => parseDesignFile(file({ theta: 0.2 }), "stage.json")).toThrow(/stage\.json: device\.card.*theta/);
     expect(() => parseDesignFile(file({ model: "ekv", ecrit: "4 V" }), "stage.json")).toThrow(/stage\.json: device\.card\.ecrit/);
+  });
+});
+
+describe("tolerance and Monte Carlo on a model's own parameters", () => {
+  it("spreads the EKV card's threshold and current factor: the corners bracket the nominal and match a re-analysis", () => {
+    const stage = stages["four-resistor"]!(cards.ekv!);
+    const r = toleranceAnalysis(stage, { resistors: 0, process: { vt0: 0.05 as never, kp: 0.1 } });
+    const mc = toleranceAnalysis(stage, { resistors: 0, process: { vt0: 0.05 as never, kp: 0.1 }, monteCarlo: { samples: 50, seed: 3 } });
+    expect(mc.id.max).toBeLessThanOrEqual(r.id.max * (1 + 1e-12));
+    expect(r.id.min).toBeLessThan(r.id.nominal);
+    expect(r.id.max).toBeGreaterThan(r.id.nominal);
+    // The high-current corner: threshold 50 mV lower, k' 10 % higher.
+    const fast = analyzeStage({ ...stage, device: dev({ ...cards.ekv!, vt0: 0.55 as never, kp: 165e-6 as never }) });
+    expect(r.id.max).toBeCloseTo(fast.currents.drain, 12);
+  });
+  it("refuses the two-transistor closed forms for a model they do not take yet, naming the field", () => {
+    const mirror = { topology: "current-mirror", device: dev(cards.ekv!), devices: { reference: dev(cards.ekv!) }, components: { rref: 10e3, vout: 2 }, supplies: { vdd: 5 } } as unknown as Stage;
+    expect(() => analyzeStage(mirror)).toThrow(/device\.card\.model/);
   });
 });
