@@ -18,6 +18,7 @@ import {
   type DeviceCard,
 } from "../lib/index.js";
 import { transconductancePlot } from "../lib/plot/transconductance.js";
+import { outputCharacteristics } from "../lib/plot/output-characteristics.js";
 
 const base = { name: "invented-n", polarity: "nmos", kp: 150e-6, vt0: 0.6, lambda: 0.04, gamma: 0.5, phi: 0.75 };
 const ekvCard = { ...base, model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 4e6, sigma: 0.01 } as unknown as DeviceCard;
@@ -80,5 +81,19 @@ describe("gm and gm/ID plot", () => {
   it("square law: gm/ID = 2/VOV rises past 1/(n·UT) at low overdrive (the contrast the EKV plot removes)", () => {
     const { y } = series(base as unknown as DeviceCard);
     expect(Math.max(...y)).toBeGreaterThan(1 / (1.5 * thermalVoltage(300.15 as never)));
+  });
+});
+
+describe("output characteristics with a model's own saturation edge", () => {
+  it("EKV: the dashed edge sits at the model's VDsat, below VOV once velocity saturation acts", () => {
+    const dev = at(ekvCard);
+    const p = outputCharacteristics(dev, { gateDrives: [1, 1.8, 2.6], vdsMax: 3.3 });
+    const edge = p.figure.data.find((t) => (t.meta as { role?: string })?.role === "boundary")!;
+    const xs = edge.x as number[];
+    const last = xs[xs.length - 1]! * (p.axes.x.divisor ?? 1);
+    const op = smallSignal(dev, { vgs: 2.6 as never, vds: 3.3 as never }).op;
+    expect(last).toBeCloseTo(op.vdsat, 4); // plotted values carry 6 significant digits
+    expect(op.vdsat).toBeLessThan(op.vov);
+    expect(p.summary).toMatch(/VDsat/);
   });
 });
