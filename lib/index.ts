@@ -29,6 +29,9 @@ export * as ekvFormulas from "./formulas/ekv.formulas.js";
 // Bias networks: topologies, solver, SPICE export, standard values, synthesis, tolerance, dissipation.
 export * from "./bias/topology.js";
 export * from "./bias/analyze.js";
+// The two-transistor stages' own figures (mirror ratio, compliance, output curve) beyond StageAnalysis.
+export { analyzeMirror, mirrorOutputCurve, type MirrorAnalysis, type MirrorFigures, type CurrentMirrorStage } from "./bias/topologies/current-mirror.js";
+export { analyzeDiodeLoad, type DiodeLoadStage } from "./bias/topologies/diode-load.js";
 export { solveNetwork, newSolution, hasClosedForm, type BiasNetwork, type NetworkSolution } from "./bias/solve.js";
 export { spiceNumber, deckText } from "./bias/spice.js";
 export * as biasFormulas from "./formulas/bias.formulas.js";

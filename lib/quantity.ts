@@ -103,3 +103,13 @@ export const constants = {
 export function thermalVoltage(t: Kelvin): Volts {
   return ((constants.boltzmann * t) / constants.elementaryCharge) as Volts;
 }
+
+/** "a" or "an" before a dimension's label. */
+export const dimensionArticle = (label: string): string => (/^[aeiou]/i.test(label) ? "an" : "a");
+
+/** "a current in A", "a dimensionless ratio (a plain number)". */
+export function describeDimension(dim: Dimension): string {
+  const d = dimensions[dim];
+  if (dim === "fraction") return `a fraction (in %, e.g. "5 %", or a plain number, 0.05)`;
+  return d.unit === "" ? `${dimensionArticle(d.label)} ${d.label} (a plain number)` : `${dimensionArticle(d.label)} ${d.label} in ${d.unit}`;
+}

@@ -80,7 +80,7 @@ describe("bias analysis: the record", () => {
     const rec = new Derivation("t");
     const a = analyzeStage(fourR({ components: { rg1: 1e6, rg2: 50e3, rd: 4.7e3, rs: 1e3 }, device: dev({ ...ncard, lambda: 0 as DeviceCard["lambda"] }), body: "source" }), rec);
     expect(a.region).toBe("cutoff");
-    expect(a.currents.drain).toBe(0);
+    expect(a.currents.drainMagnitude).toBe(0);
     const note = rec.steps.find((s) => s.kind === "note" && s.title === "Region: cutoff");
     expect(note && note.kind === "note" && note.text).toMatch(/VOV0 = -0\.1\d* V ≤ 0/);
     expect(a.findings.some((f) => f.includes("cutoff"))).toBe(true);
@@ -95,7 +95,7 @@ describe("bias analysis: the record", () => {
     expect(titles).toContain("First cut");
     expect(titles).toContain("Exact solution");
     expect(steps(rec).some((s) => s.formula === "bodyEffectThreshold")).toBe(true);
-    expect(rec.checks.find((c) => c.title.startsWith("Device current equals"))?.passed).toBe(true);
+    expect(rec.checks.find((c) => c.title.startsWith("Solver: device current equals"))?.passed).toBe(true);
   });
 });
 
@@ -167,7 +167,7 @@ describe("bias analysis: properties", () => {
         const p = analyzeStage(mirrored);
         expect(p.region).toBe(n.region);
         for (const node of ["gate", "source", "drain"]) expect(p.nodes[node]).toBeCloseTo(-n.nodes[node]!, 9);
-        expect(p.currents.drain).toBeCloseTo(n.currents.drain!, 12);
+        expect(p.currents.drainMagnitude).toBeCloseTo(n.currents.drainMagnitude!, 12);
         expect(p.op.id).toBeCloseTo(-n.op.id, 12);
       }),
       { seed: 7, numRuns: 150 },
@@ -218,7 +218,7 @@ describe("bias analysis: stages with no resistance in the loop", () => {
         const a = analyzeStage({ topology: "fixed-gate", device: dev(card), components: { vg, rd: 0 }, supplies: { vdd } as Stage["supplies"] }, rec);
         expect(a.region).toBe(region);
         expect(a.nodes.drain).toBe(vdd);
-        expect(a.currents.drain).toBeCloseTo(Math.abs(a.op.id), 15);
+        expect(a.currents.drainMagnitude).toBeCloseTo(Math.abs(a.op.id), 15);
       }
     }
   });
@@ -233,9 +233,9 @@ describe("bias analysis: model options", () => {
       const k = (150e-6 * 20e-6) / 1e-6;
       const vds = a.op.vdsDevice;
       const plain = k * (a.op.vov - vds / 2) * vds;
-      expect(a.currents.drain).toBeCloseTo(clm === "continuous" ? plain * (1 + 0.04 * vds) : plain, 15);
+      expect(a.currents.drainMagnitude).toBeCloseTo(clm === "continuous" ? plain * (1 + 0.04 * vds) : plain, 15);
       // KCL: the same current through RD.
-      expect((5 - a.nodes.drain!) / 20e3).toBeCloseTo(a.currents.drain!, 15);
+      expect((5 - a.nodes.drain!) / 20e3).toBeCloseTo(a.currents.drainMagnitude!, 15);
     }
   });
 });
@@ -267,5 +267,17 @@ describe("bias analysis: metrics (small-signal model, common practice)", () => {
     const m = a.metrics.checks.find((c) => c.name.startsWith("Saturation margin"))!;
     expect(m.min).toBe(0.3);
     expect(m.passed).toBe(m.value >= 0.3);
+  });
+});
+
+describe("currents carry their sign convention in their name (issue 7 item 22)", () => {
+  it("drainMagnitude is |channel current| beside the signed op.id, for NMOS and PMOS", () => {
+    for (const card of [ncard, pcard]) {
+      const a = analyzeStage(fourR({ device: dev(card), components: { rg1: 300e3, rg2: 100e3, rd: 4.7e3, rs: 1e3 } }));
+      expect("drain" in a.currents).toBe(false);
+      expect(a.currents.drainMagnitude).toBeGreaterThan(0);
+      expect(a.currents.drainMagnitude).toBeCloseTo(Math.abs(a.op.id), 15);
+      expect(Math.sign(a.op.id)).toBe(card.polarity === "nmos" ? 1 : -1);
+    }
   });
 });

@@ -71,7 +71,7 @@ describe("operating point", () => {
     const k2 = 80e-6 * 5;
     expect(a.solver.method).toBe("closed-form");
     expect(a.nodes.drain).toBeCloseTo(3.3 - 0.7 - Math.sqrt(k1 / k2) * 0.4, 12);
-    expect(a.currents.drain).toBeCloseTo((k1 / 2) * 0.4 ** 2, 15);
+    expect(a.currents.drainMagnitude).toBeCloseTo((k1 / 2) * 0.4 ** 2, 15);
     expect(a.devices!.load!.region).toBe("saturation");
   });
   it("the closed forms (driver saturated or in triode) agree with the numeric solve at vanishing λ", () => {
@@ -96,9 +96,9 @@ describe("operating point", () => {
   it("with λ and body effect, the load and driver currents balance (KCL) and the record shows the iteration", () => {
     const rec = new Derivation("diode load");
     const a = analyzeStage(stage({ drv: n({ lambda: perVolt(0.08) }), load: n({ name: "invented-n-load", lambda: perVolt(0.05), gamma: sqrtVolts(0.5) }), w2: 3e-6, vg: 1.1, body: "rail" }), rec);
-    expect(a.currents.drain).toBeDefined();
-    expect(Math.abs(Math.abs(a.devices!.load!.op.channelCurrent) - a.currents.drain!)).toBeLessThan(1e-12 * a.currents.drain!);
-    expect(rec.checks.find((c) => c.title.startsWith("Load current equals"))!.passed).toBe(true);
+    expect(a.currents.drainMagnitude).toBeDefined();
+    expect(Math.abs(Math.abs(a.devices!.load!.op.channelCurrent) - a.currents.drainMagnitude!)).toBeLessThan(1e-12 * a.currents.drainMagnitude!);
+    expect(rec.checks.find((c) => c.title.startsWith("Solver: load current equals"))!.passed).toBe(true);
     expect(rec.steps.some((s) => s.kind === "note" && s.title === "Exact solution")).toBe(true);
     expect(expectStepsReplay(rec)).toBeGreaterThan(20);
   });
@@ -116,7 +116,7 @@ describe("cutoff and swing", () => {
   it("driver cut off: no current, output at the load's conduction edge VDD − |Vt2|, no gain, and the finding says it floats", () => {
     const a = analyzeStage(stage({ vg: 0.5 }));
     expect(a.region).toBe("cutoff");
-    expect(a.currents.drain).toBe(0);
+    expect(a.currents.drainMagnitude).toBe(0);
     expect(a.nodes.drain).toBeCloseTo(3.3 - 0.7, 14);
     expect(a.devices!.load!.region).toBe("cutoff");
     expect(a.metrics.amplifiers).toEqual([]);
@@ -138,8 +138,8 @@ describe("cutoff and swing", () => {
       const lambda1 = st.device.card.lambda ?? 0;
       const edge = (k1 / 2) * sw.lower ** 2 * (1 + lambda1 * sw.lower);
       const loadAt = analyzeStage({ ...st, components: { vg: volts(sw.lower + 0.6) } }); // gate where the driver sits at its triode edge
-      expect(loadAt.currents.drain).toBeDefined();
-      expect(Math.abs(loadAt.currents.drain! - edge) / edge).toBeLessThan(1e-9);
+      expect(loadAt.currents.drainMagnitude).toBeDefined();
+      expect(Math.abs(loadAt.currents.drainMagnitude! - edge) / edge).toBeLessThan(1e-9);
       const upperEdge = analyzeStage({ ...st, components: { vg: volts(0) } }).nodes.drain;
       expect(upperEdge).toBeDefined();
       expect(sw.upper).toBeCloseTo(upperEdge!, 12);

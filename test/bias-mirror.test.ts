@@ -256,3 +256,16 @@ describe("bad input to the mirror", () => {
 
 // Keep the analysis type in use for readers of this file.
 export type { MirrorAnalysis };
+
+describe("public API (issue 7 item 22)", () => {
+  it("the package entry exports every built-in topology and the mirror's and diode load's own analyses", async () => {
+    const api = await import("../lib/index.js");
+    expect(Object.values(api.builtinTopologies).map((t) => t.id).sort()).toEqual([...api.topologyIds()].sort());
+    expect(Object.keys(api.builtinTopologies)).toHaveLength(7);
+    expect(typeof api.analyzeMirror).toBe("function");
+    expect(typeof api.analyzeDiodeLoad).toBe("function");
+    expect(typeof api.mirrorOutputCurve).toBe("function");
+    const figures: keyof import("../lib/index.js").MirrorAnalysis = "mirror";
+    expect(figures).toBe("mirror");
+  });
+});

@@ -126,7 +126,9 @@ describe("bad inputs get InputError naming value, range and origin", () => {
     ["NaN current", () => overdriveFor(n, amperes(NaN)), /overdriveFor\.id: got NaN, expected a drain-current magnitude > 0/],
     ["zero current", () => gateVoltageFor(n, amperes(0)), /overdriveFor\.id: got 0/],
     ["negative current", () => aspectRatioFor(nCard, amperes(-1e-3), volts(0.2)), /aspectRatioFor\.id: got -0\.001.*for a PMOS give \|ID\|/],
+    // @ts-expect-error a hand-built { card, w, l } is not a Device; checked at run time too
     ["negative W/L (W < 0)", () => overdriveFor({ card: nCard, w: meters(-1e-6), l: meters(1e-6) }, amperes(1e-4)), /overdriveFor\.dev\.w: got -0\.000001, expected a channel width W > 0/],
+    // @ts-expect-error a hand-built { card, w, l } is not a Device; checked at run time too
     ["zero L", () => gateVoltageFor({ card: nCard, w: meters(1e-6), l: meters(0) }, amperes(1e-4)), /gateVoltageFor\.dev\.l: got 0, expected a channel length L > 0/],
     ["negative k'", () => aspectRatioFor({ ...nCard, kp: amperesPerVoltSquared(-1e-4) }, amperes(1e-4), volts(0.2)), /aspectRatioFor\.card "inv-n"\.kp: got -0\.0001, expected a process transconductance/],
     ["zero VOV", () => sizeForTransconductance(nCard, siemens(1e-3), volts(0)), /sizeForTransconductance\.vov: got 0, expected an overdrive VOV > 0/],

@@ -39,10 +39,10 @@ describe("inverse design with the models", () => {
     it(`${card.model} ${card.polarity}: widthForCurrent and sizeByGmOverId round-trip through the model`, () => {
       const dev = at(card);
       const w = widthForCurrent(dev, 200e-6 as never, (s * 1.4) as never, { vds: (s * 2) as never });
-      expect(Math.abs(drainCurrent({ ...dev, w }, s * 1.4, s * 2, 0)) / 200e-6 - 1).toBeLessThan(1e-12);
+      expect(Math.abs(drainCurrent(device(dev.card, w, dev.l), s * 1.4, s * 2, 0)) / 200e-6 - 1).toBeLessThan(1e-12);
       const target = card.model === "ekv" ? 15 : 6;
       const z = sizeByGmOverId(dev, 50e-6 as never, target as never, { vds: (s * 2) as never });
-      const sized = { ...dev, w: z.w };
+      const sized = device(dev.card, z.w, dev.l);
       const ss = smallSignal(sized, { vgs: z.vgs, vds: (s * 2) as never });
       expect(Math.abs(ss.op.channelCurrent) / 50e-6 - 1).toBeLessThan(1e-9);
       expect(ss.gmOverId! / target - 1).toBeLessThan(1e-6);

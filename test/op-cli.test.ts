@@ -61,7 +61,7 @@ describe("pinchoff op", () => {
     const j = JSON.parse(r.out);
     expect(j.region).toBe("saturation");
     expect(j.nodes.gate).toBeCloseTo(5 / 3, 12);
-    expect(j.currents.rd).toBeCloseTo(j.currents.drain, 15);
+    expect(j.currents.rd).toBeCloseTo(j.currents.drainMagnitude, 15);
     expect(j.metrics.checks.every((c: { passed: boolean }) => c.passed)).toBe(true);
     expect(j.design).toBe(file);
   });

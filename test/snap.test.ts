@@ -27,7 +27,7 @@ describe("snapToSeries", () => {
     expect(r.components[0]!.deviation).toBeCloseTo(4700 / 5050 - 1, 12);
     const text = rec.steps.map((s) => (s.kind === "note" ? s.text : "")).join("\n");
     expect(text).toMatch(/Tried 4 combinations/);
-    expect(text).toMatch(/for rounding each value on its own \(R1 = 4700, R2 = 5600\)/);
+    expect(text).toMatch(/for rounding each value on its own \(R1 = 4\.700 kΩ, R2 = 5\.600 kΩ\)/);
     expect(rec.sources).toContain("IEC 60063 (preferred number series for resistors and capacitors)");
   });
 

@@ -52,7 +52,7 @@ describe("hand calculations with the square law (λ = 0, γ = 0; invented exampl
     expect(r.ideal.components.rref).toBeCloseTo(4100, 8);
     expect(r.ideal.components.rload).toBeCloseTo(2350, 8);
     expect(r.stage.devices!.reference!.w).toBeCloseTo(r.stage.device.w, 18);
-    expect(r.analysis.currents.drain).toBeCloseTo(1e-3, 15);
+    expect(r.analysis.currents.drainMagnitude).toBeCloseTo(1e-3, 15);
   });
 
   it("current mirror 1:4 with λ: the reference current is chosen so the output meets IOUT at its own VDS", () => {
@@ -181,8 +181,8 @@ describe("synthesis followed by analysis, every topology", () => {
         solved++;
         const node = r.topology === "source-follower" ? "vs" : "vd";
         const achieved = r.analysis.nodes[node === "vs" ? "source" : "drain"]!;
-        expect(r.analysis.currents.drain!).toBeGreaterThanOrEqual(t.id.min * (1 - 1e-9));
-        expect(r.analysis.currents.drain!).toBeLessThanOrEqual(t.id.max * (1 + 1e-9));
+        expect(r.analysis.currents.drainMagnitude!).toBeGreaterThanOrEqual(t.id.min * (1 - 1e-9));
+        expect(r.analysis.currents.drainMagnitude!).toBeLessThanOrEqual(t.id.max * (1 + 1e-9));
         expect(achieved).toBeGreaterThanOrEqual(t[node].min - 1e-9);
         expect(achieved).toBeLessThanOrEqual(t[node].max + 1e-9);
       }),

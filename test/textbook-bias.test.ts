@@ -27,7 +27,7 @@ describe("Sedra & Smith, Microelectronic Circuits, 5th ed. (2004), chapter 4 —
     };
     const a = analyzeStage(stage);
     expect(a.region).toBe("saturation");
-    expect(a.currents.drain).toBeCloseTo(0.4e-3, 12);
+    expect(a.currents.drainMagnitude).toBeCloseTo(0.4e-3, 12);
     expect(a.nodes.drain).toBeCloseTo(0.5, 9);
     expect(a.nodes.source).toBeCloseTo(-1.2, 9);
     expect(a.op.vov).toBeCloseTo(0.5, 9);
@@ -46,7 +46,7 @@ describe("Sedra & Smith, Microelectronic Circuits, 5th ed. (2004), chapter 4 —
     const rec = new Derivation("Sedra & Smith 5th ed. Example 4.3");
     const a = analyzeStage(stage, rec);
     expect(a.region).toBe("saturation");
-    expect(a.currents.drain).toBeCloseTo(80e-6, 12);
+    expect(a.currents.drainMagnitude).toBeCloseTo(80e-6, 12);
     expect(a.nodes.drain).toBeCloseTo(1.0, 9);
     expect(a.nodes.gate).toBe(a.nodes.drain);
   });
@@ -64,8 +64,8 @@ describe("Sedra & Smith, Microelectronic Circuits, 5th ed. (2004), chapter 4 —
     const a = analyzeStage(stage, rec);
     expect(a.region).toBe("triode");
     expect(a.nodes.drain).toBeCloseTo(0.1, 9);
-    expect(a.currents.drain).toBeCloseTo(0.395e-3, 12);
-    expect(a.nodes.drain! / a.currents.drain!).toBeCloseTo(253.2, 1);
+    expect(a.currents.drainMagnitude).toBeCloseTo(0.395e-3, 12);
+    expect(a.nodes.drain! / a.currents.drainMagnitude!).toBeCloseTo(253.2, 1);
     // The record shows the saturation assumption failing and the triode re-solve.
     const titles = rec.steps.map((s) => s.title);
     expect(titles).toContain("Assumption fails");
@@ -84,7 +84,7 @@ describe("Sedra & Smith, Microelectronic Circuits, 5th ed. (2004), chapter 4 —
     const a = analyzeStage(stage, rec);
     expect(a.region).toBe("saturation");
     expect(a.nodes.gate).toBeCloseTo(5, 12);
-    expect(a.currents.drain).toBeCloseTo(0.5e-3, 12);
+    expect(a.currents.drainMagnitude).toBeCloseTo(0.5e-3, 12);
     expect(a.nodes.source).toBeCloseTo(3, 9);
     expect(a.nodes.drain).toBeCloseTo(7, 9);
     // Both roots of the quadratic are on the record; the rejected one is VOV' = −4/3 V, i.e. ID' = 0.89 mA.
@@ -108,7 +108,7 @@ describe("Sedra & Smith, Microelectronic Circuits, 5th ed. (2004), chapter 4 —
     const a = analyzeStage(stage);
     expect(a.region).toBe("saturation");
     expect(a.nodes.gate).toBeCloseTo(3, 12);
-    expect(a.currents.drain).toBeCloseTo(0.5e-3, 12);
+    expect(a.currents.drainMagnitude).toBeCloseTo(0.5e-3, 12);
     expect(a.op.id).toBeCloseTo(-0.5e-3, 12); // SPICE sign: current into a PMOS drain is negative
     expect(a.nodes.drain).toBeCloseTo(3, 9);
   });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { toleranceAnalysis } from "../lib/bias/tolerance.js";
+import { keptCases, keptFailures, maxCases, toleranceAnalysis } from "../lib/bias/tolerance.js";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { cardAtTemperature } from "../lib/device/temperature.js";
 import { InputError } from "../lib/errors.js";
@@ -73,7 +73,7 @@ describe("toleranceAnalysis: worst-case corners", () => {
     expect(r.cases).toHaveLength(2); // a zero band is no parameter: one case per temperature
     const hotCase = r.cases.find((c) => c.temperature === hot)!;
     const expected = analyzeStage({ ...fixedGate, device: { ...dev, card: cardAtTemperature(card, hot) } });
-    expect(hotCase.id).toBeCloseTo(expected.currents.drain!, 15);
+    expect(hotCase.id).toBeCloseTo(expected.currents.drainMagnitude!, 15);
     expect(r.id.maxAt).toMatch(/-40 °C/); // mobility falls with temperature: at VOV = 0.9 V the current falls too
   });
 });
@@ -107,7 +107,7 @@ describe("toleranceAnalysis: failures and generic solve", () => {
       temperatures: [celsius(0), celsius(70)],
       solve: (st) => {
         const a = analyzeStage(st);
-        seen.push([a.currents.drain!, a.currents.reference!]);
+        seen.push([a.currents.drainMagnitude!, a.currents.reference!]);
         return a;
       },
     });
@@ -144,5 +144,46 @@ describe("toleranceAnalysis: failures and generic solve", () => {
     expect(() => toleranceAnalysis(fourR, { monteCarlo: { samples: 0, seed: 1 } })).toThrow(/samples/);
     expect(() => toleranceAnalysis(fourR, { monteCarlo: { samples: 5, seed: 1.5 } })).toThrow(/seed/);
     expect(() => toleranceAnalysis({ ...fourR, components: { ...fourR.components, rd: -5 as Ohms } })).toThrow();
+  });
+});
+
+describe("toleranceAnalysis: streamed, bounded (issue 7 items 11 and 15)", () => {
+  const spec = { resistors: 0.05, process: { vt0: 0.05 as Volts, kp: 0.1 } };
+  it("keeps a bounded sample of cases while aggregating every one, and the spread equals the full run's", () => {
+    const mc = toleranceAnalysis(fourR, { ...spec, monteCarlo: { samples: 2500, seed: 7 } });
+    expect(mc.caseCount).toBe(2500);
+    expect(mc.cases).toHaveLength(keptCases);
+    // The same draws, solved by hand and aggregated in full, give the same extremes.
+    let min = mc.nominal.id!;
+    let max = min;
+    const first = toleranceAnalysis(fourR, { ...spec, monteCarlo: { samples: keptCases, seed: 7 } });
+    for (const c of first.cases) [min, max] = [Math.min(min, c.id!), Math.max(max, c.id!)];
+    expect(mc.id.min).toBeLessThanOrEqual(min);
+    expect(mc.id.max).toBeGreaterThanOrEqual(max);
+    expect(first.cases.map((c) => c.id)).toEqual(mc.cases.map((c) => c.id));
+  });
+  it("counts every failure but keeps only the first keptFailures", () => {
+    // VG = 0.62 V against Vt 0.6 ± 0.05 V: about a quarter of the draws are cut off.
+    const marginal: Stage = { ...fixedGate, components: { vg: 0.62, rd: 2000 } };
+    const r = toleranceAnalysis(marginal, { ...spec, monteCarlo: { samples: 1000, seed: 3 } });
+    expect(r.failureCount).toBeGreaterThan(keptFailures);
+    expect(r.failures).toHaveLength(keptFailures);
+    expect(r.allInSaturation).toBe(false);
+    const rec = new Derivation("t");
+    toleranceAnalysis(marginal, { ...spec, monteCarlo: { samples: 1000, seed: 3 } }, rec);
+    expect(rec.findings.some((f) => f.text.startsWith(`${r.failureCount} of 1000 cases`))).toBe(true);
+  });
+  it("refuses more than maxCases in all, samples × temperatures, before solving any", () => {
+    const temps = Array.from({ length: 50 }, (_, i) => (250 + i) as Kelvin);
+    const run = () => toleranceAnalysis(fourR, { ...spec, temperatures: temps, monteCarlo: { samples: 50_000, seed: 1 } });
+    expect(run).toThrow(InputError);
+    expect(run).toThrow(new RegExp(`tolerance\\.monteCarlo: got 2500000, expected at most ${maxCases} cases in all \\(50000 samples × 50 temperatures`));
+  });
+  it("validates the seed as an integer in [0, 2³²): 0 and 2³² no longer alias", () => {
+    for (const seed of [2 ** 32, -1, 1.5, NaN])
+      expect(() => toleranceAnalysis(fourR, { ...spec, monteCarlo: { samples: 2, seed } })).toThrow(/tolerance\.monteCarlo\.seed: got .*, expected an integer seed from 0 to 4294967295/);
+    const a = toleranceAnalysis(fourR, { ...spec, monteCarlo: { samples: 5, seed: 0 } });
+    const b = toleranceAnalysis(fourR, { ...spec, monteCarlo: { samples: 5, seed: 2 ** 32 - 1 } });
+    expect(a.cases.map((c) => c.id)).not.toEqual(b.cases.map((c) => c.id));
   });
 });

@@ -21,7 +21,8 @@ registerTopology(currentSourceBias);
 registerTopology(currentMirror);
 registerTopology(diodeLoad);
 
-export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias } as const;
+/** Every built-in topology, keyed by a camel-case name (the registry holds them by id). */
+export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias, currentMirror, diodeLoad } as const;
 
 /**
  * Any stage: a typed one (`Stage<"four-resistor", FourResistorComponents>`, as

@@ -34,6 +34,7 @@ import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
 import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
+import { checkLimits } from "./stage.js";
 import "./analyze.js"; // registers the built-in topologies
 
 const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "notes"] as const;
@@ -120,10 +121,13 @@ function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): S
 }
 
 /** What a design file states besides the device and the components or specification. */
-function parseCommon(d: Record<string, unknown>, at: (p: string) => string) {
+function parseCommon(d: Record<string, unknown>, at: (p: string) => string, origin: string) {
   const s = object(d.supplies, at("supplies"), "supplies { vdd, vss? }");
   onlyKeys(s, ["vdd", "vss"], at("supplies"));
   const supplies = { vdd: quantity(s.vdd, "voltage", at("supplies.vdd")), ...(s.vss !== undefined ? { vss: quantity(s.vss, "voltage", at("supplies.vss")) } : {}) };
+  // Range checks here, where the file is known, so the message names it.
+  if (!Number.isFinite(supplies.vdd)) throw new InputError(supplies.vdd, "a finite supply voltage in V", at("supplies.vdd"));
+  if (supplies.vss !== undefined && !(supplies.vss < supplies.vdd)) throw new InputError(supplies.vss, `a finite voltage below supplies.vdd = ${supplies.vdd} V`, at("supplies.vss"));
 
   if (d.body !== undefined && d.body !== "source" && d.body !== "rail") throw new InputError(d.body, `"source" or "rail"`, at("body"), "invalid-design");
   let options: { clm: "continuous" | "saturation-only" } | undefined;
@@ -139,6 +143,7 @@ function parseCommon(d: Record<string, unknown>, at: (p: string) => string) {
     onlyKeys(lo, Object.keys(limitFields), at("limits"));
     limits = {};
     for (const [k, dim] of Object.entries(limitFields)) if (lo[k] !== undefined) limits[k] = quantity(lo[k], dim, at(`limits.${k}`));
+    checkLimits(limits as StageLimits, origin);
   }
   return {
     ...(d.name !== undefined ? { name: d.name as string } : {}),
@@ -159,7 +164,7 @@ function specValue(v: unknown, f: SpecField, path: string, at: (p: string) => st
       return x;
     }
     case "integer":
-      if (typeof v !== "number" || !Number.isInteger(v) || v < f.min) throw new InputError(v, expected(), at(path), "invalid-design");
+      if (typeof v !== "number" || !Number.isInteger(v) || v < f.min || (f.max !== undefined && v > f.max)) throw new InputError(v, expected(), at(path), "invalid-design");
       return v;
     case "boolean":
       if (typeof v !== "boolean") throw new InputError(v, expected(), at(path), "invalid-design");
@@ -232,7 +237,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     const byName = (own.dissipation as { resistors?: Record<string, unknown> } | undefined)?.resistors;
     for (const k of Object.keys(byName ?? {}))
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
-    const spec = { topology: topo.id, ...parseCommon(d, at), card, ...own } as unknown as StageSpec;
+    const spec = { topology: topo.id, ...parseCommon(d, at, origin), card, ...own } as unknown as StageSpec;
     return { kind: "specification", origin, spec };
   }
 
@@ -253,9 +258,13 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
       if (f.required) throw new InputError(v, `${f.meaning} (${f.dim})`, at(`components.${f.name}`), "invalid-design");
       continue;
     }
-    components[f.name] = quantity(v, f.dim, at(`components.${f.name}`));
+    const x = quantity(v, f.dim, at(`components.${f.name}`));
+    if (!Number.isFinite(x)) throw new InputError(x, `a finite ${f.dim} (${f.meaning})`, at(`components.${f.name}`));
+    if (f.dim === "resistance" && x < 0) throw new InputError(x, `a resistance ≥ 0 Ω (${f.meaning})`, at(`components.${f.name}`));
+    if (f.dim === "current" && x <= 0) throw new InputError(x, `a current > 0 A (${f.meaning})`, at(`components.${f.name}`));
+    components[f.name] = x;
   }
-  const common = parseCommon(d, at);
+  const common = parseCommon(d, at, origin);
   const stage: Stage = {
     topology: topo.id,
     ...(common.name !== undefined ? { name: common.name } : {}),
@@ -285,6 +294,8 @@ function readJson(path: string): unknown {
   } catch (e) {
     throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
   }
+  // A byte-order mark is how some editors start a UTF-8 file; it is not part of the JSON.
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
     return JSON.parse(text);
   } catch (e) {

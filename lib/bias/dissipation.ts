@@ -31,6 +31,8 @@ export interface ResistorLoad {
   readonly resistance: Ohms;
   /** Current through it (magnitude). */
   readonly current: Amperes;
+  /** Its dissipation when already computed (and recorded) elsewhere, e.g. by the stage analysis: then not computed again. */
+  readonly power?: Watts;
 }
 
 export interface TransistorLoad {
@@ -39,6 +41,8 @@ export interface TransistorLoad {
   readonly vds: Volts;
   /** Channel current magnitude. */
   readonly id: Amperes;
+  /** Its dissipation when already computed (and recorded) elsewhere: then not computed again. */
+  readonly power?: Watts;
 }
 
 export interface DissipationItem {
@@ -123,7 +127,7 @@ export function checkDissipation(
     const at = `resistor ${r.name}`;
     requireNonNegative(r.resistance, `${at}.resistance`, "a resistance ≥ 0 in Ω");
     requireFinite(r.current, `${at}.current`, "a finite current in A");
-    const p = rec ? rec.calc(resistorPower, [r.current, r.resistance], r.name) : resistorPower.fn(r.current, r.resistance);
+    const p = r.power ?? (rec ? rec.calc(resistorPower, [r.current, r.resistance], r.name) : resistorPower.fn(r.current, r.resistance));
     const rating = limits.resistors?.[r.name] ?? limits.resistor;
     items.push(judge(r.name, "resistor", p, rating, limits.resistors?.[r.name] ? `limits.resistors.${r.name}` : "limits.resistor", rec));
   }
@@ -132,7 +136,7 @@ export function checkDissipation(
     const name = t.name ?? "transistor";
     requireFinite(t.vds, `${name}.vds`, "a finite VDS in V");
     requireFinite(t.id, `${name}.id`, "a finite drain current in A");
-    const p = rec ? rec.calc(devicePower, [t.id, t.vds], name) : devicePower.fn(t.id, t.vds);
+    const p = t.power ?? (rec ? rec.calc(devicePower, [t.id, t.vds], name) : devicePower.fn(t.id, t.vds));
     items.push(judge(name, "transistor", p, limits.transistor, "limits.transistor", rec));
   }
   if (rec) {
@@ -158,10 +162,13 @@ export function stageDissipation(stage: Stage<string, object>, analysis: StageAn
     if (r === undefined) continue;
     const i = analysis.currents[f.name];
     if (i === undefined) throw new InputError(undefined, `a current for ${f.name} in the analysis`, `analysis.currents.${f.name}`);
-    resistors.push({ name: f.name, resistance: r as Ohms, current: i });
+    // The analysis computed (and recorded) each dissipation once; use its figures rather than a second derivation.
+    const p = analysis.power.components[f.name];
+    resistors.push({ name: f.name, resistance: r as Ohms, current: i, ...(p !== undefined ? { power: p } : {}) });
   }
+  rec?.note("Dissipation", "Each part's dissipation as computed in the analysis above, against its rating:");
   return checkDissipation(
-    { resistors, transistor: { name: "transistor", vds: analysis.op.vdsDevice, id: Math.abs(analysis.op.channelCurrent) as Amperes } },
+    { resistors, transistor: { name: "transistor", vds: analysis.op.vdsDevice, id: Math.abs(analysis.op.channelCurrent) as Amperes, power: analysis.power.transistor } },
     limits,
     rec,
   );

@@ -146,10 +146,14 @@ export function nearestStandard(value: number, series: SeriesName | ESeries, ori
  * The n standard values nearest to a value in log distance, in increasing order:
  * the candidates a combination search tries for one component.
  */
+/** Most standard values tried per component: a set search tries candidates^components combinations (8⁴ = 4096 for four). */
+export const maxCandidates = 8;
+
 export function standardValuesAround(value: number, series: SeriesName | ESeries, n = 2, origin = "value"): number[] {
   const s = seriesOf(series);
   requireInRange(value, origin);
-  if (!Number.isInteger(n) || n < 1 || n > 8) throw new InputError(n, "an integer count of candidates from 1 to 8", `${origin} candidates`);
+  if (!Number.isInteger(n) || n < 1 || n > maxCandidates)
+    throw new InputError(n, `an integer count of candidates from 1 to ${maxCandidates} (the combinations tried grow as candidates^components)`, `${origin} candidates`);
   const { decade, below } = locate(s, value);
   const pool: number[] = [];
   for (let i = below - n; i <= below + n; i++) pool.push(valueAt(s, decade, i));

@@ -9,6 +9,7 @@
 import { InputError, PinchoffError } from "../errors.js";
 import type { Dimension } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
+import { formatQuantity } from "../units/format.js";
 import { logDistance, nearestStandard, seriesOf, standardValuesAround, type ESeries, type SeriesName } from "./eseries.js";
 
 /** Deviation of the stage from its specification for one set of values; lower is better, 0 is exact. */
@@ -139,6 +140,9 @@ export function snapToSeries(problem: SnapProblem, rec?: Derivation): SnapResult
   }));
   if (rec) {
     const label = problem.objectiveLabel ?? "deviation from the specification";
+    const dim = problem.dim ?? "resistance";
+    // Values with their unit, four digits (4.700 kΩ reads as a part; 4700 does not say what it is).
+    const fmt = (x: number) => formatQuantity(x, dim, { digits: 4 });
     rec.note(
       `Standard values (${s.name})`,
       `Tried ${total} combinations of the ${n} nearest ${s.name} values of each component (${components
@@ -162,7 +166,7 @@ export function snapToSeries(problem: SnapProblem, rec?: Derivation): SnapResult
             Number.isFinite(nearestScore) ? nearestScore.toExponential(3) : "a rejected combination"
           } for rounding each value on its own (${components.map((c) => `${c.name} = ${fmt(c.nearest)}`).join(", ")}).`,
     );
-    for (const c of components) rec.input(`${c.name} (${s.name})`, c.chosen, problem.dim ?? "resistance", `standard value for ideal ${fmt(c.ideal)}`);
+    for (const c of components) rec.input(`${c.name} (${s.name})`, c.chosen, dim, `standard value for ideal ${formatQuantity(c.ideal, dim, { digits: 4 })}`);
     rec.cite("IEC 60063 (preferred number series for resistors and capacitors)");
   }
   return {

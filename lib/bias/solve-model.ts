@@ -9,6 +9,8 @@
  * regula falsi with the Illinois modification, bisecting when a step stalls.
  * Tolerance as solve.ts: bracket or step below 1e-12 relative, or 1e-18 A / 1e-12 V
  * absolute; at most 200 iterations, else ConvergenceError naming the stage.
+ * The result is verified by verify.ts (KCL with the model's current, region
+ * conditions) like every other solve.
  * Allocation-free in the loop.
  */
 import type { Device } from "../device/card.js";
@@ -16,6 +18,7 @@ import { deviceCurrent, operatingPoint } from "../device/drain-current.js";
 import { ConvergenceError } from "../errors.js";
 import type { Derivation } from "../record/derivation.js";
 import type { BiasNetwork, NetworkSolution } from "./solve.js";
+import { verifyNetwork } from "./verify.js";
 
 const maxIterations = 200;
 const relTol = 1e-12;
@@ -33,6 +36,8 @@ export function solveModelNetwork(n: BiasNetwork, dev: Device, out: NetworkSolut
   );
   if (n.iss > 0) solveFed(n, dev, out, origin);
   else solveResistive(n, dev, out, origin);
+  // Independent of the iteration: KCL with the model's current and the region conditions (verify.ts).
+  verifyNetwork(n, out, origin);
   // Threshold and overdrive as the model reports them at the solution.
   const vsb = n.bodyToRail ? out.vs - n.vsr : 0;
   const op = operatingPoint(dev, { vgs: (s(dev) * (out.vg - out.vs)) as never, vds: (s(dev) * (out.vd - out.vs)) as never, vsb: (s(dev) * vsb) as never });

@@ -14,8 +14,11 @@
  * with a bisection fallback: in the drain current for resistor networks,
  * f(ID) = ID − Ichannel(ID), increasing; in the source voltage for the
  * current-fed network, Ichannel(VS) − ISS, decreasing.
- * Tolerance: a step (or bracket) below 1e-12 relative, or 1e-18 A / 1e-12 V
- * absolute; at most 200 iterations, else ConvergenceError naming the stage.
+ * Tolerance: a step (or bracket) below 1e-12 relative, or 1e-12 V absolute
+ * (in current: 1e-12 V/(RD + RS), at most 1e-18 A); at most 200 iterations,
+ * else ConvergenceError naming the stage. Every result, closed form or not,
+ * is then verified by verify.ts (KCL and the region conditions); a closed form
+ * that fails falls back to the bracketed solve, which throws if it fails too.
  * The solve loop allocates nothing.
  */
 import { channelCurrent, type ClmMode } from "../device/drain-current.js";
@@ -28,6 +31,7 @@ import { saturationCurrent } from "../formulas/device.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, SqrtVolts, Volts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 import type { SolveMethod } from "./topology.js";
+import { networkResidual, verifyNetwork } from "./verify.js";
 
 /** The canonical network, plain numbers in device polarity. Mutable so a sweep can reuse one object. */
 export interface BiasNetwork {
@@ -72,9 +76,12 @@ export interface NetworkSolution {
   method: SolveMethod;
   /** Final step or bracket width in the unknown. */
   tolerance: number;
+  /** KCL residual |device law − network current| at the solution, and its tolerance (verify.ts). */
+  kcl: number;
+  kclTolerance: number;
 }
 
-export const newSolution = (): NetworkSolution => ({ id: 0, vg: 0, vs: 0, vd: 0, vt: 0, vov: 0, iterations: 0, method: "direct", tolerance: 0 });
+export const newSolution = (): NetworkSolution => ({ id: 0, vg: 0, vs: 0, vd: 0, vt: 0, vov: 0, iterations: 0, method: "direct", tolerance: 0, kcl: 0, kclTolerance: 0 });
 
 const maxIterations = 200;
 const relTol = 1e-12;
@@ -93,8 +100,20 @@ export function solveNetwork(n: BiasNetwork, out: NetworkSolution, origin = "sta
   if (!(n.vdr > n.vsr)) throw new InfeasibleError(`the drain rail (${n.vdr} V in device polarity) must lie above the source rail (${n.vsr} V)`, origin);
   if (n.device && modelOf(n.device.card) !== "square-law") return solveModelNetwork(n, n.device, out, origin, rec);
   if (hasClosedForm(n)) {
-    if (n.iss > 0) closedFormFed(n, out, rec);
-    else closedFormResistive(n, out, rec);
+    try {
+      if (n.iss > 0) closedFormFed(n, out, rec);
+      else closedFormResistive(n, out, rec);
+      // Verified (verify.ts); a closed form that rounding or overflow spoils falls back to the bracketed solve.
+      if (networkResidual(n, out) <= 1) return out;
+      rec?.note("Closed form rejected", `At the closed-form solution the device law and the network disagree by ${out.kcl.toExponential(2)} A (tolerance ${out.kclTolerance.toExponential(2)} A): rounding spoils it at these values. Solved again by the bracketed iteration.`);
+    } catch (e) {
+      if (!(e instanceof ConvergenceError)) throw e;
+      rec?.note("Closed form fails", `${e.message}: solved instead by the bracketed iteration.`);
+    }
+    if (n.iss > 0) newtonFed(n, out, origin);
+    else newtonResistive(n, out, origin);
+    verifyNetwork(n, out, origin);
+    rec?.note("Exact solution", `By the bracketed iteration: ID = ${fmt(out.id)} A, VS = ${fmt(out.vs)} V, VD = ${fmt(out.vd)} V (device polarity) in ${out.iterations} iterations; KCL residual ${out.kcl.toExponential(2)} A.`);
     return out;
   }
   if (rec) {
@@ -110,6 +129,7 @@ export function solveNetwork(n: BiasNetwork, out: NetworkSolution, origin = "sta
   }
   if (n.iss > 0) newtonFed(n, out, origin);
   else newtonResistive(n, out, origin);
+  verifyNetwork(n, out, origin);
   rec?.note(
     "Exact solution",
     `${n.iss > 0 ? "Source voltage" : "Drain current"} solved to ${fmt(n.iss > 0 ? out.vs : out.id)} ${n.iss > 0 ? "V" : "A"} in ${out.iterations} iterations (final step ${out.tolerance.toExponential(2)} ${n.iss > 0 ? "V" : "A"}; tolerance 1e-12 relative).`,
@@ -165,6 +185,8 @@ function newtonResistive(n: BiasNetwork, out: NetworkSolution, origin: string): 
   }
   let lo = 0;
   let hi = span / rt;
+  // The absolute floor in current scales with the network: 1e-12 V across RD + RS, at most 1e-18 A.
+  const absI = Math.min(absTolCurrent, absTolVoltage / rt);
   // f(0) = −Ich(0): if nothing flows at ID = 0 the device is off.
   const i0 = residualResistive(n, 0);
   if (i0 >= 0) {
@@ -199,7 +221,7 @@ function newtonResistive(n: BiasNetwork, out: NetworkSolution, origin: string): 
     const dvgs = fb ? -rt : -n.rs;
     const df = 1 - (dGm * (dvgs - dvt) - dGds * rt);
     let next = x - f / df;
-    const tol = relTol * x + absTolCurrent;
+    const tol = relTol * x + absI;
     // A Newton step this small has converged (it may land on the bracket end it came from).
     if (Math.abs(next - x) <= tol && next >= lo && next <= hi) {
       finishResistive(n, out, next, it, Math.abs(next - x));
@@ -310,6 +332,8 @@ function finishFed(n: BiasNetwork, out: NetworkSolution, vs: number, vd: number,
 }
 
 function fill(out: NetworkSolution, id: number, vg: number, vs: number, vd: number, vt: number, method: SolveMethod, it: number, tol: number): void {
+  // VD = VDR − ID·RD can round a few ulps below VS when RD is huge: the drain sits at the source there.
+  if (vd < vs && vs - vd <= absTolVoltage * Math.max(1, Math.abs(vs))) vd = vs;
   out.id = id;
   out.vg = vg;
   out.vs = vs;

@@ -10,9 +10,8 @@
  * analysis and design: the card (`device.card`), `supplies`, `body`,
  * `options`, `limits` and `name`.
  */
-import { describeDimension } from "../units/parse.js";
-import type { Dimension } from "../quantity.js";
-import { seriesNames } from "./eseries.js";
+import { describeDimension, type Dimension } from "../quantity.js";
+import { maxCandidates, seriesNames } from "./eseries.js";
 import type { StageSpec } from "./synthesis.js";
 
 /** The range a number must lie in, checked after parsing. */
@@ -27,7 +26,7 @@ interface FieldBase {
 
 export type SpecField =
   | (FieldBase & { readonly kind: "quantity"; readonly dim: Dimension; readonly range: SpecRange })
-  | (FieldBase & { readonly kind: "integer"; readonly min: number })
+  | (FieldBase & { readonly kind: "integer"; readonly min: number; readonly max?: number })
   | (FieldBase & { readonly kind: "boolean" })
   | (FieldBase & { readonly kind: "choice"; readonly values: readonly string[] })
   /** An object; with `oneOf`, exactly one of those keys must be given. */
@@ -88,7 +87,13 @@ const base = {
     meaning: 'IEC 60063 series the resistors are chosen from; "exact" keeps the ideal values',
     fallback: "E24",
   },
-  candidates: { kind: "integer", min: 1, meaning: "standard values tried per resistor, nearest first", fallback: "2 (the neighbours either side)" },
+  candidates: {
+    kind: "integer",
+    min: 1,
+    max: maxCandidates,
+    meaning: `standard values tried per resistor, nearest first; at most ${maxCandidates} because the combinations tried grow as candidates^resistors (${maxCandidates}⁴ = ${maxCandidates ** 4} for four resistors)`,
+    fallback: "2 (the neighbours either side)",
+  },
   dissipation: {
     kind: "group",
     meaning: "power limits the chosen design is checked against",
@@ -218,7 +223,7 @@ export function acceptsText(f: SpecField): string {
     case "quantity":
       return `${describeDimension(f.dim)}, ${rangeText[f.range]}`;
     case "integer":
-      return `a whole number ≥ ${f.min}`;
+      return f.max === undefined ? `a whole number ≥ ${f.min}` : `a whole number from ${f.min} to ${f.max}`;
     case "boolean":
       return "true or false";
     case "choice":

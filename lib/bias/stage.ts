@@ -7,9 +7,10 @@
  */
 import { device as makeDevice, polaritySign, defaultPhi, modelOf, type Device } from "../device/card.js";
 import { models } from "../device/models/index.js";
-import type { ClmMode } from "../device/drain-current.js";
+import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
+import { inversion, inversionFinding, type InversionOptions } from "../device/inversion.js";
 import { smallSignal } from "../device/small-signal.js";
-import { InfeasibleError, InputError, requireFinite } from "../errors.js";
+import { InfeasibleError, InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
 import * as bf from "../formulas/bias.formulas.js";
 import type { Amperes, Ohms, Volts, Watts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
@@ -22,6 +23,7 @@ import {
   type Stage,
   type StageAnalysis,
   type StageCheck,
+  type StageLimits,
   type StageSmallSignal,
   type SwingLimits,
   type Topology,
@@ -95,10 +97,33 @@ export function checkStage(stage: Stage): Device {
   const vss = requireFinite(stage.supplies.vss ?? 0, `${o}: supplies.vss`, "a finite supply voltage in V (0 V when omitted)");
   if (!(vdd > vss)) throw new InfeasibleError(`supplies.vdd = ${vdd} V must be above supplies.vss = ${vss} V`, o);
   if (stage.body !== undefined && !bodyTies.includes(stage.body)) throw new InputError(stage.body, `"source" or "rail"`, `${o}: body`, "invalid-design");
+  checkLimits(stage.limits, o);
   const clm = stage.options?.clm;
   if (clm !== undefined && clm !== "continuous" && clm !== "saturation-only")
     throw new InputError(clm, `"continuous" or "saturation-only"`, `${o}: options.clm`, "invalid-design");
   return dev;
+}
+
+/** Each limit's range: power limits > 0, margins and headroom ≥ 0. */
+const limitRanges: Readonly<Record<keyof StageLimits, { positive: boolean; what: string }>> = {
+  maxDevicePower: { positive: true, what: "a transistor power limit > 0 in W" },
+  maxTotalPower: { positive: true, what: "a total power limit > 0 in W" },
+  minSaturationMargin: { positive: false, what: "a saturation margin ≥ 0 in V" },
+  minOverdrive: { positive: false, what: "an overdrive ≥ 0 in V" },
+  minSourceHeadroom: { positive: false, what: "a current-source headroom ≥ 0 in V" },
+};
+
+/** Validate a stage's limits: known names, numbers in range (a negative power limit cannot be met by any design). */
+export function checkLimits(limits: StageLimits | undefined, o: string): void {
+  if (limits === undefined) return;
+  if (!limits || typeof limits !== "object") throw new InputError(limits, "limits { maxDevicePower?, maxTotalPower?, minSaturationMargin?, minOverdrive?, minSourceHeadroom? }", `${o}: limits`, "invalid-design");
+  for (const [key, v] of Object.entries(limits)) {
+    const r = limitRanges[key as keyof StageLimits];
+    if (!r) throw new InputError(key, `a limit name (${Object.keys(limitRanges).join(", ")})`, `${o}: limits.${key}`, "invalid-design");
+    if (v === undefined) continue;
+    if (r.positive) requirePositive(v as number, `${o}: limits.${key}`, r.what);
+    else requireNonNegative(v as number, `${o}: limits.${key}`, r.what);
+  }
 }
 
 /** Check the component record against the topology's fields: known names, required present, finite, resistors ≥ 0. */
@@ -125,6 +150,8 @@ export function checkComponents<C>(spec: { id: string; components: readonly Comp
 
 function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, stage: Stage<Id, C>, rec?: Derivation): StageAnalysis {
   const dev = checkStage(stage as Stage);
+  if (stage.devices !== undefined)
+    throw new InputError(Object.keys(stage.devices ?? {}), `no devices: the ${spec.id} topology has one transistor, given by device (devices holds the further transistors of current-mirror and diode-load)`, `${origin(stage as Stage)}: devices`, "invalid-design");
   const comps = checkComponents(spec, stage);
   const o = origin(stage as Stage);
   const card = dev.card;
@@ -159,9 +186,12 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
       if (card.sigma !== undefined) rec.input("SIGMA", card.sigma, "dimensionless", `card ${card.name}`);
     }
     rec.assume(bodyToRail ? `Body tied to the ${pmos ? "upper (VDD)" : "lower (VSS)"} rail: the body effect applies when the source is off that rail.` : "Body tied to the source: VSB = 0, no body effect.");
-    if (pmos) rec.note("PMOS", "Voltages in the equations are in the device's own polarity: each node voltage is negated, so VGS stands for VSG, VDS for VSD and Vt for |Vt|; the drain rail is then the more positive one.");
+    if (pmos)
+      rec.note("Sign convention (PMOS)", pmosConvention);
   }
   const map = spec.map(comps, stage, rec);
+  if (pmos && rec && map.vg !== undefined)
+    rec.note("Gate in device polarity", `Mirrored for the PMOS equations: VG = −(${fmtV(map.vg)}) = ${fmtV(-map.vg)} (VDR = −VSS = ${fmtV(-vss)}, VSR = −VDD = ${fmtV(-vdd)}).`);
   const net: BiasNetwork = {
     k: (card.kp * dev.w) / dev.l,
     vt0: s * card.vt0,
@@ -179,7 +209,8 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     bodyToRail,
     ...(modelOf(card) === "square-law" ? {} : { device: dev }),
   };
-  if (net.vt0 <= 0) rec?.find("caution", `The card's threshold ${card.vt0} V describes a depletion-mode device; the bias equations still hold.`);
+  const depletion = depletionFinding(card);
+  if (depletion) rec?.find("caution", depletion);
   const sol = solveNetwork(net, newSolution(), o, rec);
   if (rec && (sol.method === "bracketed-newton" || sol.method === "bracketed-regula-falsi") && net.iss <= 0) {
     rec.step(bf.sourceNode, [net.vsr, sol.id, net.rs], sol.vs, "at the solved drain current");
@@ -190,13 +221,11 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   const vS = (s * sol.vs) as Volts;
   const vD = (s * sol.vd) as Volts;
   const vB = (bodyToRail ? s * net.vsr : vS) as Volts;
+  if (pmos) rec?.note("Node voltages to ground", `Mirrored back: VG = ${fmtV(vG)}, VS = ${fmtV(vS)}, VD = ${fmtV(vD)}; the device sees VSG = ${fmtV(vS - vG)} and VSD = ${fmtV(vS - vD)}.`);
   rec?.note("Device at the solved node voltages", "The operating point of the transistor at these terminal voltages, region and current from the device model:");
   const small = smallSignal(dev, { vgs: (vG - vS) as Volts, vds: (vD - vS) as Volts, vsb: (vS - vB) as Volts }, { clm }, rec);
   const op = small.op;
   const idNet = sol.id;
-  const idDev = Math.abs(op.channelCurrent);
-  const resid = Math.abs(idDev - idNet);
-  rec?.check("Device current equals network current (KCL)", resid, "current", { max: 1e-9 * Math.max(idNet, 1e-9) + 1e-15 }, "residual of the solved operating point");
   const ss: StageSmallSignal = { gm: small.gm, gmb: small.gmb, gds: small.gds, ro: small.ro };
   const gmbEff = bodyToRail ? small.gmb : 0;
   const solved: SolvedStage = {
@@ -212,7 +241,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     vov: op.vov,
   };
   // Currents and power.
-  const currents: Record<string, Amperes> = { drain: idNet as Amperes };
+  const currents: Record<string, Amperes> = { drainMagnitude: idNet as Amperes };
   const power: Record<string, Watts> = {};
   const c = comps as Record<string, number | undefined>;
   const resistorPower = (name: string, i: number, r: number) => {
@@ -248,14 +277,21 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
   const amplifiers = op.region === "cutoff" ? [] : spec.amplifiers(solved, rec);
   if (op.region === "cutoff") rec?.note("Small-signal gain", "The device is in cutoff: there is no transconductance and no gain.");
   const swing = op.region === "cutoff" ? [] : spec.swing(solved, rec);
-  const { checks, findings } = stageMetrics(solved, pDev, total, rec);
+  const metrics = stageMetrics(solved, pDev, total, rec);
+  // solveNetwork verified KCL and the region conditions (verify.ts); the record shows the residual it found, after the design checks.
+  rec?.check("Solver: device current equals network current (KCL)", sol.kcl, "current", { max: sol.kclTolerance }, "residual of the solved operating point; tolerance 1e-9·I + G·δV (verify.ts)");
+  const checks = metrics.checks;
+  const findings = depletion ? [depletion, ...metrics.findings] : metrics.findings;
+  // The inversion-level finding the record carries (operatingPoint records it), in the analysis findings too.
+  const inv = stageInversionFinding(op, stage.options);
+  if (inv) findings.splice(findings.length - 1, 0, inv);
   return {
     topology: stage.topology,
     ...(stage.name ? { name: stage.name } : {}),
     polarity: card.polarity,
     region: op.region,
     nodes: { gate: vG, source: vS, drain: vD, body: vB, vdd, vss },
-    currents: { ...currents, drain: idNet as Amperes, supply },
+    currents: { ...currents, drainMagnitude: idNet as Amperes, supply },
     op,
     smallSignal: ss,
     metrics: { amplifiers, swing, checks: checks as StageCheck[] },
@@ -264,3 +300,29 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     findings,
   };
 }
+
+/**
+ * A card whose threshold has the other sign from an enhancement device of its
+ * polarity (NMOS vt0 ≤ 0, PMOS vt0 ≥ 0) describes a depletion-mode device: it
+ * conducts at VGS = 0. The square law holds for it unchanged; say so.
+ */
+export function depletionFinding(card: { readonly polarity: string; readonly vt0: number; readonly name?: string }): string | undefined {
+  const s = card.polarity === "nmos" ? 1 : -1;
+  if (s * card.vt0 > 0) return undefined;
+  const sign = card.polarity === "nmos" ? "VTO ≤ 0 for an NMOS" : "VTO ≥ 0 for a PMOS";
+  return `Depletion-mode device: card ${card.name ? `"${card.name}" ` : ""}has VTO = ${card.vt0} V (${sign}), so it conducts with VGS = 0. The square-law equations still hold; check that a depletion device is what was meant (an enhancement ${card.polarity === "nmos" ? "NMOS has VTO > 0" : "PMOS has VTO < 0"}).`;
+}
+
+/** The inversion-level finding at an operating point (none in strong inversion or cutoff), worded as the record words it. */
+export function stageInversionFinding(op: OperatingPoint, opts: InversionOptions | undefined): string | undefined {
+  if (op.region === "cutoff") return undefined;
+  const forward = (op.k / 2) * op.vov * op.vov;
+  if (!Number.isFinite(forward)) return undefined;
+  return inversionFinding(inversion(forward as Amperes, op.k, opts ?? {}))?.text;
+}
+
+const fmtV = (x: number) => `${+x.toPrecision(6)} V`;
+
+/** The one sign convention every PMOS record states at its top (analysis and synthesis alike). */
+export const pmosConvention =
+  "Inputs, targets and the node voltages reported at the end are node voltages to ground. The equations in between are in the device's own polarity: every node voltage is mirrored (V → −V), so VG, VS, VD, VDR and VSR there are mirrored node voltages (VDR = −VSS, VSR = −VDD) and VGS, VDS, Vt stand for VSG, VSD, |Vt|; the drain rail is then the more positive one. Checks and margins are in the device's polarity (VSG − |Vt|, VSD − VOV).";

@@ -14,6 +14,12 @@
  * the spread when each figure is monotone in each parameter (true of the
  * single-transistor resistor networks in saturation); Monte Carlo does not
  * bound it. Verify by simulation and measurement.
+ *
+ * Memory: the cases are streamed. Spreads, counts and the failures are
+ * aggregated as each case is solved; the report keeps the first `keptCases`
+ * cases and the first `keptFailures` failures (for tables and plots), so memory
+ * stays constant however many cases run. The total (corners, or samples ×
+ * temperatures) is bounded by `maxCases`; more is refused with InputError.
  */
 import type { DeviceCard } from "../device/card.js";
 import { polaritySign } from "../device/card.js";
@@ -21,6 +27,7 @@ import { cardAtTemperature } from "../device/temperature.js";
 import { InputError, PinchoffError, requireNonNegative, requirePositive } from "../errors.js";
 import type { Kelvin, Volts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
+import { formatQuantity } from "../units/format.js";
 import { seriesOf, toleranceOf, type SeriesName } from "./eseries.js";
 import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
 
@@ -89,7 +96,12 @@ export interface ToleranceReport {
   readonly method: "corners" | "monte-carlo";
   readonly parameters: readonly ToleranceParameter[];
   readonly temperatures: readonly (Kelvin | undefined)[];
+  /** The first `keptCases` cases, in the order solved (all of them when there are no more). */
   readonly cases: readonly ToleranceCase[];
+  /** How many cases were solved (excluding the nominal). */
+  readonly caseCount: number;
+  /** How many cases left saturation or could not be solved; `failures` holds the first `keptFailures`. */
+  readonly failureCount: number;
   readonly nominal: ToleranceCase;
   readonly id: FigureSpread;
   readonly vd: FigureSpread;
@@ -102,8 +114,15 @@ export interface ToleranceReport {
   readonly failures: readonly ToleranceCase[];
 }
 
-/** Corner analysis beyond this many cases is refused; use Monte Carlo instead. */
-export const maxCases = 50_000;
+/**
+ * Largest number of cases one analysis solves (corners, or Monte Carlo samples
+ * × temperatures): about a minute of solving on one core. More is refused.
+ */
+export const maxCases = 200_000;
+/** Cases kept in the report for tables and plots; the rest are aggregated only. */
+export const keptCases = 1_000;
+/** Failing cases kept in the report. */
+export const keptFailures = 100;
 
 /** mulberry32: a small seeded 32-bit generator (public domain), enough for reproducible tolerance runs. */
 function seeded(seed: number): () => number {
@@ -190,7 +209,7 @@ export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceS
         ...base,
         ok: a.region === "saturation",
         region: a.region,
-        id: a.currents.drain!,
+        id: a.currents.drainMagnitude!,
         vd: a.nodes.drain!,
         vs: a.nodes.source!,
         vov: a.op.vov,
@@ -205,85 +224,106 @@ export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceS
   const zeros = params.map(() => 0);
   const nominal = runCase(zeros, undefined);
   if (nominal.error) throw new PinchoffError("infeasible", `the nominal stage could not be solved: ${nominal.error}`, "tolerance");
+  // Streamed aggregation: the nominal seeds every spread, each case updates them, only a bounded sample is kept.
+  const keys = ["id", "vd", "vs", "vov", "saturationMargin"] as const;
+  const spreads = Object.fromEntries(keys.map((k) => [k, { nominal: nominal[k]!, min: Infinity, max: -Infinity, minAt: "", maxAt: "" }])) as Record<(typeof keys)[number], { nominal: number; min: number; max: number; minAt: string; maxAt: string }>;
   const cases: ToleranceCase[] = [];
+  const failures: ToleranceCase[] = [];
+  let caseCount = 0;
+  let failureCount = 0;
+  const take = (c: ToleranceCase) => {
+    for (const k of keys) {
+      const x = c[k];
+      if (x === undefined) continue;
+      const sp = spreads[k];
+      if (x < sp.min) [sp.min, sp.minAt] = [x, c.label];
+      if (x > sp.max) [sp.max, sp.maxAt] = [x, c.label];
+    }
+    if (c === nominal) return;
+    caseCount++;
+    if (cases.length < keptCases) cases.push(c);
+    if (!c.ok) {
+      failureCount++;
+      if (failures.length < keptFailures) failures.push(c);
+    }
+  };
+  take(nominal);
   let method: ToleranceReport["method"] = "corners";
   if (spec.monteCarlo) {
     method = "monte-carlo";
     const mc = spec.monteCarlo;
     if (!Number.isInteger(mc.samples) || mc.samples < 1 || mc.samples > maxCases)
       throw new InputError(mc.samples, `an integer sample count from 1 to ${maxCases}`, "tolerance.monteCarlo.samples");
-    if (!Number.isInteger(mc.seed)) throw new InputError(mc.seed, "an integer seed", "tolerance.monteCarlo.seed");
+    if (mc.samples * temps.length > maxCases)
+      throw new InputError(mc.samples * temps.length, `at most ${maxCases} cases in all (${mc.samples} samples × ${temps.length} temperatures asked for): fewer samples or temperatures`, "tolerance.monteCarlo");
+    // The generator's state is 32 bits: a seed outside [0, 2³²) would alias another (0 and 2³² gave the same samples).
+    if (!Number.isInteger(mc.seed) || mc.seed < 0 || mc.seed >= 2 ** 32) throw new InputError(mc.seed, "an integer seed from 0 to 4294967295 (2³² − 1)", "tolerance.monteCarlo.seed");
     const dist = mc.distribution ?? "uniform";
     if (dist !== "uniform" && dist !== "normal") throw new InputError(dist, `"uniform" or "normal"`, "tolerance.monteCarlo.distribution");
     const rand = seeded(mc.seed);
     // Box–Muller for the normal case, with the band as 3σ.
     const draw = () => (dist === "uniform" ? 2 * rand() - 1 : (Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand())) / 3);
-    for (let n = 0; n < mc.samples; n++) for (const t of temps) cases.push(runCase(params.map(draw), t));
+    for (let n = 0; n < mc.samples; n++) for (const t of temps) take(runCase(params.map(draw), t));
   } else {
     const count = 2 ** params.length * temps.length;
     if (count > maxCases) throw new InputError(count, `at most ${maxCases} corner cases (use monteCarlo)`, "tolerance");
     for (const t of temps)
-      for (let m = 0; m < 2 ** params.length; m++) cases.push(runCase(params.map((_, i) => ((m >> i) & 1 ? 1 : -1)), t));
+      for (let m = 0; m < 2 ** params.length; m++) take(runCase(params.map((_, i) => ((m >> i) & 1 ? 1 : -1)), t));
   }
-
-  const spread = (key: "id" | "vd" | "vs" | "vov" | "saturationMargin"): FigureSpread => {
-    let min = Infinity;
-    let max = -Infinity;
-    let minAt = "";
-    let maxAt = "";
-    for (const c of [nominal, ...cases]) {
-      const x = c[key];
-      if (x === undefined) continue;
-      if (x < min) [min, minAt] = [x, c.label];
-      if (x > max) [max, maxAt] = [x, c.label];
-    }
-    return { nominal: nominal[key]!, min, max, minAt, maxAt };
-  };
-  const failures = cases.filter((c) => !c.ok);
   const report: ToleranceReport = {
     method,
     parameters: params,
     temperatures: temps,
     cases,
+    caseCount,
+    failureCount,
     nominal,
-    id: spread("id"),
-    vd: spread("vd"),
-    vs: spread("vs"),
-    vov: spread("vov"),
-    saturationMargin: spread("saturationMargin"),
-    allInSaturation: nominal.ok && failures.length === 0,
+    ...spreads,
+    allInSaturation: nominal.ok && failureCount === 0,
     failures,
   };
-  if (rec) recordTolerance(report, stage, rec);
+  if (rec) recordTolerance(report, stage, rec, spec.monteCarlo);
   return report;
 }
 
-function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation): void {
+function recordTolerance(r: ToleranceReport, stage: Stage, rec: Derivation, mc?: MonteCarlo): void {
+  // The inputs of this analysis, so its fingerprint covers what produced it (not only the stage's own record).
+  for (const p of r.parameters) {
+    const dim = p.name === "Vt" ? "voltage" : p.name === "k'" ? "transconductanceParameter" : "resistance";
+    rec.input(p.name === "Vt" ? "VTO" : p.name === "k'" ? "KP" : p.name.toUpperCase(), p.nominal, dim, p.name === "Vt" || p.name === "k'" ? `card ${stage.device.card.name}` : `components.${p.name}`);
+    rec.input(`${p.name === "Vt" ? "VTO" : p.name === "k'" ? "KP" : p.name.toUpperCase()} band`, p.band, p.relative ? "fraction" : "voltage", p.relative ? "relative half-width" : "absolute half-width");
+  }
+  r.temperatures.forEach((t, i) => t !== undefined && rec.input(`T${r.temperatures.length > 1 ? i + 1 : ""}`, t, "temperature", "tolerance.temperatures"));
+  if (mc) {
+    rec.input("samples", mc.samples, "count", "tolerance.monteCarlo.samples");
+    rec.input("seed", mc.seed, "count", "tolerance.monteCarlo.seed");
+  }
   const band = (p: ToleranceParameter) => (p.relative ? `±${+(p.band * 100).toPrecision(3)} %` : `±${+(p.band * 1e3).toPrecision(3)} mV`);
   rec.note(
     r.method === "corners" ? "Worst-case corners" : "Monte Carlo",
-    `${r.cases.length} cases: ${r.parameters.map((p) => `${p.name} ${band(p)}`).join(", ")}` +
+    `${r.caseCount} cases: ${r.parameters.map((p) => `${p.name} ${band(p)}`).join(", ")}` +
       (r.temperatures[0] !== undefined ? `, at ${r.temperatures.map((t) => `${+(t! - 273.15).toFixed(2)} °C`).join(", ")}` : "") +
       (r.method === "corners" ? "; each parameter at both ends of its band." : "; seeded, reproducible; the result is a sample, not a bound."),
   );
-  const f = (x: number, unit: string) => `${+x.toPrecision(4)} ${unit}`;
-  const line = (name: string, s: FigureSpread, unit: string) =>
-    `${name}: ${f(s.min, unit)} (${s.minAt}) to ${f(s.max, unit)} (${s.maxAt}), nominal ${f(s.nominal, unit)}`;
+  // Engineering units (566.1 µA, not 0.0005661 A), four digits.
+  const f = (x: number, dim: "current" | "voltage") => formatQuantity(x, dim, { digits: 4 });
+  const line = (name: string, s: FigureSpread, dim: "current" | "voltage") =>
+    `${name}: ${f(s.min, dim)} (${s.minAt}) to ${f(s.max, dim)} (${s.maxAt}), nominal ${f(s.nominal, dim)}`;
   rec.note(
     "Spread of the bias",
-    [line("ID", r.id, "A"), line("VD", r.vd, "V"), line("VS", r.vs, "V"), line("VOV", r.vov, "V"), line("VDS − VOV", r.saturationMargin, "V")].join("\n"),
+    [line("ID", r.id, "current"), line("VD", r.vd, "voltage"), line("VS", r.vs, "voltage"), line("VOV", r.vov, "voltage"), line("VDS − VOV", r.saturationMargin, "voltage")].join("\n"),
   );
   const minMargin = stage.limits?.minSaturationMargin ?? 0;
   rec.check(`Saturation margin in every case ≥ ${minMargin} V`, r.saturationMargin.min, "voltage", { min: minMargin }, `worst case ${r.saturationMargin.minAt}`);
   // The margin spread covers only the cases that solved; count the others, so an unsolvable corner fails too.
-  const out = r.failures.length + (r.nominal.ok ? 0 : 1);
+  const out = r.failureCount + (r.nominal.ok ? 0 : 1);
   const first = r.failures[0];
   rec.check("No corner out of saturation or unsolvable (count of such cases)", out, "count", { max: 0 },
-    out === 0 ? `${r.cases.length} cases` : `first: ${first?.label ?? "nominal"}: ${first?.error ?? first?.region ?? r.nominal.region}`);
+    out === 0 ? `${r.caseCount} cases` : `first: ${first?.label ?? "nominal"}: ${first?.error ?? first?.region ?? r.nominal.region}`);
   if (!r.allInSaturation)
     rec.find(
       "warning",
-      `${r.failures.length} of ${r.cases.length} cases leave saturation or cannot be solved; first: ${r.failures[0]?.label ?? "nominal"} (${r.failures[0]?.error ?? r.failures[0]?.region ?? r.nominal.region}).`,
+      `${r.failureCount} of ${r.caseCount} cases leave saturation or cannot be solved; first: ${r.failures[0]?.label ?? "nominal"} (${r.failures[0]?.error ?? r.failures[0]?.region ?? r.nominal.region}).`,
     );
   rec.find("caution", "Tolerance analysis covers only the spreads stated; verify by simulation with the process corners and by measurement.");
 }

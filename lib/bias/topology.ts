@@ -241,8 +241,8 @@ export interface StageDeviceAnalysis {
 
 /** Node voltages every topology reports, plus any of its own. */
 export type StageNodes = Readonly<Record<"gate" | "source" | "drain" | "body" | "vdd" | "vss", Volts> & Record<string, Volts>>;
-/** Branch currents every topology reports (the channel current and the supply current), plus its components'. */
-export type StageCurrents = Readonly<Record<"drain" | "supply", Amperes> & Record<string, Amperes>>;
+/** Branch currents every topology reports (the channel current's magnitude and the supply current), plus its components'. */
+export type StageCurrents = Readonly<Record<"drainMagnitude" | "supply", Amperes> & Record<string, Amperes>>;
 
 /** The analysis of a stage at its DC operating point. */
 export interface StageAnalysis {
@@ -253,9 +253,10 @@ export interface StageAnalysis {
   /** Absolute node voltages: gate, source, drain, body, vdd, vss always; further nodes by name. */
   readonly nodes: StageNodes;
   /**
-   * Branch currents, absolute values in the conventional direction of normal
-   * operation: `drain` is the channel current; `supply` the current drawn from
-   * vdd; resistor currents by component name.
+   * Branch currents, magnitudes (≥ 0) in the conventional direction of normal
+   * operation: `drainMagnitude` is |channel current| (the signed drain-terminal
+   * current is `op.id`); `supply` the current drawn from vdd; resistor currents
+   * by component name.
    */
   readonly currents: StageCurrents;
   /** The device operating point at the solved terminal voltages. */

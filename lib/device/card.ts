@@ -69,11 +69,23 @@ export interface DeviceCard {
   readonly provenance?: string;
 }
 
+/** Brand of a validated device: only `device()` and `checkDevice()` produce it. */
+declare const validated: unique symbol;
+
+/**
+ * A card with drawn W and L, validated. Made only by `device()` or
+ * `checkDevice()`, which return a frozen copy: a `Device` cannot change after
+ * its check, so the hot path needs none of its own.
+ */
 export interface Device {
   readonly card: DeviceCard;
   readonly w: Meters;
   readonly l: Meters;
+  readonly [validated]: true;
 }
+
+/** The devices `device()` made; a WeakSet so a device is forgotten with its last reference. */
+const made = new WeakSet<object>();
 
 /** SPICE Level 1 default for PHI when a card omits it. */
 export const defaultPhi = 0.6 as Volts;
@@ -124,19 +136,37 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   return card;
 }
 
-/** Make a device from a card and drawn W and L, validating both. */
+/** Make a device from a card and drawn W and L, validating both; returns a frozen copy. */
 export function device(card: DeviceCard, w: Meters, l: Meters, origin = "device"): Device {
   checkCard(card, `${origin}.card`);
   requirePositive(w, `${origin}.w`, "a channel width W > 0 in m");
   requirePositive(l, `${origin}.l`, "a channel length L > 0 in m");
-  return { card, w, l };
+  const k = (card.kp * w) / l;
+  if (!Number.isFinite(k)) throw new InputError(`kp·W/L = ${card.kp}·${w}/${l}`, "a finite device gain k = kp·W/L in A/V²", origin);
+  const dev = Object.freeze({ card: frozenCopy(card), w, l }) as unknown as Device;
+  made.add(dev);
+  return dev;
 }
 
-/** Validate a device built by hand (not through `device`); returns it unchanged. */
-export function checkDevice(dev: Device, origin = "device"): Device {
-  if (!dev || typeof dev !== "object") throw new InputError(dev, "a device { card, w, l }", origin);
-  checkCard(dev.card, `${origin}.card`);
-  requirePositive(dev.w, `${origin}.w`, "a channel width W > 0 in m");
-  requirePositive(dev.l, `${origin}.l`, "a channel length L > 0 in m");
-  return dev;
+/**
+ * A validated device from one that may not be: a device `device()` made is
+ * returned as it is; anything else (a `{ card, w, l }` read from a file or built
+ * by hand) is checked field by field and copied.
+ */
+export function checkDevice(dev: unknown, origin = "device"): Device {
+  if (isDevice(dev)) return dev;
+  if (!dev || typeof dev !== "object") throw new InputError(dev, "a device { card, w, l } (make one with device(card, W, L))", origin);
+  const d = dev as { card: DeviceCard; w: Meters; l: Meters };
+  return device(d.card, d.w, d.l, origin);
+}
+
+/** True for a device made by `device()` or `checkDevice()`: one WeakSet look-up. */
+export const isDevice = (dev: unknown): dev is Device => typeof dev === "object" && dev !== null && made.has(dev);
+
+/** A deep, frozen copy of JSON card data, so the validated values cannot be changed afterwards. */
+function frozenCopy<T>(value: T): T {
+  if (value === null || typeof value !== "object") return value;
+  const copy: Record<string, unknown> = Array.isArray(value) ? ([] as unknown as Record<string, unknown>) : {};
+  for (const [k, v] of Object.entries(value)) copy[k] = frozenCopy(v);
+  return Object.freeze(copy) as T;
 }

@@ -4,13 +4,13 @@
  * `model` picks the equations, device/models/); `operatingPoint` returns the
  * whole picture and records its steps.
  */
-import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
+import { deviceGain, forwardCurrent, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, AmperesPerVoltSquared, PerVolt, Ratio, SqrtVolts, Volts } from "../quantity.js";
-import { cardTemperature, defaultPhi, polaritySign, type Device, type ModelId } from "./card.js";
+import { cardTemperature, checkDevice, defaultPhi, isDevice, polaritySign, type Device, type ModelId } from "./card.js";
 import { modelRegionReason, regionOf, regionReason, type Region } from "./region.js";
 import { thresholdMagnitude } from "./threshold.js";
-import { requireFinite } from "../errors.js";
+import { InputError, requireFinite } from "../errors.js";
 import { inversion, type InversionOptions } from "./inversion.js";
 import { channelCurrent, type ClmMode } from "./models/square-law.js";
 import { mobilityBias, mobilityChannelCurrent } from "./models/mobility.js";
@@ -79,15 +79,20 @@ export function deviceCurrent(dev: Device, g: number, d: number, b: number, clm:
 
 /**
  * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb, for every model.
- * Plain numbers in, plain number out, no allocation: the form for sweeps and Monte Carlo.
+ * Plain numbers in, plain number out, no allocation: the form for sweeps and Monte
+ * Carlo. The device must come from `device()`/`checkDevice()` (one WeakSet
+ * look-up proves it); the card's values are then known good and are not checked again.
  */
 export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm: ClmMode = "continuous"): Amperes {
+  if (!isDevice(dev)) throw new InputError(dev, "a device made by device(card, W, L) or checkDevice(...)", "drainCurrent.dev");
   const s = dev.card.polarity === "nmos" ? 1 : -1;
   return (s * deviceCurrent(dev, s * vgs, s * vds, s * vsb, clm)) as Amperes;
 }
 
 /** The whole operating point at given terminal voltages, recorded step by step when `rec` is given. */
-export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+export function operatingPoint(device: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): OperatingPoint {
+  const dev = checkDevice(device, "operatingPoint.dev");
+  if (!bias || typeof bias !== "object") throw new InputError(bias, "terminal voltages { vgs, vds, vsb? } in V", "operatingPoint.bias");
   requireFinite(bias.vgs, "bias.vgs", "a finite VGS in V");
   requireFinite(bias.vds, "bias.vds", "a finite VDS in V");
   if (bias.vsb !== undefined) requireFinite(bias.vsb, "bias.vsb", "a finite VSB in V");
@@ -134,7 +139,7 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
   if (rec && region !== "cutoff") {
     // The inversion level rests on the forward current ½·k·VOV² (no λ), in triode as in saturation.
     const plainSat = region === "saturation" && lambda === 0;
-    const forward = plainSat ? (ich as Amperes) : rec.calc(saturationCurrent, [k, vov], "forward current, for the inversion level");
+    const forward = plainSat ? (ich as Amperes) : rec.calc(forwardCurrent, [k, vov], "for the inversion level");
     inversion(forward, k, opts, rec);
   }
   const channel = ((reversed ? -1 : 1) * ich) as Amperes;

@@ -75,8 +75,8 @@ function requireSaturation(vov: number, vds: number | undefined, what: string, f
 }
 
 /** Overdrive magnitude that gives |ID| = `id` in saturation (with λ at `opts.vds`, when given). */
-export function overdriveFor(dev: Device, id: Amperes, opts: SaturationOptions = {}, rec?: Derivation): Volts {
-  checkDevice(dev, "overdriveFor.dev");
+export function overdriveFor(device: Device, id: Amperes, opts: SaturationOptions = {}, rec?: Derivation): Volts {
+  const dev = checkDevice(device, "overdriveFor.dev");
   if (modelOf(dev.card) !== "square-law") return gateVoltageForModel(dev, id, opts, rec).vov;
   const i = targetCurrent(id, "overdriveFor.id");
   const vds = deviceVds(dev.card, opts.vds, "overdriveFor.opts.vds");
@@ -102,8 +102,8 @@ export function overdriveFor(dev: Device, id: Amperes, opts: SaturationOptions =
 }
 
 /** Gate-source voltage (SPICE sign) for |ID| = `id` in saturation, with the body effect at `opts.vsb`. */
-export function gateVoltageFor(dev: Device, id: Amperes, opts: GateDriveOptions = {}, rec?: Derivation): GateDrive {
-  checkDevice(dev, "gateVoltageFor.dev");
+export function gateVoltageFor(device: Device, id: Amperes, opts: GateDriveOptions = {}, rec?: Derivation): GateDrive {
+  const dev = checkDevice(device, "gateVoltageFor.dev");
   if (modelOf(dev.card) !== "square-law") return gateVoltageForModel(dev, id, opts, rec);
   const c = dev.card;
   const s = polaritySign(c);

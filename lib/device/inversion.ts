@@ -58,25 +58,31 @@ export function inversion(forward: Amperes, k: AmperesPerVoltSquared, opts: Inve
     if (opts.slopeFactor === undefined) rec.assume(`Slope factor n = ${defaultSlopeFactor} (from memory; typical bulk CMOS 1.2 to 1.5).`);
     if (opts.temperature === undefined) rec.assume("Inversion level evaluated at 27 °C (SPICE nominal temperature).");
     rec.step(inversionCoefficient, [forward, n, k, ut], ic, `inversion level: ${level}`);
-    recordInversionFinding(ic, level, n, ut, rec);
+    recordInversionFinding({ ic, level, slopeFactor: n, ut }, rec);
   }
   return { ic, level, slopeFactor: n, ut };
 }
 
-function recordInversionFinding(ic: number, level: InversionLevel, n: Ratio, ut: Volts, rec: Derivation): void {
+/** The reader's finding outside strong inversion (one wording for records and analysis findings); none in strong inversion. */
+export function inversionFinding(inv: Inversion): { readonly severity: "warning" | "caution"; readonly text: string } | undefined {
   const p = (x: number) => `${+x.toPrecision(3)}`;
-  if (level === "strong") return;
-  const limit: SiemensPerAmpere = weakInversionEfficiency.fn(n, ut);
-  rec.step(weakInversionEfficiency, [n, ut], limit, "ceiling on gm/ID, reached in weak inversion");
-  if (level === "weak") {
-    rec.find(
-      "warning",
-      `Weak inversion (IC = ${p(ic)} < ${weakInversionBelow}): the square law does not hold here. The current is exponential in VGS and gm/ID approaches 1/(n·UT) = ${p(limit)} S/A; square-law currents and gm are not usable. Use a weak-inversion (EKV or subthreshold) model and verify by simulation and measurement.`,
-    );
-  } else {
-    rec.find(
-      "caution",
-      `Moderate inversion (IC = ${p(ic)}, between ${weakInversionBelow} and ${strongInversionAbove}): the square law overestimates gm (gm/ID cannot exceed ${p(limit)} S/A) and its current error grows as IC falls. Treat these numbers as rough and verify by simulation.`,
-    );
-  }
+  if (inv.level === "strong") return undefined;
+  const limit = weakInversionEfficiency.fn(inv.slopeFactor, inv.ut);
+  if (inv.level === "weak")
+    return {
+      severity: "warning",
+      text: `Weak inversion (IC = ${p(inv.ic)} < ${weakInversionBelow}): the square law does not hold here. The current is exponential in VGS and gm/ID approaches 1/(n·UT) = ${p(limit)} S/A; square-law currents and gm are not usable. Use a weak-inversion (EKV or subthreshold) model and verify by simulation and measurement.`,
+    };
+  return {
+    severity: "caution",
+    text: `Moderate inversion (IC = ${p(inv.ic)}, between ${weakInversionBelow} and ${strongInversionAbove}): the square law overestimates gm (gm/ID cannot exceed ${p(limit)} S/A) and its current error grows as IC falls. Treat these numbers as rough and verify by simulation.`,
+  };
+}
+
+function recordInversionFinding(inv: Inversion, rec: Derivation): void {
+  const f = inversionFinding(inv);
+  if (!f) return;
+  const limit: SiemensPerAmpere = weakInversionEfficiency.fn(inv.slopeFactor, inv.ut);
+  rec.step(weakInversionEfficiency, [inv.slopeFactor, inv.ut], limit, "ceiling on gm/ID, reached in weak inversion");
+  rec.find(f.severity, f.text);
 }

@@ -14,7 +14,7 @@
 import { ConvergenceError, InfeasibleError, InputError, requireFinite, requirePositive } from "../errors.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, Meters, SiemensPerAmpere, Volts } from "../quantity.js";
-import { checkDevice, modelOf, polaritySign, type Device, type DeviceCard } from "./card.js";
+import { checkDevice, device, modelOf, polaritySign, type Device, type DeviceCard } from "./card.js";
 import { deviceCurrent, operatingPoint } from "./drain-current.js";
 import type { GateDrive, GateDriveOptions } from "./inverse.js";
 import { derivativeStep } from "./model.js";
@@ -26,7 +26,7 @@ const farSaturation = 10;
 /** The device as evaluated when no VDS is given: λ and σ dropped, so the current no longer depends on VDS beyond VDsat. */
 function saturatedView(dev: Device): Device {
   const { lambda: _l, sigma: _s, ...rest } = dev.card;
-  return { ...dev, card: rest as DeviceCard };
+  return device(rest as DeviceCard, dev.w, dev.l, "saturated view");
 }
 
 /** Solve g(x) = 0 for an increasing g on a bracket widened from [lo, hi] by at most 31 V either way (far beyond any gate-oxide rating). */

@@ -22,7 +22,7 @@ import {
 } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, Ohms, PerVolt, Ratio, Siemens, SiemensPerAmpere, SqrtVolts, Volts } from "../quantity.js";
-import { defaultPhi, type Device } from "./card.js";
+import { checkDevice, defaultPhi, type Device } from "./card.js";
 import { deviceCurrent, operatingPoint, type ModelOptions, type OperatingPoint, type TerminalVoltages } from "./drain-current.js";
 import { inversion, inversionLevelOf, type Inversion } from "./inversion.js";
 import { derivativeStep } from "./model.js";
@@ -52,7 +52,8 @@ export interface SmallSignal {
 }
 
 /** Small-signal parameters at terminal voltages `bias` (SPICE signs), recorded step by step when `rec` is given. */
-export function smallSignal(dev: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): SmallSignal {
+export function smallSignal(device: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): SmallSignal {
+  const dev = checkDevice(device, "smallSignal.dev");
   const op = operatingPoint(dev, bias, opts, rec);
   if (op.model !== "square-law") return modelSmallSignal(dev, op, rec);
   const c = dev.card;

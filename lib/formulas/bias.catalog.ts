@@ -62,13 +62,14 @@ export const formulas = defineFormulas({
   dividerGate: {
     title: "Gate bias from the divider (no gate current)",
     result: "VGG",
-    expr: "(VDD * RG2 + VSS * RG1) / (RG1 + RG2)",
+    // Written with the ratio RG1/RG2 so that no product overflows for resistances up to the largest double.
+    expr: "VSS + (VDD - VSS) / (1 + RG1 / RG2)",
     source: "voltage divider, Kirchhoff's laws (common practice)",
   },
   dividerResistance: {
     title: "Thevenin resistance of the gate divider",
     result: "RG",
-    expr: "RG1 * RG2 / (RG1 + RG2)",
+    expr: "RG1 / (1 + RG1 / RG2)",
     source: "Thevenin's theorem (common practice)",
   },
   railOverdrive: { title: "Overdrive with the source at its rail", result: "VOV0", expr: "VG - VSR - Vt", source: kcl },
@@ -188,7 +189,7 @@ export const formulas = defineFormulas({
   feedbackInput: { title: "Drain-feedback input resistance (Miller)", result: "Rin", expr: "RF / (1 - Av)", source: smallSignal },
   feedbackOutput: { title: "Drain-feedback output resistance RD ∥ RF ∥ ro", result: "Rout", expr: "RD * RF / (RD + RF + gds * RD * RF)", source: smallSignal },
   // swing
-  triodeEdgeDrain: { title: "Lowest drain voltage in saturation (gate held)", result: "Vmin", expr: "VG - Vt", source: "square-law region boundary (common practice)" },
+  triodeEdgeDrain: { title: "Drain at the triode edge (gate held; the swing limit toward the source rail, in device polarity)", result: "Vmin", expr: "VG - Vt", source: "square-law region boundary (common practice)" },
   followerUpperSwing: {
     title: "Highest follower output before triode (overdrive held)",
     result: "Vmax",

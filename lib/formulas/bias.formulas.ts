@@ -3,32 +3,32 @@ import type { Formula } from "./define.js";
 import { sq } from "./define.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, PerVolt, Ratio, Siemens, Volts, Watts } from "../quantity.js";
 
-/** Gate bias from the divider (no gate current): VGG = (VDD * RG2 + VSS * RG1) / (RG1 + RG2) */
+/** Gate bias from the divider (no gate current): VGG = VSS + (VDD - VSS) / (1 + RG1 / RG2) */
 export const dividerGate = {
   id: "dividerGate",
   title: "Gate bias from the divider (no gate current)",
-  expr: "(VDD * RG2 + VSS * RG1) / (RG1 + RG2)",
-  tex: "V_{GG} = \\frac{{V_{DD}}\\cdot{R_{G2}}+{V_{SS}}\\cdot{R_{G1}}}{{R_{G1}}+{R_{G2}}}",
+  expr: "VSS + (VDD - VSS) / (1 + RG1 / RG2)",
+  tex: "V_{GG} = {V_{SS}}+\\frac{{V_{DD}}-{V_{SS}}}{1+\\frac{{R_{G1}}}{{R_{G2}}}}",
   result: "VGG",
   resultDim: "voltage",
-  vars: ["VDD","RG2","VSS","RG1"],
-  dims: ["voltage","resistance","voltage","resistance"],
+  vars: ["VSS","VDD","RG1","RG2"],
+  dims: ["voltage","voltage","resistance","resistance"],
   source: "voltage divider, Kirchhoff's laws (common practice)",
-  fn: (VDD: Volts, RG2: Ohms, VSS: Volts, RG1: Ohms): Volts => ((((VDD * RG2) + (VSS * RG1))) / ((RG1 + RG2))) as Volts,
+  fn: (VSS: Volts, VDD: Volts, RG1: Ohms, RG2: Ohms): Volts => (VSS + (((VDD - VSS)) / ((1 + (RG1 / RG2))))) as Volts,
 } as const satisfies Formula;
 
-/** Thevenin resistance of the gate divider: RG = RG1 * RG2 / (RG1 + RG2) */
+/** Thevenin resistance of the gate divider: RG = RG1 / (1 + RG1 / RG2) */
 export const dividerResistance = {
   id: "dividerResistance",
   title: "Thevenin resistance of the gate divider",
-  expr: "RG1 * RG2 / (RG1 + RG2)",
-  tex: "R_{G} = \\frac{{R_{G1}}\\cdot{R_{G2}}}{{R_{G1}}+{R_{G2}}}",
+  expr: "RG1 / (1 + RG1 / RG2)",
+  tex: "R_{G} = \\frac{{R_{G1}}}{1+\\frac{{R_{G1}}}{{R_{G2}}}}",
   result: "RG",
   resultDim: "resistance",
   vars: ["RG1","RG2"],
   dims: ["resistance","resistance"],
   source: "Thevenin's theorem (common practice)",
-  fn: (RG1: Ohms, RG2: Ohms): Ohms => ((RG1 * RG2) / ((RG1 + RG2))) as Ohms,
+  fn: (RG1: Ohms, RG2: Ohms): Ohms => (RG1 / ((1 + (RG1 / RG2)))) as Ohms,
 } as const satisfies Formula;
 
 /** Overdrive with the source at its rail: VOV0 = VG - VSR - Vt */
@@ -577,10 +577,10 @@ export const feedbackOutput = {
   fn: (RD: Ohms, RF: Ohms, gds: Siemens): Ohms => ((RD * RF) / (((RD + RF) + ((gds * RD) * RF)))) as Ohms,
 } as const satisfies Formula;
 
-/** Lowest drain voltage in saturation (gate held): Vmin = VG - Vt */
+/** Drain at the triode edge (gate held; the swing limit toward the source rail, in device polarity): Vmin = VG - Vt */
 export const triodeEdgeDrain = {
   id: "triodeEdgeDrain",
-  title: "Lowest drain voltage in saturation (gate held)",
+  title: "Drain at the triode edge (gate held; the swing limit toward the source rail, in device polarity)",
   expr: "VG - Vt",
   tex: "V_{min} = {V_{G}}-{V_{t}}",
   result: "Vmin",

@@ -73,6 +73,8 @@ export const formulas = defineFormulas({
     source: levelOne,
   },
   saturationCurrent: { title: "Drain current in saturation", result: "ID", expr: "k / 2 * VOV^2", source: squareLaw },
+  // The same square law, named for what it is where it feeds the inversion level (not the drain current when λ ≠ 0 or in triode).
+  forwardCurrent: { title: "Forward current (saturation-equivalent, without λ)", result: "IF", expr: "k / 2 * VOV^2", source: squareLaw },
   saturationCurrentClm: {
     title: "Drain current in saturation, with channel-length modulation",
     result: "ID",

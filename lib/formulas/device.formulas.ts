@@ -129,6 +129,20 @@ export const saturationCurrent = {
   fn: (k: AmperesPerVoltSquared, VOV: Volts): Amperes => ((k / 2) * sq(VOV)) as Amperes,
 } as const satisfies Formula;
 
+/** Forward current (saturation-equivalent, without λ): IF = k / 2 * VOV^2 */
+export const forwardCurrent = {
+  id: "forwardCurrent",
+  title: "Forward current (saturation-equivalent, without λ)",
+  expr: "k / 2 * VOV^2",
+  tex: "I_{F} = \\frac{{k}}{2}\\cdot{{V_{OV}}}^{2}",
+  result: "IF",
+  resultDim: "current",
+  vars: ["k","VOV"],
+  dims: ["transconductanceParameter","voltage"],
+  source: "Shichman & Hodges, IEEE JSSC SC-3(3), 1968 (square law; SPICE Level 1)",
+  fn: (k: AmperesPerVoltSquared, VOV: Volts): Amperes => ((k / 2) * sq(VOV)) as Amperes,
+} as const satisfies Formula;
+
 /** Drain current in saturation, with channel-length modulation: ID = k / 2 * VOV^2 * (1 + lambda * VDS) */
 export const saturationCurrentClm = {
   id: "saturationCurrentClm",

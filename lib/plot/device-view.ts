@@ -4,7 +4,7 @@
  * builders serves both polarities. Numbers come from lib/device.
  */
 import { InputError, requireFinite, requireNonNegative } from "../errors.js";
-import { defaultPhi, polaritySign, type Device } from "../device/card.js";
+import { checkDevice, defaultPhi, polaritySign, type Device } from "../device/card.js";
 import { drainCurrent, type ClmMode, type OperatingPoint } from "../device/drain-current.js";
 import { thresholdMagnitude } from "../device/threshold.js";
 import type { SqrtVolts, Volts } from "../quantity.js";
@@ -49,8 +49,8 @@ export interface DeviceView {
   readonly name: string;
 }
 
-export function deviceView(dev: Device, vsb: number, clm: ClmMode, origin: string): DeviceView {
-  if (!dev || typeof dev !== "object" || !dev.card) throw new InputError(dev, "a device from device(card, W, L)", `${origin}.device`);
+export function deviceView(device: Device, vsb: number, clm: ClmMode, origin: string): DeviceView {
+  const dev = checkDevice(device, `${origin}.device`);
   requireFinite(vsb, `${origin}.vsb`, "a finite source-body voltage in V");
   if (clm !== "continuous" && clm !== "saturation-only") throw new InputError(clm, `"continuous" or "saturation-only"`, `${origin}.clm`);
   const c = dev.card;

@@ -42,7 +42,8 @@ function one(d: DerivationData, opts: RenderOptions): string {
     out.push("**Working**", "");
     d.steps.forEach((s, n) => {
       out.push(`${n + 1}. **${escapeMarkdown(s.title)}**${s.kind === "formula" && s.because ? ` — ${escapeMarkdown(s.because)}` : ""}`, "");
-      if (s.kind === "note") out.push(`   ${escapeMarkdown(s.text)}`, "");
+      // A note's own line breaks are kept (a hard break per line), so a list in a note stays a list.
+      if (s.kind === "note") out.push(s.text.split("\n").map((l) => `   ${escapeMarkdown(l)}`).join("  \n"), "");
       else {
         const t = stepTex(s, opts);
         out.push(`   $$${t.formula}$$`, "", `   $$${t.substituted}$$`, "", `   $$${t.result}$$`, "");

@@ -4,7 +4,7 @@
  * only lay these out.
  */
 import { InputError } from "../errors.js";
-import { formatQuantity, type FormatOptions } from "../units/format.js";
+import { contrastDigits, formatQuantity, type FormatOptions } from "../units/format.js";
 import type { CheckEntry, Derivation, DerivationData } from "./derivation.js";
 
 /** What renderers accept: a live record or its JSON data. */
@@ -33,16 +33,24 @@ export function verdict(d: DerivationData): { passed: boolean; text: string } {
   return { passed: false, text: `${failed} of ${n} checks fail` };
 }
 
+/** Digits at which a check's value and its bounds print differently when they differ (see contrastDigits). */
+function checkDigits(c: CheckEntry, opts: FormatOptions): FormatOptions {
+  const base = opts.digits ?? 3;
+  const d = Math.max(contrastDigits(c.value, c.min ?? c.value, base), contrastDigits(c.value, c.max ?? c.value, base));
+  return d === base ? opts : { ...opts, digits: d };
+}
+
 /** `≥ 200 mV`, `≤ 4.50 V`, `200 mV … 4.50 V`, or "recorded" when the check has no bound. */
 export function boundText(c: CheckEntry, opts: FormatOptions = {}): string {
-  const f = (v: number) => formatQuantity(v, c.dim, { ...opts, origin: `check "${c.title}" bound` });
+  const o = checkDigits(c, opts);
+  const f = (v: number) => formatQuantity(v, c.dim, { ...o, origin: `check "${c.title}" bound` });
   if (c.min !== undefined && c.max !== undefined) return `${f(c.min)} … ${f(c.max)}`;
   if (c.min !== undefined) return `≥ ${f(c.min)}`;
   if (c.max !== undefined) return `≤ ${f(c.max)}`;
   return "no bound";
 }
 
-export const valueText = (c: CheckEntry, opts: FormatOptions = {}): string => formatQuantity(c.value, c.dim, { ...opts, origin: `check "${c.title}" value` });
+export const valueText = (c: CheckEntry, opts: FormatOptions = {}): string => formatQuantity(c.value, c.dim, { ...checkDigits(c, opts), origin: `check "${c.title}" value` });
 
 /** Margin to the nearest bound, signed: `+120 mV` passed, `-35.0 mV` failed. */
 export function marginText(c: CheckEntry, opts: FormatOptions = {}): string {

@@ -17,6 +17,8 @@ export function textTable(header: readonly string[], rows: ReadonlyArray<readonl
 }
 
 function wrap(text: string, width: number, indent: string): string {
+  // The text's own line breaks stay (a list in a note is one entry per line); each line is wrapped on its own.
+  if (text.includes("\n")) return text.split("\n").map((l) => wrap(l, width, indent)).join("\n");
   const words = text.split(/\s+/).filter(Boolean);
   const lines: string[] = [];
   let cur = "";

@@ -193,3 +193,15 @@ export function scaleFor(values: readonly number[], dim: Dimension): Scale {
   const entry = prefixes.find(([q]) => q === p)!;
   return { divisor: 10 ** p / scale, unit: entry[1] + unit.text, tex: entry[2] + unit.tex };
 }
+
+/**
+ * Significant digits (at least `min`, at most 17) at which `a` and `b` print
+ * differently, so a value and the limit it is compared with never read alike
+ * when they differ ("0.3 V < 0.3 V" becomes "0.2999 V < 0.3 V"). Equal values
+ * get `min`.
+ */
+export function contrastDigits(a: number, b: number, min = 3): number {
+  if (a === b || !Number.isFinite(a) || !Number.isFinite(b)) return min;
+  for (let d = min; d < 17; d++) if (a.toPrecision(d) !== b.toPrecision(d)) return d;
+  return 17;
+}

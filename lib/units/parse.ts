@@ -18,7 +18,7 @@
 import { createRequire } from "node:module";
 import type { MathJsInstance, MathNode, Unit } from "mathjs";
 import { InputError } from "../errors.js";
-import { celsius, dimensions, type Dimension, type Quantity } from "../quantity.js";
+import { dimensionArticle as article, celsius, describeDimension, dimensions, type Dimension, type Quantity } from "../quantity.js";
 import { applyFactor, readDecimal, scaleDecimal, type Decimal } from "./decimal.js";
 import { readSpiceNumber, spiceFactor, splitSpiceFactor } from "./spice-number.js";
 import { readValueCode } from "./value-code.js";
@@ -210,14 +210,8 @@ function normalise(text: string): string {
 // ---------------------------------------------------------------------------
 // Messages.
 
-const article = (label: string) => (/^[aeiou]/i.test(label) ? "an" : "a");
-
-/** "a current in A", "a dimensionless ratio (a plain number)". */
-export function describeDimension(dim: Dimension): string {
-  const d = dimensions[dim];
-  if (dim === "fraction") return `a fraction (in %, e.g. "5 %", or a plain number, 0.05)`;
-  return d.unit === "" ? `${article(d.label)} ${d.label} (a plain number)` : `${article(d.label)} ${d.label} in ${d.unit}`;
-}
+// describeDimension lives with the dimensions table (quantity.ts), so the numeric core can word errors without this parser.
+export { describeDimension };
 
 function describeFound(r: UnitReading): string {
   const d = r.candidates[0];

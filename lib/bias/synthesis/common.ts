@@ -22,6 +22,7 @@ import type { Formula } from "../../formulas/define.js";
 import type { DissipationLimits, DissipationReport } from "../dissipation.js";
 import { seriesNames, type SeriesName } from "../eseries.js";
 import type { SnapResult } from "../snap.js";
+import { specFields, type SpecTopology } from "../spec-fields.js";
 import type { BodyTie, Stage, StageAnalysis, StageLimits, Supplies } from "../topology.js";
 
 /** Either the overdrive (W follows from ID, with L given) or the drawn W and L (VOV follows). */
@@ -98,9 +99,18 @@ export function deviceRails(card: DeviceCard, supplies: Supplies): { vdr: Volts;
   return s > 0 ? { vdr: supplies.vdd, vsr: vss as Volts, s } : { vdr: -vss as Volts, vsr: -supplies.vdd as Volts, s };
 }
 
+/** Fields every specification may carry besides its topology's own (spec-fields.ts leaves these out). */
+const sharedSpecKeys = ["name", "card", "supplies", "body", "options", "limits"] as const;
+
 /** Validate the parts every specification shares. */
 export function checkSpecBase(spec: SpecBase, origin: string): void {
   if (!spec || typeof spec !== "object") throw new InputError(spec, "a specification object", origin);
+  // Known fields: the shared ones and the topology's own (spec-fields.ts, the table the design file also reads).
+  const topology = (spec as { topology?: string }).topology;
+  const own = topology && topology in specFields ? Object.keys(specFields[topology as SpecTopology]) : [];
+  const known = new Set<string>(["topology", ...sharedSpecKeys, ...own]);
+  for (const key of Object.keys(spec))
+    if (!known.has(key)) throw new InputError(key, `a field of the ${topology ?? "stage"} specification (${[...known].join(", ")})`, `${origin}.${key}`, "invalid-design");
   if (!spec.supplies || typeof spec.supplies !== "object") throw new InputError(spec.supplies, "supplies { vdd, vss? } in V", `${origin}.supplies`);
   const vdd = spec.supplies.vdd;
   const vss = spec.supplies.vss ?? 0;
@@ -112,6 +122,9 @@ export function checkSpecBase(spec: SpecBase, origin: string): void {
   const z = spec.sizing as Record<string, unknown> | undefined;
   if (!z || typeof z !== "object") throw new InputError(z, "sizing { vov, l } or { w, l }", `${origin}.sizing`);
   requirePositive(z.l as number, `${origin}.sizing.l`, "a channel length L > 0 in m");
+  if ("vov" in z && "w" in z) throw new InputError(z, "sizing with either vov (W then follows from ID) or w (VOV then follows), not both", `${origin}.sizing`);
+  for (const key of Object.keys(z))
+    if (key !== "vov" && key !== "w" && key !== "l") throw new InputError(key, "a sizing field: vov or w, and l", `${origin}.sizing.${key}`, "invalid-design");
   if ("vov" in z) requirePositive(z.vov as number, `${origin}.sizing.vov`, "an overdrive > 0 in V");
   else if ("w" in z) requirePositive(z.w as number, `${origin}.sizing.w`, "a channel width W > 0 in m");
   else throw new InputError(z, "sizing with either vov (and l) or w (and l)", `${origin}.sizing`);

@@ -20,8 +20,10 @@ import { drainNode } from "../../formulas/bias.formulas.js";
 import * as sf from "../../formulas/synthesis.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, SqrtVolts, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
+import { contrastDigits } from "../../units/format.js";
 import "../analyze.js"; // registers the built-in topologies
 import { stageDissipation } from "../dissipation.js";
+import { pmosConvention } from "../stage.js";
 import { eSeries } from "../eseries.js";
 import { snapToSeries, type SnapResult } from "../snap.js";
 import { topologyFor, type AmplifierKind, type Stage, type StageAnalysis, type StageDevice } from "../topology.js";
@@ -125,7 +127,9 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
   } else if (src.kind === "follower") {
     if (src.vs !== undefined) {
       vs = (s * src.vs) as Volts;
-      rec?.input("VS (device polarity)", vs, "voltage", `${o}.output.vs`);
+      // Inputs are node voltages to ground, as given; the mirrored value the PMOS equations use is said once.
+      rec?.input("VS", src.vs, "voltage", `${o}.output.vs`);
+      if (s < 0) rec?.note("Output in device polarity", `VS mirrored for the PMOS equations: −VS = ${v(vs)}.`);
     } else {
       rec?.assume("Follower output at mid-swing between the source rail and the triode edge VDR − VOV (common practice).");
       vs = calc(sf.followerMidSwing, [vdr, vov, vsr]);
@@ -192,7 +196,8 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
   } else {
     if (dr.target && "vd" in dr.target) {
       vd = (s * dr.target.vd) as Volts;
-      rec?.input("VD (device polarity)", vd, "voltage", `${o}.drain.vd`);
+      rec?.input("VD", dr.target.vd, "voltage", `${o}.drain.vd`);
+      if (s < 0) rec?.note("Drain in device polarity", `VD mirrored for the PMOS equations: −VD = ${v(vd)}.`);
     } else {
       rec?.assume("Drain at mid-swing between the triode edge VG − Vt and the drain rail (common practice: the largest symmetric output swing).");
       vd = calc(sf.midSwingDrain, [vdr, vg, vt]);
@@ -200,12 +205,16 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
     if (vd > vdr) throw new InfeasibleError(`a drain at ${v(s * vd)} lies beyond the drain rail ${v(s * vdr)}: RD would come out negative`, `${o}.drain.vd`);
     rd = calc(sf.drainResistorForNode, [vdr, vd, id]);
   }
-  if (vd < vg - vt)
+  if (vd < vg - vt) {
+    // Enough digits that the drain and the edge, and VDS and VOV, read differently (they differ).
+    const dg = Math.max(contrastDigits(s * vd, s * (vg - vt), 4), contrastDigits(vd - vs, vov, 4));
+    const v = (x: number) => `${+x.toPrecision(dg)} V`;
     throw new InfeasibleError(
       (dr.kind === "target" && dr.target && "gain" in dr.target ? `a gain of ${dr.target.gain} needs RD = ${+rd.toPrecision(4)} Ω, and with it ` : "") +
         `the drain at ${v(s * vd)} is ${s > 0 ? "below" : "above"} the triode edge ${s > 0 ? "VG − Vt" : "VG + |Vt|"} = ${v(s * (vg - vt))} (${s > 0 ? "VDS" : "VSD"} = ${v(vd - vs)} < VOV = ${v(vov)}): the device would be in triode`,
       dr.kind === "target" && dr.target ? `${o}.drain` : o,
     );
+  }
   if (dr.kind !== "rail" && !(rd > 0)) throw new InfeasibleError(`RD would be ${+rd.toPrecision(4)} Ω: the drain target leaves no drop across RD`, `${o}.drain`);
   const w = "vov" in spec.sizing ? sf.widthForRatio.fn(wl, l) : spec.sizing.w;
   return { vrs, vs, vt, vsb, vov, wl, k, vg, vd, rd, gm, gds, gmb, w, l };
@@ -247,7 +256,7 @@ export function designDivider(spec: SpecBase, d: CoreDesign, target: DividerTarg
     let idiv: Amperes;
     if (target && "current" in target) {
       idiv = requirePositive(target.current, `${origin}.gate.current`, "a divider current > 0 in A");
-      rec?.input("Idiv", idiv, "current", `${origin}.gate.current`);
+      rec?.input("IDIV", idiv, "current", `${origin}.gate.current`);
     } else {
       const n = (target && "ratio" in target ? target.ratio : 0.1) as Ratio;
       requirePositive(n, `${origin}.gate.ratio`, "a divider current ratio > 0 (0.1 for a tenth of ID)");
@@ -301,7 +310,7 @@ export function finish<C extends object>(a: FinishArgs<C>, rec?: Derivation): Sy
   const label = `root-sum-square of ΔID/ID, ΔV${a.output.node === "drain" ? "D" : "S"}/(VDD − VSS)${a.gain ? ", ΔAv/Av" : ""}`;
   const scoreOf = (an: StageAnalysis): number => {
     if (an.region !== "saturation") throw new InfeasibleError(`the stage falls into ${an.region}`, "candidate");
-    const di = (an.currents.drain! - id) / id;
+    const di = (an.currents.drainMagnitude! - id) / id;
     const dv = (an.nodes[a.output.node]! - a.output.target) / vspan;
     const g = a.gain ? (gainOf(an)! - a.gain.target) / a.gain.target : 0;
     return Math.sqrt(di * di + dv * dv + g * g);
@@ -337,7 +346,7 @@ export function finish<C extends object>(a: FinishArgs<C>, rec?: Derivation): Sy
   const analysis = topo.analyze(stage, rec);
   const achievedGain = gainOf(analysis);
   const deviation: SpecDeviation = {
-    id: figure(id, analysis.currents.drain!),
+    id: figure(id, analysis.currents.drainMagnitude!),
     output: figure(a.output.target, analysis.nodes[a.output.node]!),
     ...(a.gain && achievedGain !== undefined ? { gain: figure(a.gain.target, achievedGain) } : {}),
     vov: analysis.op.vov,
@@ -373,5 +382,5 @@ export function recordSpec(spec: SpecBase, origin: string, rec?: Derivation): vo
   if ("vov" in spec.sizing) rec.input("VOV", spec.sizing.vov, "voltage", `${origin}.sizing.vov`);
   else rec.input("W", spec.sizing.w, "length", `${origin}.sizing.w`);
   rec.input("L", spec.sizing.l, "length", `${origin}.sizing.l`);
-  if (s < 0) rec.note("PMOS in device polarity", `Node voltages are negated so the drain rail is the higher: VDR = −VSS = ${v(vdr)}, VSR = −VDD = ${v(vsr)}.`);
+  if (s < 0) rec.note("Sign convention (PMOS)", `${pmosConvention} Here VDR = −VSS = ${v(vdr)}, VSR = −VDD = ${v(vsr)}.`);
 }

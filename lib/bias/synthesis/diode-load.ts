@@ -112,7 +112,8 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
   const lo = (u: number) => vsr + at(u).vov1; // the driver's triode edge at this VOUT
   if (out && "vout" in out) {
     vout = s * out.vout;
-    rec?.input("VOUT (device polarity)", vout, "voltage", `${origin}.output.vout`);
+    rec?.input("VOUT", out.vout, "voltage", `${origin}.output.vout`);
+    if (s < 0) rec?.note("Output in device polarity", `VOUT mirrored for the PMOS equations: −VOUT = ${+vout.toPrecision(4)} V.`);
   } else if (out && "gain" in out) {
     // Bisection between the driver's triode edge and the load's conduction edge; the gain falls as VOUT rises.
     // The driver's triode edge a = VSR + VOV1(a) and the load's conduction edge b = VDR − Vt2(b):

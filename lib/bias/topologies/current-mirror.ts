@@ -24,6 +24,7 @@ import type { Amperes, AmperesPerVoltSquared, Ohms, PerVolt, Ratio, Volts, Watts
 import type { Derivation } from "../../record/derivation.js";
 import { checkComponents, checkStage } from "../stage.js";
 import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
+import { kclTolerance, verifyCurrent } from "../verify.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
 import { spiceNumber } from "../spice.js";
 import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
@@ -130,7 +131,12 @@ function solveReference(ref: Device, rref: number, vdr: number, vsr: number, clm
     rec.step(mf.referenceGateSourceRejected, [vt, k1, rr, span], r2);
     rec.note("Root rejected", `VGS1' = ${fmt(r2)} V lies below Vt = ${fmt(vt)} V, where the transistor is off and the square law does not apply: rejected. VGS1 = ${fmt(vgs0)} V.`);
   }
-  if (closed) {
+  // The closed form is verified (KCL at the diode); rounding at extreme values sends it to the bracketed solve.
+  const iref0 = mf.referenceCurrent.fn(span, vgs0, rr);
+  const idiode0 = mf.referenceCurrentDiode.fn(k1, vgs0, vt, lambda);
+  const closedHolds = closed && Math.abs(idiode0 - iref0) <= kclTolerance(idiode0, iref0, k1 * Math.max(vgs0 - vt, 0) * 2 + 1 / rref, Math.max(Math.abs(vdr), Math.abs(vsr)));
+  if (closed && !closedHolds) rec?.note("Closed form rejected", `At VGS1 = ${fmt(vgs0)} V the diode carries ${fmt(idiode0)} A but RREF carries ${fmt(iref0)} A: rounding spoils the closed form at these values. Solved again by the bracketed iteration.`);
+  if (closedHolds) {
     const iref = mf.referenceCurrent.fn(span, vgs0, rr);
     if (rec) {
       rec.step(mf.referenceCurrent, [span, vgs0, rr], iref);
@@ -231,10 +237,12 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const p2 = bf.devicePower.fn(iout as Amperes, vds2 as Volts);
   const m1 = evaluateDevice(ref, { gate: gateAbs, source: srcAbs, drain: gateAbs, body: srcAbs }, clm, p1, "M1 at the solved node voltages", rec);
   const m2 = evaluateDevice(out, { gate: gateAbs, source: srcAbs, drain: vOut, body: srcAbs }, clm, p2, "M2 at the solved node voltages", rec);
-  if (rec) {
-    rec.check("M1 current equals the current through RREF (KCL)", Math.abs(Math.abs(m1.small.op.channelCurrent) - iref), "current", { max: 1e-9 * iref + 1e-15 }, "residual of the solved reference branch");
-    rec.check("M2 current equals the output current (KCL)", Math.abs(Math.abs(m2.small.op.channelCurrent) - iout), "current", { max: 1e-9 * Math.max(iout, 1e-9) + 1e-15 }, "residual of the solved output");
-  }
+  // Verify both branches (verify.ts): KCL at M1's drain and at the output, or ConvergenceError.
+  const vScale = Math.max(Math.abs(vdr), Math.abs(vsr), Math.abs(vOut));
+  const g1 = m1.small.gm + m1.small.gds + 1 / c.rref;
+  const g2 = m2.small.gm + m2.small.gds + (c.rload ? 1 / c.rload : 0);
+  const kcl1 = verifyCurrent("the reference diode M1", Math.abs(m1.small.op.channelCurrent), iref, g1, vScale, o);
+  const kcl2 = verifyCurrent("the output M2", Math.abs(m2.small.op.channelCurrent), iout, g2, vScale, o);
   const ro2 = m2.small.ro;
   if (rec) {
     if (m2.small.op.region === "saturation" && Number.isFinite(ro2)) rec.note("Output resistance", `The current source's output resistance is ro2 = 1/gds2 = ${fmt(ro2)} Ω: IOUT changes by about ΔVOUT/ro2.`);
@@ -243,7 +251,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   }
 
   // Currents and power.
-  const currents: Record<string, Amperes> = { drain: iout as Amperes, reference: iref, rref: iref };
+  const currents: Record<string, Amperes> = { drainMagnitude: iout as Amperes, reference: iref, rref: iref };
   const power: Record<string, Watts> = {};
   const pr = bf.resistorPower.fn(iref, c.rref as Ohms);
   power.rref = pr;
@@ -278,6 +286,11 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     checks.push(stageCheck("M2 dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  // The solver's own checks (verify.ts) come after the design checks.
+  if (rec) {
+    rec.check("Solver: M1 current equals the current through RREF (KCL)", kcl1, "current", { max: kclTolerance(iref, iref, g1, vScale) }, "residual of the solved reference branch; tolerance 1e-9·I + G·δV");
+    rec.check("Solver: M2 current equals the output current (KCL)", kcl2, "current", { max: kclTolerance(iout, iout, g2, vScale) }, "residual of the solved output; tolerance 1e-9·I + G·δV");
+  }
   const findings: string[] = [];
   const ideal = (iref * ratio) as Amperes;
   if (m2.small.op.region === "triode")
@@ -311,7 +324,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     polarity: out.card.polarity,
     region: m2.small.op.region,
     nodes: { gate: gateAbs as Volts, source: srcAbs as Volts, drain: vOut as Volts, body: srcAbs as Volts, reference: gateAbs as Volts, vdd, vss },
-    currents: { ...currents, drain: iout as Amperes, supply },
+    currents: { ...currents, drainMagnitude: iout as Amperes, supply },
     op: m2.small.op,
     smallSignal: gs,
     metrics: { amplifiers: [], swing: [swing], checks },

@@ -20,6 +20,7 @@ import { defaultPhi, polaritySign, requireSquareLawCard, type Device } from "../
 import { channelCurrent, type ClmMode } from "../../device/drain-current.js";
 import { thresholdMagnitude } from "../../device/threshold.js";
 import { ConvergenceError, InfeasibleError } from "../../errors.js";
+import { kclTolerance, verifyCurrent } from "../verify.js";
 import * as bf from "../../formulas/bias.formulas.js";
 import * as df from "../../formulas/device.formulas.js";
 import * as mf from "../../formulas/mirror.formulas.js";
@@ -209,11 +210,18 @@ function solveOutput(p: Pair, o: string, rec?: Derivation): { u: number; method:
       rec.note("Root rejected", `VDS' = ${fmt(d2)} V exceeds VOV1 = ${fmt(vov1)} V (outside the triode law's range) or leaves the load below its threshold: rejected. VDS1 = ${fmt(d)} V.`);
     }
   }
-  if (closed) return { u: uHand, method: "closed-form", iterations: 0, tolerance: 0, cutoff: false };
+  // The closed form is verified (equal currents); rounding at extreme values sends it to the bracketed solve.
+  if (closed) {
+    const i1 = driverCurrent(p, uHand);
+    const i2 = loadCurrent(p, uHand);
+    const g = (p.k1 + p.k2) * Math.max(span, 1) * 2;
+    if (Math.abs(i1 - i2) <= kclTolerance(i1, i2, g, Math.max(Math.abs(p.vdr), Math.abs(p.vsr)))) return { u: uHand, method: "closed-form", iterations: 0, tolerance: 0, cutoff: false };
+    rec?.note("Closed form rejected", `At VOUT = ${fmt(p.s * uHand)} V the driver carries ${fmt(i1)} A and the load ${fmt(i2)} A: rounding spoils the closed form at these values. Solved again by the bracketed iteration.`);
+  }
   const r = decreasingRoot((u) => loadCurrent(p, u) - driverCurrent(p, u), p.vsr, p.vdr, o);
   rec?.note(
     "Exact solution",
-    `${p.l1 !== 0 || p.l2 !== 0 ? "λ ≠ 0" : ""}${(p.l1 !== 0 || p.l2 !== 0) && p.body ? " and " : ""}${p.body ? "the body effect on the load" : ""}: no closed form. Equal currents in the output voltage, solved by bracketed regula falsi (Illinois) between the rails to VOUT = ${fmt(p.s * r.u)} V in ${r.iterations} iterations (bracket ${r.width.toExponential(2)} V).`,
+    `${closed ? "The closed form was rejected above" : `${p.l1 !== 0 || p.l2 !== 0 ? "λ ≠ 0" : ""}${(p.l1 !== 0 || p.l2 !== 0) && p.body ? " and " : ""}${p.body ? "the body effect on the load" : ""}: no closed form`}. Equal currents in the output voltage, solved by bracketed regula falsi (Illinois) between the rails to VOUT = ${fmt(p.s * r.u)} V in ${r.iterations} iterations (bracket ${r.width.toExponential(2)} V).`,
   );
   return { u: r.u, method: "bracketed-regula-falsi", iterations: r.iterations, tolerance: r.width, cutoff: false };
 }
@@ -265,7 +273,10 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     rec,
   );
   const iLoad = Math.abs(m2.small.op.channelCurrent);
-  rec?.check("Load current equals driver current (KCL at the output)", Math.abs(iLoad - idNet), "current", { max: 1e-9 * Math.max(idNet, 1e-9) + 1e-15 }, "residual of the solved output voltage");
+  // Verify (verify.ts): KCL at the output, or ConvergenceError.
+  const g = m1.small.gm + m1.small.gds + m2.small.gm + m2.small.gmb + m2.small.gds;
+  const vScale = Math.max(Math.abs(railD), Math.abs(railS), Math.abs(c.vg), Math.abs(out));
+  const kcl = verifyCurrent("the output node", iLoad, idNet, g, vScale, o);
   if (rec) {
     rec.step(bf.devicePower, [idNet, vds1], p1, "driver dissipation");
     rec.step(bf.devicePower, [idNet, vload], p2, "load dissipation");
@@ -304,6 +315,8 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     checks.push(stageCheck("Load dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  // The solver's own check (verify.ts) comes after the design checks.
+  rec?.check("Solver: load current equals driver current (KCL at the output)", kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
   if (p.sameType && stage.body !== "rail" && (load.card.gamma ?? 0) > 0) findings.push("The load's body is tied to its own source: that needs a separate well. On a common substrate set body to \"rail\" for the body effect.");
   findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
   recordFindings(findings, rec);
@@ -313,7 +326,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     polarity: drv.card.polarity,
     region: m1.small.op.region,
     nodes: { gate: c.vg as Volts, source: railS as Volts, drain: out as Volts, body: railS as Volts, vdd, vss },
-    currents: { drain: idNet as Amperes, load: idNet as Amperes, supply: idNet as Amperes },
+    currents: { drainMagnitude: idNet as Amperes, load: idNet as Amperes, supply: idNet as Amperes },
     op: m1.small.op,
     smallSignal: m1.analysis.smallSignal,
     metrics: { amplifiers, swing, checks },

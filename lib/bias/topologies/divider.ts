@@ -11,10 +11,10 @@ export function dividerBias(rg1: number, rg2: number, stage: Stage<string, unkno
   if (!(rg2 > 0)) throw new InputError(rg2, "a divider resistance > 0 Ω", `${o}: components.rg2`);
   const vdd = stage.supplies.vdd;
   const vss = (stage.supplies.vss ?? 0) as Volts;
-  const vgg = dividerGate.fn(vdd, rg2 as Ohms, vss, rg1 as Ohms);
+  const vgg = dividerGate.fn(vss, vdd, rg1 as Ohms, rg2 as Ohms);
   const rg = dividerResistance.fn(rg1 as Ohms, rg2 as Ohms);
   if (rec) {
-    rec.step(dividerGate, [vdd, rg2, vss, rg1], vgg, "no gate current, so the divider sets the gate");
+    rec.step(dividerGate, [vss, vdd, rg1, rg2], vgg, "no gate current, so the divider sets the gate");
     rec.step(dividerResistance, [rg1, rg2], rg, "the signal source sees the divider in parallel");
   }
   return { vgg, rg };
