@@ -44,6 +44,7 @@ export const symbols = defineSymbols({
   VGp: { tex: "V_{G}'", dim: "voltage", meaning: "effective gate voltage (EKV)" },
   VP: { tex: "V_{P}", dim: "voltage", meaning: "pinch-off voltage (EKV)" },
   IRn: { tex: "i_{r}", dim: "dimensionless", meaning: "reverse normalised current IR/IS (EKV)" },
+  VDSSL: { tex: "V_{DSS,\\infty}'", dim: "voltage", meaning: "saturation voltage VDSS' of a long channel, no velocity saturation (EKV)" },
   VDSS: { tex: "V_{DSS}'", dim: "voltage", meaning: "saturation voltage of the normalised drain-source voltage (EKV)" },
   Vip: { tex: "V_{ip}", dim: "voltage", meaning: "half drain-source voltage, smoothly limited at VDSS' (EKV)" },
   Leq: { tex: "L_{eq}", dim: "length", meaning: "equivalent channel length with velocity saturation (EKV)" },
@@ -101,11 +102,18 @@ export const formulas = defineFormulas({
     expr: "log1p(exp((VP - VSB) / (2 * UT)))^2",
     source: ekv95,
   },
+  ekvLongChannelSaturationVoltage: {
+    title: "Saturation voltage for the reverse current, long channel",
+    // Stated apart so the velocity-saturated form below takes √IC and ln IC once.
+    result: "VDSSL",
+    expr: "UT * (sqrt(IC) - 3 / 4 * log(IC))",
+    source: ekv26,
+  },
   ekvSaturationVoltage: {
     title: "Saturation voltage for the reverse current, with velocity saturation",
     // VC·(√(1/4 + x/VC) − 1/2) rationalised to x/(√(1/4 + x/VC) + 1/2), VC = Esat·L: exact and free of cancellation for long channels.
     result: "VDSS",
-    expr: "UT * (sqrt(IC) - 3 / 4 * log(IC)) / (sqrt(1 / 4 + UT * (sqrt(IC) - 3 / 4 * log(IC)) / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
+    expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
     source: ekv26,
   },
   ekvLimitedDrainVoltage: {

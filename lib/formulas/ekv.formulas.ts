@@ -101,18 +101,32 @@ export const ekvForwardCurrent = {
   fn: (VP: Volts, VSB: Volts, UT: Volts): Ratio => sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * UT)))))) as Ratio,
 } as const satisfies Formula;
 
-/** Saturation voltage for the reverse current, with velocity saturation: VDSS = UT * (sqrt(IC) - 3 / 4 * log(IC)) / (sqrt(1 / 4 + UT * (sqrt(IC) - 3 / 4 * log(IC)) / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6) */
+/** Saturation voltage for the reverse current, long channel: VDSSL = UT * (sqrt(IC) - 3 / 4 * log(IC)) */
+export const ekvLongChannelSaturationVoltage = {
+  id: "ekvLongChannelSaturationVoltage",
+  title: "Saturation voltage for the reverse current, long channel",
+  expr: "UT * (sqrt(IC) - 3 / 4 * log(IC))",
+  tex: "V_{DSS,\\infty}' = {U_{T}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)",
+  result: "VDSSL",
+  resultDim: "voltage",
+  vars: ["UT","IC"],
+  dims: ["voltage","dimensionless"],
+  source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
+  fn: (UT: Volts, IC: Ratio): Volts => (UT * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))) as Volts,
+} as const satisfies Formula;
+
+/** Saturation voltage for the reverse current, with velocity saturation: VDSS = VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6) */
 export const ekvSaturationVoltage = {
   id: "ekvSaturationVoltage",
   title: "Saturation voltage for the reverse current, with velocity saturation",
-  expr: "UT * (sqrt(IC) - 3 / 4 * log(IC)) / (sqrt(1 / 4 + UT * (sqrt(IC) - 3 / 4 * log(IC)) / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
-  tex: "V_{DSS}' = \\frac{{U_{T}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)}{\\sqrt{\\frac{1}{4}+\\frac{{U_{T}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+{U_{T}}\\cdot\\left(\\ln\\left(\\frac{{E_{sat}}\\cdot{L}}{2\\cdot{U_{T}}}\\right)-0.6\\right)",
+  expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
+  tex: "V_{DSS}' = \\frac{{V_{DSS,\\infty}'}}{\\sqrt{\\frac{1}{4}+\\frac{{V_{DSS,\\infty}'}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+{U_{T}}\\cdot\\left(\\ln\\left(\\frac{{E_{sat}}\\cdot{L}}{2\\cdot{U_{T}}}\\right)-0.6\\right)",
   result: "VDSS",
   resultDim: "voltage",
-  vars: ["UT","IC","Ecrit","L"],
-  dims: ["voltage","dimensionless","electricField","length"],
+  vars: ["VDSSL","Ecrit","L","UT"],
+  dims: ["voltage","electricField","length","voltage"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (UT: Volts, IC: Ratio, Ecrit: VoltsPerMeter, L: Meters): Volts => (((UT * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))) / ((Math.sqrt(((1 / 4) + ((UT * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))) / ((Ecrit * L))))) + (1 / 2)))) + (UT * ((Math.log(((Ecrit * L) / ((2 * UT)))) - 0.6)))) as Volts,
+  fn: (VDSSL: Volts, Ecrit: VoltsPerMeter, L: Meters, UT: Volts): Volts => ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (UT * ((Math.log(((Ecrit * L) / ((2 * UT)))) - 0.6)))) as Volts,
 } as const satisfies Formula;
 
 /** Half drain-source voltage limited at VDSS': Vip = sqrt(VDSS^2 + UT^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + UT^2 / 4) */

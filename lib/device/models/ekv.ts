@@ -18,6 +18,7 @@ import {
   ekvPinchOffVoltage,
   ekvReverseCurrent,
   ekvSaturationVoltage,
+  ekvLongChannelSaturationVoltage,
   ekvSlopeFactor,
   ekvSpecificCurrent,
 } from "../../formulas/ekv.formulas.js";
@@ -58,7 +59,7 @@ export function ekvChannelCurrent(
   const vp = ekvPinchOffAt(vt0, g, ph, sigma, vgs, vds, vsb);
   const ic = ekvForwardCurrent.fn(vp, vsb as Volts, u);
   if (ic === 0) return 0;
-  const vdss = ekvSaturationVoltage.fn(u, ic, e, len);
+  const vdss = ekvSaturationVoltage.fn(ekvLongChannelSaturationVoltage.fn(u, ic), e, len, u);
   const vip = ekvLimitedDrainVoltage.fn(vdss, u, vds as Volts);
   const ir = ekvReverseCurrent.fn(vp, vsb as Volts, vds as Volts, vip, u);
   const n = ekvSlopeFactor.fn(g, vp, ph, u);
@@ -143,7 +144,7 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
     rec.note("Drain current", "The forward current underflows: the source is far above the pinch-off voltage and the channel carries nothing.");
     return { region, id: 0, vt, vov: g - vt, vdsat, ic };
   }
-  const vdss = rec.calc(ekvSaturationVoltage, [u, ic, e, l]);
+  const vdss = rec.calc(ekvSaturationVoltage, [rec.calc(ekvLongChannelSaturationVoltage, [u, ic]), e, l, u]);
   const vip = rec.calc(ekvLimitedDrainVoltage, [vdss, u, vds]);
   const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, u]);
   const leq = rec.calc(ekvEquivalentLength, [l, vds, vip, e]);
