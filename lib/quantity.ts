@@ -28,6 +28,8 @@ export const dimensions = {
   /** Slew rate of a node voltage. */
   slewRate: { unit: "V/s", tex: "\\mathrm{V/s}", label: "slew rate" },
   voltageLength: { unit: "V*m", tex: "\\mathrm{V\\,m}", label: "voltage times length" },
+  /** Critical field for velocity saturation (Esat, EKV UCRIT). */
+  electricField: { unit: "V/m", tex: "\\mathrm{V/m}", label: "electric field" },
   temperature: { unit: "K", tex: "\\mathrm{K}", label: "temperature" },
   power: { unit: "W", tex: "\\mathrm{W}", label: "power" },
   /** Junction-to-ambient or junction-to-case thermal resistance RθJA, RθJC. */
@@ -70,6 +72,7 @@ export type Meters = Quantity<"length">;
 export type VoltMeters = Quantity<"voltageLength">;
 export type SquareMeters = Quantity<"area">;
 export type VoltsPerSecond = Quantity<"slewRate">;
+export type VoltsPerMeter = Quantity<"electricField">;
 export type Kelvin = Quantity<"temperature">;
 export type Watts = Quantity<"power">;
 export type KelvinPerWatt = Quantity<"thermalResistance">;
@@ -96,6 +99,7 @@ export const sqrtVolts = (v: number) => v as SqrtVolts;
 export const voltsPerKelvin = (v: number) => v as VoltsPerKelvin;
 export const meters = (v: number) => v as Meters;
 export const voltMeters = (v: number) => v as VoltMeters;
+export const voltsPerMeter = (v: number) => v as VoltsPerMeter;
 export const kelvin = (v: number) => v as Kelvin;
 export const watts = (v: number) => v as Watts;
 export const farads = (v: number) => v as Farads;

@@ -6,11 +6,11 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeStage, stageCircuit } from "../lib/bias/analyze.js";
-import { newSolution, type BiasNetwork } from "../lib/bias/solve.js";
+import { newSolution, solveNetwork, type BiasNetwork } from "../lib/bias/solve.js";
 import type { Stage } from "../lib/bias/topology.js";
 import { networkResidual, verifyCurrent, verifyNetwork } from "../lib/bias/verify.js";
 import { device, type DeviceCard } from "../lib/device/card.js";
-import { operatingPoint } from "../lib/device/drain-current.js";
+import { drainCurrent, operatingPoint } from "../lib/device/drain-current.js";
 import { ConvergenceError } from "../lib/errors.js";
 import { Derivation } from "../lib/record/derivation.js";
 import { amperesPerVoltSquared, meters, ohms, perVolt, sqrtVolts, volts } from "../lib/quantity.js";
@@ -136,5 +136,28 @@ describe("the record says when a closed form was rejected", () => {
     expect(a.solver.method).toBe("bracketed-newton");
     expect(a.nodes.source).toBeCloseTo(2.5, 9); // VG − Vt, the overdrive for 1e-100 A being negligible
     expect(rec.checks.find((c) => c.title.startsWith("Solver:"))!.passed).toBe(true);
+  });
+});
+
+describe("verification with the device's own model", () => {
+  // Invented EKV card (not a real process), on the resistive network of the tests above.
+  const ekvCard = { ...ncard, name: "ver-ekv", model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 4e6, sigma: 0.01 } as unknown as DeviceCard;
+  const ekv = device(ekvCard, meters(10e-6), meters(1e-6));
+  const base = (): BiasNetwork => ({ k: 2e-3, vt0: 0.5, gamma: 0.4, phi: 0.7, lambda: 0.05, clm: "continuous", vdr: 5, vsr: 0, gateToDrain: false, vg: 2, rd: 4.7e3, rs: 1e3, iss: 0, bodyToRail: true });
+  it("an EKV solve passes, and the square law's solution of the same network fails against the EKV device", () => {
+    const n = { ...base(), device: ekv };
+    const s = solveNetwork(n, newSolution(), "ekv-stage");
+    expect(networkResidual(n, s)).toBeLessThanOrEqual(1);
+    expect(Math.abs(drainCurrent(ekv, s.vg - s.vs, s.vd - s.vs, s.vs - n.vsr) - s.id)).toBeLessThanOrEqual(1e-9 * s.id);
+    const square = solveNetwork(base(), newSolution(), "square-stage");
+    expect(Math.abs(square.id / s.id - 1)).toBeGreaterThan(0.01);
+    expect(networkResidual(n, { ...square })).toBeGreaterThan(1);
+    expect(() => verifyNetwork(n, { ...square }, "ekv-stage")).toThrow(ConvergenceError);
+  });
+  it("the current-fed network with an EKV device is verified at its solved source voltage", () => {
+    const n = { ...base(), vsr: -5, rs: 0, iss: 100e-6, device: ekv };
+    const s = solveNetwork(n, newSolution(), "ekv-fed");
+    expect(networkResidual(n, s)).toBeLessThanOrEqual(1);
+    expect(() => verifyNetwork(n, { ...s, vs: s.vs + 0.01 }, "ekv-fed")).toThrow(ConvergenceError);
   });
 });

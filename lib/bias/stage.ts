@@ -5,7 +5,8 @@
  * module validates the input, solves, and assembles nodes, currents, power,
  * small-signal parameters and metrics, recording each step when asked.
  */
-import { device as makeDevice, polaritySign, defaultPhi, type Device } from "../device/card.js";
+import { device as makeDevice, polaritySign, defaultPhi, modelOf, type Device } from "../device/card.js";
+import { models } from "../device/models/index.js";
 import type { ClmMode, OperatingPoint } from "../device/drain-current.js";
 import { inversion, inversionFinding, type InversionOptions } from "../device/inversion.js";
 import { smallSignal } from "../device/small-signal.js";
@@ -175,7 +176,15 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     rec.input("GAMMA", card.gamma ?? 0, "sqrtVoltage", `card ${card.name}`);
     rec.input("PHI", card.phi ?? defaultPhi, "voltage", `card ${card.name}`);
     rec.assume("No DC gate current (insulated gate).");
-    rec.assume(`Square law (SPICE Level 1), channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
+    const model = modelOf(card);
+    if (model === "square-law") rec.assume(`Square law (SPICE Level 1), channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
+    else {
+      rec.assume(`Device model: ${models[model].title} (${models[model].source}).`);
+      if (card.theta !== undefined) rec.input("THETA", card.theta, "inverseVoltage", `card ${card.name}`);
+      if (card.ecrit !== undefined) rec.input("ESAT", card.ecrit, "electricField", `card ${card.name}`);
+      if (card.thetaB !== undefined) rec.input("THETAB", card.thetaB, "inverseVoltage", `card ${card.name}`);
+      if (card.sigma !== undefined) rec.input("SIGMA", card.sigma, "dimensionless", `card ${card.name}`);
+    }
     rec.assume(bodyToRail ? `Body tied to the ${pmos ? "upper (VDD)" : "lower (VSS)"} rail: the body effect applies when the source is off that rail.` : "Body tied to the source: VSB = 0, no body effect.");
     if (pmos)
       rec.note("Sign convention (PMOS)", pmosConvention);
@@ -198,11 +207,12 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     rs: map.rs,
     iss: map.iss ?? 0,
     bodyToRail,
+    ...(modelOf(card) === "square-law" ? {} : { device: dev }),
   };
   const depletion = depletionFinding(card);
   if (depletion) rec?.find("caution", depletion);
   const sol = solveNetwork(net, newSolution(), o, rec);
-  if (rec && sol.method === "bracketed-newton" && net.iss <= 0) {
+  if (rec && (sol.method === "bracketed-newton" || sol.method === "bracketed-regula-falsi") && net.iss <= 0) {
     rec.step(bf.sourceNode, [net.vsr, sol.id, net.rs], sol.vs, "at the solved drain current");
     rec.step(bf.drainNode, [net.vdr, sol.id, net.rd], sol.vd);
   }

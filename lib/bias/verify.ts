@@ -1,9 +1,10 @@
 /**
  * Verification of a solved operating point, independent of how it was found.
  *
- * Every solve path (the canonical single-transistor network of solve.ts, the
- * current mirror, the diode-connected load) ends here: the device current is
- * recomputed from the device law at the solved node voltages and compared with
+ * Every solve path (the canonical single-transistor network of solve.ts and
+ * solve-model.ts, the current mirror, the diode-connected load) ends here: the
+ * device current is recomputed from the device's own model (square law, square
+ * law with mobility degradation, EKV) at the solved node voltages and compared with
  * the current the network carries (KCL at the drain and source nodes), and the
  * node voltages are checked against the region the network allows (within the
  * rails; drain not below source, as the channel carries current drain→source
@@ -12,12 +13,15 @@
  * Tolerance, scaled to the circuit: a node voltage is known to
  * δV = 1e-12·(largest rail, gate or node magnitude, at least 1 V), so a current
  * is known to G·δV, where G bounds the conductances at the node (the device's
- * gm + gmb + gds and the resistors' 1/R). The residual must stay within
+ * gm + gmb + gds and the resistors' 1/R; for a model other than the square law
+ * twice |gm| + |gds| + |gmb| from central differences with the model layer's step). The residual must stay within
  *   tol = 1e-9·I + G·δV,   I the larger of the two currents compared.
  * Failure: ConvergenceError naming the stage, the node, both currents, the
  * residual and the tolerance. Allocation: none unless it throws.
  */
-import { channelCurrent } from "../device/drain-current.js";
+import { channelCurrent, deviceCurrent } from "../device/drain-current.js";
+import { modelOf } from "../device/card.js";
+import { derivativeStep } from "../device/model.js";
 import { thresholdMagnitude } from "../device/threshold.js";
 import { ConvergenceError } from "../errors.js";
 import type { SqrtVolts, Volts } from "../quantity.js";
@@ -61,6 +65,18 @@ function networkScale(n: BiasNetwork, s: NetworkSolution): number {
 let gBound = 0;
 function deviceCurrentAt(n: BiasNetwork, s: NetworkSolution): number {
   const vsb = n.bodyToRail ? s.vs - n.vsr : 0;
+  const dev = n.device;
+  if (dev && modelOf(dev.card) !== "square-law") {
+    const vgs = s.vg - s.vs;
+    const vds = s.vd - s.vs;
+    const h = derivativeStep;
+    const gm = deviceCurrent(dev, vgs + h, vds, vsb) - deviceCurrent(dev, vgs - h, vds, vsb);
+    const gds = deviceCurrent(dev, vgs, vds + h, vsb) - deviceCurrent(dev, vgs, vds - h, vsb);
+    const gmb = deviceCurrent(dev, vgs, vds, vsb - h) - deviceCurrent(dev, vgs, vds, vsb + h);
+    // Twice the central-difference sum: a bound, not an estimate, against their truncation error.
+    gBound = (Math.abs(gm) + Math.abs(gds) + Math.abs(gmb)) / h;
+    return deviceCurrent(dev, vgs, vds, vsb);
+  }
   const vt = n.bodyToRail && n.gamma !== 0 ? thresholdMagnitude(n.vt0 as Volts, n.gamma as SqrtVolts, n.phi as Volts, vsb as Volts) : n.vt0;
   const vov = s.vg - s.vs - vt;
   const vds = s.vd - s.vs;

@@ -1,13 +1,33 @@
 /**
  * Device cards: the process parameters of one transistor type, plus the drawn
  * W and L of one instance. Plain JSON-serialisable data, SI units, signs as in a
- * SPICE Level 1 model card (PMOS vt0 negative, kp positive).
+ * SPICE model card (PMOS vt0 negative, kp positive). `model` names the equations
+ * the card's numbers belong to (absent: the square law, so older cards stay valid);
+ * the models themselves live in `device/models/`.
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
-import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, SqrtVolts, VoltMeters, Volts, VoltsPerKelvin } from "../quantity.js";
+import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, Ratio, SqrtVolts, VoltMeters, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
 export type Polarity = (typeof polarities)[number];
+
+/**
+ * The device models a card can name: the square law (SPICE Level 1), the square
+ * law with mobility degradation and velocity saturation, and the all-region EKV model.
+ */
+export const modelIds = ["square-law", "square-law-mobility", "ekv"] as const;
+export type ModelId = (typeof modelIds)[number];
+
+/** Card fields only some models use, and the models that use them. */
+export const modelOnlyFields = {
+  theta: ["square-law-mobility", "ekv"],
+  ecrit: ["square-law-mobility", "ekv"],
+  thetaB: ["ekv"],
+  sigma: ["ekv"],
+} as const satisfies Record<string, readonly ModelId[]>;
+
+/** The model a card names; the square law when it names none. */
+export const modelOf = (card: DeviceCard): ModelId => card.model ?? "square-law";
 
 export interface TemperatureCoefficients {
   /** Temperature at which kp and vt0 were characterised. */
@@ -21,6 +41,8 @@ export interface TemperatureCoefficients {
 export interface DeviceCard {
   readonly name: string;
   readonly polarity: Polarity;
+  /** Which equations the numbers belong to; "square-law" when omitted. */
+  readonly model?: ModelId;
   /** Process transconductance parameter µ·Cox (SPICE KP), > 0 for both polarities. */
   readonly kp: AmperesPerVoltSquared;
   /** Zero-bias threshold (SPICE VTO): positive for an enhancement NMOS, negative for an enhancement PMOS. */
@@ -31,6 +53,17 @@ export interface DeviceCard {
   readonly gamma?: SqrtVolts;
   /** Surface potential 2φF (SPICE PHI), > 0; 0.6 V when omitted (the SPICE default). */
   readonly phi?: Volts;
+  /** Mobility degradation θ (1/V), ≥ 0; 0 when omitted. square-law-mobility: µeff = µ0/(1 + θ·VOV); ekv: β ∝ 1/(1 + θ·2·n·UT·qf + θB·VSB), qf the source-end inversion charge. */
+  readonly theta?: PerVolt;
+  /**
+   * Critical field for velocity saturation Esat (EKV UCRIT), > 0 in V/m. square-law-mobility:
+   * none when omitted; ekv: 2·10⁶ V/m when omitted (EPFL-EKV 2.6 default, from memory).
+   */
+  readonly ecrit?: VoltsPerMeter;
+  /** ekv only: mobility degradation with source-body voltage θB (1/V), ≥ 0; 0 when omitted. */
+  readonly thetaB?: PerVolt;
+  /** ekv only: drain-induced threshold lowering, VP shifts by σ·VDS; ≥ 0, 0 when omitted. */
+  readonly sigma?: Ratio;
   readonly temperature?: TemperatureCoefficients;
   /** Pelgrom threshold-mismatch coefficient: σ(ΔVt) = AVt/√(W·L) for a pair of these devices, in V·m (1 mV·µm = 1e-9 V·m). */
   readonly avt?: VoltMeters;
@@ -61,8 +94,21 @@ const made = new WeakSet<object>();
 /** SPICE Level 1 default for PHI when a card omits it. */
 export const defaultPhi = 0.6 as Volts;
 
+/** Temperature at which a card's numbers hold: its temperature block's t0, else 27 °C (the SPICE nominal temperature). */
+export const cardTemperature = (card: DeviceCard): Kelvin => card.temperature?.t0 ?? (300.15 as Kelvin);
+
 /** +1 for NMOS, −1 for PMOS: multiplies terminal voltages into the device's own polarity. */
 export const polaritySign = (card: DeviceCard): 1 | -1 => (card.polarity === "nmos" ? 1 : -1);
+
+/**
+ * Refuse a card whose model a closed-form calculation cannot take yet, naming the
+ * field, what refused it and what to use instead: never a square-law answer for an EKV card.
+ */
+export function requireSquareLawCard(card: DeviceCard, origin: string, what: string): void {
+  const m = modelOf(card);
+  if (m !== "square-law")
+    throw new InputError(m, `a square-law card: ${what} is written in the square law's closed forms and does not take a "${m}" card yet (analyse single-transistor stages, solve gate voltages or plot with it instead)`, `${origin}.model`);
+}
 
 /** Validate a card, naming the first bad field; returns the same card. */
 export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard {
@@ -76,6 +122,18 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   if (card.phi !== undefined) requirePositive(card.phi, at("phi"), "2φF > 0 in V");
   if (card.avt !== undefined) requireNonNegative(card.avt, at("avt"), "a Pelgrom coefficient AVt ≥ 0 in V·m (e.g. 5e-9 V·m = 5 mV·µm)");
   if (card.abeta !== undefined) requireNonNegative(card.abeta, at("abeta"), "a Pelgrom coefficient Aβ ≥ 0 in m (e.g. 1e-8 m = 1 %·µm)");
+  if (card.model !== undefined && !modelIds.includes(card.model))
+    throw new InputError(card.model, `one of ${modelIds.map((m) => `"${m}"`).join(", ")} (or omitted for the square law)`, at("model"));
+  const model = modelOf(card);
+  for (const [field, users] of Object.entries(modelOnlyFields) as [keyof typeof modelOnlyFields, readonly ModelId[]][])
+    if (card[field] !== undefined && !users.includes(model))
+      throw new InputError(card[field], `no ${field} on a "${model}" card (it belongs to ${users.map((m) => `"${m}"`).join(" and ")}); set "model" or remove the field`, at(field));
+  if (card.theta !== undefined) requireNonNegative(card.theta, at("theta"), "a mobility degradation θ ≥ 0 in 1/V");
+  if (card.thetaB !== undefined) requireNonNegative(card.thetaB, at("thetaB"), "a body-bias mobility degradation θB ≥ 0 in 1/V");
+  // β's denominator 1 + θ·… + θB·VSB must stay positive under the forward body bias a design can see (VSB down to −1 V).
+  if (card.thetaB !== undefined && card.thetaB >= 1) throw new InputError(card.thetaB, "θB < 1 1/V (so that 1 + θB·VSB > 0 down to VSB = −1 V)", at("thetaB"));
+  if (card.ecrit !== undefined) requirePositive(card.ecrit, at("ecrit"), "a critical field Esat > 0 in V/m (typically 10⁶ to 10⁷)");
+  if (card.sigma !== undefined) requireNonNegative(card.sigma, at("sigma"), "a threshold lowering σ ≥ 0 (volts of VP per volt of VDS)");
   if (card.temperature) {
     requirePositive(card.temperature.t0, at("temperature.t0"), "a reference temperature > 0 K");
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");

@@ -44,6 +44,8 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   area: { text: "µm²", tex: "\\mathrm{\\mu m^{2}}", prefix: false, scale: 1e12 },
   slewRate: { text: "V/µs", tex: "\\mathrm{V/\\mu s}", prefix: false, scale: 1e-6 },
   voltageLength: { text: "mV·µm", tex: "\\mathrm{mV\\,\\mu m}", prefix: false, scale: 1e9 },
+  // Critical fields are quoted in V/µm (common practice).
+  electricField: { text: "V/µm", tex: "\\mathrm{V/\\mu m}", prefix: false, scale: 1e-6 },
   temperature: { text: "K", tex: "\\mathrm{K}", prefix: false },
   power: { text: "W", tex: "\\mathrm{W}", prefix: true },
   // Datasheets quote RθJA in °C/W; a kelvin step equals a degree Celsius step.
