@@ -4,7 +4,7 @@
  */
 import type { Derivation } from "../record/derivation.js";
 import { deckText } from "./spice.js";
-import { registerTopology, topologyFor, type SpiceCircuit, type Stage, type StageAnalysis } from "./topology.js";
+import { registerTopology, topologyFor, type SpiceCircuit, type Stage, type StageAnalysis, type Topology } from "./topology.js";
 import { cascodeMirror, cascodeStage } from "./topologies/cascode.js";
 import { diffPair, mirrorLoadPair } from "./topologies/diff-pair.js";
 import { currentSourceBias } from "./topologies/current-source-bias.js";
@@ -30,7 +30,7 @@ export const builtinTopologies = {
   cascodeMirror,
 } as const;
 // One list: what is built in is what is registered.
-for (const t of Object.values(builtinTopologies)) registerTopology(t);
+for (const t of Object.values(builtinTopologies)) registerTopology(t as Topology<string, unknown>);
 
 /**
  * Any stage: a typed one (`Stage<"four-resistor", FourResistorComponents>`, as

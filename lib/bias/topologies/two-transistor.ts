@@ -10,7 +10,7 @@ import { smallSignal, type SmallSignal } from "../../device/small-signal.js";
 import { InputError } from "../../errors.js";
 import type { Volts, Watts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
-import { level1Model, spiceNumber } from "../spice.js";
+import { level1Model } from "../spice.js";
 import type { Stage, StageCheck, StageDevice, StageDeviceAnalysis, SwingLimits } from "../topology.js";
 import { ratingChecks, type PartStress } from "../../device/discrete-part.js";
 import { stageCheck } from "../metrics.js";
