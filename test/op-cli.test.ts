@@ -11,6 +11,7 @@ import { main } from "../lib/cli/op.js";
 import { captureCli } from "./support/cli.js";
 import { parseDesign } from "../lib/bias/design-file.js";
 import { InputError } from "../lib/errors.js";
+import { UsageError } from "../lib/cli/args.js";
 
 let dir: string;
 const design = {
@@ -118,7 +119,28 @@ describe("pinchoff op", () => {
     await expect(run([join(dir, "nope.json")])).rejects.toThrow(/nope\.json: cannot read the design file \(ENOENT\)/);
     const bad = write("bad.json", "{ not json");
     await expect(run([bad])).rejects.toThrow(/bad\.json: got .* expected JSON/);
-    expect((await run([])).code).toBe(2);
+    await expect(run([])).rejects.toThrow(UsageError);
     expect((await run(["--help"])).code).toBe(0);
+  });
+});
+
+describe("pinchoff op exit status", () => {
+  // Invented stage values; each variant breaks one check.
+  const variants: [string, Record<string, unknown>, RegExp][] = [
+    ["triode (RD far too large)", { components: { ...design.components, rd: "200k" } }, /check failed: Saturation margin/],
+    ["cutoff (gate below threshold)", { components: { ...design.components, rg1: "10Meg" } }, /check failed: Overdrive/],
+    ["over its power limit", { limits: { maxDevicePower: "1 uW" } }, /check failed: Transistor dissipation/],
+  ];
+  for (const [what, change, message] of variants)
+    it(`exits 1 and names the check when the stage is in ${what}`, async () => {
+      const r = await run([write(`fail-${what.split(" ")[0]}.json`, { ...design, ...change })]);
+      expect(r.code).toBe(1);
+      expect(r.err).toMatch(message);
+      expect(JSON.parse(r.out).metrics.checks.some((c: { passed: boolean }) => !c.passed)).toBe(true);
+    });
+  it("exits 0 when every check passes", async () => {
+    const r = await run([write("pass.json", design)]);
+    expect(r.code).toBe(0);
+    expect(r.err).toBe("");
   });
 });

@@ -1,26 +1,24 @@
-/** pinchoff new <template> <path> [--force] */
+/** pinchoff new: copy a template notebook to a path, never over a file without --force. */
 import { copyFileSync, constants as fsc, existsSync, mkdirSync, statSync } from "node:fs";
 import { dirname, resolve } from "node:path";
-import { parseArgs } from "node:util";
-import { InputError, PinchoffError } from "../errors.js";
+import { PinchoffError } from "../errors.js";
 import { findTemplate, type Template } from "../templates.js";
+import { defineCommand, type CommandSpec } from "./args.js";
 
-export const help = `usage: pinchoff new <template> <path.ipynb> [--force]
+export const command = {
+  name: "new",
+  positionals: [{ name: "template" }, { name: "path.ipynb" }],
+  options: { force: { kind: "flag", help: "replace an existing file at <path.ipynb>" } },
+  description: `Copies a template notebook to <path.ipynb> (or into it, when it is a
+folder). An existing file is never replaced unless --force is given.
+pinchoff list shows the templates.`,
+} as const satisfies CommandSpec;
 
-Copies a template notebook to <path>. An existing file is never replaced
-unless --force is given. pinchoff list shows the templates.`;
-
-export async function main(argv: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({ args: argv, allowPositionals: true, options: { force: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
-  if (positionals.length !== 2) throw new InputError(positionals.join(" ") || undefined, "a template name and a destination path", "pinchoff new");
-  const { dest, template } = newNotebook(positionals[0]!, positionals[1]!, !!values.force);
+export const main = defineCommand(command, async ({ values, positionals }) => {
+  const { dest, template } = newNotebook(positionals[0]!, positionals[1]!, values.force === true);
   console.log(`created ${dest} from template ${template.name}: ${template.description}`);
   return 0;
-}
+});
 
 /** Copy template `name` to `path` (a file, or a folder to put `<name>.ipynb` in); never replaces a file unless `force`. */
 export function newNotebook(name: string, path: string, force: boolean, dir?: string): { dest: string; template: Template } {

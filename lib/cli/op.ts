@@ -1,5 +1,5 @@
 /**
- * `pinchoff op <design.json> [--record out.html|out.md]`: solve a bias stage's
+ * `pinchoff op`: solve a bias stage's
  * operating point from its design file, print region, nodes, currents, margins
  * and metrics as JSON; with --record also write the derivation. A design file
  * with a specification instead of components is designed first: ideal values,
@@ -10,17 +10,22 @@
 import { randomBytes } from "node:crypto";
 import { existsSync, readFileSync, realpathSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { basename, dirname, extname, join, resolve } from "node:path";
-import { parseArgs } from "node:util";
 import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
 import { analyzeStage } from "../bias/analyze.js";
 import { readDesignFile, type DesignFile } from "../bias/design-file.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
 import { Derivation } from "../record/derivation.js";
+import { defineCommand, exitStatus, type CommandSpec } from "./args.js";
 
-const help = `usage: pinchoff op <design.json> [--record out.html|out.md]
-
-Solves the DC operating point of the bias stage in the design file and prints
+export const command = {
+  name: "op",
+  positionals: [{ name: "design.json" }],
+  options: {
+    record: { kind: "value", placeholder: "FILE", help: "also write the derivation (the reasoning, every formula with\nits numbers) as HTML (.html) or Markdown (.md); an existing\nfile is replaced only if an earlier pinchoff op wrote it" },
+    force: { kind: "flag", help: "replace an existing record file whatever wrote it" },
+  },
+  description: `Solves the DC operating point of the bias stage in the design file and prints
 it as JSON: region, node voltages, currents, device operating point,
 small-signal parameters, gain/resistance/swing metrics, checks with margins,
 power per component. Infinite values are written as the string "Infinity".
@@ -28,15 +33,9 @@ power per component. Infinite values are written as the string "Infinity".
 When the design file gives a "specification" instead of "components", the
 stage is designed first and the JSON holds the ideal values, the standard
 values chosen as a set from the series, the deviation from the specification
-and, under "operatingPoint", the operating point of the chosen stage.
-
-  --record FILE   also write the derivation (the reasoning, every formula with
-                  its numbers) as HTML (.html) or Markdown (.md); an existing
-                  file is replaced only if an earlier pinchoff op wrote it
-  --force         replace an existing record file whatever wrote it
-  -h, --help      this text
-
-Hand analysis is approximate: verify by simulation and measurement.`;
+and, under "operatingPoint", the operating point of the chosen stage.`,
+  notes: "Hand analysis is approximate: verify by simulation and measurement.",
+} as const satisfies CommandSpec;
 
 /** The op result as a library call: the stage, its analysis and the recorded derivation. */
 export function operatingPointOf(stage: Stage): { analysis: StageAnalysis; derivation: Derivation } {
@@ -145,23 +144,7 @@ export function writeAtomic(path: string, text: string, protect: string[] = [], 
   }
 }
 
-export async function main(argv: string[]): Promise<number> {
-  let parsed;
-  try {
-    parsed = parseArgs({ args: argv, allowPositionals: true, options: { record: { type: "string" }, force: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
-  } catch (e) {
-    console.error(`pinchoff op: ${(e as Error).message}\n\n${help}`);
-    return 2;
-  }
-  const { values, positionals } = parsed;
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
-  if (positionals.length !== 1) {
-    console.error(`pinchoff op: expected one design file, got ${positionals.length}\n\n${help}`);
-    return 2;
-  }
+export const main = defineCommand(command, async ({ values, positionals }) => {
   const file = positionals[0]!;
   const record = values.record;
   let format: "html" | "md" | undefined;
@@ -181,9 +164,10 @@ export async function main(argv: string[]): Promise<number> {
   const head = { design: file, ...(record ? { record } : {}) };
   const analysis = "analysis" in result ? result.analysis : result.design.analysis;
   console.log(toJson("analysis" in result ? { ...head, ...result.analysis } : { ...head, ...designSummary(read as Extract<DesignFile, { kind: "specification" }>, result.design) }));
-  const failed = analysis.metrics.checks.filter((c) => !c.passed);
-  if (failed.length) console.error(`pinchoff op: ${failed.length} check(s) failed: ${failed.map((c) => c.name).join("; ")}`);
-  if ("design" in result && result.design.dissipation && !result.design.dissipation.passed)
-    console.error(`pinchoff op: over its allowed power: ${result.design.dissipation.failures.map((f) => f.name).join("; ")}`);
-  return 0;
-}
+  const failures = [
+    ...analysis.metrics.checks.filter((c) => !c.passed).map((c) => `${c.name}: ${c.value} ${c.unit} (margin ${c.margin} ${c.unit})`),
+    ...("design" in result && result.design.dissipation ? result.design.dissipation.failures.map((f) => `${f.name} over its allowed power: ${f.power} W > ${f.allowed} W`) : []),
+  ];
+  for (const f of failures) console.error(`check failed: ${f}`);
+  return failures.length ? exitStatus.failed : exitStatus.ok;
+});
