@@ -86,7 +86,8 @@ export const squareLawWindows: readonly FitWindow[] = [
   { vov: [0.4, 0.6], vbs: [0, 0], saturationOnly: true },
 ];
 
-function windowPoints(s: Sweep, w: FitWindow, est: StartEstimate, minCurrent: number): Int32Array {
+/** Indices of the points inside a window (overdrive from the start estimate `est`). */
+export function windowPoints(s: Sweep, w: FitWindow, est: StartEstimate, minCurrent: number): Int32Array {
   const sign = s.polarity === "nmos" ? 1 : -1;
   const idx: number[] = [];
   const inside = (v: number, r?: readonly [number, number]) => !r || (v >= r[0] - 1e-9 && v <= r[1] + 1e-9);

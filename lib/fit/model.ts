@@ -36,6 +36,12 @@ export interface FitModel {
   threshold(p: Float64Array, vsb: number): number;
   /** Slope factor n, for the inversion boundaries (1.3 when the model has none). */
   slope(p: Float64Array): number;
+  /**
+   * The parameters at temperature t (K) from those at t0: threshold magnitude
+   * + alphaVt·(t − t0), mobility terms × (t/t0)^−muExp, as `cardAtTemperature`
+   * of lib/device/temperature.ts moves a card. Writes into out.
+   */
+  atTemperature(p: Float64Array, t0: number, t: number, alphaVt: number, muExp: number, out: Float64Array): void;
   /** The card for the design functions. */
   card(p: Float64Array, s: Sweep, provenance: string): DeviceCard;
 }

@@ -8,7 +8,8 @@
 import { defaultPhi, type Device, type DeviceCard } from "../device/card.js";
 import { drainCurrent } from "../device/drain-current.js";
 import type { Sweep } from "../measure/select.js";
-import type { AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
+import type { AmperesPerVoltSquared, Kelvin, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerKelvin } from "../quantity.js";
+import { mobilityAtTemperature, thresholdAtTemperature } from "../formulas/device.formulas.js";
 import type { FitModel } from "./model.js";
 
 type Mutable<T> = { -readonly [K in keyof T]: T[K] };
@@ -54,6 +55,12 @@ export const squareLawFit: FitModel = {
     return p[0]! + p[3]! * (Math.sqrt(phi + Math.max(vsb, -phi)) - Math.sqrt(phi));
   },
   slope: () => 1.3,
+  atTemperature(p, t0, t, alphaVt, muExp, out) {
+    out.set(p);
+    // the catalog's temperature formulas, as cardAtTemperature uses them
+    out[0] = thresholdAtTemperature.fn(p[0]! as Volts, alphaVt as VoltsPerKelvin, t as Kelvin, t0 as Kelvin);
+    out[1] = mobilityAtTemperature.fn(p[1]! as AmperesPerVoltSquared, t as Kelvin, t0 as Kelvin, muExp as Ratio);
+  },
   card(p, s, provenance) {
     const sign = s.polarity === "nmos" ? 1 : -1;
     return { name: `${s.polarity} square law, W/L = ${fmtUm(s.w)}/${fmtUm(s.l)} µm`, polarity: s.polarity, vt0: sign * p[0]!, kp: p[1]!, lambda: p[2]!, gamma: p[3]!, phi: defaultPhi, provenance } as DeviceCard;
