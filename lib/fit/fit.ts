@@ -189,7 +189,7 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     meetsTarget: chosen.rms <= target,
     target,
     parameters: model.parameters.map((q, j) => ({ name: q.name, unit: q.unit, meaning: q.meaning, value: fit.p[j]!, stdErr: fit.free[j] ? fit.stdErr[j]! : 0, held: !fit.free[j] })),
-    card: model.card(fit.p, s, provenance),
+    card: model.card(fit.p, s, provenance, fit.free.map((f) => !f)),
     iterations: fit.res.iterations,
     stop: fit.res.stop,
     start: est,

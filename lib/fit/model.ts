@@ -42,6 +42,6 @@ export interface FitModel {
    * of lib/device/temperature.ts moves a card. Writes into out.
    */
   atTemperature(p: Float64Array, t0: number, t: number, alphaVt: number, muExp: number, out: Float64Array): void;
-  /** The card for the design functions. */
-  card(p: Float64Array, s: Sweep, provenance: string): DeviceCard;
+  /** The card for the design functions; parameters marked held (no data for them) are left out of it. */
+  card(p: Float64Array, s: Sweep, provenance: string, held: readonly boolean[]): DeviceCard;
 }

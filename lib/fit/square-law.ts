@@ -61,9 +61,18 @@ export const squareLawFit: FitModel = {
     out[0] = thresholdAtTemperature.fn(p[0]! as Volts, alphaVt as VoltsPerKelvin, t as Kelvin, t0 as Kelvin);
     out[1] = mobilityAtTemperature.fn(p[1]! as AmperesPerVoltSquared, t as Kelvin, t0 as Kelvin, muExp as Ratio);
   },
-  card(p, s, provenance) {
+  card(p, s, provenance, held) {
     const sign = s.polarity === "nmos" ? 1 : -1;
-    return { name: `${s.polarity} square law, W/L = ${fmtUm(s.w)}/${fmtUm(s.l)} µm`, polarity: s.polarity, vt0: sign * p[0]!, kp: p[1]!, lambda: p[2]!, gamma: p[3]!, phi: defaultPhi, provenance } as DeviceCard;
+    const notFitted = [held[2] ? "λ" : "", held[3] ? "γ" : ""].filter(Boolean);
+    return {
+      name: `${s.polarity} square law, W/L = ${fmtUm(s.w)}/${fmtUm(s.l)} µm`,
+      polarity: s.polarity,
+      vt0: sign * p[0]!,
+      kp: p[1]!,
+      ...(held[2] ? {} : { lambda: p[2]! }),
+      ...(held[3] ? {} : { gamma: p[3]!, phi: defaultPhi }),
+      provenance: notFitted.length ? `${provenance}; ${notFitted.join(" and ")} not fitted (no data for ${notFitted.length > 1 ? "them" : "it"} in the window)` : provenance,
+    } as DeviceCard;
   },
 };
 

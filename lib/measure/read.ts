@@ -48,22 +48,28 @@ export interface ReadOptions {
   readonly fixed?: Partial<Record<NumericColumn, number>> & { readonly corner?: string };
 }
 
-const prefixes: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, μ: 1e-6, m: 1e-3, "": 1, k: 1e3, M: 1e6 };
+// Powers of ten, applied by division for small prefixes so 10 um reads as exactly 1e-5 m.
+const prefixes: Record<string, number> = { f: -15, p: -12, n: -9, u: -6, µ: -6, μ: -6, m: -3, "": 0, k: 3, M: 6 };
 const baseUnit: Record<NumericColumn, string> = { w: "m", l: "m", temp: "K", vgs: "V", vds: "V", vbs: "V", id: "A" };
 
 /** Scale and offset from a unit string to SI for one quantity; throws naming where the unit came from. */
 export function unitToSI(column: NumericColumn, unit: string, origin: string): { scale: number; offset: number } {
+  const c = unitConversion(column, unit, origin);
+  return { scale: c.power < 0 ? 1 / 10 ** -c.power : 10 ** c.power, offset: c.offset };
+}
+
+function unitConversion(column: NumericColumn, unit: string, origin: string): { power: number; offset: number } {
   const u = unit.trim();
   if (column === "temp") {
-    if (u === "" || /^(°C|degC|C|deg C|celsius)$/i.test(u)) return { scale: 1, offset: 273.15 };
-    if (/^K$/i.test(u)) return { scale: 1, offset: 0 };
+    if (u === "" || /^(°C|degC|C|deg C|celsius)$/i.test(u)) return { power: 0, offset: 273.15 };
+    if (/^K$/i.test(u)) return { power: 0, offset: 0 };
     throw new InputError(unit, "a temperature unit: °C, degC or K", origin);
   }
   const base = baseUnit[column];
-  if (u === "") return { scale: 1, offset: 0 };
+  if (u === "") return { power: 0, offset: 0 };
   if (u.endsWith(base)) {
     const p = prefixes[u.slice(0, -base.length)];
-    if (p !== undefined) return { scale: p, offset: 0 };
+    if (p !== undefined) return { power: p, offset: 0 };
   }
   throw new InputError(unit, `a unit of ${base} with an SI prefix (f p n u m k M), e.g. m${base}`, origin);
 }
@@ -141,15 +147,15 @@ export function parseMeasurements(text: string, origin: string, opts: ReadOption
   };
   const corner: string[] = new Array(n);
   const line = new Int32Array(n);
-  const conv = new Map<HeaderCell, { scale: number; offset: number }>();
-  for (const c of cells) if (c.column !== "corner") conv.set(c, unitToSI(c.column, c.unit, origin));
+  const conv = new Map<HeaderCell, { power: number; offset: number }>();
+  for (const c of cells) if (c.column !== "corner") conv.set(c, unitConversion(c.column, c.unit, origin));
   const num = (row: string[], c: HeaderCell, r: number): number => {
     // csv-parse counts the line a record ends on
     const s = row[c.index] ?? "";
     const v = Number(s);
     if (s === "" || !Number.isFinite(v)) throw new InputError(s, `a number in ${c.unit || baseUnit[c.column as NumericColumn]}`, `${origin}: line ${lines[r]}, column ${c.index + 1} "${header[c.index]}"`);
     const k = conv.get(c)!;
-    return v * k.scale + k.offset;
+    return (k.power < 0 ? v / 10 ** -k.power : v * 10 ** k.power) + k.offset;
   };
   const defaults: Record<NumericColumn, number> = { w: NaN, l: NaN, temp: 298.15, vgs: NaN, vds: NaN, vbs: 0, id: NaN };
   let k = 0;
