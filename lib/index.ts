@@ -14,10 +14,17 @@ export * from "./device/inverse.js";
 export * from "./device/inversion.js";
 export * from "./device/temperature.js";
 export * from "./device/extract.js";
+export * from "./device/model.js";
+export * from "./device/models/index.js";
+export { squareLaw, channelCurrent } from "./device/models/square-law.js";
+export { squareLawMobility, mobilityChannelCurrent, mobilitySaturationVoltage } from "./device/models/mobility.js";
+export { ekv, ekvChannelCurrent, ekvInversionCoefficient, defaultEkvCriticalField } from "./device/models/ekv.js";
 export { Derivation, unitOf, derivationSchemaVersion } from "./record/derivation.js";
 export type * from "./record/derivation.js";
 export type { Formula, FormulaSpec, SymbolSpec } from "./formulas/define.js";
 export * as deviceFormulas from "./formulas/device.formulas.js";
+export * as mobilityFormulas from "./formulas/square-law-mobility.formulas.js";
+export * as ekvFormulas from "./formulas/ekv.formulas.js";
 // Bias networks: topologies, solver, SPICE export, standard values, synthesis, tolerance, dissipation.
 export * from "./bias/topology.js";
 export * from "./bias/analyze.js";

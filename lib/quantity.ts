@@ -22,6 +22,8 @@ export const dimensions = {
   /** Threshold temperature coefficient. */
   voltagePerKelvin: { unit: "V/K", tex: "\\mathrm{V/K}", label: "voltage per kelvin" },
   length: { unit: "m", tex: "\\mathrm{m}", label: "length" },
+  /** Critical field for velocity saturation (Esat, EKV UCRIT). */
+  electricField: { unit: "V/m", tex: "\\mathrm{V/m}", label: "electric field" },
   temperature: { unit: "K", tex: "\\mathrm{K}", label: "temperature" },
   power: { unit: "W", tex: "\\mathrm{W}", label: "power" },
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
@@ -54,6 +56,7 @@ export type PerVolt = Quantity<"inverseVoltage">;
 export type SqrtVolts = Quantity<"sqrtVoltage">;
 export type VoltsPerKelvin = Quantity<"voltagePerKelvin">;
 export type Meters = Quantity<"length">;
+export type VoltsPerMeter = Quantity<"electricField">;
 export type Kelvin = Quantity<"temperature">;
 export type Watts = Quantity<"power">;
 export type Farads = Quantity<"capacitance">;
@@ -75,6 +78,7 @@ export const perVolt = (v: number) => v as PerVolt;
 export const sqrtVolts = (v: number) => v as SqrtVolts;
 export const voltsPerKelvin = (v: number) => v as VoltsPerKelvin;
 export const meters = (v: number) => v as Meters;
+export const voltsPerMeter = (v: number) => v as VoltsPerMeter;
 export const kelvin = (v: number) => v as Kelvin;
 export const watts = (v: number) => v as Watts;
 export const farads = (v: number) => v as Farads;

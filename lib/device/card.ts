@@ -1,13 +1,32 @@
 /**
  * Device cards: the process parameters of one transistor type, plus the drawn
  * W and L of one instance. Plain JSON-serialisable data, SI units, signs as in a
- * SPICE Level 1 model card (PMOS vt0 negative, kp positive).
+ * SPICE model card (PMOS vt0 negative, kp positive). `model` names the equations
+ * the card's numbers belong to (absent: the square law, so older cards stay valid);
+ * the models themselves live in `device/models/`.
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
-import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, SqrtVolts, Volts, VoltsPerKelvin } from "../quantity.js";
+import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
 export type Polarity = (typeof polarities)[number];
+
+/**
+ * The device models a card can name: the square law (SPICE Level 1), the square
+ * law with mobility degradation and velocity saturation, and the all-region EKV model.
+ */
+export const modelIds = ["square-law", "square-law-mobility", "ekv"] as const;
+export type ModelId = (typeof modelIds)[number];
+
+/** Card fields only some models use, and the models that use them. */
+export const modelOnlyFields = {
+  theta: ["square-law-mobility", "ekv"],
+  ecrit: ["square-law-mobility", "ekv"],
+  sigma: ["ekv"],
+} as const satisfies Record<string, readonly ModelId[]>;
+
+/** The model a card names; the square law when it names none. */
+export const modelOf = (card: DeviceCard): ModelId => card.model ?? "square-law";
 
 export interface TemperatureCoefficients {
   /** Temperature at which kp and vt0 were characterised. */
@@ -21,6 +40,8 @@ export interface TemperatureCoefficients {
 export interface DeviceCard {
   readonly name: string;
   readonly polarity: Polarity;
+  /** Which equations the numbers belong to; "square-law" when omitted. */
+  readonly model?: ModelId;
   /** Process transconductance parameter µ·Cox (SPICE KP), > 0 for both polarities. */
   readonly kp: AmperesPerVoltSquared;
   /** Zero-bias threshold (SPICE VTO): positive for an enhancement NMOS, negative for an enhancement PMOS. */
@@ -31,6 +52,15 @@ export interface DeviceCard {
   readonly gamma?: SqrtVolts;
   /** Surface potential 2φF (SPICE PHI), > 0; 0.6 V when omitted (the SPICE default). */
   readonly phi?: Volts;
+  /** Mobility degradation θ (1/V), ≥ 0; 0 when omitted. square-law-mobility: µeff = µ0/(1 + θ·VOV); ekv: β ∝ 1/(1 + θ·VP). */
+  readonly theta?: PerVolt;
+  /**
+   * Critical field for velocity saturation Esat (EKV UCRIT), > 0 in V/m. square-law-mobility:
+   * none when omitted; ekv: 2·10⁶ V/m when omitted (EPFL-EKV 2.6 default, from memory).
+   */
+  readonly ecrit?: VoltsPerMeter;
+  /** ekv only: drain-induced threshold lowering, VP shifts by σ·VDS; ≥ 0, 0 when omitted. */
+  readonly sigma?: Ratio;
   readonly temperature?: TemperatureCoefficients;
   /** Where the numbers come from: a datasheet, a PDK, a measurement, or "invented for the demo". */
   readonly provenance?: string;
@@ -45,6 +75,9 @@ export interface Device {
 /** SPICE Level 1 default for PHI when a card omits it. */
 export const defaultPhi = 0.6 as Volts;
 
+/** Temperature at which a card's numbers hold: its temperature block's t0, else 27 °C (the SPICE nominal temperature). */
+export const cardTemperature = (card: DeviceCard): Kelvin => card.temperature?.t0 ?? (300.15 as Kelvin);
+
 /** +1 for NMOS, −1 for PMOS: multiplies terminal voltages into the device's own polarity. */
 export const polaritySign = (card: DeviceCard): 1 | -1 => (card.polarity === "nmos" ? 1 : -1);
 
@@ -58,6 +91,18 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   if (card.lambda !== undefined) requireNonNegative(card.lambda, at("lambda"), "λ ≥ 0 in 1/V");
   if (card.gamma !== undefined) requireNonNegative(card.gamma, at("gamma"), "γ ≥ 0 in √V");
   if (card.phi !== undefined) requirePositive(card.phi, at("phi"), "2φF > 0 in V");
+  if (card.model !== undefined && !modelIds.includes(card.model))
+    throw new InputError(card.model, `one of ${modelIds.map((m) => `"${m}"`).join(", ")} (or omitted for the square law)`, at("model"));
+  const model = modelOf(card);
+  for (const [field, users] of Object.entries(modelOnlyFields) as [keyof typeof modelOnlyFields, readonly ModelId[]][])
+    if (card[field] !== undefined && !users.includes(model))
+      throw new InputError(card[field], `no ${field} on a "${model}" card (it belongs to ${users.map((m) => `"${m}"`).join(" and ")}); set "model" or remove the field`, at(field));
+  if (card.theta !== undefined) requireNonNegative(card.theta, at("theta"), "a mobility degradation θ ≥ 0 in 1/V");
+  if (card.ecrit !== undefined) requirePositive(card.ecrit, at("ecrit"), "a critical field Esat > 0 in V/m (typically 10⁶ to 10⁷)");
+  if (card.sigma !== undefined) requireNonNegative(card.sigma, at("sigma"), "a threshold lowering σ ≥ 0 (volts of VP per volt of VDS)");
+  // EKV's β = KP·W/L/(1 + θ·VP) must stay positive down to VP = −2φF.
+  if (model === "ekv" && card.theta !== undefined && card.theta * (card.phi ?? defaultPhi) >= 1)
+    throw new InputError(card.theta, `θ < 1/(2φF) = ${+(1 / (card.phi ?? defaultPhi)).toPrecision(3)} 1/V, so that 1 + θ·VP stays positive`, at("theta"));
   if (card.temperature) {
     requirePositive(card.temperature.t0, at("temperature.t0"), "a reference temperature > 0 K");
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");

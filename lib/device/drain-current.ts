@@ -1,23 +1,23 @@
 /**
  * Drain current in every region, with the region test and its margins.
- * `drainCurrent` is the allocation-free hot path; `operatingPoint` returns the
- * whole picture and records its steps. Both go through `channelCurrent`.
+ * `drainCurrent` is the allocation-free hot path for every model (the card's
+ * `model` picks the equations, device/models/); `operatingPoint` returns the
+ * whole picture and records its steps.
  */
 import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
-import { defaultPhi, polaritySign, type Device } from "./card.js";
+import { cardTemperature, defaultPhi, polaritySign, type Device } from "./card.js";
 import { regionOf, regionReason, type Region } from "./region.js";
 import { thresholdMagnitude } from "./threshold.js";
-import { requireFinite } from "../errors.js";
+import { InputError, requireFinite } from "../errors.js";
 import { inversion, type InversionOptions } from "./inversion.js";
+import { channelCurrent, type ClmMode } from "./models/square-law.js";
+import { mobilityChannelCurrent } from "./models/mobility.js";
+import { defaultEkvCriticalField, ekvChannelCurrent } from "./models/ekv.js";
+import { thermalVoltage } from "../quantity.js";
 
-/**
- * How channel-length modulation enters: "continuous" multiplies both triode and
- * saturation currents by (1 + λ·VDS), as SPICE Level 1 does, so ID is continuous
- * at VDS = VOV; "saturation-only" applies it in saturation only (the textbook form).
- */
-export type ClmMode = "continuous" | "saturation-only";
+export { channelCurrent, type ClmMode } from "./models/square-law.js";
 
 /** Model choices; the inversion options only affect the recorded inversion-level finding. */
 export interface ModelOptions extends InversionOptions {
@@ -54,16 +54,6 @@ export interface OperatingPoint {
   readonly reason: string;
 }
 
-/** Square-law channel current for VDS ≥ 0 in device polarity. */
-export function channelCurrent(k: number, vov: number, vds: number, lambda: number, clm: ClmMode): number {
-  if (vov <= 0) return 0;
-  if (vds < vov) {
-    const i = k * (vov - vds / 2) * vds;
-    return clm === "continuous" ? i * (1 + lambda * vds) : i;
-  }
-  return (k / 2) * vov * vov * (1 + lambda * vds);
-}
-
 /**
  * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb. Plain numbers in,
  * plain number out, no allocation: the form for sweeps and Monte Carlo.
@@ -81,7 +71,11 @@ export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm
     d = -d;
     dir = -1;
   }
+  const model = c.model;
+  if (model === "ekv")
+    return (s * dir * ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, thermalVoltage(cardTemperature(c)), g, d, b)) as Amperes;
   const vt = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts);
+  if (model === "square-law-mobility") return (s * dir * mobilityChannelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? Infinity, dev.l)) as Amperes;
   return (s * dir * channelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, clm)) as Amperes;
 }
 
@@ -91,6 +85,8 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
   requireFinite(bias.vds, "bias.vds", "a finite VDS in V");
   if (bias.vsb !== undefined) requireFinite(bias.vsb, "bias.vsb", "a finite VSB in V");
   const c = dev.card;
+  if (c.model !== undefined && c.model !== "square-law")
+    throw new InputError(c.model, `a square-law card: the operating point of "${c.model}" cards is not wired yet (use drainCurrent or the model's vector form)`, "operatingPoint.dev.card.model");
   const pmos = c.polarity === "pmos";
   const s = polaritySign(c);
   const clm = opts.clm ?? "continuous";

@@ -44,3 +44,6 @@ export interface Formula<Args extends readonly number[] = any[], R extends numbe
 /** Identity helpers that keep literal types for the generator and the checker. */
 export const defineSymbols = <const S extends Record<string, SymbolSpec>>(s: S) => s;
 export const defineFormulas = <const F extends Record<string, FormulaSpec>>(f: F) => f;
+
+/** x², used by generated code for `^2`. */
+export const sq = (x: number): number => x * x;

@@ -40,6 +40,8 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   sqrtVoltage: { text: "√V", tex: "\\sqrt{\\mathrm{V}}", prefix: false },
   voltagePerKelvin: { text: "V/K", tex: "\\mathrm{V/K}", prefix: true },
   length: { text: "m", tex: "\\mathrm{m}", prefix: true },
+  // Critical fields are quoted in V/µm (common practice).
+  electricField: { text: "V/µm", tex: "\\mathrm{V/\\mu m}", prefix: false, scale: 1e-6 },
   temperature: { text: "K", tex: "\\mathrm{K}", prefix: false },
   power: { text: "W", tex: "\\mathrm{W}", prefix: true },
   capacitance: { text: "F", tex: "\\mathrm{F}", prefix: true },

@@ -14,6 +14,8 @@ const vsb = new Float64Array(points);
 const ids = new Float64Array(points);
 let c: Core | undefined;
 let dev: Device | undefined;
+let ekvDev: Device | undefined;
+let ekvVector: Float64Array | undefined;
 /** Results are summed into this so the work cannot be dropped. */
 export let sink = 0;
 
@@ -22,6 +24,10 @@ async function prepare(): Promise<void> {
   // Invented card for the benchmark, not a real process.
   const card = { name: "bench-n", polarity: "nmos", kp: c.amperesPerVoltSquared(120e-6), vt0: c.volts(0.45), lambda: c.perVolt(0.04), gamma: c.sqrtVolts(0.45), phi: c.volts(0.8) } as const;
   dev = c.device(card, c.meters(20e-6), c.meters(0.5e-6));
+  // The same invented card as an EKV card with the short-channel terms switched on.
+  const ekvCard = { ...card, name: "bench-n-ekv", model: "ekv", theta: c.perVolt(0.2), ecrit: c.voltsPerMeter(4e6), sigma: c.ratio(0.02) } as const;
+  ekvDev = c.device(ekvCard, c.meters(20e-6), c.meters(0.5e-6));
+  ekvVector = c.parameterVector(ekvDev);
   let s = 98765;
   const rand = () => ((s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32);
   for (let i = 0; i < points; i++) {
@@ -43,6 +49,36 @@ function rate(n: number, body: (i: number) => number): number {
 }
 
 export const cases = defineCases([
+  {
+    id: "device.ekvCurrent",
+    title: "EKV all-region ID evaluations per second from a parameter vector, varied bias (dist/index.js)",
+    repeats: 7,
+    async setup() {
+      if (!c) await prepare();
+      const m = c!.ekv;
+      for (let i = 0; i < 200_000; i++) sink += m.current(ekvVector!, vgs[i & (points - 1)]!, vds[i & (points - 1)]!, vsb[i & (points - 1)]!);
+    },
+    measure() {
+      const f = c!.ekv.current;
+      const p = ekvVector!;
+      return { rate: rate(4_000_000, (i) => f(p, vgs[i]!, vds[i]!, vsb[i]!)) };
+    },
+    figures: { rate: { unit: "evals/s", better: "higher", target: 2e7, note: "weak to strong inversion, both VDS signs, body effect, velocity saturation" } },
+  },
+  {
+    id: "device.ekvDrainCurrent",
+    title: "drainCurrent evaluations per second on an EKV card, varied bias (dist/index.js)",
+    repeats: 7,
+    async setup() {
+      if (!c) await prepare();
+    },
+    measure() {
+      const f = c!.drainCurrent;
+      const d = ekvDev!;
+      return { rate: rate(4_000_000, (i) => f(d, vgs[i]! as never, vds[i]! as never, vsb[i]! as never)) };
+    },
+    figures: { rate: { unit: "evals/s", better: "higher", target: 2e7, note: "the card path: SPICE signs, source/drain swap, EKV" } },
+  },
   {
     id: "device.smallSignal",
     title: "smallSignal evaluations per second, no record, varied bias (dist/index.js)",

@@ -1,0 +1,119 @@
+/**
+ * The EKV all-region MOSFET model, charge-based and continuous from weak through
+ * strong inversion, in the device's own polarity (magnitudes for a PMOS). Core:
+ * Enz, Krummenacher & Vittoz, "An analytical MOS transistor model valid in all
+ * regions of operation and dedicated to low-voltage and low-current applications",
+ * Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995. Velocity
+ * saturation, mobility degradation and the equivalent length as in the EPFL-EKV
+ * 2.6 equations (Bucher, Lallement, Enz, Théodoloz & Krummenacher, EPFL technical
+ * report, 1999), stated from memory, with these choices:
+ * - the 2.6 smoothing ΔV = 4·UT·√(LAMBDA·(…) + 1/64) is taken at LAMBDA = 0, ΔV = UT/2;
+ *   channel-length modulation is instead the factor (1 + λ·VDS) of SPICE Level 1;
+ * - the equivalent length uses the same saturation voltage VDSS' as the reverse current;
+ * - a threshold lowering σ·VDS (drain-induced barrier lowering) shifts the effective gate voltage.
+ * Terminal voltages are source-referenced here (VGB = VGS + VSB, VS = VSB, VD = VDS + VSB).
+ */
+import { defineFormulas, defineSymbols } from "./define.js";
+
+const ekv95 = "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995";
+const ekv26 = "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)";
+
+export const symbols = defineSymbols({
+  VGS: { tex: "V_{GS}", dim: "voltage", meaning: "gate-source voltage" },
+  VDS: { tex: "V_{DS}", dim: "voltage", meaning: "drain-source voltage" },
+  VSB: { tex: "V_{SB}", dim: "voltage", meaning: "source-body voltage" },
+  Vt0: { tex: "V_{t0}", dim: "voltage", meaning: "zero-bias threshold voltage" },
+  gamma: { tex: "\\gamma", dim: "sqrtVoltage", meaning: "body-effect coefficient" },
+  phi: { tex: "2\\phi_{F}", dim: "voltage", meaning: "surface potential at strong inversion" },
+  kp: { tex: "k'", dim: "transconductanceParameter", meaning: "process transconductance parameter µ·Cox" },
+  W: { tex: "W", dim: "length", meaning: "channel width" },
+  L: { tex: "L", dim: "length", meaning: "channel length" },
+  lambda: { tex: "\\lambda", dim: "inverseVoltage", meaning: "channel-length modulation coefficient" },
+  theta: { tex: "\\theta", dim: "inverseVoltage", meaning: "mobility degradation coefficient" },
+  Ecrit: { tex: "E_{sat}", dim: "electricField", meaning: "critical field for velocity saturation" },
+  sigma: { tex: "\\sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering coefficient" },
+  UT: { tex: "U_{T}", dim: "voltage", meaning: "thermal voltage kT/q" },
+  n: { tex: "n", dim: "dimensionless", meaning: "subthreshold slope factor" },
+  IC: { tex: "IC", dim: "dimensionless", meaning: "inversion coefficient IF/IS (forward over specific current)" },
+  ID: { tex: "I_{D}", dim: "current", meaning: "drain current" },
+  VGp: { tex: "V_{G}'", dim: "voltage", meaning: "effective gate voltage (EKV)" },
+  VP: { tex: "V_{P}", dim: "voltage", meaning: "pinch-off voltage (EKV)" },
+  IRn: { tex: "i_{r}", dim: "dimensionless", meaning: "reverse normalised current IR/IS (EKV)" },
+  VDSS: { tex: "V_{DSS}'", dim: "voltage", meaning: "saturation voltage of the normalised drain-source voltage (EKV)" },
+  Vip: { tex: "V_{ip}", dim: "voltage", meaning: "half drain-source voltage, smoothly limited at VDSS' (EKV)" },
+  Leq: { tex: "L_{eq}", dim: "length", meaning: "equivalent channel length with velocity saturation (EKV)" },
+  beta: { tex: "\\beta", dim: "transconductanceParameter", meaning: "gain factor k'·W/Leq with mobility degradation (EKV)" },
+  IS: { tex: "I_{S}", dim: "current", meaning: "specific current 2·n·β·UT² (EKV)" },
+});
+
+export const formulas = defineFormulas({
+  ekvEffectiveGate: {
+    title: "Effective gate voltage",
+    result: "VGp",
+    expr: "VGS + VSB - Vt0 + sigma * VDS + phi + gamma * sqrt(phi)",
+    source: ekv26,
+  },
+  ekvPinchOffVoltage: {
+    title: "Pinch-off voltage",
+    // Below VG' = 0 the channel holds no charge and VP stays at −2φF, as in EKV 2.6; VP and dVP/dVG' are continuous there.
+    result: "VP",
+    expr: "max(VGp, 0) - phi - gamma * (sqrt(max(VGp, 0) + gamma^2 / 4) - gamma / 2)",
+    source: ekv95,
+  },
+  ekvSlopeFactor: {
+    title: "Slope factor",
+    result: "n",
+    expr: "1 + gamma / (2 * sqrt(VP + phi + 4 * UT))",
+    source: ekv26,
+  },
+  ekvForwardCurrent: {
+    title: "Forward normalised current (inversion coefficient)",
+    result: "IC",
+    expr: "log1p(exp((VP - VSB) / (2 * UT)))^2",
+    source: ekv95,
+  },
+  ekvSaturationVoltage: {
+    title: "Saturation voltage for the reverse current, with velocity saturation",
+    // VC·(√(1/4 + x/VC) − 1/2) rationalised to x/(√(1/4 + x/VC) + 1/2), VC = Esat·L: exact and free of cancellation for long channels.
+    result: "VDSS",
+    expr: "UT * (sqrt(IC) - 3 / 4 * log(IC)) / (sqrt(1 / 4 + UT * (sqrt(IC) - 3 / 4 * log(IC)) / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
+    source: ekv26,
+  },
+  ekvLimitedDrainVoltage: {
+    title: "Half drain-source voltage limited at VDSS'",
+    // ≈ VDS/2 well below VDSS', → 2·VDSS' − VDS/2 well above it, smooth over ΔV = UT/2 between.
+    result: "Vip",
+    expr: "sqrt(VDSS^2 + UT^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + UT^2 / 4)",
+    source: ekv26,
+  },
+  ekvReverseCurrent: {
+    title: "Reverse normalised current, saturating at VDSS'",
+    result: "IRn",
+    expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * UT)))^2",
+    source: ekv26,
+  },
+  ekvEquivalentLength: {
+    title: "Equivalent channel length with velocity saturation",
+    result: "Leq",
+    expr: "L + (VDS / 2 + Vip) / Ecrit",
+    source: ekv26,
+  },
+  ekvGainFactor: {
+    title: "Gain factor with mobility degradation",
+    result: "beta",
+    expr: "kp * W / Leq / (1 + theta * VP)",
+    source: ekv26,
+  },
+  ekvSpecificCurrent: {
+    title: "Specific current",
+    result: "IS",
+    expr: "2 * n * beta * UT^2",
+    source: ekv95,
+  },
+  ekvDrainCurrent: {
+    title: "Drain current, all regions",
+    result: "ID",
+    expr: "IS * (IC - IRn) * (1 + lambda * VDS)",
+    source: ekv95,
+  },
+});
