@@ -10,7 +10,7 @@
 import { describe, expect, it } from "vitest";
 import { InputError } from "../lib/errors.js";
 import { fitSweep } from "../lib/fit/fit.js";
-import { squareLawFit } from "../lib/fit/square-law.js";
+import { squareLawFit } from "../lib/fit/models.js";
 import { parseMeasurements, readMeasurements } from "../lib/measure/read.js";
 import { select } from "../lib/measure/select.js";
 import { runNgspice } from "./support/ngspice.js";

@@ -110,7 +110,7 @@ function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, o
   const n = active.length;
   if (idx.length < Math.max(3 * n, 8))
     throw new InputError(idx.length, `at least ${Math.max(3 * n, 8)} points above ${(opts.minCurrent ?? 1e-8).toExponential(0)} A in the fit window (${n} parameters)`, origin);
-  const p = Float64Array.from(full);
+  const p = Float64Array.from(full, (v, j) => (free[j] ? v : model.held[j]!));
   const out = new Float64Array(idx.length);
   const meas = Float64Array.from(idx, (i) => s.id[i]!);
   const params = model.parameters;

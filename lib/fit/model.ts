@@ -28,6 +28,8 @@ export interface FitModel {
   readonly parameters: readonly FitParameter[];
   /** Parameters that the data in the window cannot determine are held (e.g. γ without VBS ≠ 0 points). */
   free(s: Sweep, window: Int32Array): boolean[];
+  /** Value of each parameter while held (what a card without it means). */
+  readonly held: readonly number[];
   /** Starting values (all parameters) from the data. */
   start(s: Sweep, est: StartEstimate): Float64Array;
   /** Drain current (SPICE sign) at the listed points into out[0..idx.length). Allocation-free. */
