@@ -9,11 +9,13 @@
  * fixed ladder of windows (strong inversion, VBS = 0; overdrive from 0.2–1.0 V
  * down to 0.4–0.6 V, then saturation only) whose fit reaches the target RMS
  * (5 % unless set); when none does, the narrowest is kept and `meetsTarget` is
- * false. Models that hold in every region use every point above the floor.
+ * false. Models that hold in every region use every point above the floor,
+ * fitted from two starts (the data's start estimate; and the fit to the
+ * low-VDS transfer curves alone), keeping the lower RMS.
  * Overdrive is measured from the start estimate of the threshold, so the
  * window does not move while the fit runs.
  */
-import { InputError } from "../errors.js";
+import { ConvergenceError, InputError } from "../errors.js";
 import type { DeviceCard } from "../device/card.js";
 import type { Sweep } from "../measure/select.js";
 import { accuracy, summarise, type Accuracy, type ErrorSummary } from "./accuracy.js";
@@ -41,6 +43,8 @@ export interface FitOptions {
   readonly minCurrent?: number;
   readonly maxIterations?: number;
   readonly onIteration?: (iteration: number, sumSquares: number) => void;
+  /** Starting parameter vector (model order), e.g. an earlier fit's `p`; from the data when omitted. */
+  readonly start?: Float64Array;
 }
 
 export interface FittedParameter {
@@ -105,7 +109,7 @@ export function windowPoints(s: Sweep, w: FitWindow, est: StartEstimate, minCurr
 
 function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string) {
   const free = model.free(s, idx);
-  const full = model.start(s, est);
+  const full = opts.start ? Float64Array.from(opts.start) : model.start(s, est);
   const active = free.flatMap((f, j) => (f ? [j] : []));
   const n = active.length;
   if (idx.length < Math.max(3 * n, 8))
@@ -159,6 +163,18 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     let fit: ReturnType<typeof fitIn>;
     try {
       fit = fitIn(model, s, idx, est, opts, origin);
+      if (!user && !opts.start && model.id !== "square-law") {
+        // Second start, kept when better: the low-VDS transfer curves alone first (threshold,
+        // current factor, body effect, mobility), then every point from there.
+        const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
+        try {
+          const first = fitIn(model, s, low, est, opts, origin);
+          const staged = fitIn(model, s, idx, est, { ...opts, start: first.p }, origin);
+          if (summarise(staged.errors).rms! < summarise(fit.errors).rms!) fit = staged;
+        } catch (e) {
+          if (!(e instanceof InputError) && !(e instanceof ConvergenceError)) throw e;
+        }
+      }
     } catch (e) {
       if (user || !(e instanceof InputError)) throw e;
       lastError = e; // too few points in this rung: try the next

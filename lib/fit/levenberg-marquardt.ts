@@ -7,7 +7,8 @@
  * upper bound only; the iteration runs in u, so every trial point is inside the
  * bounds. The Jacobian is the problem's own (analytic, in p) or a forward
  * difference in p with step 1.5e-8·max(|pⱼ|, scaleⱼ), taken inwards at a bound.
- * Each step solves (JᵀJ + μ·diag JᵀJ) δ = −Jᵀr by Cholesky (n is small).
+ * Each step solves (JᵀJ + μ·diag JᵀJ) δ = −Jᵀr by Cholesky (n is small), and
+ * is shortened to at most 2 in any bounded transformed variable.
  *
  * Stopping rules (any one): relative decrease of Σr² below `ftol` on an accepted
  * step; step ‖δ‖ ≤ xtol·(‖u‖ + xtol); ‖Jᵀr‖∞ ≤ gtol; μ above 1e15 with no
@@ -237,6 +238,11 @@ export function leastSquares(problem: LeastSquaresProblem, start: ArrayLike<numb
       continue;
     }
     choleskySolve(chol, negG, delta, n);
+    // At most 2 per step in the transformed variables: a longer step lands on the flat
+    // tail of a bound transform, where the gradient vanishes and the fit sticks.
+    let big = 0;
+    for (let j = 0; j < n; j++) if (kind[j] !== Kind.Free) big = Math.max(big, Math.abs(delta[j]!));
+    if (big > 2) for (let j = 0; j < n; j++) delta[j]! *= 2 / big;
     let dn = 0;
     let un = 0;
     for (let j = 0; j < n; j++) {
