@@ -12,3 +12,4 @@ export * from "./model.js";
 export * from "./models.js";
 export * from "./start.js";
 export * from "./temperature.js";
+export * from "./geometry.js";
