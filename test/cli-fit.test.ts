@@ -72,3 +72,16 @@ describe("pinchoff fit", { timeout: 60_000 }, () => {
     await expect(run([])).rejects.toThrow(UsageError);
   });
 });
+
+describe("device() with a card set (invented cards)", () => {
+  const card = (l: number, vt0: number): DeviceCard => ({ name: `n${l}`, polarity: "nmos", kp: 100e-6, vt0, lambda: 0.1 / l } as unknown as DeviceCard);
+  const set: CardSet = { kind: "card-set", name: "invented", polarity: "nmos", entries: [{ l: meters(1e-6), card: card(1, 0.5) }, { l: meters(4e-6), card: card(4, 0.6) }] };
+  it("takes the card at the device's length, interpolated in 1/L", async () => {
+    const { device } = await import("../lib/device/card.js");
+    const d = device(set, meters(10e-6), meters(2e-6));
+    // 1/L halfway-ish: t = (1/2 − 1/1)/(1/4 − 1/1) = 2/3
+    expect(d.card.vt0).toBeCloseTo(0.5 + (2 / 3) * 0.1, 12);
+    expect(d.card.lambda).toBeCloseTo(0.1 + (2 / 3) * (0.025 - 0.1), 12);
+    expect(() => device(set, meters(10e-6), meters(0.5e-6))).toThrow(/within the fitted range 1–4 µm/);
+  });
+});

@@ -6,6 +6,7 @@
  * the models themselves live in `device/models/`.
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
+import { cardAt, checkCardSet, type CardSet } from "./card-set.js";
 import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
@@ -111,12 +112,14 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   return card;
 }
 
-/** Make a device from a card and drawn W and L, validating both. */
-export function device(card: DeviceCard, w: Meters, l: Meters, origin = "device"): Device {
-  checkCard(card, `${origin}.card`);
+/** Make a device from a card (or a card set) and drawn W and L, validating both. */
+export function device(card: DeviceCard | CardSet, w: Meters, l: Meters, origin = "device"): Device {
   requirePositive(w, `${origin}.w`, "a channel width W > 0 in m");
   requirePositive(l, `${origin}.l`, "a channel length L > 0 in m");
-  return { card, w, l };
+  // A card set (cards fitted at several L) gives the card at this L (lib/device/card-set.ts).
+  const c = (card as Partial<CardSet>).kind === "card-set" ? cardAt(checkCardSet(card as CardSet, `${origin}.card`), l, `${origin}.card`) : (card as DeviceCard);
+  checkCard(c, `${origin}.card`);
+  return { card: c, w, l };
 }
 
 /** Validate a device built by hand (not through `device`); returns it unchanged. */
