@@ -182,7 +182,8 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     }
     const rms = summarise(fit.errors).rms!;
     // A rung whose points cannot tell the free parameters apart (one gate voltage, say) is no window.
-    if (!user && fit.free.some((f, j) => f && !Number.isFinite(fit.stdErr[j]!) && !atBound(model, fit.p, j))) continue;
+    // (a standard error as large as the value itself counts as not determined).
+    if (!user && fit.free.some((f, j) => f && !(fit.stdErr[j]! < Math.abs(fit.p[j]!)) && !atBound(model, fit.p, j))) continue;
     chosen = { w, idx, fit, rms };
     if (rms <= target) break;
   }
