@@ -86,7 +86,7 @@ export function accuracy(model: FitModel, p: Float64Array, s: Sweep, minCurrent 
   return { minCurrent, overall: summarise(used), regions, error: err, model: out, map: validityMap(s, err) };
 }
 
-/** Curves: points sharing (VDS, VBS) with ≥ 3 gate voltages, and points sharing (VGS, VBS) with ≥ 3 drain voltages. */
+/** Curves: points sharing (VDS, VBS) (transfer) or (VGS, VBS) (output), each point in the larger of the two, ≥ 3 points. */
 export function validityMap(s: Sweep, err: Float64Array): CurveValidity[] {
   const key = (a: number, b: number) => `${a.toPrecision(6)}|${b.toPrecision(6)}`;
   const transfer = new Map<string, number[]>();
@@ -96,6 +96,16 @@ export function validityMap(s: Sweep, err: Float64Array): CurveValidity[] {
     const o = key(s.vgs[i]!, s.vbs[i]!);
     (transfer.get(t) ?? transfer.set(t, []).get(t)!).push(i);
     (output.get(o) ?? output.set(o, []).get(o)!).push(i);
+  }
+  // Each point belongs to the larger of its two candidate curves (a transfer curve at VDS = 0.05 V
+  // crosses every output curve; the six points of the output curves at one VDS are no transfer curve).
+  const own = { transfer: new Map<string, number[]>(), output: new Map<string, number[]>() };
+  for (let i = 0; i < s.id.length; i++) {
+    const t = key(s.vds[i]!, s.vbs[i]!);
+    const o = key(s.vgs[i]!, s.vbs[i]!);
+    const toTransfer = transfer.get(t)!.length >= output.get(o)!.length;
+    const [m, k] = toTransfer ? [own.transfer, t] : [own.output, o];
+    (m.get(k) ?? m.set(k, []).get(k)!).push(i);
   }
   const curves: CurveValidity[] = [];
   const build = (kind: "transfer" | "output", idx: number[]) => {
@@ -111,8 +121,8 @@ export function validityMap(s: Sweep, err: Float64Array): CurveValidity[] {
       x, error, within5: stretches(x, error, 0.05), within10: stretches(x, error, 0.1),
     });
   };
-  for (const idx of transfer.values()) build("transfer", idx);
-  for (const idx of output.values()) build("output", idx);
+  for (const idx of own.transfer.values()) build("transfer", idx);
+  for (const idx of own.output.values()) build("output", idx);
   return curves;
 }
 
