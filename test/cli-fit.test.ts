@@ -42,8 +42,10 @@ describe("pinchoff fit", { timeout: 60_000 }, () => {
   });
   it("fits every length at a width into a card set that interpolates in 1/L", async () => {
     const card = join(dir, "set.json");
-    const r = await run([data, "--w", "10u", "--overdrive", "0.3:0.7", "--body", "0:0", "--saturation-only", "--card", card]);
+    const report = join(dir, "set.html");
+    const r = await run([data, "--w", "10u", "--overdrive", "0.3:0.7", "--body", "0:0", "--saturation-only", "--card", card, "--report", report]);
     expect([0, 1]).toContain(r.code);
+    expect(readFileSync(report, "utf8")).toMatch(/<h2>Parameters against L<\/h2>.*<td>0\.28 µm<\/td>/s);
     const set = checkCardSet(JSON.parse(readFileSync(card, "utf8")) as CardSet);
     expect(set.entries.map((e) => +(e.l * 1e6).toPrecision(3))).toEqual([0.28, 0.5, 1, 5, 10]);
     const at1 = cardAt(set, meters(1e-6));

@@ -54,6 +54,18 @@ ${fitFigures(fit, s).map((f) => plotHtml(f)).join("\n")}
 </section>`;
 }
 
+/** Parameters against L when several lengths of one width were fitted (the card set's rows). */
+function againstLength(fits: readonly { fit: FitResult }[]): string {
+  if (fits.length < 2) return "";
+  const names = fits[0]!.fit.parameters.map((p) => p.name);
+  const head = names.map((n) => `<th>${escapeHtml(n)} (${escapeHtml(fits[0]!.fit.parameters.find((p) => p.name === n)!.unit)})</th>`).join("");
+  const rows = [...fits]
+    .sort((a, b) => a.fit.device.l - b.fit.device.l)
+    .map(({ fit }) => `<tr><td>${um(fit.device.l)}</td>${fit.parameters.map((p) => `<td>${p.held ? "–" : num(p.value)}</td>`).join("")}<td>${pct(fit.inWindow.rms)}</td></tr>`)
+    .join("");
+  return `<h2>Parameters against L</h2><p>One fit per drawn length; the card set interpolates these in 1/L (– : not fitted, no data for it in the window).</p><table><thead><tr><th>L</th>${head}<th>RMS in window</th></tr></thead><tbody>${rows}</tbody></table>`;
+}
+
 /** The whole page for one or more fits. */
 export function fitReportHtml(title: string, fits: readonly { fit: FitResult; sweep: Sweep }[]): string {
   return `<!doctype html><html lang="en"><head><meta charset="utf-8">${fitReportMarker}<title>${escapeHtml(title)}</title>
@@ -61,6 +73,7 @@ export function fitReportHtml(title: string, fits: readonly { fit: FitResult; sw
 </head><body><h1>${escapeHtml(title)}</h1>
 <div class="cautions"><p><strong>Cautions.</strong> A fitted model describes the measured device inside the ranges shown here and nowhere else.</p><ul>${cautionList.map((c) => `<li>${escapeHtml(c)}</li>`).join("")}</ul></div>
 ${plotLibraryHtml()}
+${againstLength(fits)}
 ${fits.map((f) => section(f.fit, f.sweep)).join("\n")}
 </body></html>`;
 }
