@@ -9,7 +9,9 @@
  * fixed ladder of windows (strong inversion, VBS = 0; overdrive from 0.2–1.0 V
  * down to 0.4–0.6 V, then saturation only) whose fit reaches the target RMS
  * (5 % unless set); when none does, the narrowest is kept and `meetsTarget` is
- * false. Models that hold in every region use every point above the floor,
+ * false. The mobility/velocity-saturation form walks the same ladder after a
+ * first rung of every overdrive from 0.2 to 3 V. EKV, which holds in every
+ * region, uses every point above the floor,
  * fitted from two starts (the data's start estimate; and the fit to the
  * low-VDS transfer curves alone), keeping the lower RMS.
  * Overdrive is measured from the start estimate of the threshold, so the
@@ -155,7 +157,9 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
   const target = opts.target ?? 0.05;
   const est = estimateStart(s);
   const user = opts.window && opts.window !== "auto" ? opts.window : undefined;
-  const ladder: readonly FitWindow[] = user ? [user] : model.id === "square-law" ? squareLawWindows : [{}];
+  // The square-law family holds above threshold only: a ladder of strong-inversion windows
+  // (the mobility/velocity-saturation form first tries every overdrive up to 3 V).
+  const ladder: readonly FitWindow[] = user ? [user] : model.id === "square-law" ? squareLawWindows : model.id === "square-law-mobility" ? [{ vov: [0.2, 3], vbs: [0, 0] }, ...squareLawWindows] : [{}];
   let chosen: { w: FitWindow; idx: Int32Array; fit: ReturnType<typeof fitIn>; rms: number } | undefined;
   let lastError: unknown;
   for (const w of ladder) {
@@ -163,7 +167,7 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     let fit: ReturnType<typeof fitIn>;
     try {
       fit = fitIn(model, s, idx, est, opts, origin);
-      if (!user && !opts.start && model.id !== "square-law") {
+      if (!user && !opts.start && model.id === "ekv") {
         // Second start, kept when better: the low-VDS transfer curves alone first (threshold,
         // current factor, body effect, mobility), then every point from there.
         const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
