@@ -12,6 +12,7 @@ export * from "./device/threshold.js";
 export * from "./device/drain-current.js";
 export * from "./device/small-signal.js";
 export * from "./device/inverse.js";
+export { widthForCurrent, sizeByGmOverId, type EfficiencySizing } from "./device/model-inverse.js";
 export * from "./device/inversion.js";
 export * from "./device/temperature.js";
 export * from "./device/extract.js";

@@ -31,7 +31,7 @@ const base = { name: "invented-n", polarity: "nmos", kp: 180e-6, vt0: 0.55, gamm
 const cards: Record<ModelId, DeviceCard> = {
   "square-law": base as unknown as DeviceCard,
   "square-law-mobility": { ...base, model: "square-law-mobility", theta: 0.25, ecrit: 3e6 } as unknown as DeviceCard,
-  ekv: { ...base, model: "ekv", theta: 0.2, ecrit: 3e6, sigma: 0.02 } as unknown as DeviceCard,
+  ekv: { ...base, model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 3e6, sigma: 0.02 } as unknown as DeviceCard,
 };
 const mirror = (c: DeviceCard): DeviceCard => ({ ...c, name: "invented-p", polarity: "pmos", vt0: -c.vt0 as never });
 const at = (c: DeviceCard, w = 10e-6, l = 0.5e-6) => device(c, meters(w), meters(l));
@@ -78,7 +78,7 @@ describe("model registry and parameter vectors", () => {
     expect(() => at({ ...base, theta: 0.1 } as unknown as DeviceCard)).toThrow(/\.theta/);
     expect(() => at({ ...base, model: "square-law-mobility", sigma: 0.1 } as unknown as DeviceCard)).toThrow(/\.sigma/);
     expect(() => at({ ...base, model: "ekv", ecrit: -1 } as unknown as DeviceCard)).toThrow(/\.ecrit/);
-    expect(() => at({ ...base, model: "ekv", theta: 2 } as unknown as DeviceCard)).toThrow(/1 \+ θ·VP/);
+    expect(() => at({ ...base, model: "ekv", thetaB: 1.5 } as unknown as DeviceCard)).toThrow(/\.thetaB/);
   });
 });
 
@@ -164,6 +164,7 @@ describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995)"
     const p = parameterVector(longEkv(gamma));
     for (const vgs of [0.05, 0.15, 0.25]) {
       const vp = ekvFormulas.ekvPinchOffVoltage.fn(ekvFormulas.ekvEffectiveGate.fn(vgs as never, 0 as never, 0.5 as never, 0 as never, 0 as never, 0.7 as never, gamma as never), 0.7 as never, gamma as never);
+      expect(vp).toBeGreaterThan(-0.7);
       const n = 1 + gamma / (2 * Math.sqrt(vp + 0.7));
       const id = ekv.current(p, vgs, 1, 0);
       conductances(ekv, p, vgs, 1, 0, g);

@@ -46,6 +46,12 @@ const cardFields: Record<string, Dimension | "string"> = {
   gamma: "sqrtVoltage",
   phi: "voltage",
   provenance: "string",
+  // Device model (absent: the square law) and the parameters only some models use.
+  model: "string",
+  theta: "inverseVoltage",
+  thetaB: "inverseVoltage",
+  ecrit: "electricField",
+  sigma: "dimensionless",
 };
 const temperatureFields: Record<string, Dimension> = { t0: "temperature", alphaVt: "voltagePerKelvin", muExp: "dimensionless" };
 const limitFields: Record<keyof StageLimits, Dimension> = {

@@ -19,6 +19,8 @@
  * The solve loop allocates nothing.
  */
 import { channelCurrent, type ClmMode } from "../device/drain-current.js";
+import { modelOf, type Device } from "../device/card.js";
+import { solveModelNetwork } from "./solve-model.js";
 import { thresholdMagnitude } from "../device/threshold.js";
 import { ConvergenceError, InfeasibleError } from "../errors.js";
 import * as bf from "../formulas/bias.formulas.js";
@@ -49,6 +51,12 @@ export interface BiasNetwork {
   iss: number;
   /** Body at the source rail (true) or at the source (false). */
   bodyToRail: boolean;
+  /**
+   * The device, when its card names a model other than the square law: the channel
+   * current then comes from that model (solve-model.ts) and k, vt0, γ, φ, λ above
+   * serve only the first-cut estimate.
+   */
+  device?: Device;
 }
 
 /** Solution scratch, filled in place. */
@@ -75,6 +83,7 @@ const absTolVoltage = 1e-12;
 
 /** True when the network has no body effect and no channel-length modulation, so closed forms apply. */
 export function hasClosedForm(n: BiasNetwork): boolean {
+  if (n.device && modelOf(n.device.card) !== "square-law") return false;
   const bodyFree = n.gamma === 0 || !n.bodyToRail || (n.iss <= 0 && n.rs === 0);
   return n.lambda === 0 && bodyFree;
 }
@@ -82,6 +91,7 @@ export function hasClosedForm(n: BiasNetwork): boolean {
 /** Solve the network; fills and returns `out`. Records the reasoning when `rec` is given. */
 export function solveNetwork(n: BiasNetwork, out: NetworkSolution, origin = "stage", rec?: Derivation): NetworkSolution {
   if (!(n.vdr > n.vsr)) throw new InfeasibleError(`the drain rail (${n.vdr} V in device polarity) must lie above the source rail (${n.vsr} V)`, origin);
+  if (n.device && modelOf(n.device.card) !== "square-law") return solveModelNetwork(n, n.device, out, origin, rec);
   if (hasClosedForm(n)) {
     if (n.iss > 0) closedFormFed(n, out, rec);
     else closedFormResistive(n, out, rec);

@@ -5,7 +5,8 @@
  * module validates the input, solves, and assembles nodes, currents, power,
  * small-signal parameters and metrics, recording each step when asked.
  */
-import { device as makeDevice, polaritySign, defaultPhi, type Device } from "../device/card.js";
+import { device as makeDevice, polaritySign, defaultPhi, modelOf, type Device } from "../device/card.js";
+import { models } from "../device/models/index.js";
 import type { ClmMode } from "../device/drain-current.js";
 import { smallSignal } from "../device/small-signal.js";
 import { InfeasibleError, InputError, requireFinite } from "../errors.js";
@@ -148,7 +149,15 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     rec.input("GAMMA", card.gamma ?? 0, "sqrtVoltage", `card ${card.name}`);
     rec.input("PHI", card.phi ?? defaultPhi, "voltage", `card ${card.name}`);
     rec.assume("No DC gate current (insulated gate).");
-    rec.assume(`Square law (SPICE Level 1), channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
+    const model = modelOf(card);
+    if (model === "square-law") rec.assume(`Square law (SPICE Level 1), channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
+    else {
+      rec.assume(`Device model: ${models[model].title} (${models[model].source}).`);
+      if (card.theta !== undefined) rec.input("THETA", card.theta, "inverseVoltage", `card ${card.name}`);
+      if (card.ecrit !== undefined) rec.input("ESAT", card.ecrit, "electricField", `card ${card.name}`);
+      if (card.thetaB !== undefined) rec.input("THETAB", card.thetaB, "inverseVoltage", `card ${card.name}`);
+      if (card.sigma !== undefined) rec.input("SIGMA", card.sigma, "dimensionless", `card ${card.name}`);
+    }
     rec.assume(bodyToRail ? `Body tied to the ${pmos ? "upper (VDD)" : "lower (VSS)"} rail: the body effect applies when the source is off that rail.` : "Body tied to the source: VSB = 0, no body effect.");
     if (pmos) rec.note("PMOS", "Voltages in the equations are in the device's own polarity: each node voltage is negated, so VGS stands for VSG, VDS for VSD and Vt for |Vt|; the drain rail is then the more positive one.");
   }
@@ -168,10 +177,11 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
     rs: map.rs,
     iss: map.iss ?? 0,
     bodyToRail,
+    ...(modelOf(card) === "square-law" ? {} : { device: dev }),
   };
   if (net.vt0 <= 0) rec?.find("caution", `The card's threshold ${card.vt0} V describes a depletion-mode device; the bias equations still hold.`);
   const sol = solveNetwork(net, newSolution(), o, rec);
-  if (rec && sol.method === "bracketed-newton" && net.iss <= 0) {
+  if (rec && (sol.method === "bracketed-newton" || sol.method === "bracketed-regula-falsi") && net.iss <= 0) {
     rec.step(bf.sourceNode, [net.vsr, sol.id, net.rs], sol.vs, "at the solved drain current");
     rec.step(bf.drainNode, [net.vdr, sol.id, net.rd], sol.vd);
   }

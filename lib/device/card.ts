@@ -23,6 +23,7 @@ export type ModelId = (typeof modelIds)[number];
 export const modelOnlyFields = {
   theta: ["square-law-mobility", "ekv"],
   ecrit: ["square-law-mobility", "ekv"],
+  thetaB: ["ekv"],
   sigma: ["ekv"],
 } as const satisfies Record<string, readonly ModelId[]>;
 
@@ -53,13 +54,15 @@ export interface DeviceCard {
   readonly gamma?: SqrtVolts;
   /** Surface potential 2φF (SPICE PHI), > 0; 0.6 V when omitted (the SPICE default). */
   readonly phi?: Volts;
-  /** Mobility degradation θ (1/V), ≥ 0; 0 when omitted. square-law-mobility: µeff = µ0/(1 + θ·VOV); ekv: β ∝ 1/(1 + θ·VP). */
+  /** Mobility degradation θ (1/V), ≥ 0; 0 when omitted. square-law-mobility: µeff = µ0/(1 + θ·VOV); ekv: β ∝ 1/(1 + θ·2·n·UT·qf + θB·VSB), qf the source-end inversion charge. */
   readonly theta?: PerVolt;
   /**
    * Critical field for velocity saturation Esat (EKV UCRIT), > 0 in V/m. square-law-mobility:
    * none when omitted; ekv: 2·10⁶ V/m when omitted (EPFL-EKV 2.6 default, from memory).
    */
   readonly ecrit?: VoltsPerMeter;
+  /** ekv only: mobility degradation with source-body voltage θB (1/V), ≥ 0; 0 when omitted. */
+  readonly thetaB?: PerVolt;
   /** ekv only: drain-induced threshold lowering, VP shifts by σ·VDS; ≥ 0, 0 when omitted. */
   readonly sigma?: Ratio;
   readonly temperature?: TemperatureCoefficients;
@@ -82,6 +85,16 @@ export const cardTemperature = (card: DeviceCard): Kelvin => card.temperature?.t
 /** +1 for NMOS, −1 for PMOS: multiplies terminal voltages into the device's own polarity. */
 export const polaritySign = (card: DeviceCard): 1 | -1 => (card.polarity === "nmos" ? 1 : -1);
 
+/**
+ * Refuse a card whose model a closed-form calculation cannot take yet, naming the
+ * field, what refused it and what to use instead: never a square-law answer for an EKV card.
+ */
+export function requireSquareLawCard(card: DeviceCard, origin: string, what: string): void {
+  const m = modelOf(card);
+  if (m !== "square-law")
+    throw new InputError(m, `a square-law card: ${what} is written in the square law's closed forms and does not take a "${m}" card yet (analyse single-transistor stages, solve gate voltages or plot with it instead)`, `${origin}.model`);
+}
+
 /** Validate a card, naming the first bad field; returns the same card. */
 export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard {
   if (!card || typeof card !== "object") throw new InputError(card, "a device card object", origin);
@@ -99,11 +112,11 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
     if (card[field] !== undefined && !users.includes(model))
       throw new InputError(card[field], `no ${field} on a "${model}" card (it belongs to ${users.map((m) => `"${m}"`).join(" and ")}); set "model" or remove the field`, at(field));
   if (card.theta !== undefined) requireNonNegative(card.theta, at("theta"), "a mobility degradation θ ≥ 0 in 1/V");
+  if (card.thetaB !== undefined) requireNonNegative(card.thetaB, at("thetaB"), "a body-bias mobility degradation θB ≥ 0 in 1/V");
+  // β's denominator 1 + θ·… + θB·VSB must stay positive under the forward body bias a design can see (VSB down to −1 V).
+  if (card.thetaB !== undefined && card.thetaB >= 1) throw new InputError(card.thetaB, "θB < 1 1/V (so that 1 + θB·VSB > 0 down to VSB = −1 V)", at("thetaB"));
   if (card.ecrit !== undefined) requirePositive(card.ecrit, at("ecrit"), "a critical field Esat > 0 in V/m (typically 10⁶ to 10⁷)");
   if (card.sigma !== undefined) requireNonNegative(card.sigma, at("sigma"), "a threshold lowering σ ≥ 0 (volts of VP per volt of VDS)");
-  // EKV's β = KP·W/L/(1 + θ·VP) must stay positive down to VP = −2φF.
-  if (model === "ekv" && card.theta !== undefined && card.theta * (card.phi ?? defaultPhi) >= 1)
-    throw new InputError(card.theta, `θ < 1/(2φF) = ${+(1 / (card.phi ?? defaultPhi)).toPrecision(3)} 1/V, so that 1 + θ·VP stays positive`, at("theta"));
   if (card.temperature) {
     requirePositive(card.temperature.t0, at("temperature.t0"), "a reference temperature > 0 K");
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");

@@ -6,15 +6,15 @@
  */
 import { deviceGain, overdrive, saturationCurrent, saturationCurrentClm, triodeCurrent, triodeCurrentClm } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
-import type { Amperes, AmperesPerVoltSquared, PerVolt, SqrtVolts, Volts } from "../quantity.js";
-import { cardTemperature, defaultPhi, polaritySign, type Device } from "./card.js";
-import { regionOf, regionReason, type Region } from "./region.js";
+import type { Amperes, AmperesPerVoltSquared, PerVolt, Ratio, SqrtVolts, Volts } from "../quantity.js";
+import { cardTemperature, defaultPhi, polaritySign, type Device, type ModelId } from "./card.js";
+import { modelRegionReason, regionOf, regionReason, type Region } from "./region.js";
 import { thresholdMagnitude } from "./threshold.js";
-import { InputError, requireFinite } from "../errors.js";
+import { requireFinite } from "../errors.js";
 import { inversion, type InversionOptions } from "./inversion.js";
 import { channelCurrent, type ClmMode } from "./models/square-law.js";
-import { mobilityChannelCurrent } from "./models/mobility.js";
-import { defaultEkvCriticalField, ekvChannelCurrent } from "./models/ekv.js";
+import { mobilityBias, mobilityChannelCurrent } from "./models/mobility.js";
+import { defaultEkvCriticalField, ekvBias, ekvChannelCurrent } from "./models/ekv.js";
 import { thermalVoltage } from "../quantity.js";
 
 export { channelCurrent, type ClmMode } from "./models/square-law.js";
@@ -42,8 +42,14 @@ export interface OperatingPoint {
   readonly vt: Volts;
   /** Overdrive in the device's polarity: VGS − Vt (NMOS), VSG − |Vt| (PMOS). Negative in cutoff. */
   readonly vov: Volts;
-  /** VDS − VOV in the device's polarity: ≥ 0 in saturation; the margin to the triode edge. */
+  /** VDS − VDsat in the device's polarity: ≥ 0 in saturation; the margin to the triode edge. */
   readonly saturationMargin: Volts;
+  /** The model's drain saturation voltage (device polarity): VOV for the square law; with velocity saturation, or the EKV all-region value, below it. */
+  readonly vdsat: Volts;
+  /** The model that produced this operating point (the card's `model`). */
+  readonly model: ModelId;
+  /** EKV only: the inversion coefficient IC = IF/IS of the bias point. */
+  readonly ic?: Ratio;
   /** Gate-source, drain-source and source-body voltages in the device's polarity, after any source/drain swap. */
   readonly vgsDevice: Volts;
   readonly vdsDevice: Volts;
@@ -55,28 +61,29 @@ export interface OperatingPoint {
 }
 
 /**
- * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb. Plain numbers in,
- * plain number out, no allocation: the form for sweeps and Monte Carlo.
+ * Channel current in the device's own polarity (VGS, VDS, VSB as for an NMOS; any
+ * sign of VDS, the drain and source swapping roles when it is negative), for every
+ * model. Plain numbers, no allocation.
  */
-export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm: ClmMode = "continuous"): Amperes {
+export function deviceCurrent(dev: Device, g: number, d: number, b: number, clm: ClmMode = "continuous"): number {
+  if (d < 0) return -deviceCurrent(dev, g - d, -d, b + d, clm);
   const c = dev.card;
   const s = c.polarity === "nmos" ? 1 : -1;
-  let g = s * vgs;
-  let d = s * vds;
-  let b = s * vsb;
-  let dir = 1;
-  if (d < 0) {
-    g -= d;
-    b += d;
-    d = -d;
-    dir = -1;
-  }
   const model = c.model;
   if (model === "ekv")
-    return (s * dir * ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, thermalVoltage(cardTemperature(c)), g, d, b)) as Amperes;
+    return ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.thetaB ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, thermalVoltage(cardTemperature(c)), g, d, b);
   const vt = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts);
-  if (model === "square-law-mobility") return (s * dir * mobilityChannelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? Infinity, dev.l)) as Amperes;
-  return (s * dir * channelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, clm)) as Amperes;
+  if (model === "square-law-mobility") return mobilityChannelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? Infinity, dev.l);
+  return channelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, clm);
+}
+
+/**
+ * Drain current (SPICE sign) for terminal voltages vgs, vds, vsb, for every model.
+ * Plain numbers in, plain number out, no allocation: the form for sweeps and Monte Carlo.
+ */
+export function drainCurrent(dev: Device, vgs: number, vds: number, vsb = 0, clm: ClmMode = "continuous"): Amperes {
+  const s = dev.card.polarity === "nmos" ? 1 : -1;
+  return (s * deviceCurrent(dev, s * vgs, s * vds, s * vsb, clm)) as Amperes;
 }
 
 /** The whole operating point at given terminal voltages, recorded step by step when `rec` is given. */
@@ -85,8 +92,6 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
   requireFinite(bias.vds, "bias.vds", "a finite VDS in V");
   if (bias.vsb !== undefined) requireFinite(bias.vsb, "bias.vsb", "a finite VSB in V");
   const c = dev.card;
-  if (c.model !== undefined && c.model !== "square-law")
-    throw new InputError(c.model, `a square-law card: the operating point of "${c.model}" cards is not wired yet (use drainCurrent or the model's vector form)`, "operatingPoint.dev.card.model");
   const pmos = c.polarity === "pmos";
   const s = polaritySign(c);
   const clm = opts.clm ?? "continuous";
@@ -100,6 +105,13 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
     b += d;
     d = -d;
     rec?.note("Source and drain swap", `${pmos ? "VSD" : "VDS"} < 0: the drain terminal acts as the source; voltages are taken from it and the current reverses.`);
+  }
+  if (c.model === "square-law-mobility" || c.model === "ekv") {
+    const k = deviceGain.fn(c.kp, dev.w, dev.l);
+    rec?.step(deviceGain, [c.kp, dev.w, dev.l], k, "current factor of the card, for reference");
+    const m = c.model === "ekv" ? ekvBias(dev, g, d, b, rec) : mobilityBias(dev, g, d, b, rec);
+    const channel = ((reversed ? -1 : 1) * m.id) as Amperes;
+    return new OperatingPointValue(m.region, (s * channel) as Amperes, channel, (s * m.vt) as Volts, m.vov as Volts, g as Volts, d as Volts, b as Volts, reversed, k, pmos, m.vdsat as Volts, c.model, m.ic);
   }
   const k = deviceGain.fn(c.kp, dev.w, dev.l);
   rec?.step(deviceGain, [c.kp, dev.w, dev.l], k);
@@ -126,7 +138,7 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
     inversion(forward, k, opts, rec);
   }
   const channel = ((reversed ? -1 : 1) * ich) as Amperes;
-  return new OperatingPointValue(region, (s * channel) as Amperes, channel, (s * vtMag) as Volts, vov, g as Volts, d as Volts, b as Volts, reversed, k, pmos);
+  return new OperatingPointValue(region, (s * channel) as Amperes, channel, (s * vtMag) as Volts, vov, g as Volts, d as Volts, b as Volts, reversed, k, pmos, vov, "square-law", undefined);
 }
 
 /**
@@ -138,6 +150,7 @@ export function operatingPoint(dev: Device, bias: TerminalVoltages, opts: ModelO
 class OperatingPointValue implements OperatingPoint {
   readonly saturationMargin: Volts;
   readonly #pmos: boolean;
+  readonly ic?: Ratio;
   constructor(
     readonly region: Region,
     readonly id: Amperes,
@@ -150,15 +163,21 @@ class OperatingPointValue implements OperatingPoint {
     readonly reversed: boolean,
     readonly k: AmperesPerVoltSquared,
     pmos: boolean,
+    readonly vdsat: Volts,
+    readonly model: ModelId,
+    ic: number | undefined,
   ) {
-    this.saturationMargin = (vdsDevice - vov) as Volts;
+    this.saturationMargin = (vdsDevice - vdsat) as Volts;
     this.#pmos = pmos;
+    if (ic !== undefined) this.ic = ic as Ratio;
   }
   get reason(): string {
-    return regionReason(this.region, this.vov, this.vdsDevice, this.#pmos);
+    return this.model === "square-law"
+      ? regionReason(this.region, this.vov, this.vdsDevice, this.#pmos)
+      : modelRegionReason(this.region, this.vov, this.vdsDevice, this.vdsat, this.#pmos, this.ic);
   }
   toJSON(): OperatingPoint {
-    const { region, id, channelCurrent, vt, vov, saturationMargin, vgsDevice, vdsDevice, vsbDevice, reversed, k } = this;
-    return { region, id, channelCurrent, vt, vov, saturationMargin, vgsDevice, vdsDevice, vsbDevice, reversed, k, reason: this.reason };
+    const { region, id, channelCurrent, vt, vov, saturationMargin, vdsat, model, ic, vgsDevice, vdsDevice, vsbDevice, reversed, k } = this;
+    return { region, id, channelCurrent, vt, vov, saturationMargin, vdsat, model, ...(ic === undefined ? {} : { ic }), vgsDevice, vdsDevice, vsbDevice, reversed, k, reason: this.reason };
   }
 }

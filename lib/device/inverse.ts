@@ -16,7 +16,8 @@ import {
 } from "../formulas/device.formulas.js";
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, PerVolt, Ratio, Siemens, SqrtVolts, Volts } from "../quantity.js";
-import { checkCard, checkDevice, defaultPhi, polaritySign, type Device, type DeviceCard } from "./card.js";
+import { checkCard, checkDevice, defaultPhi, modelOf, polaritySign, type Device, type DeviceCard } from "./card.js";
+import { gateVoltageForModel } from "./model-inverse.js";
 import { thresholdMagnitude } from "./threshold.js";
 
 export interface SaturationOptions {
@@ -76,6 +77,7 @@ function requireSaturation(vov: number, vds: number | undefined, what: string, f
 /** Overdrive magnitude that gives |ID| = `id` in saturation (with λ at `opts.vds`, when given). */
 export function overdriveFor(dev: Device, id: Amperes, opts: SaturationOptions = {}, rec?: Derivation): Volts {
   checkDevice(dev, "overdriveFor.dev");
+  if (modelOf(dev.card) !== "square-law") return gateVoltageForModel(dev, id, opts, rec).vov;
   const i = targetCurrent(id, "overdriveFor.id");
   const vds = deviceVds(dev.card, opts.vds, "overdriveFor.opts.vds");
   const lambda = (dev.card.lambda ?? 0) as PerVolt;
@@ -102,6 +104,7 @@ export function overdriveFor(dev: Device, id: Amperes, opts: SaturationOptions =
 /** Gate-source voltage (SPICE sign) for |ID| = `id` in saturation, with the body effect at `opts.vsb`. */
 export function gateVoltageFor(dev: Device, id: Amperes, opts: GateDriveOptions = {}, rec?: Derivation): GateDrive {
   checkDevice(dev, "gateVoltageFor.dev");
+  if (modelOf(dev.card) !== "square-law") return gateVoltageForModel(dev, id, opts, rec);
   const c = dev.card;
   const s = polaritySign(c);
   const vsb = opts.vsb === undefined ? 0 : s * requireFinite(opts.vsb, "gateVoltageFor.opts.vsb", "a finite VSB in V");
@@ -121,6 +124,13 @@ export function gateVoltageFor(dev: Device, id: Amperes, opts: GateDriveOptions 
   return { vgs: (s * vgsDev) as Volts, vov, vt: (s * vtMag) as Volts };
 }
 
+/** W/L alone does not fix the current of a model with velocity saturation (it depends on L too): refuse, naming the function that does the job. */
+function squareLawOnly(card: DeviceCard, fn: string, instead: string): void {
+  const m = modelOf(card);
+  if (m !== "square-law")
+    throw new InputError(m, `a square-law card: ${fn} sizes W/L by the square law's closed form; for a "${m}" card use ${instead}, which hold L and invert the model numerically`, `${fn}.card.model`);
+}
+
 function checkedOverdrive(vov: number, origin: string): Volts {
   return requirePositive(vov, origin, "an overdrive VOV > 0 in V (the device must be on)") as Volts;
 }
@@ -128,6 +138,7 @@ function checkedOverdrive(vov: number, origin: string): Volts {
 /** Aspect ratio W/L that carries |ID| = `id` in saturation at overdrive `vov`. */
 export function aspectRatioFor(card: DeviceCard, id: Amperes, vov: Volts, opts: SaturationOptions = {}, rec?: Derivation): Ratio {
   checkCard(card, "aspectRatioFor.card");
+  squareLawOnly(card, "aspectRatioFor", "widthForCurrent(dev, id, vgs) or sizeByGmOverId(dev, id, gm/ID)");
   const i = targetCurrent(id, "aspectRatioFor.id");
   const v = checkedOverdrive(vov, "aspectRatioFor.vov");
   const vds = deviceVds(card, opts.vds, "aspectRatioFor.opts.vds");
@@ -144,6 +155,7 @@ export function aspectRatioFor(card: DeviceCard, id: Amperes, vov: Volts, opts: 
 /** Drain current and aspect ratio that give transconductance `gm` in saturation at overdrive `vov`. */
 export function sizeForTransconductance(card: DeviceCard, gm: Siemens, vov: Volts, opts: SaturationOptions = {}, rec?: Derivation): TransconductanceSizing {
   checkCard(card, "sizeForTransconductance.card");
+  squareLawOnly(card, "sizeForTransconductance", "sizeByGmOverId(dev, id, gm/ID)");
   const g = requirePositive(gm, "sizeForTransconductance.gm", "a transconductance gm > 0 in S") as Siemens;
   const v = checkedOverdrive(vov, "sizeForTransconductance.vov");
   const vds = deviceVds(card, opts.vds, "sizeForTransconductance.opts.vds");

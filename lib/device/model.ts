@@ -15,6 +15,21 @@
  */
 import type { Dimension } from "../quantity.js";
 import type { ModelId } from "./card.js";
+import type { Region } from "./region.js";
+
+/** One model's reading of a bias point (device polarity, VDS ≥ 0), as the operating point reports it. */
+export interface ModelBias {
+  readonly region: Region;
+  /** Channel current, ≥ 0. */
+  readonly id: number;
+  /** Threshold magnitude with body effect (and, for EKV, the σ·VDS lowering). */
+  readonly vt: number;
+  readonly vov: number;
+  /** The model's drain saturation voltage. */
+  readonly vdsat: number;
+  /** EKV: inversion coefficient IF/IS. */
+  readonly ic?: number;
+}
 
 export interface ModelParameter {
   /** The card field the parameter is stored in. */

@@ -23,8 +23,13 @@ import {
 import type { Derivation } from "../record/derivation.js";
 import type { Amperes, Ohms, PerVolt, Ratio, Siemens, SiemensPerAmpere, SqrtVolts, Volts } from "../quantity.js";
 import { defaultPhi, type Device } from "./card.js";
-import { operatingPoint, type ModelOptions, type OperatingPoint, type TerminalVoltages } from "./drain-current.js";
-import { inversion, type Inversion } from "./inversion.js";
+import { deviceCurrent, operatingPoint, type ModelOptions, type OperatingPoint, type TerminalVoltages } from "./drain-current.js";
+import { inversion, inversionLevelOf, type Inversion } from "./inversion.js";
+import { derivativeStep } from "./model.js";
+import { ekvSlopeFactor } from "../formulas/ekv.formulas.js";
+import { ekvPinchOffAt } from "./models/ekv.js";
+import { cardTemperature } from "./card.js";
+import { thermalVoltage } from "../quantity.js";
 
 export interface SmallSignal {
   readonly op: OperatingPoint;
@@ -49,6 +54,7 @@ export interface SmallSignal {
 /** Small-signal parameters at terminal voltages `bias` (SPICE signs), recorded step by step when `rec` is given. */
 export function smallSignal(dev: Device, bias: TerminalVoltages, opts: ModelOptions = {}, rec?: Derivation): SmallSignal {
   const op = operatingPoint(dev, bias, opts, rec);
+  if (op.model !== "square-law") return modelSmallSignal(dev, op, rec);
   const c = dev.card;
   const k = op.k;
   const vov = op.vov;
@@ -109,4 +115,57 @@ export function smallSignal(dev: Device, bias: TerminalVoltages, opts: ModelOpti
   // operatingPoint has already recorded the inversion finding; evaluate again without the record.
   const inv = inversion(saturationCurrent.fn(k, vov), k, opts);
   return { op, gm, gmb, gds, ro, intrinsicGain: a0, gmOverId, ron, inversion: inv };
+}
+
+/**
+ * Small-signal parameters of a model without closed-form conductances (square law
+ * with mobility degradation, EKV): gm, gds and gmb are central differences of the
+ * model's own channel current at the operating point, step `derivativeStep` (10 µV),
+ * taken in the device's polarity about the terminal acting as the source.
+ */
+function modelSmallSignal(dev: Device, op: OperatingPoint, rec?: Derivation): SmallSignal {
+  const h = derivativeStep;
+  const g = op.vgsDevice;
+  const d = op.vdsDevice;
+  const b = op.vsbDevice;
+  const f = (x: number, y: number, z: number) => deviceCurrent(dev, x, y, z);
+  const gm = ((f(g + h, d, b) - f(g - h, d, b)) / (2 * h)) as Siemens;
+  const gds = ((f(g, d + h, b) - f(g, d - h, b)) / (2 * h)) as Siemens;
+  const gmb = ((f(g, d, b - h) - f(g, d, b + h)) / (2 * h)) as Siemens;
+  const gds0 = (f(g, h, b) - f(g, -h, b)) / (2 * h);
+  rec?.note(
+    "gm, gds, gmb",
+    `Central differences of the ${op.model === "ekv" ? "EKV" : "square-law-mobility"} drain current over ±${h * 1e6} µV: gm = ${+gm.toPrecision(4)} S, gds = ${+gds.toPrecision(4)} S, gmb = ${+gmb.toPrecision(4)} S.`,
+  );
+  let ro = Infinity as Ohms;
+  let a0 = Infinity as Ratio;
+  if (gds > 0) {
+    ro = rec ? rec.calc(outputResistance, [gds]) : outputResistance.fn(gds);
+    a0 = rec ? rec.calc(intrinsicGain, [gm, gds]) : intrinsicGain.fn(gm, gds);
+  } else rec?.note("Output resistance", "gds = 0 at this bias: ro and the intrinsic gain are unbounded.");
+  const idMag = Math.abs(op.channelCurrent) as Amperes;
+  let gmOverId: SiemensPerAmpere | undefined;
+  if (idMag > 0) gmOverId = rec ? rec.calc(transconductanceEfficiency, [gm, idMag]) : transconductanceEfficiency.fn(gm, idMag);
+  const ron = (gds0 > 0 ? 1 / gds0 : Infinity) as Ohms;
+  rec?.note("On-resistance", `Ron = 1/gds at VDS = 0 = ${+ron.toPrecision(4)} Ω (central difference of the model current).`);
+  let inv: Inversion | undefined;
+  if (op.ic !== undefined) {
+    const c = dev.card;
+    const ut = thermalVoltage(cardTemperature(c));
+    // The slope factor the model uses at this bias (EKV 2.6 form).
+    const vp = vpOf(op, dev);
+    const n = ekvSlopeFactor.fn((c.gamma ?? 0) as SqrtVolts, vp as Volts, (c.phi ?? defaultPhi) as Volts, ut);
+    inv = { ic: op.ic, level: inversionLevelOf(op.ic), slopeFactor: n, ut };
+  } else if (op.region !== "cutoff") inv = inversion(((op.k / 2) * op.vov * op.vov) as Amperes, op.k);
+  if (op.region === "cutoff") return { op, gm: 0 as Siemens, gmb: 0 as Siemens, gds: 0 as Siemens, ro: Infinity as Ohms, intrinsicGain: 0 as Ratio, gmOverId: undefined, ron: Infinity as Ohms, inversion: undefined };
+  return { op, gm, gmb, gds, ro, intrinsicGain: a0, gmOverId, ron, inversion: inv };
+}
+
+/** EKV pinch-off voltage at an operating point, from the catalog's formulas. */
+function vpOf(op: OperatingPoint, dev: Device): number {
+  const c = dev.card;
+  const s = c.polarity === "nmos" ? 1 : -1;
+  const phi = (c.phi ?? defaultPhi) as Volts;
+  const gamma = (c.gamma ?? 0) as SqrtVolts;
+  return ekvPinchOffAt(s * c.vt0, gamma, phi, c.sigma ?? 0, op.vgsDevice, op.vdsDevice, op.vsbDevice);
 }

@@ -3,6 +3,34 @@ import type { Formula } from "./define.js";
 import { sq } from "./define.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerMeter } from "../quantity.js";
 
+/** Threshold (VP = VS), with body effect and drain-induced lowering: Vt = Vt0 + gamma * (sqrt(phi + VSB) - sqrt(phi)) - sigma * VDS */
+export const ekvThreshold = {
+  id: "ekvThreshold",
+  title: "Threshold (VP = VS), with body effect and drain-induced lowering",
+  expr: "Vt0 + gamma * (sqrt(phi + VSB) - sqrt(phi)) - sigma * VDS",
+  tex: "V_{t} = {V_{t0}}+{\\gamma}\\cdot\\left(\\sqrt{{2\\phi_{F}}+{V_{SB}}}-\\sqrt{{2\\phi_{F}}}\\right)-{\\sigma}\\cdot{V_{DS}}",
+  result: "Vt",
+  resultDim: "voltage",
+  vars: ["Vt0","gamma","phi","VSB","sigma","VDS"],
+  dims: ["voltage","sqrtVoltage","voltage","voltage","dimensionless","voltage"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
+  fn: (Vt0: Volts, gamma: SqrtVolts, phi: Volts, VSB: Volts, sigma: Ratio, VDS: Volts): Volts => ((Vt0 + (gamma * ((Math.sqrt((phi + VSB)) - Math.sqrt(phi))))) - (sigma * VDS)) as Volts,
+} as const satisfies Formula;
+
+/** Drain-source saturation voltage, all regions: VDsat = 2 * UT * sqrt(IC) / (sqrt(1 / 4 + UT * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * UT */
+export const ekvDrainSaturationVoltage = {
+  id: "ekvDrainSaturationVoltage",
+  title: "Drain-source saturation voltage, all regions",
+  expr: "2 * UT * sqrt(IC) / (sqrt(1 / 4 + UT * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * UT",
+  tex: "V_{D,sat} = \\frac{2\\cdot{U_{T}}\\cdot\\sqrt{{IC}}}{\\sqrt{\\frac{1}{4}+\\frac{{U_{T}}\\cdot\\sqrt{{IC}}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+4\\cdot{U_{T}}",
+  result: "VDsat",
+  resultDim: "voltage",
+  vars: ["UT","IC","Ecrit","L"],
+  dims: ["voltage","dimensionless","electricField","length"],
+  source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
+  fn: (UT: Volts, IC: Ratio, Ecrit: VoltsPerMeter, L: Meters): Volts => ((((2 * UT) * Math.sqrt(IC)) / ((Math.sqrt(((1 / 4) + ((UT * Math.sqrt(IC)) / ((Ecrit * L))))) + (1 / 2)))) + (4 * UT)) as Volts,
+} as const satisfies Formula;
+
 /** Effective gate voltage: VGp = VGS + VSB - Vt0 + sigma * VDS + phi + gamma * sqrt(phi) */
 export const ekvEffectiveGate = {
   id: "ekvEffectiveGate",
@@ -17,18 +45,32 @@ export const ekvEffectiveGate = {
   fn: (VGS: Volts, VSB: Volts, Vt0: Volts, sigma: Ratio, VDS: Volts, phi: Volts, gamma: SqrtVolts): Volts => (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))) as Volts,
 } as const satisfies Formula;
 
-/** Pinch-off voltage: VP = max(VGp, 0) - phi - gamma * (sqrt(max(VGp, 0) + gamma^2 / 4) - gamma / 2) */
+/** Pinch-off voltage (VG' > 0): VP = VGp - phi - gamma * (sqrt(VGp + gamma^2 / 4) - gamma / 2) */
 export const ekvPinchOffVoltage = {
   id: "ekvPinchOffVoltage",
-  title: "Pinch-off voltage",
-  expr: "max(VGp, 0) - phi - gamma * (sqrt(max(VGp, 0) + gamma^2 / 4) - gamma / 2)",
-  tex: "V_{P} = \\max\\left({V_{G}'},0\\right)-{2\\phi_{F}}-{\\gamma}\\cdot\\left(\\sqrt{\\max\\left({V_{G}'},0\\right)+\\frac{{{\\gamma}}^{2}}{4}}-\\frac{{\\gamma}}{2}\\right)",
+  title: "Pinch-off voltage (VG' > 0)",
+  expr: "VGp - phi - gamma * (sqrt(VGp + gamma^2 / 4) - gamma / 2)",
+  tex: "V_{P} = {V_{G}'}-{2\\phi_{F}}-{\\gamma}\\cdot\\left(\\sqrt{{V_{G}'}+\\frac{{{\\gamma}}^{2}}{4}}-\\frac{{\\gamma}}{2}\\right)",
   result: "VP",
   resultDim: "voltage",
   vars: ["VGp","phi","gamma"],
   dims: ["voltage","voltage","sqrtVoltage"],
   source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
-  fn: (VGp: Volts, phi: Volts, gamma: SqrtVolts): Volts => ((Math.max(VGp, 0) - phi) - (gamma * ((Math.sqrt((Math.max(VGp, 0) + (sq(gamma) / 4))) - (gamma / 2))))) as Volts,
+  fn: (VGp: Volts, phi: Volts, gamma: SqrtVolts): Volts => ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) as Volts,
+} as const satisfies Formula;
+
+/** Pinch-off voltage (VG' ≤ 0): VP = -phi */
+export const ekvPinchOffFloor = {
+  id: "ekvPinchOffFloor",
+  title: "Pinch-off voltage (VG' ≤ 0)",
+  expr: "-phi",
+  tex: "V_{P} = -{2\\phi_{F}}",
+  result: "VP",
+  resultDim: "voltage",
+  vars: ["phi"],
+  dims: ["voltage"],
+  source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
+  fn: (phi: Volts): Volts => (-phi) as Volts,
 } as const satisfies Formula;
 
 /** Slope factor: n = 1 + gamma / (2 * sqrt(VP + phi + 4 * UT)) */
@@ -115,18 +157,32 @@ export const ekvEquivalentLength = {
   fn: (L: Meters, VDS: Volts, Vip: Volts, Ecrit: VoltsPerMeter): Meters => (L + ((((VDS / 2) + Vip)) / Ecrit)) as Meters,
 } as const satisfies Formula;
 
-/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * VP) */
+/** Normalised inversion charge at the source: qF = sqrt(1 / 4 + IC) - 1 / 2 */
+export const ekvForwardCharge = {
+  id: "ekvForwardCharge",
+  title: "Normalised inversion charge at the source",
+  expr: "sqrt(1 / 4 + IC) - 1 / 2",
+  tex: "q_{f} = \\sqrt{\\frac{1}{4}+{IC}}-\\frac{1}{2}",
+  result: "qF",
+  resultDim: "dimensionless",
+  vars: ["IC"],
+  dims: ["dimensionless"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
+  fn: (IC: Ratio): Ratio => (Math.sqrt(((1 / 4) + IC)) - (1 / 2)) as Ratio,
+} as const satisfies Formula;
+
+/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB) */
 export const ekvGainFactor = {
   id: "ekvGainFactor",
   title: "Gain factor with mobility degradation",
-  expr: "kp * W / Leq / (1 + theta * VP)",
-  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot{V_{P}}}",
+  expr: "kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB)",
+  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{U_{T}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
   result: "beta",
   resultDim: "transconductanceParameter",
-  vars: ["kp","W","Leq","theta","VP"],
-  dims: ["transconductanceParameter","length","length","inverseVoltage","voltage"],
-  source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, VP: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / ((1 + (theta * VP)))) as AmperesPerVoltSquared,
+  vars: ["kp","W","Leq","theta","n","UT","qF","thetaB","VSB"],
+  dims: ["transconductanceParameter","length","length","inverseVoltage","dimensionless","voltage","dimensionless","inverseVoltage","voltage"],
+  source: "mobility degradation µ0/(1 + θ·VOV + θB·VSB) (Tsividis & McAndrew, 3rd ed., 2011, from memory) with VOV as the EKV source-end charge 2·n·UT·qf; EKV 2.6 uses θ·VP instead",
+  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, n: Ratio, UT: Volts, qF: Ratio, thetaB: PerVolt, VSB: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * UT) * qF)) + (thetaB * VSB)))) as AmperesPerVoltSquared,
 } as const satisfies Formula;
 
 /** Specific current: IS = 2 * n * beta * UT^2 */

@@ -9,6 +9,10 @@ import type { ClmMode } from "../device/drain-current.js";
 import { regionOf } from "../device/region.js";
 import { formatQuantity } from "../units/format.js";
 import { deviceView, sweepSetup, type SweepOptions } from "./device-view.js";
+import { modelOf } from "../device/card.js";
+import type { Volts } from "../quantity.js";
+import { models } from "../device/models/index.js";
+import { operatingPoint } from "../device/drain-current.js";
 import {
   axisInfo,
   axisTitle,
@@ -90,8 +94,30 @@ export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOp
     };
   });
 
+  const model = modelOf(dev.card);
+  // The model's own saturation voltage VDsat at a gate drive (device polarity), from its operating point at the far end of the sweep.
+  const sgn = dev.card.polarity === "nmos" ? 1 : -1;
+  const vdsatAt = (g: number) => operatingPoint(dev, { vgs: (sgn * g) as Volts, vds: (sgn * opts.vdsMax) as Volts, vsb: (sgn * v.vsb) as Volts }).vdsat;
+  if (model !== "square-law") {
+    // Saturation edge of a model with its own VDsat: (VDsat, ID(VDsat)) for each drive, up to the largest plotted.
+    const gMax = Math.max(...drives);
+    const gMin = model === "ekv" ? Math.min(v.vt - 0.2, ...drives) : v.vt + 1e-3;
+    const gs = sweep(gMin, gMax, 81, `${origin}.boundary`);
+    const edgeX = gs.map(vdsatAt).map((x) => Math.min(x, opts.vdsMax));
+    const edgeY = gs.map((g, i) => v.current(g, edgeX[i]!));
+    data.push({
+      type: "scatter",
+      mode: "lines",
+      name: `triode | saturation edge (${v.sym.vds} = V<sub>D,sat</sub>)`,
+      x: scaled(edgeX, xs.divisor),
+      y: scaled(edgeY, ys.divisor),
+      line: { color: palette.boundary, width: 1.6, dash: "dash" },
+      hovertemplate: `edge: ${v.sym.vds} = V<sub>D,sat</sub> = %{x:.4g} ${xs.unit}<br>${v.sym.id} = %{y:.4g} ${ys.unit}<extra></extra>`,
+      meta: { role: "boundary", model: `${model}: VDS = VDsat from the model` },
+    });
+  }
   // Saturation edge: the current at VDS = VOV for each VOV, from the same model (incl. λ).
-  if (vovMax > 0) {
+  else if (vovMax > 0) {
     const edgeX = sweep(0, Math.min(vovMax, opts.vdsMax), 81, `${origin}.boundary`);
     const edgeY = edgeX.map((x) => v.current(v.vt + x, x));
     data.push({
@@ -147,21 +173,24 @@ export function outputCharacteristics(dev: Device, opts: OutputCharacteristicsOp
 
   let opText = "";
   if (op) {
-    const region = regionOf(op.vgs - v.vt, op.vds);
+    const region = model === "square-law" ? regionOf(op.vgs - v.vt, op.vds) : op.vds < vdsatAt(op.vgs) ? "triode" : "saturation";
     data.push(
       pointTrace(`operating point (${region})`, op.vds / xs.divisor, op.id / ys.divisor, { role: "operating-point", vgs: op.vgs, vds: op.vds, id: op.id, region }, {
         hovertemplate: `operating point (${region})<br>${v.sym.vds} = %{x:.4g} ${xs.unit}<br>${v.sym.id} = %{y:.4g} ${ys.unit}<extra></extra>`,
       }),
     );
-    opText = ` Operating point: ${ps.vgs} = ${formatQuantity(op.vgs, "voltage")}, ${ps.vds} = ${formatQuantity(op.vds, "voltage")}, ${ps.id} = ${formatQuantity(op.id, "current")} (${region}; ${ps.vds} − VOV = ${formatQuantity(op.vds - (op.vgs - v.vt), "voltage")}).`;
+    const edgeV = model === "square-law" ? op.vgs - v.vt : vdsatAt(op.vgs);
+    opText = ` Operating point: ${ps.vgs} = ${formatQuantity(op.vgs, "voltage")}, ${ps.vds} = ${formatQuantity(op.vds, "voltage")}, ${ps.id} = ${formatQuantity(op.id, "current")} (${region}; ${ps.vds} − ${model === "square-law" ? "VOV" : "VDsat"} = ${formatQuantity(op.vds - edgeV, "voltage")}).`;
   }
 
   const title = opts.title ?? `Output characteristics, ${v.name}`;
   const edge = v.lambda ? `ID = ½k·${ps.vds}²·(1 + λ·${ps.vds})` : `ID = ½k·${ps.vds}²`;
   const summary =
     `${title}: ${ps.id} against ${ps.vds} from 0 to ${formatQuantity(opts.vdsMax, "voltage")} for ${ps.vgs} = ${drives.map((g) => formatQuantity(g, "voltage")).join(", ")}` +
-    ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}, ${ps.vt} = ${formatQuantity(v.vt, "voltage")}, λ = ${formatQuantity(v.lambda, "inverseVoltage")}, VSB = ${formatQuantity(v.vsb, "voltage")}).` +
-    ` Dashed: the triode/saturation edge ${ps.vds} = VOV, ${edge}.${loadText}${opText}`;
+    (model === "square-law"
+      ? ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}, ${ps.vt} = ${formatQuantity(v.vt, "voltage")}, λ = ${formatQuantity(v.lambda, "inverseVoltage")}, VSB = ${formatQuantity(v.vsb, "voltage")}).` +
+        ` Dashed: the triode/saturation edge ${ps.vds} = VOV, ${edge}.${loadText}${opText}`
+      : ` (${models[model].title}, ${ps.vt} = ${formatQuantity(v.vt, "voltage")}, VSB = ${formatQuantity(v.vsb, "voltage")}). Dashed: the triode/saturation edge ${ps.vds} = VDsat, the model's own saturation voltage.${loadText}${opText}`);
 
   return {
     schema: plotSchema,

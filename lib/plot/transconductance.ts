@@ -1,9 +1,13 @@
 /**
- * gm and gm/ID against overdrive at a fixed VDS: the sizing view. Square law
- * only, so gm/ID grows without bound as VOV → 0; the summary says so.
+ * gm and gm/ID against overdrive at a fixed VDS: the sizing view, for every
+ * device model. With the square law gm/ID grows without bound as VOV → 0 (the
+ * summary says so); with EKV the sweep reaches into weak inversion, where gm/ID
+ * levels off towards 1/(n·UT).
  */
-import { requirePositive } from "../errors.js";
-import type { Device } from "../device/card.js";
+import { requireFinite, requirePositive } from "../errors.js";
+import { modelOf, type Device } from "../device/card.js";
+import { derivativeStep } from "../device/model.js";
+import { models } from "../device/models/index.js";
 import type { ClmMode } from "../device/drain-current.js";
 import { defaultSlopeFactor } from "../device/inversion.js";
 import { regionOf } from "../device/region.js";
@@ -39,10 +43,16 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
   const { op, v, ps } = sweepSetup(dev, opts, "options { vovMax, vds or operatingPoint, … }", origin);
   const vds = fixedVds(opts.vds, op, ps, origin);
   requirePositive(opts.vovMax, `${origin}.vovMax`, "the largest overdrive to plot, > 0 V");
-  const from = opts.vovMin ?? opts.vovMax / 20;
-  requirePositive(from, `${origin}.vovMin`, "a smallest overdrive > 0 V (gm/ID = 2/VOV is unbounded at 0)");
+  const squareLaw = modelOf(dev.card) === "square-law";
+  // A model that conducts below threshold (EKV) is plotted from weak inversion up; the square law from just above VOV = 0.
+  const from = opts.vovMin ?? (modelOf(dev.card) === "ekv" ? -0.3 : opts.vovMax / 20);
+  if (squareLaw || modelOf(dev.card) === "square-law-mobility") requirePositive(from, `${origin}.vovMin`, "a smallest overdrive > 0 V (gm/ID = 2/VOV is unbounded at 0)");
+  else requireFinite(from, `${origin}.vovMin`, "a smallest overdrive in V (negative reaches into weak inversion)");
   const vov = sweep(from, opts.vovMax, opts.points ?? 121, origin);
-  const gm = vov.map((x) => gmAt(v.k, x, vds, v.lambda, v.clm));
+  // gm: the square law's catalog formula; other models by central difference of their own current (step 10 µV).
+  const gmOf = (x: number, d: number) =>
+    squareLaw ? gmAt(v.k, x, d, v.lambda, v.clm) : (v.current(v.vt + x + derivativeStep, d) - v.current(v.vt + x - derivativeStep, d)) / (2 * derivativeStep);
+  const gm = vov.map((x) => gmOf(x, vds));
   const eff = vov.map((x, i) => transconductanceEfficiency.fn(gm[i]! as Siemens, v.current(v.vt + x, vds) as Amperes));
   const xs = scaleFor([opts.vovMax], "voltage");
   const ys = scaleFor(gm, "conductance");
@@ -86,8 +96,8 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
   let opText = "";
   if (op) {
     const ov = op.vgs - v.vt;
-    const g = gmAt(v.k, ov, op.vds, v.lambda, v.clm);
-    if (ov > 0) {
+    const g = gmOf(ov, op.vds);
+    if (ov > 0 || !squareLaw) {
       const e = g / op.id;
       // One marker per axis: gm on the left axis, gm/ID on the right.
       const gmMark = pointTrace(`bias g<sub>m</sub> = ${formatQuantity(g, "conductance")}`, ov / xs.divisor, g / ys.divisor, { role: "operating-point", vov: ov, gm: g });
@@ -99,7 +109,9 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
   const title = opts.title ?? `Transconductance and gm/ID, ${v.name}`;
   const summary =
     `${title}: gm and gm/ID against overdrive VOV from ${formatQuantity(from, "voltage")} to ${formatQuantity(opts.vovMax, "voltage")} at ${ps.vds} = ${formatQuantity(vds, "voltage")}` +
-    ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}). In saturation gm/ID = 2/VOV; the square law does not model weak inversion, where real devices level off near 1/(n·UT) (dotted line), so read the low-VOV end with care.${opText}`;
+    (squareLaw
+      ? ` (square law, k = ${formatQuantity(v.k, "transconductanceParameter")}). In saturation gm/ID = 2/VOV; the square law does not model weak inversion, where real devices level off near 1/(n·UT) (dotted line), so read the low-VOV end with care.${opText}`
+      : ` (${models[modelOf(dev.card)].title}; gm by central difference of the model current). ${modelOf(dev.card) === "ekv" ? "The EKV model covers weak inversion: gm/ID levels off towards 1/(n·UT) (dotted line) instead of rising past it." : "This model has no subthreshold conduction, so gm/ID rises without bound as VOV → 0; read the low-VOV end with care."}${opText}`);
   return {
     schema: plotSchema,
     kind: "transconductance",
@@ -110,7 +122,7 @@ export function transconductancePlot(dev: Device, opts: TransconductanceOptions)
       data,
       layout: baseLayout(
         title,
-        { title: { text: axisTitle("V<sub>OV</sub>", xs.unit) }, range: [0, opts.vovMax / xs.divisor] },
+        { title: { text: axisTitle("V<sub>OV</sub>", xs.unit) }, range: [Math.min(0, from) / xs.divisor, opts.vovMax / xs.divisor] },
         { title: { text: axisTitle("g<sub>m</sub>", ys.unit) } },
         {
           yaxis2: { title: { text: axisTitle("g<sub>m</sub>/I<sub>D</sub>", "S/A") }, overlaying: "y", side: "right", showgrid: false, zeroline: false, linecolor: palette.axis, ticks: "outside" },

@@ -14,7 +14,7 @@
  * drain and RREF as the drain resistor; a load resistor makes the output a
  * fixed-gate network with RLOAD as its drain resistor.
  */
-import { defaultPhi, type Device } from "../../device/card.js";
+import { defaultPhi, requireSquareLawCard, type Device } from "../../device/card.js";
 import { drainCurrent, type ClmMode } from "../../device/drain-current.js";
 import { InfeasibleError, InputError } from "../../errors.js";
 import * as bf from "../../formulas/bias.formulas.js";
@@ -69,6 +69,8 @@ function checkMirror(stage: CurrentMirrorStage): Checked {
   const out = checkStage(stage as unknown as Stage);
   const o = stageOrigin(stage);
   const ref = secondDevice(stage, "reference", "the diode-connected reference transistor M1");
+  requireSquareLawCard(out.card, `${o}: device.card`, "the current mirror");
+  requireSquareLawCard(ref.card, `${o}: devices.reference.card`, "the current mirror");
   const c = checkComponents({ id: "current-mirror", components: mirrorComponents }, stage);
   if (!(c.rref > 0))
     throw new InputError(c.rref, "a reference resistance RREF > 0 Ω (RREF sets the reference current; 0 Ω would put the rail straight across the diode-connected transistor)", `${o}: components.rref`);

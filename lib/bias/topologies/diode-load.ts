@@ -16,7 +16,7 @@
  * current falls and the driver current rises as it moves towards the drain
  * rail, so the difference has exactly one root, bracketed by the rails.
  */
-import { defaultPhi, polaritySign, type Device } from "../../device/card.js";
+import { defaultPhi, polaritySign, requireSquareLawCard, type Device } from "../../device/card.js";
 import { channelCurrent, type ClmMode } from "../../device/drain-current.js";
 import { thresholdMagnitude } from "../../device/threshold.js";
 import { ConvergenceError, InfeasibleError } from "../../errors.js";
@@ -68,6 +68,8 @@ function checkDiodeLoad(stage: DiodeLoadStage): Checked {
   const load = secondDevice(stage, "load", "the diode-connected load transistor M2");
   const c = checkComponents({ id: "diode-load", components: diodeLoadComponents }, stage);
   requireEnhancement(load, `${o}: devices.load`, "load transistor M2");
+  requireSquareLawCard(drv.card, `${o}: device.card`, "the diode-load stage");
+  requireSquareLawCard(load.card, `${o}: devices.load.card`, "the diode-load stage");
   const s = polaritySign(drv.card);
   const vdd = stage.supplies.vdd;
   const vss = stage.supplies.vss ?? 0;

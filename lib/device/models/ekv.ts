@@ -6,11 +6,15 @@
  */
 import {
   ekvDrainCurrent,
+  ekvDrainSaturationVoltage,
+  ekvThreshold,
   ekvEffectiveGate,
   ekvEquivalentLength,
+  ekvForwardCharge,
   ekvForwardCurrent,
   ekvGainFactor,
   ekvLimitedDrainVoltage,
+  ekvPinchOffFloor,
   ekvPinchOffVoltage,
   ekvReverseCurrent,
   ekvSaturationVoltage,
@@ -18,11 +22,24 @@ import {
   ekvSpecificCurrent,
 } from "../../formulas/ekv.formulas.js";
 import { thermalVoltage, type AmperesPerVoltSquared, type Kelvin, type Meters, type PerVolt, type Ratio, type SqrtVolts, type Volts, type VoltsPerMeter } from "../../quantity.js";
-import { reversible, type DeviceModel, type ModelParameter } from "../model.js";
+import { reversible, type DeviceModel, type ModelBias, type ModelParameter } from "../model.js";
+import type { Derivation } from "../../record/derivation.js";
+import { cardTemperature, defaultPhi, type Device } from "../card.js";
+import { overdrive } from "../../formulas/device.formulas.js";
 import { mobilityParameters } from "./mobility.js";
 
 /** Critical field when an EKV card gives none: 2·10⁶ V/m, the EPFL-EKV 2.6 default UCRIT (from memory). */
 export const defaultEkvCriticalField = 2e6 as VoltsPerMeter;
+
+/** The pinch-off voltage for an effective gate voltage VG': the catalog's form above VG' = 0, −2φF at and below it. */
+export function ekvPinchOff(vgp: number, phi: number, gamma: number): Volts {
+  return vgp > 0 ? ekvPinchOffVoltage.fn(vgp as Volts, phi as Volts, gamma as SqrtVolts) : ekvPinchOffFloor.fn(phi as Volts);
+}
+
+/** The pinch-off voltage at a bias (device polarity, VDS ≥ 0). */
+export function ekvPinchOffAt(vt0: number, gamma: number, phi: number, sigma: number, vgs: number, vds: number, vsb: number): Volts {
+  return ekvPinchOff(ekvEffectiveGate.fn(vgs as Volts, vsb as Volts, vt0 as Volts, sigma as Ratio, vds as Volts, phi as Volts, gamma as SqrtVolts), phi, gamma);
+}
 
 /**
  * Channel current for VDS ≥ 0 in device polarity (VGS, VDS, VSB source-referenced).
@@ -30,7 +47,7 @@ export const defaultEkvCriticalField = 2e6 as VoltsPerMeter;
  * voltage) the channel carries nothing and 0 is returned.
  */
 export function ekvChannelCurrent(
-  kp: number, w: number, l: number, vt0: number, gamma: number, phi: number, lambda: number, theta: number, ecrit: number, sigma: number, ut: number,
+  kp: number, w: number, l: number, vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, ecrit: number, sigma: number, ut: number,
   vgs: number, vds: number, vsb: number,
 ): number {
   const u = ut as Volts;
@@ -38,14 +55,15 @@ export function ekvChannelCurrent(
   const ph = phi as Volts;
   const e = ecrit as VoltsPerMeter;
   const len = l as Meters;
-  const vp = ekvPinchOffVoltage.fn(ekvEffectiveGate.fn(vgs as Volts, vsb as Volts, vt0 as Volts, sigma as Ratio, vds as Volts, ph, g), ph, g);
+  const vp = ekvPinchOffAt(vt0, g, ph, sigma, vgs, vds, vsb);
   const ic = ekvForwardCurrent.fn(vp, vsb as Volts, u);
   if (ic === 0) return 0;
   const vdss = ekvSaturationVoltage.fn(u, ic, e, len);
   const vip = ekvLimitedDrainVoltage.fn(vdss, u, vds as Volts);
   const ir = ekvReverseCurrent.fn(vp, vsb as Volts, vds as Volts, vip, u);
-  const beta = ekvGainFactor.fn(kp as AmperesPerVoltSquared, w as Meters, ekvEquivalentLength.fn(len, vds as Volts, vip, e), theta as PerVolt, vp);
-  const is = ekvSpecificCurrent.fn(ekvSlopeFactor.fn(g, vp, ph, u), beta, u);
+  const n = ekvSlopeFactor.fn(g, vp, ph, u);
+  const beta = ekvGainFactor.fn(kp as AmperesPerVoltSquared, w as Meters, ekvEquivalentLength.fn(len, vds as Volts, vip, e), theta as PerVolt, n, u, ekvForwardCharge.fn(ic), thetaB as PerVolt, vsb as Volts);
+  const is = ekvSpecificCurrent.fn(n, beta, u);
   return ekvDrainCurrent.fn(is, ic, ir, lambda as PerVolt, vds as Volts);
 }
 
@@ -53,18 +71,19 @@ export function ekvChannelCurrent(
 export function ekvInversionCoefficient(vt0: number, gamma: number, phi: number, sigma: number, ut: number, vgs: number, vds: number, vsb: number): number {
   const ph = phi as Volts;
   const g = gamma as SqrtVolts;
-  const vp = ekvPinchOffVoltage.fn(ekvEffectiveGate.fn(vgs as Volts, vsb as Volts, vt0 as Volts, sigma as Ratio, vds as Volts, ph, g), ph, g);
+  const vp = ekvPinchOffAt(vt0, g, ph, sigma, vgs, vds, vsb);
   return ekvForwardCurrent.fn(vp, vsb as Volts, ut as Volts);
 }
 
 export const ekvParameters: readonly ModelParameter[] = [
   ...mobilityParameters.filter((q) => q.name !== "ecrit"),
   { name: "ecrit", dim: "electricField", meaning: "critical field for velocity saturation (EKV UCRIT)", min: 1e5, max: 1e9, initial: 5e6, absent: defaultEkvCriticalField, geometryScaled: false },
+  { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0, absent: 0, geometryScaled: false },
   { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0, absent: 0, geometryScaled: false },
 ];
 
 const forward = (p: Float64Array, vgs: number, vds: number, vsb: number): number =>
-  ekvChannelCurrent(p[1]!, p[8]!, p[9]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[6]!, p[7]!, thermalVoltage(p[10]! as Kelvin), vgs, vds, vsb);
+  ekvChannelCurrent(p[1]!, p[9]!, p[10]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, thermalVoltage(p[11]! as Kelvin), vgs, vds, vsb);
 
 export const ekv: DeviceModel = {
   id: "ekv",
@@ -74,3 +93,64 @@ export const ekv: DeviceModel = {
   size: ekvParameters.length + 3,
   current: reversible(forward),
 };
+
+/**
+ * The bias point of an EKV device (device polarity, VDS ≥ 0), every step recorded
+ * with the EKV catalog's formulas when `rec` is given. The region is triode or
+ * saturation by VDS against the model's VDsat; EKV has no cutoff (weak inversion
+ * conducts), and the inversion coefficient says how strongly the channel is inverted.
+ */
+export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Derivation): ModelBias {
+  const c = dev.card;
+  const s = c.polarity === "nmos" ? 1 : -1;
+  const T = cardTemperature(c);
+  const u = thermalVoltage(T);
+  const vt0 = (s * c.vt0) as Volts;
+  const gamma = (c.gamma ?? 0) as SqrtVolts;
+  const phi = (c.phi ?? defaultPhi) as Volts;
+  const sigma = (c.sigma ?? 0) as Ratio;
+  const theta = (c.theta ?? 0) as PerVolt;
+  const thetaB = (c.thetaB ?? 0) as PerVolt;
+  const lambda = (c.lambda ?? 0) as PerVolt;
+  const e = (c.ecrit ?? defaultEkvCriticalField) as VoltsPerMeter;
+  const w = dev.w;
+  const l = dev.l;
+  const vgs = g as Volts;
+  const vds = d as Volts;
+  const vsb = b as Volts;
+  if (!rec) {
+    const vt = b > -phi ? ekvThreshold.fn(vt0, gamma, phi, vsb, sigma, vds) : NaN;
+    const vp = ekvPinchOffAt(vt0, gamma, phi, sigma, g, d, b);
+    const ic = ekvForwardCurrent.fn(vp, vsb, u);
+    const vdsat = ekvDrainSaturationVoltage.fn(u, ic, e, l);
+    const id = ekvChannelCurrent(c.kp, w, l, vt0, gamma, phi, lambda, theta, thetaB, e, sigma, u, g, d, b);
+    return { region: d < vdsat ? "triode" : "saturation", id, vt, vov: g - vt, vdsat, ic };
+  }
+  rec.assume(`UT = kT/q = ${+(u * 1e3).toPrecision(4)} mV at the card's temperature ${+(T - 273.15).toFixed(2)} °C.`);
+  if (c.ecrit === undefined) rec.assume(`Critical field Esat = ${defaultEkvCriticalField / 1e6} V/µm, the EPFL-EKV 2.6 default (from memory): the card gives none.`);
+  let vt = NaN as Volts;
+  if (b > -phi) {
+    vt = rec.calc(ekvThreshold, [vt0, gamma, phi, vsb, sigma, vds], "where VP = VS");
+    rec.step(overdrive, [g, vt], overdrive.fn(vgs, vt), s < 0 ? "PMOS: magnitudes VSG and |Vt|" : undefined);
+  } else rec.note("Threshold", `Forward body bias VSB = ${+b.toPrecision(4)} V beyond −2φF: the threshold is not defined there; the EKV current below is.`);
+  const vgp = rec.calc(ekvEffectiveGate, [vgs, vsb, vt0, sigma, vds, phi, gamma]);
+  const vp = vgp > 0 ? rec.calc(ekvPinchOffVoltage, [vgp, phi, gamma]) : rec.calc(ekvPinchOffFloor, [phi], "VG' ≤ 0: no channel charge");
+  const ic = rec.calc(ekvForwardCurrent, [vp, vsb, u], "the inversion coefficient");
+  const vdsat = rec.calc(ekvDrainSaturationVoltage, [u, ic, e, l]);
+  const region = d < vdsat ? "triode" : "saturation";
+  rec.note(`Region: ${region}`, `${s < 0 ? "VSD" : "VDS"} = ${+d.toPrecision(4)} V ${d < vdsat ? "<" : "≥"} VDsat = ${+vdsat.toPrecision(4)} V; ${ic < 0.1 ? "weak" : ic > 10 ? "strong" : "moderate"} inversion (IC = ${+ic.toPrecision(3)}).`);
+  if (ic === 0) {
+    rec.note("Drain current", "The forward current underflows: the source is far above the pinch-off voltage and the channel carries nothing.");
+    return { region, id: 0, vt, vov: g - vt, vdsat, ic };
+  }
+  const vdss = rec.calc(ekvSaturationVoltage, [u, ic, e, l]);
+  const vip = rec.calc(ekvLimitedDrainVoltage, [vdss, u, vds]);
+  const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, u]);
+  const leq = rec.calc(ekvEquivalentLength, [l, vds, vip, e]);
+  const n = rec.calc(ekvSlopeFactor, [gamma, vp, phi, u]);
+  const qf = rec.calc(ekvForwardCharge, [ic]);
+  const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, u, qf, thetaB, vsb]);
+  const is = rec.calc(ekvSpecificCurrent, [n, beta, u]);
+  const id = rec.calc(ekvDrainCurrent, [is, ic, ir, lambda, vds]);
+  return { region, id, vt, vov: g - vt, vdsat, ic };
+}

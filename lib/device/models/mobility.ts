@@ -7,7 +7,10 @@
 import { deviceGain } from "../../formulas/device.formulas.js";
 import { degradedDeviceGain, velocitySaturatedCurrent, velocitySaturatedTriodeCurrent, velocitySaturationVoltage } from "../../formulas/square-law-mobility.formulas.js";
 import type { AmperesPerVoltSquared, Meters, PerVolt, SqrtVolts, Volts, VoltsPerMeter } from "../../quantity.js";
-import { reversible, type DeviceModel, type ModelParameter } from "../model.js";
+import { reversible, type DeviceModel, type ModelBias, type ModelParameter } from "../model.js";
+import type { Derivation } from "../../record/derivation.js";
+import { defaultPhi, type Device } from "../card.js";
+import { overdrive } from "../../formulas/device.formulas.js";
 import { thresholdMagnitude } from "../threshold.js";
 import { thresholdParameters } from "./square-law.js";
 
@@ -49,3 +52,37 @@ export const squareLawMobility: DeviceModel = {
   size: mobilityParameters.length + 3,
   current: reversible(forward),
 };
+
+/**
+ * The bias point of a square-law-mobility device (device polarity, VDS ≥ 0), recorded
+ * with the catalog's formulas when `rec` is given.
+ */
+export function mobilityBias(dev: Device, g: number, d: number, b: number, rec?: Derivation): ModelBias {
+  const c = dev.card;
+  const s = c.polarity === "nmos" ? 1 : -1;
+  const k = deviceGain.fn(c.kp, dev.w, dev.l);
+  const vt = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts, rec);
+  const vov = overdrive.fn(g as Volts, vt);
+  rec?.step(overdrive, [g, vt], vov, s < 0 ? "PMOS: magnitudes VSG and |Vt|" : undefined);
+  if (vov <= 0) {
+    rec?.note("Drain current in cutoff", "ID = 0: the square law with mobility degradation has no subthreshold conduction.");
+    return { region: "cutoff", id: 0, vt, vov, vdsat: 0 };
+  }
+  const theta = (c.theta ?? 0) as PerVolt;
+  const lambda = (c.lambda ?? 0) as PerVolt;
+  const l = dev.l;
+  const e = (c.ecrit ?? Infinity) as VoltsPerMeter;
+  const keff = rec ? rec.calc(degradedDeviceGain, [k, theta, vov]) : degradedDeviceGain.fn(k, theta, vov);
+  let vdsat: Volts;
+  if (c.ecrit === undefined) {
+    vdsat = vov;
+    rec?.note("No velocity saturation", "The card gives no critical field Esat, so VDsat = VOV as in the square law.");
+  } else vdsat = rec ? rec.calc(velocitySaturationVoltage, [vov, e, l]) : velocitySaturationVoltage.fn(vov, e, l);
+  const vds = d as Volts;
+  if (d < vdsat) {
+    const id = rec ? rec.calc(velocitySaturatedTriodeCurrent, [keff, vov, vds, lambda, e, l]) : velocitySaturatedTriodeCurrent.fn(keff, vov, vds, lambda, e, l);
+    return { region: "triode", id, vt, vov, vdsat };
+  }
+  const id = rec ? rec.calc(velocitySaturatedCurrent, [keff, vov, vdsat, lambda, vds, e, l]) : velocitySaturatedCurrent.fn(keff, vov, vdsat, lambda, vds, e, l);
+  return { region: "saturation", id, vt, vov, vdsat };
+}
