@@ -20,7 +20,7 @@ const units: Record<string, string> = {
 };
 
 /** Which data a parameter needs in the window to be fitted. */
-const needs: Record<string, "body" | "saturation" | undefined> = { gamma: "body", phi: "body", lambda: "saturation", sigma: "saturation" };
+const needs: Record<string, "body" | "saturation" | undefined> = { gamma: "body", phi: "body", thetaB: "body", lambda: "saturation", sigma: "saturation" };
 
 export function fitModelOf(model: DeviceModel): FitModel {
   const names = model.parameters.map((q) => q.name);
