@@ -26,6 +26,7 @@ export const commands: Record<string, Command> = {
   notebook: { summary: "open the Jupyter Notebook UI on a working folder (127.0.0.1)", load: () => import("./notebook.js") },
   demo: { summary: "run the demo template and print its report's path", load: () => import("./demo.js") },
   characterize: { summary: "sweep a process library's transistors with ngspice into gm/ID tables", load: () => import("./characterize.js") },
+  fit: { summary: "fit a device model to measured I–V sweeps; write the card and a fit report", load: () => import("./fit.js") },
   op: { summary: "solve a design file's operating point (or design it from its specification)", load: () => import("./op.js") },
 };
 

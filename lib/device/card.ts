@@ -6,6 +6,7 @@
  * the models themselves live in `device/models/`.
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
+import { cardAt, checkCardSet, type CardSet } from "./card-set.js";
 import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, Ratio, SqrtVolts, VoltMeters, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
@@ -142,11 +143,13 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   return card;
 }
 
-/** Make a device from a card and drawn W and L, validating both; returns a frozen copy. */
-export function device(card: DeviceCard, w: Meters, l: Meters, origin = "device"): Device {
-  checkCard(card, `${origin}.card`);
+/** Make a device from a card (or a card set) and drawn W and L, validating both; returns a frozen copy. */
+export function device(cardOrSet: DeviceCard | CardSet, w: Meters, l: Meters, origin = "device"): Device {
   requirePositive(w, `${origin}.w`, "a channel width W > 0 in m");
   requirePositive(l, `${origin}.l`, "a channel length L > 0 in m");
+  // A card set (cards fitted at several L) gives the card at this L (lib/device/card-set.ts).
+  const card = (cardOrSet as Partial<CardSet>)?.kind === "card-set" ? cardAt(checkCardSet(cardOrSet as CardSet, `${origin}.card`), l, `${origin}.card`) : (cardOrSet as DeviceCard);
+  checkCard(card, `${origin}.card`);
   const k = (card.kp * w) / l;
   if (!Number.isFinite(k)) throw new InputError(`kp·W/L = ${card.kp}·${w}/${l}`, "a finite device gain k = kp·W/L in A/V²", origin);
   const dev = Object.freeze({ card: frozenCopy(card), w, l }) as unknown as Device;

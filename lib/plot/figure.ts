@@ -11,7 +11,7 @@ import { scaleFor, type Scale } from "../units/format.js";
 export const plotMimeType = "application/vnd.pinchoff.plot+json";
 export const plotSchema = "pinchoff.plot/1";
 
-export type PlotKind = "output-characteristics" | "transfer-characteristic" | "transconductance";
+export type PlotKind = "output-characteristics" | "transfer-characteristic" | "transconductance" | "measured-against-model" | "fit-residuals" | "validity-map";
 
 export interface Trace {
   readonly type: "scatter";
@@ -30,9 +30,10 @@ export interface Trace {
   readonly meta?: { readonly role: TraceRole; readonly [key: string]: unknown };
 }
 
-export type TraceRole = "curve" | "boundary" | "load-line" | "load-curve" | "operating-point" | "threshold" | "gm" | "gm-over-id";
+export type TraceRole = "curve" | "boundary" | "load-line" | "load-curve" | "operating-point" | "threshold" | "gm" | "gm-over-id" | "measured" | "model" | "residual" | "validity";
 
 export interface Axis {
+  readonly type?: "linear" | "log";
   readonly title: { readonly text: string };
   readonly range?: [number, number];
   readonly zeroline?: boolean;

@@ -1,0 +1,235 @@
+/**
+ * Fitting a device model to one device's measurements: choose the window,
+ * minimise the relative error (model − measured)/measured over it by bounded
+ * Levenberg–Marquardt (`levenberg-marquardt.ts`), and report the parameters
+ * with their standard errors, the error inside the window and over every
+ * measured point (per region), and the validity map (`accuracy.ts`).
+ *
+ * Window. Given by the user, or chosen: for the square law the widest of a
+ * fixed ladder of windows (strong inversion, VBS = 0; overdrive from 0.2–1.0 V
+ * down to 0.4–0.6 V, then saturation only) whose fit reaches the target RMS
+ * (5 % unless set); when none does, the narrowest is kept and `meetsTarget` is
+ * false. The mobility/velocity-saturation form walks the same ladder after a
+ * first rung of every overdrive from 0.2 to 3 V. EKV, which holds in every
+ * region, uses every point above the floor,
+ * fitted from two starts (the data's start estimate; and the fit to the
+ * low-VDS transfer curves alone), keeping the lower RMS.
+ * Overdrive is measured from the start estimate of the threshold, so the
+ * window does not move while the fit runs.
+ */
+import { ConvergenceError, InputError } from "../errors.js";
+import type { DeviceCard } from "../device/card.js";
+import type { Sweep } from "../measure/select.js";
+import { accuracy, summarise, type Accuracy, type ErrorSummary } from "./accuracy.js";
+import { leastSquares, type StopReason } from "./levenberg-marquardt.js";
+import type { FitModel } from "./model.js";
+import { estimateStart, type StartEstimate } from "./start.js";
+
+export interface FitWindow {
+  /** Overdrive |VGS| − Vt,start in V (inclusive). */
+  readonly vov?: readonly [number, number];
+  /** |VDS| in V. */
+  readonly vds?: readonly [number, number];
+  /** |VBS| in V. */
+  readonly vbs?: readonly [number, number];
+  /** Keep only points with |VDS| ≥ overdrive. */
+  readonly saturationOnly?: boolean;
+}
+
+export interface FitOptions {
+  /** The window, or "auto" (default). */
+  readonly window?: FitWindow | "auto";
+  /** Target RMS relative error for the automatic window (default 0.05). */
+  readonly target?: number;
+  /** Points with |ID| below this are left out (A, default 10 nA). */
+  readonly minCurrent?: number;
+  readonly maxIterations?: number;
+  readonly onIteration?: (iteration: number, sumSquares: number) => void;
+  /** Starting parameter vector (model order), e.g. an earlier fit's `p`; from the data when omitted. */
+  readonly start?: Float64Array;
+}
+
+export interface FittedParameter {
+  readonly name: string;
+  readonly unit: string;
+  readonly meaning: string;
+  readonly value: number;
+  /** Standard error; Infinity when the data do not determine it; 0 when held. */
+  readonly stdErr: number;
+  /** Held at its starting value because the window holds no data for it. */
+  readonly held: boolean;
+}
+
+export interface FitResult {
+  readonly model: string;
+  readonly title: string;
+  readonly source: string;
+  readonly device: { readonly origin: string; readonly polarity: string; readonly w: number; readonly l: number; readonly temp: number; readonly corner: string; readonly points: number };
+  readonly window: FitWindow & { readonly chosen: "auto" | "user"; readonly points: number; readonly vgs: readonly [number, number] };
+  readonly meetsTarget: boolean;
+  readonly target: number;
+  readonly parameters: readonly FittedParameter[];
+  readonly card: DeviceCard;
+  readonly iterations: number;
+  readonly stop: StopReason;
+  readonly start: StartEstimate;
+  /** Error over the window's points. */
+  readonly inWindow: ErrorSummary;
+  /** Error over every point above the floor, per region, and the validity map. */
+  readonly accuracy: Accuracy;
+  /** The fitted parameter vector (model order), for plots. */
+  readonly p: Float64Array;
+}
+
+/** The ladder the automatic square-law window walks, widest first. */
+export const squareLawWindows: readonly FitWindow[] = [
+  { vov: [0.2, 1.0], vbs: [0, 0] },
+  { vov: [0.2, 0.8], vbs: [0, 0] },
+  { vov: [0.3, 0.7], vbs: [0, 0] },
+  { vov: [0.2, 1.0], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.1, 1.2], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.3, 0.7], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.4, 0.6], vbs: [0, 0], saturationOnly: true },
+];
+
+/** Indices of the points inside a window (overdrive from the start estimate `est`). */
+export function windowPoints(s: Sweep, w: FitWindow, est: StartEstimate, minCurrent: number): Int32Array {
+  const sign = s.polarity === "nmos" ? 1 : -1;
+  const idx: number[] = [];
+  const inside = (v: number, r?: readonly [number, number]) => !r || (v >= r[0] - 1e-9 && v <= r[1] + 1e-9);
+  for (let i = 0; i < s.id.length; i++) {
+    if (Math.abs(s.id[i]!) < minCurrent) continue;
+    const vov = sign * s.vgs[i]! - est.vt;
+    const vds = sign * s.vds[i]!;
+    if (!inside(vov, w.vov) || !inside(vds, w.vds) || !inside(Math.abs(s.vbs[i]!), w.vbs)) continue;
+    if (w.saturationOnly && vds < vov) continue;
+    if (vds <= 0) continue;
+    idx.push(i);
+  }
+  return Int32Array.from(idx);
+}
+
+function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string) {
+  const free = model.free(s, idx);
+  const full = opts.start ? Float64Array.from(opts.start) : model.start(s, est);
+  const active = free.flatMap((f, j) => (f ? [j] : []));
+  const n = active.length;
+  if (idx.length < Math.max(3 * n, 8))
+    throw new InputError(idx.length, `at least ${Math.max(3 * n, 8)} points above ${(opts.minCurrent ?? 1e-8).toExponential(0)} A in the fit window (${n} parameters)`, origin);
+  const p = Float64Array.from(full, (v, j) => (free[j] ? v : model.held[j]!));
+  const out = new Float64Array(idx.length);
+  const meas = Float64Array.from(idx, (i) => s.id[i]!);
+  const params = model.parameters;
+  const clampStart = (j: number) => {
+    const { lower, upper } = params[j]!;
+    const span = upper - lower;
+    return Math.min(Math.max(full[j]!, lower + 1e-6 * span), upper - 1e-6 * span);
+  };
+  const res = leastSquares(
+    {
+      m: idx.length,
+      n,
+      residuals(q, r) {
+        for (let k = 0; k < n; k++) p[active[k]!] = q[k]!;
+        model.evaluate(p, s, idx, out);
+        for (let i = 0; i < r.length; i++) r[i] = (out[i]! - meas[i]!) / meas[i]!;
+      },
+    },
+    active.map(clampStart),
+    {
+      lower: active.map((j) => params[j]!.lower),
+      upper: active.map((j) => params[j]!.upper),
+      scale: active.map((j) => params[j]!.scale),
+      maxIterations: opts.maxIterations ?? 200,
+      onIteration: opts.onIteration,
+      origin,
+    },
+  );
+  for (let k = 0; k < n; k++) p[active[k]!] = res.p[k]!;
+  const stdErr = new Float64Array(params.length);
+  active.forEach((j, k) => (stdErr[j] = res.stdErr[k]!));
+  return { p, res, free, stdErr, errors: res.residuals };
+}
+
+export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitResult {
+  const origin = `${s.origin}: ${model.id} fit, ${s.polarity} W=${+(s.w * 1e6).toPrecision(4)} µm L=${+(s.l * 1e6).toPrecision(4)} µm ${(s.temp - 273.15).toFixed(0)} °C`;
+  const minCurrent = opts.minCurrent ?? 1e-8;
+  const target = opts.target ?? 0.05;
+  const est = estimateStart(s);
+  const user = opts.window && opts.window !== "auto" ? opts.window : undefined;
+  // The square-law family holds above threshold only: a ladder of strong-inversion windows
+  // (the mobility/velocity-saturation form first tries every overdrive up to 3 V).
+  const ladder: readonly FitWindow[] = user ? [user] : model.id === "square-law" ? squareLawWindows : model.id === "square-law-mobility" ? [{ vov: [0.2, 3], vbs: [0, 0] }, ...squareLawWindows] : [{}];
+  let chosen: { w: FitWindow; idx: Int32Array; fit: ReturnType<typeof fitIn>; rms: number } | undefined;
+  let lastError: unknown;
+  for (const w of ladder) {
+    const idx = windowPoints(s, w, est, minCurrent);
+    let fit: ReturnType<typeof fitIn>;
+    try {
+      fit = fitIn(model, s, idx, est, opts, origin);
+      if (!user && !opts.start && model.id === "ekv") {
+        // Second start, kept when better: the low-VDS transfer curves alone first (threshold,
+        // current factor, body effect, mobility), then every point from there.
+        const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
+        try {
+          const first = fitIn(model, s, low, est, opts, origin);
+          const staged = fitIn(model, s, idx, est, { ...opts, start: first.p }, origin);
+          if (summarise(staged.errors).rms! < summarise(fit.errors).rms!) fit = staged;
+        } catch (e) {
+          if (!(e instanceof InputError) && !(e instanceof ConvergenceError)) throw e;
+        }
+      }
+    } catch (e) {
+      if (user || !(e instanceof InputError)) throw e;
+      lastError = e; // too few points in this rung: try the next
+      continue;
+    }
+    const rms = summarise(fit.errors).rms!;
+    // A rung whose points cannot tell the free parameters apart (one gate voltage, say) is no window.
+    // (a standard error as large as the value itself counts as not determined).
+    if (!user && fit.free.some((f, j) => f && !(fit.stdErr[j]! < Math.abs(fit.p[j]!)) && !atBound(model, fit.p, j))) continue;
+    chosen = { w, idx, fit, rms };
+    if (rms <= target) break;
+  }
+  if (!chosen) throw lastError;
+  const { w, idx, fit } = chosen;
+  const sign = s.polarity === "nmos" ? 1 : -1;
+  let g0 = Infinity;
+  let g1 = -Infinity;
+  for (const i of idx) {
+    g0 = Math.min(g0, sign * s.vgs[i]!);
+    g1 = Math.max(g1, sign * s.vgs[i]!);
+  }
+  const provenance = `fitted (${model.title}) to ${s.origin}, ${s.polarity} W=${+(s.w * 1e6).toPrecision(4)} µm L=${+(s.l * 1e6).toPrecision(4)} µm, ${(s.temp - 273.15).toFixed(1)} °C${s.corner ? `, ${s.corner}` : ""}; window ${describeWindow(w)}`;
+  return {
+    model: model.id,
+    title: model.title,
+    source: model.source,
+    device: { origin: s.origin, polarity: s.polarity, w: s.w, l: s.l, temp: s.temp, corner: s.corner, points: s.id.length },
+    window: { ...w, chosen: user ? "user" : "auto", points: idx.length, vgs: [sign * g0, sign * g1] },
+    meetsTarget: chosen.rms <= target,
+    target,
+    parameters: model.parameters.map((q, j) => ({ name: q.name, unit: q.unit, meaning: q.meaning, value: fit.p[j]!, stdErr: fit.free[j] ? fit.stdErr[j]! : 0, held: !fit.free[j] })),
+    card: model.card(fit.p, s, provenance, fit.free.map((f) => !f)),
+    iterations: fit.res.iterations,
+    stop: fit.res.stop,
+    start: est,
+    inWindow: summarise(fit.errors),
+    accuracy: accuracy(model, fit.p, s, minCurrent),
+    p: fit.p,
+  };
+}
+
+const atBound = (model: FitModel, p: Float64Array, j: number) => {
+  const { lower, upper, scale } = model.parameters[j]!;
+  return Math.min(p[j]! - lower, upper - p[j]!) < 1e-6 * scale;
+};
+
+export function describeWindow(w: FitWindow): string {
+  const parts: string[] = [];
+  if (w.vov) parts.push(`overdrive ${w.vov[0]}–${w.vov[1]} V`);
+  if (w.vds) parts.push(`|VDS| ${w.vds[0]}–${w.vds[1]} V`);
+  if (w.vbs) parts.push(w.vbs[0] === w.vbs[1] ? `|VBS| = ${w.vbs[0]} V` : `|VBS| ${w.vbs[0]}–${w.vbs[1]} V`);
+  if (w.saturationOnly) parts.push("saturation only");
+  return parts.length ? parts.join(", ") : "every point";
+}

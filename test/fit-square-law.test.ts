@@ -1,0 +1,113 @@
+/**
+ * The square-law fit against two references:
+ * - ngspice 39 Level 1: curves generated from known cards (NMOS and PMOS) return
+ *   the card (threshold within 5 mV, KP within 2 %) without noise, and within
+ *   four standard errors with seeded 1 % noise;
+ * - the open 180 nm process's published measurements (data/pdk180: GF180MCU
+ *   3.3 V devices, W = 10 µm, 25 °C; google/globalfoundries-pdk-libs-gf180mcu_fd_pr,
+ *   Apache-2.0): inside the window the fit reports, RMS relative error ≤ 5 %.
+ */
+import { describe, expect, it } from "vitest";
+import { InputError } from "../lib/errors.js";
+import { fitSweep } from "../lib/fit/fit.js";
+import { squareLawFit } from "../lib/fit/models.js";
+import { parseMeasurements, readMeasurements } from "../lib/measure/read.js";
+import { select } from "../lib/measure/select.js";
+import { runNgspice } from "./support/ngspice.js";
+
+interface Card {
+  polarity: "nmos" | "pmos";
+  vto: number;
+  kp: number;
+  lambda: number;
+}
+
+/** Transfer curve at |VDS| = 0.05 V and output curves at four |VGS|, from ngspice Level 1, as a long-layout CSV. */
+function ngspiceCsv(card: Card, w: number, l: number): string {
+  const s = card.polarity === "nmos" ? 1 : -1;
+  const pts: [number, number][] = [];
+  for (let g = 0; g <= 33; g++) pts.push([s * g * 0.1, s * 0.05]);
+  for (const g of [1.2, 1.6, 2.0, 2.4]) for (let d = 1; d <= 33; d++) pts.push([s * g, s * d * 0.1]);
+  const circuit = [
+    `.model M ${card.polarity} level=1 vto=${card.vto} kp=${card.kp} lambda=${card.lambda} is=0`,
+    `M1 d g 0 0 M w=${w} l=${l}`,
+    "VD d 0 0",
+    "VG g 0 0",
+  ].join("\n");
+  const control = pts.flatMap(([vg, vd]) => [`alter VD dc = ${vd.toFixed(4)}`, `alter VG dc = ${vg.toFixed(4)}`, "op", "print -i(VD)"]).join("\n");
+  const printed = runNgspice({ circuit, control });
+  expect(printed.length).toBe(pts.length);
+  const rows = pts.map(([vg, vd], i) => `${w * 1e6},${l * 1e6},tt,27,${vd},${vg},0,${printed[i]![1]}`);
+  return ["W (um),L (um),corner,temp,vds,vgs,vbs,id", ...rows].join("\n");
+}
+
+/** Seeded Gaussian noise (mulberry32 + Box–Muller), relative. */
+function addNoise(csv: string, rel: number, seed: number): string {
+  let a = seed >>> 0;
+  const rnd = () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+  const gauss = () => Math.sqrt(-2 * Math.log(1 - rnd())) * Math.cos(2 * Math.PI * rnd());
+  const [head, ...rows] = csv.split("\n");
+  return [head, ...rows.map((r) => r.replace(/,([^,]+)$/, (_, id: string) => `,${Number(id) * (1 + rel * gauss())}`))].join("\n");
+}
+
+const cards: Card[] = [
+  { polarity: "nmos", vto: 0.62, kp: 180e-6, lambda: 0.04 },
+  { polarity: "pmos", vto: -0.81, kp: 55e-6, lambda: 0.07 },
+];
+
+describe("square-law fit returns the card that generated the curves (ngspice 39 Level 1)", () => {
+  for (const c of cards) {
+    const csv = ngspiceCsv(c, 10e-6, 2e-6);
+    it(`${c.polarity}: without noise, threshold within 5 mV and KP within 2 %`, () => {
+      const f = fitSweep(squareLawFit, select(parseMeasurements(csv, `ngspice-${c.polarity}.csv`)));
+      expect(f.meetsTarget).toBe(true);
+      expect(Math.abs(f.card.vt0 - c.vto)).toBeLessThan(5e-3);
+      expect(Math.abs(f.card.kp / c.kp - 1)).toBeLessThan(0.02);
+      expect(Math.abs((f.card.lambda ?? 0) - c.lambda)).toBeLessThan(2e-3);
+      expect(f.inWindow.rms!).toBeLessThan(1e-4);
+    });
+    it(`${c.polarity}: with 1 % seeded noise, within four standard errors`, () => {
+      const f = fitSweep(squareLawFit, select(parseMeasurements(addNoise(csv, 0.01, 7), "noisy.csv")));
+      const [vt, kp] = f.parameters;
+      expect(Math.abs(vt!.value - Math.abs(c.vto))).toBeLessThan(4 * vt!.stdErr);
+      expect(Math.abs(kp!.value - c.kp)).toBeLessThan(4 * kp!.stdErr);
+      expect(vt!.stdErr).toBeLessThan(0.02);
+      expect(f.inWindow.rms!).toBeGreaterThan(0.005);
+      expect(f.inWindow.rms!).toBeLessThan(0.02);
+    });
+  }
+});
+
+describe("square-law fit on the open 180 nm measurements (GF180MCU 3.3 V, W = 10 µm, 25 °C)", () => {
+  const sets = {
+    nmos: readMeasurements("data/pdk180/nfet_03v3_meas_id.csv"),
+    pmos: readMeasurements("data/pdk180/pfet_03v3_meas_id.csv"),
+  };
+  for (const pol of ["nmos", "pmos"] as const)
+    for (const l of [0.5, 1, 5, 10]) {
+      it(`${pol} L = ${l} µm: RMS ≤ 5 % inside the reported window`, () => {
+        const s = select(sets[pol], { w: 10e-6, l: l * 1e-6, temp: 298.15, currentSign: pol === "pmos" ? "magnitude" : "spice" });
+        const f = fitSweep(squareLawFit, s);
+        expect(f.meetsTarget).toBe(true);
+        expect(f.inWindow.rms!).toBeLessThanOrEqual(0.05);
+        expect(f.window.points).toBeGreaterThanOrEqual(40);
+        expect(f.window.vov).toBeDefined();
+        // the same card outside its window is far off: the window matters
+        expect(f.accuracy.overall.rms!).toBeGreaterThan(0.2);
+      });
+    }
+  it("a window the user sets is used as given, and one without points is refused", () => {
+    const s = select(sets.nmos, { w: 10e-6, l: 1e-6, temp: 298.15 });
+    const f = fitSweep(squareLawFit, s, { window: { vov: [0.3, 0.7], vbs: [0, 0], saturationOnly: true } });
+    expect(f.window.chosen).toBe("user");
+    expect(f.window.saturationOnly).toBe(true);
+    expect(() => fitSweep(squareLawFit, s, { window: { vov: [5, 6] } })).toThrow(InputError);
+    expect(() => fitSweep(squareLawFit, s, { window: { vov: [5, 6] } })).toThrow(/at least 8 points .* in the fit window/);
+  });
+});
