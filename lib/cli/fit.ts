@@ -15,7 +15,7 @@ import { fitModels } from "../fit/models.js";
 import { readMeasurements } from "../measure/read.js";
 import { geometries, select, type Sweep } from "../measure/select.js";
 import { fitReportHtml } from "../report/fit-report.js";
-import { writeAtomically } from "../runner/atomic-write.js";
+import { writeAtomically } from "../io/atomic-write.js";
 import { readSpiceNumber } from "../units/spice-number.js";
 import { defineCommand, exitStatus, type CommandSpec } from "./args.js";
 import { toJson } from "./op.js";
