@@ -27,6 +27,11 @@ export const dimensions = {
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
   /** Cox, gate capacitance per area. */
   capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
+  /** CGSO, CGDO, CGBO, CJSW: capacitance per unit length (overlap, sidewall); also the permittivity ε. */
+  capacitancePerLength: { unit: "F/m", tex: "\\mathrm{F/m}", label: "capacitance per length" },
+  /** Drain and source diffusion areas AD, AS. */
+  area: { unit: "m^2", tex: "\\mathrm{m^2}", label: "area" },
+  frequency: { unit: "Hz", tex: "\\mathrm{Hz}", label: "frequency" },
   mobility: { unit: "m^2/(V s)", tex: "\\mathrm{m^2/(V\\,s)}", label: "mobility" },
   time: { unit: "s", tex: "\\mathrm{s}", label: "time" },
   /** Transconductance efficiency gm/ID. */
@@ -59,6 +64,9 @@ export type Watts = Quantity<"power">;
 export type Farads = Quantity<"capacitance">;
 export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
 export type Mobility = Quantity<"mobility">;
+export type FaradsPerMeter = Quantity<"capacitancePerLength">;
+export type SquareMeters = Quantity<"area">;
+export type Hertz = Quantity<"frequency">;
 export type Seconds = Quantity<"time">;
 export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
 export type Ratio = Quantity<"dimensionless">;
@@ -79,6 +87,9 @@ export const kelvin = (v: number) => v as Kelvin;
 export const watts = (v: number) => v as Watts;
 export const farads = (v: number) => v as Farads;
 export const seconds = (v: number) => v as Seconds;
+export const hertz = (v: number) => v as Hertz;
+export const faradsPerMeter = (v: number) => v as FaradsPerMeter;
+export const squareMeters = (v: number) => v as SquareMeters;
 export const ratio = (v: number) => v as Ratio;
 
 /** Brand by dimension name, for code that is generic over dimensions. */

@@ -5,15 +5,42 @@
  * drain lead reports the drain current. Node and element names carry an
  * optional prefix so several stages can share one deck.
  */
-import { defaultPhi, polaritySign } from "../device/card.js";
+import { defaultPhi, polaritySign, type DeviceCard } from "../device/card.js";
+import { diffusionGeometry } from "../device/capacitance.js";
 import type { NetworkMapping } from "./stage.js";
-import type { SpiceCircuit, Stage } from "./topology.js";
+import type { SpiceCircuit, Stage, StageDevice } from "./topology.js";
 
 /** A number as SPICE reads it: shortest exact decimal form. */
 export const spiceNumber = (x: number): string => {
   if (!Number.isFinite(x)) throw new RangeError(`not a finite number: ${x}`);
   return String(x);
 };
+
+/** Level 1 capacitance parameters for the .model line (empty when the card has none). */
+export function capacitanceModelText(card: DeviceCard): string {
+  const c = card.capacitance;
+  if (!c) return "";
+  const fields: Array<[string, number | undefined]> = [
+    ["tox", c.tox],
+    ["cgso", c.cgso],
+    ["cgdo", c.cgdo],
+    ["cgbo", c.cgbo],
+    ["cj", c.cj],
+    ["mj", c.mj],
+    ["pb", c.pb],
+    ["cjsw", c.cjsw],
+    ["mjsw", c.mjsw],
+    ["fc", c.fc],
+  ];
+  return fields.map(([k, v]) => (v === undefined ? "" : ` ${k}=${spiceNumber(v)}`)).join("");
+}
+
+/** AD/AS/PD/PS on the instance line, when the card has junction data (stated or by the default rule). */
+export function diffusionText(dev: StageDevice): string {
+  if (!dev.card.capacitance) return "";
+  const g = diffusionGeometry(dev);
+  return ` AD=${spiceNumber(g.ad)} AS=${spiceNumber(g.as)} PD=${spiceNumber(g.pd)} PS=${spiceNumber(g.ps)}`;
+}
 
 /** Circuit lines of a single-transistor stage (no title, .op or .end). */
 export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): SpiceCircuit {
@@ -28,7 +55,7 @@ export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): Spic
   const model = `${p}mod`.replace(/[^A-Za-z0-9_]/g, "_");
   const lines: string[] = [];
   lines.push(
-    `.model ${model} ${pmos ? "pmos" : "nmos"} level=1 vto=${spiceNumber(card.vt0)} kp=${spiceNumber(card.kp)} lambda=${spiceNumber(card.lambda ?? 0)} gamma=${spiceNumber(card.gamma ?? 0)} phi=${spiceNumber(card.phi ?? defaultPhi)}`,
+    `.model ${model} ${pmos ? "pmos" : "nmos"} level=1 vto=${spiceNumber(card.vt0)} kp=${spiceNumber(card.kp)} lambda=${spiceNumber(card.lambda ?? 0)} gamma=${spiceNumber(card.gamma ?? 0)} phi=${spiceNumber(card.phi ?? defaultPhi)}${capacitanceModelText(card)}`,
   );
   lines.push(`V${p}DD ${vdd} 0 ${spiceNumber(stage.supplies.vdd)}`);
   lines.push(`V${p}SS ${vss} 0 ${spiceNumber(stage.supplies.vss ?? 0)}`);
@@ -52,7 +79,7 @@ export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): Spic
   } else lines.push(`V${p}G ${g} 0 ${spiceNumber(map.vg ?? 0)}`);
   const b = stage.body === "rail" ? srail : s;
   const inst = `M${p}1`;
-  lines.push(`${inst} ${d} ${g} ${s} ${b} ${model} W=${spiceNumber(stage.device.w)} L=${spiceNumber(stage.device.l)}`);
+  lines.push(`${inst} ${d} ${g} ${s} ${b} ${model} W=${spiceNumber(stage.device.w)} L=${spiceNumber(stage.device.l)}${diffusionText(stage.device)}`);
   return { lines, nodes: { gate: g, source: s, drain: d, body: b, vdd, vss }, drainAmmeter: ammeter, instance: inst };
 }
 

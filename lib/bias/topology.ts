@@ -20,6 +20,7 @@
  *   and the body effect applies. Body "source" ties body to source (VSB = 0).
  */
 import type { DeviceCard, Polarity } from "../device/card.js";
+import type { DiffusionGeometry } from "../device/capacitance-card.js";
 import type { ModelOptions, OperatingPoint } from "../device/drain-current.js";
 import type { Region } from "../device/region.js";
 import { InputError } from "../errors.js";
@@ -41,6 +42,8 @@ export interface StageDevice {
   readonly card: DeviceCard;
   readonly w: Meters;
   readonly l: Meters;
+  /** Drain and source diffusion areas and perimeters, for junction capacitances (default rule in lib/device/capacitance.ts). */
+  readonly diffusion?: DiffusionGeometry;
 }
 
 /** Design limits a stage is checked against; all optional. */

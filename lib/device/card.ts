@@ -4,6 +4,7 @@
  * SPICE Level 1 model card (PMOS vt0 negative, kp positive).
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
+import { checkDatasheetCapacitances, checkProcessCapacitances, type DatasheetCapacitances, type ProcessCapacitances } from "./capacitance-card.js";
 import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, SqrtVolts, Volts, VoltsPerKelvin } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
@@ -32,6 +33,10 @@ export interface DeviceCard {
   /** Surface potential 2φF (SPICE PHI), > 0; 0.6 V when omitted (the SPICE default). */
   readonly phi?: Volts;
   readonly temperature?: TemperatureCoefficients;
+  /** SPICE Level 1 capacitance parameters (TOX, overlaps, junctions), for frequency analysis. */
+  readonly capacitance?: ProcessCapacitances;
+  /** A discrete part's datasheet Ciss, Crss, Coss, for frequency analysis. */
+  readonly datasheetCapacitances?: DatasheetCapacitances;
   /** Where the numbers come from: a datasheet, a PDK, a measurement, or "invented for the demo". */
   readonly provenance?: string;
 }
@@ -63,6 +68,8 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");
     requireFinite(card.temperature.muExp, at("temperature.muExp"), "a mobility exponent (typically 1.2 to 2)");
   }
+  if (card.capacitance !== undefined) checkProcessCapacitances(card.capacitance, at);
+  if (card.datasheetCapacitances !== undefined) checkDatasheetCapacitances(card.datasheetCapacitances, at);
   return card;
 }
 

@@ -31,6 +31,9 @@ const typeOfDim: Record<Dimension, string> = {
   capacitance: "Farads",
   capacitancePerArea: "FaradsPerSquareMeter",
   mobility: "Mobility",
+  capacitancePerLength: "FaradsPerMeter",
+  area: "SquareMeters",
+  frequency: "Hertz",
   time: "Seconds",
   inverseVoltageEfficiency: "SiemensPerAmpere",
   dimensionless: "Ratio",
@@ -88,7 +91,7 @@ function toJs(node: MathNode, where: string): string {
     case "ConstantNode":
       return String(n.value);
     case "SymbolNode":
-      return n.name;
+      return n.name === "pi" ? "Math.PI" : n.name;
     case "ParenthesisNode":
       return `(${toJs(n.content, where)})`;
     case "OperatorNode": {
@@ -115,7 +118,8 @@ function freeSymbols(node: MathNode): string[] {
   node.traverse((c, _path, parent) => {
     const s = c as MathNode & { name?: string };
     const isFunctionName = parent && parent.type === "FunctionNode" && (parent as any).fn === c;
-    if (c.type === "SymbolNode" && !isFunctionName && !names.includes(s.name!)) names.push(s.name!);
+    // pi is the one named constant (mathjs knows it, so re-evaluation needs no input for it).
+    if (c.type === "SymbolNode" && !isFunctionName && s.name !== "pi" && !names.includes(s.name!)) names.push(s.name!);
   });
   return names;
 }

@@ -1,0 +1,141 @@
+/**
+ * Frequency response by hand analysis, each formula stated once: the
+ * short-circuit time constants of coupling and bypass capacitors (low-frequency
+ * corner), the open-circuit time constants and the Miller approximation (upper
+ * corner), the two-pole denominators of the common-source stage and of the
+ * source follower with source and load, and capacitor synthesis for a corner.
+ *
+ * Resistances named R with a prime are Thevenin values at a node: RSP is the
+ * signal source as the gate sees it (Rsig ∥ RG), RLP the total resistance at the
+ * output node of a common-source stage (RD ∥ ro ∥ RL), RSL the source-node
+ * resistance of a follower (RS ∥ RL ∥ ro ∥ 1/gmb).
+ */
+import { defineFormulas, defineSymbols } from "./define.js";
+
+const sctc = "short-circuit time-constant method (P. E. Gray and C. L. Searle, Electronic Principles, Wiley, 1969; common practice)";
+const octc = "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)";
+const nodal = "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)";
+const miller = "Miller approximation (J. M. Miller, Scientific Papers of the Bureau of Standards 15(351), 1920)";
+
+export const symbols = defineSymbols({
+  // shared (identical tex and dim)
+  gm: { tex: "g_{m}", dim: "conductance", meaning: "transconductance" },
+  gmb: { tex: "g_{mb}", dim: "conductance", meaning: "body transconductance" },
+  gds: { tex: "g_{ds}", dim: "conductance", meaning: "output conductance" },
+  RG: { tex: "R_{G}", dim: "resistance", meaning: "Thevenin resistance of the gate bias" },
+  RD: { tex: "R_{D}", dim: "resistance", meaning: "drain resistor" },
+  RS: { tex: "R_{S}", dim: "resistance", meaning: "source resistor" },
+  Rout: { tex: "R_{out}", dim: "resistance", meaning: "small-signal output resistance" },
+  Cgs: { tex: "C_{gs}", dim: "capacitance", meaning: "gate-source capacitance" },
+  Cgd: { tex: "C_{gd}", dim: "capacitance", meaning: "gate-drain capacitance" },
+  Cgb: { tex: "C_{gb}", dim: "capacitance", meaning: "gate-body capacitance" },
+  Av: { tex: "A_{v}", dim: "dimensionless", meaning: "small-signal voltage gain" },
+  // source, load, nodes
+  Rsig: { tex: "R_{sig}", dim: "resistance", meaning: "signal source resistance" },
+  RL: { tex: "R_{L}", dim: "resistance", meaning: "load resistance" },
+  CL: { tex: "C_{L}", dim: "capacitance", meaning: "load capacitance" },
+  RSP: { tex: "R_{sig}'", dim: "resistance", meaning: "signal source resistance as the gate sees it (Rsig ∥ RG)" },
+  RLP: { tex: "R_{L}'", dim: "resistance", meaning: "total resistance at the output node (RD ∥ ro ∥ RL)" },
+  RSL: { tex: "R_{SL}", dim: "resistance", meaning: "total resistance at the follower's source node (RS ∥ RL ∥ ro ∥ 1/gmb)" },
+  RDL: { tex: "R_{D}\\parallel R_{L}", dim: "resistance", meaning: "drain resistor in parallel with the load" },
+  Rx: { tex: "R_{x}", dim: "resistance", meaning: "resistance a capacitor sees (others open or shorted as the method says)" },
+  CGI: { tex: "C_{gi}", dim: "capacitance", meaning: "capacitance from the gate to AC ground" },
+  CGO: { tex: "C_{go}", dim: "capacitance", meaning: "capacitance from the gate to the output node" },
+  CO: { tex: "C_{o}", dim: "capacitance", meaning: "total capacitance from the output node to AC ground" },
+  Cx: { tex: "C_{x}", dim: "capacitance", meaning: "a coupling, bypass or device capacitance" },
+  CM: { tex: "C_{M}", dim: "capacitance", meaning: "Miller input capacitance" },
+  // time constants, poles
+  tau: { tex: "\\tau", dim: "time", meaning: "time constant" },
+  tau1: { tex: "\\tau_{1}", dim: "time", meaning: "open-circuit time constant of the gate-to-ground capacitance" },
+  tau2: { tex: "\\tau_{2}", dim: "time", meaning: "open-circuit time constant of the gate-to-output capacitance" },
+  tau3: { tex: "\\tau_{3}", dim: "time", meaning: "open-circuit time constant of the output capacitance" },
+  Q: { tex: "Q", dim: "dimensionless", meaning: "quality factor of a complex pole pair" },
+  b1: { tex: "b_{1}", dim: "time", meaning: "first-order coefficient of the denominator (sum of open-circuit time constants)" },
+  b2: { tex: "b_{2}", dim: "time", meaning: "square root of the second-order coefficient of the denominator" },
+  fx: { tex: "f_{x}", dim: "frequency", meaning: "a pole or corner frequency" },
+  f1: { tex: "f_{1}", dim: "frequency", meaning: "first pole frequency" },
+  f2: { tex: "f_{2}", dim: "frequency", meaning: "second pole frequency" },
+  f3: { tex: "f_{3}", dim: "frequency", meaning: "third pole frequency" },
+  fL: { tex: "f_{L}", dim: "frequency", meaning: "low-frequency −3 dB corner" },
+  fH: { tex: "f_{H}", dim: "frequency", meaning: "upper −3 dB corner" },
+  fp1: { tex: "f_{p1}", dim: "frequency", meaning: "dominant pole" },
+  fp2: { tex: "f_{p2}", dim: "frequency", meaning: "non-dominant pole" },
+  fz: { tex: "f_{z}", dim: "frequency", meaning: "zero" },
+  sep: { tex: "f_{p2}/f_{p1}", dim: "dimensionless", meaning: "pole separation" },
+  share: { tex: "s_{x}", dim: "dimensionless", meaning: "share of the target corner given to one capacitor" },
+});
+
+export const formulas = defineFormulas({
+  // Thevenin values
+  sourceSeenByGate: { title: "Signal source as the gate sees it", result: "RSP", expr: "Rsig * RG / (Rsig + RG)", source: "Thevenin's theorem (common practice)" },
+  outputNodeResistance: { title: "Total resistance at the drain output node", result: "RLP", expr: "1 / (gds + 1 / RD + 1 / RL)", source: nodal },
+  outputNodeResistanceUnloaded: { title: "Total resistance at the drain output node, no load resistor", result: "RLP", expr: "1 / (gds + 1 / RD)", source: nodal },
+  followerNodeResistance: { title: "Total resistance at the follower's source node", result: "RSL", expr: "1 / (gds + gmb + 1 / RS + 1 / RL)", source: nodal },
+  followerNodeResistanceUnloaded: { title: "Total resistance at the follower's source node, no load resistor", result: "RSL", expr: "1 / (gds + gmb + 1 / RS)", source: nodal },
+  drainWithLoad: { title: "Drain resistor in parallel with the load", result: "RDL", expr: "RD * RL / (RD + RL)", source: "parallel resistors (common practice)" },
+  // midband gain with source and load
+  commonSourceMidband: { title: "Midband gain from the signal source, common source", result: "Av", expr: "-gm * RLP * RG / (Rsig + RG)", source: nodal },
+  commonSourceMidbandDirect: { title: "Midband gain from the signal source, common source, gate DC-coupled", result: "Av", expr: "-gm * RLP", source: nodal },
+  followerMidband: { title: "Midband gain from the signal source, source follower", result: "Av", expr: "gm * RSL / (1 + gm * RSL) * RG / (Rsig + RG)", source: nodal },
+  // short-circuit time constants
+  inputCouplingResistance: { title: "Resistance the input coupling capacitor sees (others shorted)", result: "Rx", expr: "Rsig + RG", source: sctc },
+  outputCouplingResistance: { title: "Resistance the output coupling capacitor sees (others shorted)", result: "Rx", expr: "Rout + RL", source: sctc },
+  bypassResistance: {
+    title: "Resistance the source bypass capacitor sees (others shorted)",
+    result: "Rx",
+    expr: "1 / (1 / RS + (gm + gmb + gds) / (1 + gds * RDL))",
+    source: sctc,
+  },
+  bypassResistanceIdeal: {
+    title: "Resistance the source bypass capacitor sees, ideal current source at the source (others shorted)",
+    result: "Rx",
+    expr: "(1 + gds * RDL) / (gm + gmb + gds)",
+    source: sctc,
+  },
+  timeConstant: { title: "Time constant", result: "tau", expr: "Cx * Rx", source: "RC time constant (common practice)" },
+  poleOfTimeConstant: { title: "Pole of a time constant", result: "fx", expr: "1 / (2 * pi * tau)", source: "single-pole response (common practice)" },
+  lowCorner: { title: "Low-frequency corner (sum of the short-circuit poles)", result: "fL", expr: "f1 + f2 + f3", source: sctc },
+  capacitorForPole: { title: "Capacitor for a pole frequency", result: "Cx", expr: "1 / (2 * pi * Rx * fx)", source: "single-pole response (common practice)" },
+  poleShare: { title: "Pole frequency given to one capacitor", result: "fx", expr: "share * fL", source: "dominant capacitor takes the rest, the others a decade below (common practice)" },
+  // common source: capacitances at the nodes
+  gateToGround: { title: "Capacitance from the gate to AC ground", result: "CGI", expr: "Cgs + Cgb", source: nodal },
+  outputCapacitance: { title: "Capacitance from the output node to AC ground", result: "CO", expr: "CL + Cx", source: nodal },
+  // open-circuit time constants
+  gateTimeConstant: { title: "Open-circuit time constant of the gate capacitance", result: "tau", expr: "CGI * RSP", source: octc },
+  bridgeTimeConstant: { title: "Open-circuit time constant of the gate-drain capacitance", result: "tau", expr: "CGO * (RSP * (1 + gm * RLP) + RLP)", source: octc },
+  outputTimeConstant: { title: "Open-circuit time constant of the output capacitance", result: "tau", expr: "CO * RLP", source: octc },
+  timeConstantSum: { title: "Sum of the open-circuit time constants", result: "b1", expr: "tau1 + tau2 + tau3", source: octc },
+  upperCorner: { title: "Upper corner from the open-circuit time constants", result: "fH", expr: "1 / (2 * pi * b1)", source: octc },
+  // common source: two-pole denominator
+  commonSourceB2: {
+    title: "Second-order coefficient of the common-source denominator (as √b2)",
+    result: "b2",
+    expr: "sqrt(RSP * RLP * (CGI * CGO + CGI * CO + CGO * CO))",
+    source: nodal,
+  },
+  dominantPole: { title: "Dominant pole (smaller root of 1 + b1·s + b2²·s²)", result: "fp1", expr: "(b1 - sqrt(b1^2 - 4 * b2^2)) / (4 * pi * b2^2)", source: nodal },
+  nonDominantPole: { title: "Non-dominant pole (larger root of 1 + b1·s + b2²·s²)", result: "fp2", expr: "(b1 + sqrt(b1^2 - 4 * b2^2)) / (4 * pi * b2^2)", source: nodal },
+  nonDominantEstimate: { title: "Non-dominant pole, widely separated poles", result: "fp2", expr: "b1 / (2 * pi * b2^2)", source: nodal },
+  naturalFrequency: { title: "Natural frequency of a complex pole pair", result: "fx", expr: "1 / (2 * pi * b2)", source: nodal },
+  poleQuality: { title: "Quality factor of a complex pole pair", result: "Q", expr: "b2 / b1", source: nodal },
+  poleSeparation: { title: "Pole separation", result: "sep", expr: "fp2 / fp1", source: nodal },
+  bridgeZero: { title: "Zero through the capacitance from the gate to the output (right half plane in a common source, left in a follower)", result: "fz", expr: "gm / (2 * pi * CGO)", source: nodal },
+  // Miller
+  millerCapacitance: { title: "Miller input capacitance", result: "CM", expr: "CGI + CGO * (1 + gm * RLP)", source: miller },
+  millerInputPole: { title: "Input pole with the Miller capacitance", result: "f1", expr: "1 / (2 * pi * RSP * CM)", source: miller },
+  millerOutputPole: { title: "Output pole with the Miller-reflected gate-drain capacitance", result: "f2", expr: "1 / (2 * pi * RLP * (CO + CGO * (1 + 1 / (gm * RLP))))", source: miller },
+  // source follower
+  followerBridgeTimeConstant: {
+    title: "Open-circuit time constant of the gate-source capacitance (follower)",
+    result: "tau",
+    expr: "CGO * (RSP + RSL) / (1 + gm * RSL)",
+    source: octc,
+  },
+  followerOutputTimeConstant: { title: "Open-circuit time constant of the source-node capacitance (follower)", result: "tau", expr: "CO * RSL / (1 + gm * RSL)", source: octc },
+  followerB2: {
+    title: "Second-order coefficient of the follower denominator (as √b2)",
+    result: "b2",
+    expr: "sqrt(RSP * RSL * (CGI * CGO + CGI * CO + CGO * CO) / (1 + gm * RSL))",
+    source: nodal,
+  },
+});
