@@ -29,6 +29,9 @@ export const symbols = defineSymbols({
   Cgs: { tex: "C_{gs}", dim: "capacitance", meaning: "gate-source capacitance" },
   Cgd: { tex: "C_{gd}", dim: "capacitance", meaning: "gate-drain capacitance" },
   Cgb: { tex: "C_{gb}", dim: "capacitance", meaning: "gate-body capacitance" },
+  Cdb: { tex: "C_{db}", dim: "capacitance", meaning: "drain-body junction capacitance" },
+  Csb: { tex: "C_{sb}", dim: "capacitance", meaning: "source-body junction capacitance" },
+  Cds: { tex: "C_{ds}", dim: "capacitance", meaning: "drain-source capacitance" },
   Av: { tex: "A_{v}", dim: "dimensionless", meaning: "small-signal voltage gain" },
   // source, load, nodes
   Rsig: { tex: "R_{sig}", dim: "resistance", meaning: "signal source resistance" },
@@ -69,7 +72,6 @@ export const formulas = defineFormulas({
   // Thevenin values
   sourceSeenByGate: { title: "Signal source as the gate sees it", result: "RSP", expr: "Rsig * RG / (Rsig + RG)", source: "Thevenin's theorem (common practice)" },
   outputNodeResistance: { title: "Total resistance at the drain output node", result: "RLP", expr: "1 / (gds + 1 / RD + 1 / RL)", source: nodal },
-  outputNodeResistanceUnloaded: { title: "Total resistance at the drain output node, no load resistor", result: "RLP", expr: "1 / (gds + 1 / RD)", source: nodal },
   followerNodeResistance: { title: "Total resistance at the follower's source node", result: "RSL", expr: "1 / (gds + gmb + 1 / RS + 1 / RL)", source: nodal },
   followerNodeResistanceUnloaded: { title: "Total resistance at the follower's source node, no load resistor", result: "RSL", expr: "1 / (gds + gmb + 1 / RS)", source: nodal },
   drainWithLoad: { title: "Drain resistor in parallel with the load", result: "RDL", expr: "RD * RL / (RD + RL)", source: "parallel resistors (common practice)" },
@@ -98,8 +100,14 @@ export const formulas = defineFormulas({
   capacitorForPole: { title: "Capacitor for a pole frequency", result: "Cx", expr: "1 / (2 * pi * Rx * fx)", source: "single-pole response (common practice)" },
   poleShare: { title: "Pole frequency given to one capacitor", result: "fx", expr: "share * fL", source: "dominant capacitor takes the rest, the others a decade below (common practice)" },
   // common source: capacitances at the nodes
-  gateToGround: { title: "Capacitance from the gate to AC ground", result: "CGI", expr: "Cgs + Cgb", source: nodal },
-  outputCapacitance: { title: "Capacitance from the output node to AC ground", result: "CO", expr: "CL + Cx", source: nodal },
+  gateToGround: { title: "Capacitance from the gate to AC ground (common source)", result: "CGI", expr: "Cgs + Cgb", source: nodal },
+  gateToOutput: { title: "Capacitance from the gate to the output (common source)", result: "CGO", expr: "Cgd", source: nodal },
+  outputCapacitance: { title: "Capacitance from the drain output node to AC ground", result: "CO", expr: "CL + Cdb + Cds", source: nodal },
+  followerGateToGround: { title: "Capacitance from the gate to AC ground (follower, body at its rail)", result: "CGI", expr: "Cgd + Cgb", source: nodal },
+  followerGateToOutput: { title: "Capacitance from the gate to the output (follower, body at its rail)", result: "CGO", expr: "Cgs", source: nodal },
+  followerOutputCapacitance: { title: "Capacitance from the follower's source node to AC ground (body at its rail)", result: "CO", expr: "CL + Csb + Cds", source: nodal },
+  followerTiedGateToGround: { title: "Capacitance from the gate to AC ground (follower, body at the source)", result: "CGI", expr: "Cgd", source: nodal },
+  followerTiedGateToOutput: { title: "Capacitance from the gate to the output (follower, body at the source)", result: "CGO", expr: "Cgs + Cgb", source: nodal },
   // open-circuit time constants
   gateTimeConstant: { title: "Open-circuit time constant of the gate capacitance", result: "tau", expr: "CGI * RSP", source: octc },
   bridgeTimeConstant: { title: "Open-circuit time constant of the gate-drain capacitance", result: "tau", expr: "CGO * (RSP * (1 + gm * RLP) + RLP)", source: octc },

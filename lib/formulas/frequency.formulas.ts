@@ -30,20 +30,6 @@ export const outputNodeResistance = {
   fn: (gds: Siemens, RD: Ohms, RL: Ohms): Ohms => (1 / (((gds + (1 / RD)) + (1 / RL)))) as Ohms,
 } as const satisfies Formula;
 
-/** Total resistance at the drain output node, no load resistor: RLP = 1 / (gds + 1 / RD) */
-export const outputNodeResistanceUnloaded = {
-  id: "outputNodeResistanceUnloaded",
-  title: "Total resistance at the drain output node, no load resistor",
-  expr: "1 / (gds + 1 / RD)",
-  tex: "R_{L}' = \\frac{1}{{g_{ds}}+\\frac{1}{{R_{D}}}}",
-  result: "RLP",
-  resultDim: "resistance",
-  vars: ["gds","RD"],
-  dims: ["conductance","resistance"],
-  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
-  fn: (gds: Siemens, RD: Ohms): Ohms => (1 / ((gds + (1 / RD)))) as Ohms,
-} as const satisfies Formula;
-
 /** Total resistance at the follower's source node: RSL = 1 / (gds + gmb + 1 / RS + 1 / RL) */
 export const followerNodeResistance = {
   id: "followerNodeResistance",
@@ -254,10 +240,10 @@ export const poleShare = {
   fn: (share: Ratio, fL: Hertz): Hertz => (share * fL) as Hertz,
 } as const satisfies Formula;
 
-/** Capacitance from the gate to AC ground: CGI = Cgs + Cgb */
+/** Capacitance from the gate to AC ground (common source): CGI = Cgs + Cgb */
 export const gateToGround = {
   id: "gateToGround",
-  title: "Capacitance from the gate to AC ground",
+  title: "Capacitance from the gate to AC ground (common source)",
   expr: "Cgs + Cgb",
   tex: "C_{gi} = {C_{gs}}+{C_{gb}}",
   result: "CGI",
@@ -268,18 +254,102 @@ export const gateToGround = {
   fn: (Cgs: Farads, Cgb: Farads): Farads => (Cgs + Cgb) as Farads,
 } as const satisfies Formula;
 
-/** Capacitance from the output node to AC ground: CO = CL + Cx */
+/** Capacitance from the gate to the output (common source): CGO = Cgd */
+export const gateToOutput = {
+  id: "gateToOutput",
+  title: "Capacitance from the gate to the output (common source)",
+  expr: "Cgd",
+  tex: "C_{go} = {C_{gd}}",
+  result: "CGO",
+  resultDim: "capacitance",
+  vars: ["Cgd"],
+  dims: ["capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cgd: Farads): Farads => Cgd as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the drain output node to AC ground: CO = CL + Cdb + Cds */
 export const outputCapacitance = {
   id: "outputCapacitance",
-  title: "Capacitance from the output node to AC ground",
-  expr: "CL + Cx",
-  tex: "C_{o} = {C_{L}}+{C_{x}}",
+  title: "Capacitance from the drain output node to AC ground",
+  expr: "CL + Cdb + Cds",
+  tex: "C_{o} = {C_{L}}+{C_{db}}+{C_{ds}}",
   result: "CO",
   resultDim: "capacitance",
-  vars: ["CL","Cx"],
+  vars: ["CL","Cdb","Cds"],
+  dims: ["capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Cdb: Farads, Cds: Farads): Farads => ((CL + Cdb) + Cds) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the gate to AC ground (follower, body at its rail): CGI = Cgd + Cgb */
+export const followerGateToGround = {
+  id: "followerGateToGround",
+  title: "Capacitance from the gate to AC ground (follower, body at its rail)",
+  expr: "Cgd + Cgb",
+  tex: "C_{gi} = {C_{gd}}+{C_{gb}}",
+  result: "CGI",
+  resultDim: "capacitance",
+  vars: ["Cgd","Cgb"],
   dims: ["capacitance","capacitance"],
   source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
-  fn: (CL: Farads, Cx: Farads): Farads => (CL + Cx) as Farads,
+  fn: (Cgd: Farads, Cgb: Farads): Farads => (Cgd + Cgb) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the gate to the output (follower, body at its rail): CGO = Cgs */
+export const followerGateToOutput = {
+  id: "followerGateToOutput",
+  title: "Capacitance from the gate to the output (follower, body at its rail)",
+  expr: "Cgs",
+  tex: "C_{go} = {C_{gs}}",
+  result: "CGO",
+  resultDim: "capacitance",
+  vars: ["Cgs"],
+  dims: ["capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cgs: Farads): Farads => Cgs as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the follower's source node to AC ground (body at its rail): CO = CL + Csb + Cds */
+export const followerOutputCapacitance = {
+  id: "followerOutputCapacitance",
+  title: "Capacitance from the follower's source node to AC ground (body at its rail)",
+  expr: "CL + Csb + Cds",
+  tex: "C_{o} = {C_{L}}+{C_{sb}}+{C_{ds}}",
+  result: "CO",
+  resultDim: "capacitance",
+  vars: ["CL","Csb","Cds"],
+  dims: ["capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Csb: Farads, Cds: Farads): Farads => ((CL + Csb) + Cds) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the gate to AC ground (follower, body at the source): CGI = Cgd */
+export const followerTiedGateToGround = {
+  id: "followerTiedGateToGround",
+  title: "Capacitance from the gate to AC ground (follower, body at the source)",
+  expr: "Cgd",
+  tex: "C_{gi} = {C_{gd}}",
+  result: "CGI",
+  resultDim: "capacitance",
+  vars: ["Cgd"],
+  dims: ["capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cgd: Farads): Farads => Cgd as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the gate to the output (follower, body at the source): CGO = Cgs + Cgb */
+export const followerTiedGateToOutput = {
+  id: "followerTiedGateToOutput",
+  title: "Capacitance from the gate to the output (follower, body at the source)",
+  expr: "Cgs + Cgb",
+  tex: "C_{go} = {C_{gs}}+{C_{gb}}",
+  result: "CGO",
+  resultDim: "capacitance",
+  vars: ["Cgs","Cgb"],
+  dims: ["capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cgs: Farads, Cgb: Farads): Farads => (Cgs + Cgb) as Farads,
 } as const satisfies Formula;
 
 /** Open-circuit time constant of the gate capacitance: tau = CGI * RSP */

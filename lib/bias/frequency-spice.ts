@@ -1,0 +1,87 @@
+/**
+ * SPICE export of a stage's frequency response: the DC deck of its topology
+ * with the signal source (AC 1 V) and its resistance, the coupling and bypass
+ * capacitors, the load, the device's datasheet capacitances as explicit
+ * capacitors when the card has no Level 1 capacitance block, and an `.ac`
+ * sweep. The transfer function is v(<prefix>out)/1 V.
+ */
+import { deviceCapacitances } from "../device/capacitance.js";
+import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
+import { spiceNumber } from "./spice.js";
+import type { FrequencyAnalysis } from "./frequency.js";
+
+export interface AcSweep {
+  readonly pointsPerDecade: number;
+  readonly start: number;
+  readonly stop: number;
+}
+
+export interface AcCircuit {
+  readonly lines: string[];
+  /** Node whose voltage is the response to the 1 V AC source. */
+  readonly output: string;
+  readonly sweep: AcSweep;
+}
+
+/** Default sweep: two decades below the low corner (or 1 Hz) to two decades above the upper corner. */
+export function defaultSweep(fa: FrequencyAnalysis): AcSweep {
+  const lo = fa.low ? fa.low.corner / 100 : Math.min(1, fa.high.corner / 1e4);
+  const hi = fa.high.corner * 100;
+  const dec = (x: number, up: boolean) => 10 ** (up ? Math.ceil(Math.log10(x)) : Math.floor(Math.log10(x)));
+  return { pointsPerDecade: 50, start: dec(lo, false), stop: dec(hi, true) };
+}
+
+/** Circuit lines for the AC response of a single-transistor stage. */
+export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAnalysis, prefix = "", sweep = defaultSweep(fa)): AcCircuit {
+  const p = prefix;
+  const dc = topologyFor(stage.topology).spice(stage, p);
+  const n = dc.nodes as Readonly<Record<"gate" | "source" | "drain", string>>;
+  const lines = [...dc.lines];
+  const sig = `${p}sig`;
+  const gateIn = `${p}gin`;
+  const rsig = fa.source.resistance;
+  const cap = (role: "input" | "output" | "bypass") => fa.low?.capacitors.find((c) => c.role === role)?.value;
+  if (fa.circuit.gateCoupled) {
+    lines.push(`V${p}SIG ${sig} 0 DC 0 AC 1`);
+    lines.push(rsig > 0 ? `R${p}SIG ${sig} ${gateIn} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${gateIn} 0`);
+    lines.push(`C${p}IN ${gateIn} ${n.gate} ${spiceNumber(cap("input")!)}`);
+  } else {
+    // DC-coupled gate: the signal source goes in series with the gate bias source.
+    const i = lines.findIndex((l) => l.startsWith(`V${p}G `));
+    if (i < 0) throw new Error(`internal: no gate bias source V${p}G in the ${stage.topology} deck`);
+    const bias = `${p}gdc`;
+    lines[i] = lines[i]!.replace(`V${p}G ${n.gate} `, `V${p}G ${bias} `);
+    lines.push(`V${p}SIG ${sig} ${bias} DC 0 AC 1`);
+    lines.push(rsig > 0 ? `R${p}SIG ${sig} ${n.gate} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${n.gate} 0`);
+  }
+  const cb = cap("bypass");
+  if (cb !== undefined) lines.push(`C${p}B ${n.source} 0 ${spiceNumber(cb)}`);
+  const outNode = fa.outputNode === "drain" ? n.drain : n.source;
+  let out = outNode;
+  if (fa.load.resistance !== undefined) {
+    out = `${p}out`;
+    lines.push(`C${p}OUT ${outNode} ${out} ${spiceNumber(cap("output")!)}`);
+    lines.push(`R${p}L ${out} 0 ${spiceNumber(fa.load.resistance)}`);
+  }
+  if (fa.load.capacitance > 0) lines.push(`C${p}L ${out} 0 ${spiceNumber(fa.load.capacitance)}`);
+  if (!stage.device.card.capacitance && stage.device.card.datasheetCapacitances) {
+    const c = deviceCapacitances(stage.device, analysis.op);
+    lines.push(`* datasheet capacitances (Ciss - Crss, Crss, Coss - Crss), constant`);
+    lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`, `C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+  }
+  return { lines, output: out, sweep };
+}
+
+/** A whole deck: title, cautions, circuit, .ac and .end. */
+export function acDeckText(title: string, ac: AcCircuit): string {
+  return [
+    `* ${title}`,
+    "* Exported by pinchoff: SPICE Level 1 card with its capacitances, signal source AC 1 V.",
+    "* Hand-analysis cross-check only: verify with your process models and by measurement.",
+    `* Response: v(${ac.output}) (gain, since the source is 1 V).`,
+    ...ac.lines,
+    `.ac dec ${ac.sweep.pointsPerDecade} ${spiceNumber(ac.sweep.start)} ${spiceNumber(ac.sweep.stop)}`,
+    ".end",
+    "",
+  ].join("\n");
+}
