@@ -342,6 +342,7 @@ function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, ch
     zero = evaluateFormula(ff.poleOfTimeConstant, { tau: tauZ }, rec, "zero of the bypassed source");
   }
   const corner = lowCornerOf(caps.map((k) => k.pole), zero);
+  if (corner === 0) findings.push(`The unbypassed gain is within 3 dB of midband (bypass zero ${fmt(zero!)} Hz against its pole ${fmt(caps[0]!.pole)} Hz): the response has a shelf, not a −3 dB corner; the corner is reported as 0 Hz.`);
   const sorted = caps.map((k) => k.pole).sort((a, b) => b - a);
   const rest = sorted.slice(1).reduce((a, b) => a + b, 0);
   const dominance = rest > 0 ? sorted[0]! / rest : Infinity;
@@ -355,8 +356,13 @@ function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, ch
   return { capacitors: caps, sctcCorner: sctc as Hertz, corner: corner as Hertz, ...(zero !== undefined ? { bypassZero: zero as Hertz } : {}), dominance };
 }
 
-/** −3 dB corner of Π s/(s+pᵢ) · (s+z)/(s+p_bypass): bisection on a log scale, to 1e-9 relative. */
+/**
+ * −3 dB corner of Π s/(s+pᵢ) · (s+z)/(s+p_bypass): bisection on a log scale, to
+ * 1e-12 relative. 0 when the response never falls 3 dB: a bypass capacitor
+ * alone whose zero z/p ≥ 1/√2 (the unbypassed gain is within 3 dB of midband).
+ */
 export function lowCornerOf(poles: readonly number[], bypassZero?: number): number {
+  if (bypassZero !== undefined && poles.length === 1 && (bypassZero / poles[0]!) ** 2 >= 0.5) return 0;
   const mag2 = (f: number) => {
     let m = 1;
     poles.forEach((p) => (m *= (f * f) / (f * f + p * p)));
@@ -393,6 +399,12 @@ function designCapacitors(
       `the given capacitors alone put the low corner at ${fmt(lowCornerOf(givenPoles))} Hz or more, above the target ${fmt(target)} Hz: enlarge them or raise the target`,
       `${o}: frequency.targets.lowCorner`,
     );
+  const only = roles.length === 1 ? roles[0]! : undefined;
+  if (only?.rsZero !== undefined && (only.rx / only.rsZero) ** 2 >= 0.5)
+    throw new InfeasibleError(
+      `the only low-frequency element is the bypass capacitor, and without it the gain falls by only ${fmt(-20 * Math.log10(only.rx / only.rsZero))} dB (resistance seen ${fmt(only.rx)} Ω against RS = ${fmt(only.rsZero)} Ω), so no capacitor gives a −3 dB corner at ${fmt(target)} Hz: add a coupling capacitor or a larger RS`,
+      `${o}: frequency.targets.lowCorner`,
+    );
   const dominant = missing.reduce((a, b) => (b.rx < a.rx ? b : a));
   rec?.note(
     "Capacitor design",
@@ -421,8 +433,9 @@ function designCapacitors(
   }
   rec?.note("Scaling", `All designed capacitors × ${fmt(k)} so the hand corner equals the target.`);
   for (const [r, v] of ideal) ideal.set(r, v * k);
-  // Standard values as a set: two nearest candidates each, the combination whose corner is nearest the target.
-  const cands = missing.map((m) => standardValuesAround(ideal.get(m.role)!, series, 2, `${m.role} capacitor`));
+  // Standard values as a set: the nearest candidates each, the combination whose corner is nearest the target.
+  // When single values miss by more than 5 % (E6 steps are ~47 %), two standard values in parallel may be used.
+  let cands = missing.map((m) => standardValuesAround(ideal.get(m.role)!, series, 3, `${m.role} capacitor`));
   let best: { v: Map<CapacitorRole, number>; err: number; sum: number } | undefined;
   const walk = (i: number, acc: Map<CapacitorRole, number>) => {
     if (i === missing.length) {
@@ -438,11 +451,28 @@ function designCapacitors(
     acc.delete(missing[i]!.role);
   };
   walk(0, new Map());
+  if (best!.err > Math.log(1.05)) {
+    cands = missing.map((m, i) => [...cands[i]!, ...parallelPairs(ideal.get(m.role)!, series)]);
+    walk(0, new Map());
+  }
   for (const m of missing) {
     values.set(m.role, best!.v.get(m.role)!);
     ideals.set(m.role, ideal.get(m.role)!);
-    rec?.note(`${m.role} capacitor`, `ideal ${fmt(ideal.get(m.role)!)} F → ${series} ${fmt(best!.v.get(m.role)!)} F (nearest ${fmt(nearestStandard(ideal.get(m.role)!, series))} F)`);
+    const v = best!.v.get(m.role)!;
+    const single = Math.abs(nearestStandard(v, series) / v - 1) < 1e-9;
+    rec?.note(`${m.role} capacitor`, `ideal ${fmt(ideal.get(m.role)!)} F → ${single ? `${series} ${fmt(v)} F` : `${fmt(v)} F as two ${series} values in parallel`} (nearest single value ${fmt(nearestStandard(ideal.get(m.role)!, series))} F)`);
   }
+}
+
+/** Sums of two standard values (a ≥ b) within 5 % of a value: a parallel pair. */
+export function parallelPairs(value: number, series: SeriesName): number[] {
+  const out: number[] = [];
+  for (const a of standardValuesAround(value * 0.75, series, 6, "parallel pair")) {
+    if (a >= value) continue;
+    const b = nearestStandard(value - a, series, "parallel pair");
+    if (b <= a && Math.abs((a + b) / value - 1) <= 0.05) out.push(a + b);
+  }
+  return out;
 }
 
 function commonSourceNodes(caps: DeviceCapacitances, cl: number, RSP: number, RLP: number, ctx: Ctx): FrequencyNodes {
@@ -522,6 +552,7 @@ function highFrequency(n: FrequencyNodes, follower: boolean, ctx: Ctx, checks: S
     miller = { capacitance: CM as Farads, inputPole: fin as Hertz, outputPole: fout as Hertz };
   }
   const corner = highCornerOf(b1, b2, fz, !follower);
+  if (corner === Infinity) findings.push(`The response levels off above the zero ${fmt(fz)} Hz instead of falling 3 dB (the gate-to-output capacitance feeds the signal through; ideal signal source): there is no upper −3 dB corner in this model.`);
   const holds = sep >= dominanceRatio && zRatio >= dominanceRatio;
   if (rec) {
     checks.push(stageCheck("Upper poles: one dominates (fp2/fp1 ≥ 10)", Number.isFinite(sep) ? sep : 1e12, "dimensionless", { min: dominanceRatio }, rec, "the open-circuit time-constant and Miller estimates' own assumption"));
@@ -558,7 +589,10 @@ export function upperMagnitude2(f: number, b1: number, b2: number, fz: number): 
 export function highCornerOf(b1: number, b2: number, fz: number, _rhp: boolean): number {
   let lo = 1e-6 / (2 * Math.PI * b1);
   let hi = 1 / (2 * Math.PI * b1);
-  while (upperMagnitude2(hi, b1, b2, fz) >= 0.5 && hi < 1e30) hi *= 2;
+  while (upperMagnitude2(hi, b1, b2, fz) >= 0.5) {
+    hi *= 2;
+    if (hi * b1 > 1e9) return Infinity; // levels off above 1/√2: no −3 dB corner
+  }
   // Scan up from lo for the first crossing (a peaked response crosses above 1 first).
   for (let i = 0; i < 200 && hi / lo > 1 + 1e-12; i++) {
     const mid = Math.sqrt(lo * hi);

@@ -1,0 +1,191 @@
+/**
+ * Frequency response by hand analysis against ngspice 39 Level 1 `.ac` on the
+ * decks pinchoff exports (lib/bias/frequency-spice.ts). Seeded random stages
+ * (common source: four-resistor, fixed-gate, current-source-bias; source
+ * follower; NMOS and PMOS; Level 1 capacitance cards and datasheet
+ * capacitances; with and without a load resistor and load capacitance;
+ * capacitors given or designed for a target corner from E6/E12) are analysed
+ * here and swept by ngspice in one deck. The response is read off as
+ * |v(out)| with a 1 V source; corners are taken at 1/√2 of the response at the
+ * geometric middle of the hand corners.
+ *
+ * Asserted: midband gain within 2 %; the low corner of the hand transfer
+ * function within 10 % for every stage whose midband is flat (upper corner ≥
+ * 100 × low corner); the dominant pole within 10 % of ngspice's upper corner
+ * wherever the method's own assumption holds (fp2 ≥ 10·fp1, fz ≥ 10·fp1, as
+ * the record checks); the upper corner of the two-pole hand transfer function
+ * within 10 % everywhere the poles are real; designed capacitors meet their
+ * target in ngspice within 15 %. Counts of flagged cases are printed.
+ */
+import { describe, expect, it } from "vitest";
+import { analyzeStage } from "../lib/bias/analyze.js";
+import { analyzeFrequency, type FrequencyAnalysis, type FrequencySpec } from "../lib/bias/frequency.js";
+import { acCircuit } from "../lib/bias/frequency-spice.js";
+import type { Stage, StageAnalysis } from "../lib/bias/topology.js";
+import type { DeviceCard, Polarity } from "../lib/device/card.js";
+import { farads, hertz, meters, ohms, volts } from "../lib/quantity.js";
+import { cornersAround, runAc } from "./support/ac.js";
+
+function mulberry32(seed: number) {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+const rand = mulberry32(20261202);
+const uni = (lo: number, hi: number) => lo + rand() * (hi - lo);
+const logu = (lo: number, hi: number) => Math.exp(uni(Math.log(lo), Math.log(hi)));
+const pick = <T>(xs: readonly T[]): T => xs[Math.floor(rand() * xs.length)]!;
+
+function card(pol: Polarity, i: number): DeviceCard {
+  const s = pol === "nmos" ? 1 : -1;
+  const base = { name: `f${i}`, polarity: pol, kp: logu(30e-6, 200e-6) as never, vt0: volts(s * uni(0.4, 1.0)), lambda: (rand() < 0.2 ? 0 : uni(0.005, 0.06)) as never, gamma: uni(0, 0.6) as never, phi: volts(uni(0.55, 0.85)), provenance: "invented: seeded random test card" };
+  if (rand() < 0.2)
+    return { ...base, kp: logu(2e-3, 20e-3) as never, datasheetCapacitances: { ciss: farads(logu(100e-12, 1e-9)), crss: farads(logu(3e-12, 30e-12)), coss: farads(logu(40e-12, 200e-12)), vds: volts(25) } };
+  return {
+    ...base,
+    capacitance: {
+      tox: meters(logu(8e-9, 50e-9)),
+      cgso: uni(0.5e-10, 5e-10) as never,
+      cgdo: uni(0.5e-10, 5e-10) as never,
+      cgbo: uni(0, 3e-10) as never,
+      cj: uni(1e-4, 1e-3) as never,
+      mj: uni(0.3, 0.55) as never,
+      pb: volts(uni(0.6, 0.95)),
+      cjsw: uni(5e-11, 5e-10) as never,
+      mjsw: uni(0.2, 0.45) as never,
+      diffusionLength: meters(uni(1e-6, 5e-6)),
+    },
+  };
+}
+
+interface Case {
+  stage: Stage;
+  dc: StageAnalysis;
+  fa: FrequencyAnalysis;
+  spec: FrequencySpec;
+}
+
+const topologies = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower"] as const;
+
+function randomCase(i: number): Case | undefined {
+  const topology = topologies[i % topologies.length]!;
+  const pol: Polarity = rand() < 0.5 ? "nmos" : "pmos";
+  const c = card(pol, i);
+  const vdd = uni(5, 15);
+  const w = meters(c.datasheetCapacitances ? logu(1e-3, 1e-2) : logu(2e-6, 200e-6));
+  const l = meters(c.datasheetCapacitances ? 1e-6 : logu(0.5e-6, 4e-6));
+  const r = (lo: number, hi: number) => ohms(logu(lo, hi));
+  const frac = () => uni(0.2, 0.8) * vdd;
+  const components: Record<string, number> =
+    topology === "four-resistor"
+      ? { rg1: r(50e3, 2e6), rg2: r(50e3, 2e6), rd: r(500, 50e3), rs: r(100, 10e3) }
+      : topology === "fixed-gate"
+        ? { vg: frac(), rd: r(500, 50e3), ...(rand() < 0.5 ? { rs: r(100, 5e3) } : {}) }
+        : topology === "current-source-bias"
+          ? { vg: frac(), iss: logu(50e-6, 2e-3), rd: r(500, 20e3) }
+          : { rg1: r(50e3, 2e6), rg2: r(50e3, 2e6), rs: r(200, 20e3) };
+  const stage: Stage = { topology, name: `s${i}`, device: { card: c, w, l }, components, supplies: { vdd: volts(vdd) }, body: pick(["source", "rail"] as const) };
+  let dc: StageAnalysis;
+  try {
+    dc = analyzeStage(stage as never);
+  } catch {
+    return undefined;
+  }
+  if (dc.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1) return undefined;
+  // A source below its rail with the body at the rail forward-biases the junction ngspice models; the square law has none.
+  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
+  if (stage.body === "rail" && (pol === "nmos" ? dc.nodes.source < 0 : dc.nodes.source > vdd)) return undefined;
+  const rl = rand() < 0.7 ? r(1e3, 1e6) : undefined;
+  const design = rand() < 0.75;
+  const spec: FrequencySpec = {
+    source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) },
+    load: { ...(rl !== undefined ? { resistance: rl } : {}), capacitance: farads(rand() < 0.2 ? 0 : logu(1e-12, 200e-12)) },
+    ...(design
+      ? { targets: { lowCorner: hertz(logu(5, 500)) }, series: pick(["E6", "E12"] as const) }
+      : { capacitors: { input: farads(logu(10e-9, 10e-6)), output: farads(logu(100e-9, 10e-6)), bypass: farads(logu(1e-6, 1e-3)) } }),
+  };
+  try {
+    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
+  } catch {
+    return undefined;
+  }
+}
+
+const cases: Case[] = [];
+for (let i = 0; cases.length < 240 && i < 20000; i++) {
+  const k = randomCase(cases.length);
+  if (k) cases.push(k);
+}
+
+const rel = (a: number, b: number) => Math.abs(a / b - 1);
+
+describe("frequency response against ngspice 39 Level 1 .ac", () => {
+  it("corners, poles and designed capacitors agree on ≥ 200 seeded random stages", () => {
+    expect(cases.length).toBeGreaterThanOrEqual(200);
+    const lines: string[] = [];
+    const outs: string[] = [];
+    cases.forEach((k, i) => {
+      const ac = acCircuit(k.stage, k.dc, k.fa, `x${i}_`);
+      lines.push(...ac.lines);
+      outs.push(ac.output);
+    });
+    const res = runAc(lines.join("\n"), outs, { pointsPerDecade: 60, start: 1e-5, stop: 1e12 });
+    const stats = { noCorner: 0, low: 0, lowFlagged: 0, dom: 0, domFlagged: 0, two: 0, complex: 0, designed: 0, sctcWithin25: 0, octcWithin10: 0, worstLow: 0, worstDom: 0, worstTwo: 0, worstDesign: 0, worstGain: 0 };
+    const fails: string[] = [];
+    cases.forEach((k, i) => {
+      const fa = k.fa;
+      const fl = fa.low?.corner ?? 0;
+      const fh = fa.high.corner;
+      if (!Number.isFinite(fh) || fh > 1e10 || (fa.low && fl === 0)) {
+        stats.noCorner++; // a shelf instead of a corner (the record says so), or a corner beyond the sweep
+        return;
+      }
+      const fMid = fl > 0 ? Math.sqrt(fl * fh) : fh / 1e4;
+      const ng = cornersAround(res.freq, res.mag[i]!, fMid);
+      const id = `${k.stage.topology} ${k.stage.device.card.polarity} #${i}`;
+      const g = rel(ng.mid, Math.abs(fa.midbandGain));
+      stats.worstGain = Math.max(stats.worstGain, g);
+      const flat = fl === 0 || fh >= 100 * fl;
+      if (flat && g > 0.02) fails.push(`${id}: midband ${ng.mid} vs hand ${fa.midbandGain}`);
+      if (fa.low && flat) {
+        stats.low++;
+        const e = rel(fa.low.corner, ng.low!);
+        stats.worstLow = Math.max(stats.worstLow, e);
+        if (!(e <= 0.1)) fails.push(`${id}: low corner ${fa.low.corner} vs ngspice ${ng.low}`);
+        if (rel(fa.low.sctcCorner, ng.low!) <= 0.25) stats.sctcWithin25++;
+        if (k.spec.targets?.lowCorner) {
+          stats.designed++;
+          const d = rel(ng.low!, k.spec.targets.lowCorner);
+          stats.worstDesign = Math.max(stats.worstDesign, d);
+          if (!(d <= 0.15)) fails.push(`${id}: designed corner ${ng.low} vs target ${k.spec.targets.lowCorner}`);
+        }
+      } else if (fa.low) stats.lowFlagged++;
+      if (!flat) return;
+      if (fa.high.complexPair) {
+        stats.complex++;
+        return;
+      }
+      stats.two++;
+      const t = rel(fh, ng.high!);
+      stats.worstTwo = Math.max(stats.worstTwo, t);
+      if (!(t <= 0.1)) fails.push(`${id}: two-pole corner ${fh} vs ngspice ${ng.high}`);
+      if (fa.high.dominantPoleHolds) {
+        stats.dom++;
+        const d = rel(fa.high.dominantPole!, ng.high!);
+        stats.worstDom = Math.max(stats.worstDom, d);
+        if (!(d <= 0.1)) fails.push(`${id}: dominant pole ${fa.high.dominantPole} vs ngspice corner ${ng.high}`);
+        if (rel(fa.high.octcCorner, ng.high!) <= 0.1) stats.octcWithin10++;
+      } else stats.domFlagged++;
+    });
+    console.log(`frequency oracle: ${cases.length} stages; ${JSON.stringify(stats)}`);
+    expect(fails).toEqual([]);
+    expect(stats.low).toBeGreaterThanOrEqual(100);
+    expect(stats.dom).toBeGreaterThanOrEqual(50);
+    expect(stats.designed).toBeGreaterThanOrEqual(50);
+  });
+});
