@@ -27,8 +27,8 @@ export const dimensions = {
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
   /** Cox, gate capacitance per area. */
   capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
-  /** CGSO, CGDO, CGBO, CJSW: capacitance per unit length (overlap, sidewall); also the permittivity ε. */
-  capacitancePerLength: { unit: "F/m", tex: "\\mathrm{F/m}", label: "capacitance per length" },
+  /** Gate capacitance per unit width (also CGSO, CGDO, CGBO, CJSW per metre, and the permittivity ε). */
+  capacitancePerWidth: { unit: "F/m", tex: "\\mathrm{F/m}", label: "capacitance per width" },
   /** Drain and source diffusion areas AD, AS. */
   area: { unit: "m^2", tex: "\\mathrm{m^2}", label: "area" },
   frequency: { unit: "Hz", tex: "\\mathrm{Hz}", label: "frequency" },
@@ -64,7 +64,7 @@ export type Watts = Quantity<"power">;
 export type Farads = Quantity<"capacitance">;
 export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
 export type Mobility = Quantity<"mobility">;
-export type FaradsPerMeter = Quantity<"capacitancePerLength">;
+export type FaradsPerMeter = Quantity<"capacitancePerWidth">;
 export type SquareMeters = Quantity<"area">;
 export type Hertz = Quantity<"frequency">;
 export type Seconds = Quantity<"time">;

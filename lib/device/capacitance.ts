@@ -113,9 +113,9 @@ function level1(
   if (rec) {
     const from = `card ${card.name}`;
     rec.input("tox", c.tox, "length", from);
-    rec.input("CGSO", CGSO, "capacitancePerLength", c.cgso === undefined ? `${from} (omitted: SPICE default 0)` : from);
-    rec.input("CGDO", CGDO, "capacitancePerLength", c.cgdo === undefined ? `${from} (omitted: SPICE default 0)` : from);
-    rec.input("CGBO", CGBO, "capacitancePerLength", c.cgbo === undefined ? `${from} (omitted: SPICE default 0)` : from);
+    rec.input("CGSO", CGSO, "capacitancePerWidth", c.cgso === undefined ? `${from} (omitted: SPICE default 0)` : from);
+    rec.input("CGDO", CGDO, "capacitancePerWidth", c.cgdo === undefined ? `${from} (omitted: SPICE default 0)` : from);
+    rec.input("CGBO", CGBO, "capacitancePerWidth", c.cgbo === undefined ? `${from} (omitted: SPICE default 0)` : from);
     rec.assume("Meyer gate capacitances with constant overlaps, as SPICE Level 1 (no charge conservation; no LD, so the effective length is the drawn L).");
   }
   const Cox = evaluateFormula(cf.oxideCapacitance, { epsox: oxidePermittivity, tox: c.tox }, rec);
@@ -170,7 +170,7 @@ function level1(
   if (rec) {
     const from = `card ${card.name}`;
     rec.input("CJ", CJ, "capacitancePerArea", c.cj === undefined ? `${from} (omitted: SPICE default 0)` : from);
-    rec.input("CJSW", CJSW, "capacitancePerLength", c.cjsw === undefined ? `${from} (omitted: SPICE default 0)` : from);
+    rec.input("CJSW", CJSW, "capacitancePerWidth", c.cjsw === undefined ? `${from} (omitted: SPICE default 0)` : from);
     rec.input("MJ", MJ, "dimensionless", c.mj === undefined ? `${from} (omitted: SPICE default 0.5)` : from);
     rec.input("MJSW", MJSW, "dimensionless", c.mjsw === undefined ? `${from} (omitted: ngspice default 0.5)` : from);
     rec.input("PB", PB, "voltage", c.pb === undefined ? `${from} (omitted: SPICE default 0.8 V)` : from);

@@ -11,7 +11,7 @@ export const oxideCapacitance = {
   result: "Cox",
   resultDim: "capacitancePerArea",
   vars: ["epsox","tox"],
-  dims: ["capacitancePerLength","length"],
+  dims: ["capacitancePerWidth","length"],
   source: "parallel-plate capacitor (common practice)",
   fn: (epsox: FaradsPerMeter, tox: Meters): FaradsPerSquareMeter => (epsox / tox) as FaradsPerSquareMeter,
 } as const satisfies Formula;
@@ -39,7 +39,7 @@ export const gateSourceSaturation = {
   result: "Cgs",
   resultDim: "capacitance",
   vars: ["Cch","CGSO","W"],
-  dims: ["capacitance","capacitancePerLength","length"],
+  dims: ["capacitance","capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (Cch: Farads, CGSO: FaradsPerMeter, W: Meters): Farads => (((2 / 3) * Cch) + (CGSO * W)) as Farads,
 } as const satisfies Formula;
@@ -53,7 +53,7 @@ export const gateDrainOverlap = {
   result: "Cgd",
   resultDim: "capacitance",
   vars: ["CGDO","W"],
-  dims: ["capacitancePerLength","length"],
+  dims: ["capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (CGDO: FaradsPerMeter, W: Meters): Farads => (CGDO * W) as Farads,
 } as const satisfies Formula;
@@ -67,7 +67,7 @@ export const gateSourceOverlap = {
   result: "Cgs",
   resultDim: "capacitance",
   vars: ["CGSO","W"],
-  dims: ["capacitancePerLength","length"],
+  dims: ["capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (CGSO: FaradsPerMeter, W: Meters): Farads => (CGSO * W) as Farads,
 } as const satisfies Formula;
@@ -81,7 +81,7 @@ export const gateBodyOverlap = {
   result: "Cgb",
   resultDim: "capacitance",
   vars: ["CGBO","L"],
-  dims: ["capacitancePerLength","length"],
+  dims: ["capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (CGBO: FaradsPerMeter, L: Meters): Farads => (CGBO * L) as Farads,
 } as const satisfies Formula;
@@ -95,7 +95,7 @@ export const gateSourceTriode = {
   result: "Cgs",
   resultDim: "capacitance",
   vars: ["Cch","VOV","VDS","CGSO","W"],
-  dims: ["capacitance","voltage","voltage","capacitancePerLength","length"],
+  dims: ["capacitance","voltage","voltage","capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (Cch: Farads, VOV: Volts, VDS: Volts, CGSO: FaradsPerMeter, W: Meters): Farads => ((((2 / 3) * Cch) * ((1 - ((((VOV - VDS)) ** 2) / ((((2 * VOV) - VDS)) ** 2))))) + (CGSO * W)) as Farads,
 } as const satisfies Formula;
@@ -109,7 +109,7 @@ export const gateDrainTriode = {
   result: "Cgd",
   resultDim: "capacitance",
   vars: ["Cch","VOV","VDS","CGDO","W"],
-  dims: ["capacitance","voltage","voltage","capacitancePerLength","length"],
+  dims: ["capacitance","voltage","voltage","capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (Cch: Farads, VOV: Volts, VDS: Volts, CGDO: FaradsPerMeter, W: Meters): Farads => ((((2 / 3) * Cch) * ((1 - ((VOV ** 2) / ((((2 * VOV) - VDS)) ** 2))))) + (CGDO * W)) as Farads,
 } as const satisfies Formula;
@@ -123,7 +123,7 @@ export const gateBodyAccumulation = {
   result: "Cgb",
   resultDim: "capacitance",
   vars: ["Cch","CGBO","L"],
-  dims: ["capacitance","capacitancePerLength","length"],
+  dims: ["capacitance","capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (Cch: Farads, CGBO: FaradsPerMeter, L: Meters): Farads => (Cch + (CGBO * L)) as Farads,
 } as const satisfies Formula;
@@ -137,7 +137,7 @@ export const gateBodyDepletion = {
   result: "Cgb",
   resultDim: "capacitance",
   vars: ["VOV","phi","Cch","CGBO","L"],
-  dims: ["voltage","voltage","capacitance","capacitancePerLength","length"],
+  dims: ["voltage","voltage","capacitance","capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (VOV: Volts, phi: Volts, Cch: Farads, CGBO: FaradsPerMeter, L: Meters): Farads => ((((-VOV) / phi) * Cch) + (CGBO * L)) as Farads,
 } as const satisfies Formula;
@@ -151,7 +151,7 @@ export const gateSourceWeak = {
   result: "Cgs",
   resultDim: "capacitance",
   vars: ["VOV","phi","Cch","CGSO","W"],
-  dims: ["voltage","voltage","capacitance","capacitancePerLength","length"],
+  dims: ["voltage","voltage","capacitance","capacitancePerWidth","length"],
   source: "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1",
   fn: (VOV: Volts, phi: Volts, Cch: Farads, CGSO: FaradsPerMeter, W: Meters): Farads => (((((2 / 3) + (((4 / 3) * VOV) / phi))) * Cch) + (CGSO * W)) as Farads,
 } as const satisfies Formula;
@@ -165,7 +165,7 @@ export const drainJunction = {
   result: "Cdb",
   resultDim: "capacitance",
   vars: ["CJ","AD","VBD","PB","MJ","CJSW","PD","MJSW"],
-  dims: ["capacitancePerArea","area","voltage","voltage","dimensionless","capacitancePerLength","length","dimensionless"],
+  dims: ["capacitancePerArea","area","voltage","voltage","dimensionless","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
   fn: (CJ: FaradsPerSquareMeter, AD: SquareMeters, VBD: Volts, PB: Volts, MJ: Ratio, CJSW: FaradsPerMeter, PD: Meters, MJSW: Ratio): Farads => (((CJ * AD) * (((1 - (VBD / PB))) ** ((-MJ)))) + ((CJSW * PD) * (((1 - (VBD / PB))) ** ((-MJSW))))) as Farads,
 } as const satisfies Formula;
@@ -179,7 +179,7 @@ export const drainJunctionForward = {
   result: "Cdb",
   resultDim: "capacitance",
   vars: ["CJ","AD","FC","MJ","VBD","PB","CJSW","PD","MJSW"],
-  dims: ["capacitancePerArea","area","dimensionless","dimensionless","voltage","voltage","capacitancePerLength","length","dimensionless"],
+  dims: ["capacitancePerArea","area","dimensionless","dimensionless","voltage","voltage","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
   fn: (CJ: FaradsPerSquareMeter, AD: SquareMeters, FC: Ratio, MJ: Ratio, VBD: Volts, PB: Volts, CJSW: FaradsPerMeter, PD: Meters, MJSW: Ratio): Farads => ((((CJ * AD) * (((1 - FC)) ** (((-1) - MJ)))) * (((1 - (FC * ((1 + MJ)))) + ((MJ * VBD) / PB)))) + (((CJSW * PD) * (((1 - FC)) ** (((-1) - MJSW)))) * (((1 - (FC * ((1 + MJSW)))) + ((MJSW * VBD) / PB))))) as Farads,
 } as const satisfies Formula;
@@ -193,7 +193,7 @@ export const sourceJunction = {
   result: "Csb",
   resultDim: "capacitance",
   vars: ["CJ","AS","VBS","PB","MJ","CJSW","PS","MJSW"],
-  dims: ["capacitancePerArea","area","voltage","voltage","dimensionless","capacitancePerLength","length","dimensionless"],
+  dims: ["capacitancePerArea","area","voltage","voltage","dimensionless","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
   fn: (CJ: FaradsPerSquareMeter, AS: SquareMeters, VBS: Volts, PB: Volts, MJ: Ratio, CJSW: FaradsPerMeter, PS: Meters, MJSW: Ratio): Farads => (((CJ * AS) * (((1 - (VBS / PB))) ** ((-MJ)))) + ((CJSW * PS) * (((1 - (VBS / PB))) ** ((-MJSW))))) as Farads,
 } as const satisfies Formula;
@@ -207,7 +207,7 @@ export const sourceJunctionForward = {
   result: "Csb",
   resultDim: "capacitance",
   vars: ["CJ","AS","FC","MJ","VBS","PB","CJSW","PS","MJSW"],
-  dims: ["capacitancePerArea","area","dimensionless","dimensionless","voltage","voltage","capacitancePerLength","length","dimensionless"],
+  dims: ["capacitancePerArea","area","dimensionless","dimensionless","voltage","voltage","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
   fn: (CJ: FaradsPerSquareMeter, AS: SquareMeters, FC: Ratio, MJ: Ratio, VBS: Volts, PB: Volts, CJSW: FaradsPerMeter, PS: Meters, MJSW: Ratio): Farads => ((((CJ * AS) * (((1 - FC)) ** (((-1) - MJ)))) * (((1 - (FC * ((1 + MJ)))) + ((MJ * VBS) / PB)))) + (((CJSW * PS) * (((1 - FC)) ** (((-1) - MJSW)))) * (((1 - (FC * ((1 + MJSW)))) + ((MJSW * VBS) / PB))))) as Farads,
 } as const satisfies Formula;

@@ -31,7 +31,7 @@ const typeOfDim: Record<Dimension, string> = {
   capacitance: "Farads",
   capacitancePerArea: "FaradsPerSquareMeter",
   mobility: "Mobility",
-  capacitancePerLength: "FaradsPerMeter",
+  capacitancePerWidth: "FaradsPerMeter",
   area: "SquareMeters",
   frequency: "Hertz",
   time: "Seconds",

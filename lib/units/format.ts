@@ -48,8 +48,7 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   // Mobility is quoted in cm²/(V·s) (common practice).
   mobility: { text: "cm²/(V·s)", tex: "\\mathrm{cm^{2}/(V\\,s)}", prefix: false, scale: 1e4 },
   time: { text: "s", tex: "\\mathrm{s}", prefix: true },
-  // Overlap and sidewall capacitance are quoted per micrometre (common practice).
-  capacitancePerLength: { text: "fF/µm", tex: "\\mathrm{fF/\\mu m}", prefix: false, scale: 1e9 },
+  capacitancePerWidth: { text: "F/µm", tex: "\\mathrm{F/\\mu m}", prefix: true, scale: 1e-6 },
   // Diffusion areas in µm² (common practice).
   area: { text: "µm²", tex: "\\mathrm{\\mu m^{2}}", prefix: false, scale: 1e12 },
   frequency: { text: "Hz", tex: "\\mathrm{Hz}", prefix: true },
