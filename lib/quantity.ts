@@ -27,15 +27,17 @@ export const dimensions = {
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
   /** Cox, gate capacitance per area. */
   capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
-  /** Gate capacitance per unit width (also CGSO, CGDO, CGBO, CJSW per metre, and the permittivity ε). */
-  capacitancePerWidth: { unit: "F/m", tex: "\\mathrm{F/m}", label: "capacitance per width" },
   /** Drain and source diffusion areas AD, AS. */
   area: { unit: "m^2", tex: "\\mathrm{m^2}", label: "area" },
-  frequency: { unit: "Hz", tex: "\\mathrm{Hz}", label: "frequency" },
   mobility: { unit: "m^2/(V s)", tex: "\\mathrm{m^2/(V\\,s)}", label: "mobility" },
   time: { unit: "s", tex: "\\mathrm{s}", label: "time" },
   /** Transconductance efficiency gm/ID. */
   inverseVoltageEfficiency: { unit: "S/A", tex: "\\mathrm{S/A}", label: "transconductance efficiency" },
+  /** Drain current per unit width, the gm/ID method's current density. */
+  currentPerWidth: { unit: "A/m", tex: "\\mathrm{A/m}", label: "current per width" },
+  /** Gate capacitance per unit width. */
+  capacitancePerWidth: { unit: "F/m", tex: "\\mathrm{F/m}", label: "capacitance per width" },
+  frequency: { unit: "Hz", tex: "\\mathrm{Hz}", label: "frequency" },
   dimensionless: { unit: "", tex: "", label: "dimensionless ratio" },
   /** A ratio read and shown in per cent (tolerances, spreads, bands): 0.05 is "5 %". */
   fraction: { unit: "", tex: "\\%", label: "fraction" },
@@ -64,12 +66,13 @@ export type Watts = Quantity<"power">;
 export type Farads = Quantity<"capacitance">;
 export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
 export type Mobility = Quantity<"mobility">;
-export type FaradsPerMeter = Quantity<"capacitancePerWidth">;
 export type SquareMeters = Quantity<"area">;
-export type Hertz = Quantity<"frequency">;
 export type Seconds = Quantity<"time">;
 export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
 export type Ratio = Quantity<"dimensionless">;
+export type AmperesPerMeter = Quantity<"currentPerWidth">;
+export type FaradsPerMeter = Quantity<"capacitancePerWidth">;
+export type Hertz = Quantity<"frequency">;
 export type Count = Quantity<"count">;
 export type Fraction = Quantity<"fraction">;
 

@@ -12,7 +12,7 @@ import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { device, operatingPoint, volts, amperesPerVoltSquared, perVolt, sqrtVolts, meters, type DeviceCard } from "../lib/index.js";
 import { deviceCapacitances } from "../lib/device/capacitance.js";
-import { capacitanceModelText, spiceNumber } from "../lib/bias/spice.js";
+import { capacitanceModelParams, spiceNumber } from "../lib/bias/spice.js";
 import { Derivation } from "../lib/record/derivation.js";
 import { runNgspice } from "./support/ngspice.js";
 import { expectReevaluates } from "./support/reevaluate.js";
@@ -115,7 +115,7 @@ describe("device capacitances against ngspice 39 Level 1", () => {
     const lines: string[] = [];
     const prints: string[] = [];
     cases.forEach((c, i) => {
-      lines.push(`.model m${i} ${c.card.polarity} level=1 vto=${spiceNumber(c.card.vt0)} kp=${spiceNumber(c.card.kp)} lambda=${spiceNumber(c.card.lambda!)} gamma=${spiceNumber(c.card.gamma!)} phi=${spiceNumber(c.card.phi!)}${capacitanceModelText(c.card)}`);
+      lines.push(`.model m${i} ${c.card.polarity} level=1 vto=${spiceNumber(c.card.vt0)} kp=${spiceNumber(c.card.kp)} lambda=${spiceNumber(c.card.lambda!)} gamma=${spiceNumber(c.card.gamma!)} phi=${spiceNumber(c.card.phi!)}${Object.entries(capacitanceModelParams(c.card)).map(([k, v]) => ` ${k}=${spiceNumber(v)}`).join("")}`);
       // Source at 0 V; gate, drain and body by their voltages to the source.
       lines.push(`vg${i} g${i} 0 ${spiceNumber(c.vgs)}`, `vd${i} d${i} 0 ${spiceNumber(c.vds)}`, `vb${i} b${i} 0 ${spiceNumber(-c.vsb)}`);
       lines.push(`m${i} d${i} g${i} 0 b${i} m${i} W=${spiceNumber(c.w)} L=${spiceNumber(c.l)} AD=${spiceNumber(c.geom.ad)} AS=${spiceNumber(c.geom.as)} PD=${spiceNumber(c.geom.pd)} PS=${spiceNumber(c.geom.ps)}`);

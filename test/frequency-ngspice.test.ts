@@ -187,5 +187,5 @@ describe("frequency response against ngspice 39 Level 1 .ac", () => {
     expect(stats.low).toBeGreaterThanOrEqual(100);
     expect(stats.dom).toBeGreaterThanOrEqual(50);
     expect(stats.designed).toBeGreaterThanOrEqual(50);
-  });
+  }, 120_000);
 });

@@ -8,6 +8,7 @@
 import { deviceCapacitances } from "../device/capacitance.js";
 import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
 import { spiceNumber } from "./spice.js";
+import { writeDeck } from "../spice/deck.js";
 import type { FrequencyAnalysis } from "./frequency.js";
 
 export interface AcSweep {
@@ -66,7 +67,6 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   if (fa.load.capacitance > 0) lines.push(`C${p}L ${out} 0 ${spiceNumber(fa.load.capacitance)}`);
   if (!stage.device.card.capacitance && stage.device.card.datasheetCapacitances) {
     const c = deviceCapacitances(stage.device, analysis.op);
-    lines.push(`* datasheet capacitances (Ciss - Crss, Crss, Coss - Crss), constant`);
     lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`, `C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
   }
   return { lines, output: out, sweep };
@@ -74,14 +74,14 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
 
 /** A whole deck: title, cautions, circuit, .ac and .end. */
 export function acDeckText(title: string, ac: AcCircuit): string {
-  return [
-    `* ${title}`,
-    "* Exported by pinchoff: SPICE Level 1 card with its capacitances, signal source AC 1 V.",
-    "* Hand-analysis cross-check only: verify with your process models and by measurement.",
-    `* Response: v(${ac.output}) (gain, since the source is 1 V).`,
-    ...ac.lines,
-    `.ac dec ${ac.sweep.pointsPerDecade} ${spiceNumber(ac.sweep.start)} ${spiceNumber(ac.sweep.stop)}`,
-    ".end",
-    "",
-  ].join("\n");
+  return writeDeck({
+    title,
+    comments: [
+      "Exported by pinchoff: SPICE Level 1 card with its capacitances, signal source AC 1 V.",
+      "Hand-analysis cross-check only: verify with your process models and by measurement.",
+      `Response: v(${ac.output}) (the gain, since the source is 1 V).`,
+    ],
+    lines: ac.lines,
+    analyses: [".op", `.ac dec ${ac.sweep.pointsPerDecade} ${spiceNumber(ac.sweep.start)} ${spiceNumber(ac.sweep.stop)}`],
+  });
 }

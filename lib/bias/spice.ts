@@ -7,19 +7,21 @@
  */
 import { defaultPhi, polaritySign, type DeviceCard } from "../device/card.js";
 import { diffusionGeometry } from "../device/capacitance.js";
+import { element, modelCard, spiceNumber, spicePrefix, writeDeck } from "../spice/deck.js";
 import type { NetworkMapping } from "./stage.js";
 import type { SpiceCircuit, Stage, StageDevice } from "./topology.js";
 
-/** A number as SPICE reads it: shortest exact decimal form. */
-export const spiceNumber = (x: number): string => {
-  if (!Number.isFinite(x)) throw new RangeError(`not a finite number: ${x}`);
-  return String(x);
-};
+export { spiceNumber };
 
-/** Level 1 capacitance parameters for the .model line (empty when the card has none). */
-export function capacitanceModelText(card: DeviceCard): string {
+/** A Level 1 .model line from a device card (LEVEL=1 VTO KP LAMBDA GAMMA PHI, and TOX CGSO … FC when the card has a capacitance block). */
+export function level1Model(name: string, card: DeviceCard): string {
+  return modelCard(name, card.polarity, { level: 1, vto: card.vt0, kp: card.kp, lambda: card.lambda ?? 0, gamma: card.gamma ?? 0, phi: card.phi ?? defaultPhi, ...capacitanceModelParams(card) });
+}
+
+/** Level 1 capacitance parameters for the .model line (none when the card has no capacitance block). */
+export function capacitanceModelParams(card: DeviceCard): Record<string, number> {
   const c = card.capacitance;
-  if (!c) return "";
+  if (!c) return {};
   const fields: Array<[string, number | undefined]> = [
     ["tox", c.tox],
     ["cgso", c.cgso],
@@ -32,19 +34,21 @@ export function capacitanceModelText(card: DeviceCard): string {
     ["mjsw", c.mjsw],
     ["fc", c.fc],
   ];
-  return fields.map(([k, v]) => (v === undefined ? "" : ` ${k}=${spiceNumber(v)}`)).join("");
+  const out: Record<string, number> = {};
+  for (const [k, v] of fields) if (v !== undefined) out[k] = v;
+  return out;
 }
 
-/** AD/AS/PD/PS on the instance line, when the card has junction data (stated or by the default rule). */
-export function diffusionText(dev: StageDevice): string {
-  if (!dev.card.capacitance) return "";
+/** AD/AS/PD/PS for the instance line, when the card has a capacitance block (stated or by the default rule). */
+export function diffusionParams(dev: StageDevice): Record<string, number> {
+  if (!dev.card.capacitance) return {};
   const g = diffusionGeometry(dev);
-  return ` AD=${spiceNumber(g.ad)} AS=${spiceNumber(g.as)} PD=${spiceNumber(g.pd)} PS=${spiceNumber(g.ps)}`;
+  return { AD: g.ad, AS: g.as, PD: g.pd, PS: g.ps };
 }
 
 /** Circuit lines of a single-transistor stage (no title, .op or .end). */
 export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): SpiceCircuit {
-  const p = prefix;
+  const p = spicePrefix(prefix, "SPICE name prefix");
   const card = stage.device.card;
   const pmos = polaritySign(card) < 0;
   const n = (name: string) => `${p}${name}`;
@@ -54,9 +58,7 @@ export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): Spic
   const srail = pmos ? vdd : vss;
   const model = `${p}mod`.replace(/[^A-Za-z0-9_]/g, "_");
   const lines: string[] = [];
-  lines.push(
-    `.model ${model} ${pmos ? "pmos" : "nmos"} level=1 vto=${spiceNumber(card.vt0)} kp=${spiceNumber(card.kp)} lambda=${spiceNumber(card.lambda ?? 0)} gamma=${spiceNumber(card.gamma ?? 0)} phi=${spiceNumber(card.phi ?? defaultPhi)}${capacitanceModelText(card)}`,
-  );
+  lines.push(level1Model(model, card));
   lines.push(`V${p}DD ${vdd} 0 ${spiceNumber(stage.supplies.vdd)}`);
   lines.push(`V${p}SS ${vss} 0 ${spiceNumber(stage.supplies.vss ?? 0)}`);
   const d = n("d");
@@ -79,20 +81,20 @@ export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): Spic
   } else lines.push(`V${p}G ${g} 0 ${spiceNumber(map.vg ?? 0)}`);
   const b = stage.body === "rail" ? srail : s;
   const inst = `M${p}1`;
-  lines.push(`${inst} ${d} ${g} ${s} ${b} ${model} W=${spiceNumber(stage.device.w)} L=${spiceNumber(stage.device.l)}${diffusionText(stage.device)}`);
-  return { lines, nodes: { gate: g, source: s, drain: d, body: b, vdd, vss }, drainAmmeter: ammeter, instance: inst };
+  lines.push(element(inst, [d, g, s, b], model, { W: stage.device.w, L: stage.device.l, ...diffusionParams(stage.device) }));
+  return { lines, nodes: { gate: g, source: s, drain: d, body: b, vdd, vss }, drainAmmeter: ammeter, instance: inst, models: { [model]: card.polarity } };
 }
 
-/** A whole deck for one stage: title, cautions, circuit, .op and .end. */
+/** A whole deck for one stage: title, cautions, circuit, .op and .end (every line through the deck writer). */
 export function deckText(title: string, circuit: SpiceCircuit): string {
-  return [
-    `* ${title}`,
-    "* Exported by pinchoff: SPICE Level 1 (Shichman-Hodges) card from the device card.",
-    "* Hand-analysis cross-check only: verify with your process models and by measurement.",
-    `* Drain current: i(${circuit.drainAmmeter}) (current into the drain).`,
-    ...circuit.lines,
-    ".op",
-    ".end",
-    "",
-  ].join("\n");
+  return writeDeck({
+    title,
+    comments: [
+      "Exported by pinchoff: SPICE Level 1 (Shichman-Hodges) card from the device card.",
+      "Hand-analysis cross-check only: verify with your process models and by measurement.",
+      `Drain current: i(${circuit.drainAmmeter}) (current into the drain).`,
+    ],
+    lines: circuit.lines,
+    analyses: [".op"],
+  });
 }

@@ -305,6 +305,8 @@ export interface SpiceCircuit {
   /** Two-transistor stages: instance names by role ("reference", "load") and their ammeters. */
   readonly instances?: Readonly<Record<string, string>>;
   readonly ammeters?: Readonly<Record<string, string>>;
+  /** The `.model` names the lines define, with their polarity, so a process library's devices can replace them. */
+  readonly models?: Readonly<Record<string, "nmos" | "pmos">>;
 }
 
 const registry = new Map<string, Topology<string, any>>();

@@ -48,11 +48,13 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   // Mobility is quoted in cm²/(V·s) (common practice).
   mobility: { text: "cm²/(V·s)", tex: "\\mathrm{cm^{2}/(V\\,s)}", prefix: false, scale: 1e4 },
   time: { text: "s", tex: "\\mathrm{s}", prefix: true },
-  capacitancePerWidth: { text: "F/µm", tex: "\\mathrm{F/\\mu m}", prefix: true, scale: 1e-6 },
   // Diffusion areas in µm² (common practice).
   area: { text: "µm²", tex: "\\mathrm{\\mu m^{2}}", prefix: false, scale: 1e12 },
-  frequency: { text: "Hz", tex: "\\mathrm{Hz}", prefix: true },
   inverseVoltageEfficiency: { text: "S/A", tex: "\\mathrm{S/A}", prefix: false },
+  // Current density and gate capacitance per width are quoted per micrometre of width (common practice).
+  currentPerWidth: { text: "A/µm", tex: "\\mathrm{A/\\mu m}", prefix: true, scale: 1e-6 },
+  capacitancePerWidth: { text: "F/µm", tex: "\\mathrm{F/\\mu m}", prefix: true, scale: 1e-6 },
+  frequency: { text: "Hz", tex: "\\mathrm{Hz}", prefix: true },
   dimensionless: { text: "", tex: "", prefix: false },
   count: { text: "", tex: "", prefix: false },
   fraction: { text: "%", tex: "\\%", prefix: false, scale: 100 },

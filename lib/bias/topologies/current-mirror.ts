@@ -26,6 +26,7 @@ import { checkComponents, checkStage } from "../stage.js";
 import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
 import { spiceNumber } from "../spice.js";
+import { spicePrefix } from "../../spice/deck.js";
 import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
 export const mirrorComponents: readonly ComponentField[] = [
@@ -370,7 +371,7 @@ export function mirrorOutputCurve(stage: CurrentMirrorStage, vout: readonly numb
 /** SPICE lines: two Level 1 models, supplies, RREF with an ammeter into M1's drain, M1, M2, and the output load. */
 export function mirrorSpice(stage: CurrentMirrorStage, prefix = ""): SpiceCircuit {
   const { out, ref, c } = checkMirror(stage);
-  const p = prefix;
+  const p = spicePrefix(prefix, "SPICE name prefix");
   const n = (name: string) => `${p}${name}`;
   const pmos = out.card.polarity === "pmos";
   const vdd = n("vdd");
@@ -397,6 +398,7 @@ export function mirrorSpice(stage: CurrentMirrorStage, prefix = ""): SpiceCircui
     drainAmmeter: ammeter,
     instance: `M${p}2`,
     instances: { reference: `M${p}1` },
+    models: { [mod1]: ref.card.polarity, [mod2]: out.card.polarity },
     ammeters: { reference: `V${p}IR` },
   };
 }

@@ -27,6 +27,7 @@ import type { Amperes, AmperesPerVoltSquared, Ohms, Ratio, Siemens, SqrtVolts, V
 import type { Derivation } from "../../record/derivation.js";
 import { checkComponents, checkStage } from "../stage.js";
 import { spiceNumber } from "../spice.js";
+import { spicePrefix } from "../../spice/deck.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
 import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
@@ -365,7 +366,7 @@ function outputSwing(p: Pair, u: number, o: string, rec?: Derivation): SwingLimi
 /** SPICE lines: two Level 1 models, supplies, gate source, driver with a 0 V ammeter in its drain lead, diode-connected load. */
 export function diodeLoadSpice(stage: DiodeLoadStage, prefix = ""): SpiceCircuit {
   const { drv, load, c, pair } = checkDiodeLoad(stage);
-  const p = prefix;
+  const p = spicePrefix(prefix, "SPICE name prefix");
   const n = (name: string) => `${p}${name}`;
   const pmos = pair.s < 0;
   const vdd = n("vdd");
@@ -393,6 +394,7 @@ export function diodeLoadSpice(stage: DiodeLoadStage, prefix = ""): SpiceCircuit
     drainAmmeter: ammeter,
     instance: `M${p}1`,
     instances: { load: `M${p}2` },
+    models: { [modD]: drv.card.polarity, [modL]: load.card.polarity },
   };
 }
 

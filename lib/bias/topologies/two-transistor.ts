@@ -10,7 +10,7 @@ import { smallSignal, type SmallSignal } from "../../device/small-signal.js";
 import { InputError } from "../../errors.js";
 import type { Volts, Watts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
-import { spiceNumber } from "../spice.js";
+import { level1Model } from "../spice.js";
 import type { Stage, StageDeviceAnalysis, SwingLimits } from "../topology.js";
 
 export const stageOrigin = (stage: Stage<string, unknown>): string => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
@@ -109,7 +109,7 @@ export function swingInVolts(sign: 1 | -1, node: string, uq: number, uUp: number
 
 /** A Level 1 .model line from a device card (same parameters as the single-transistor export). */
 export function modelLine(name: string, card: DeviceCard): string {
-  return `.model ${name} ${card.polarity} level=1 vto=${spiceNumber(card.vt0)} kp=${spiceNumber(card.kp)} lambda=${spiceNumber(card.lambda ?? 0)} gamma=${spiceNumber(card.gamma ?? 0)} phi=${spiceNumber(card.phi ?? defaultPhi)}`;
+  return level1Model(name, card);
 }
 
 /** Severity of a finding by its wording, as the single-transistor metrics grade theirs. */
