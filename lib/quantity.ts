@@ -22,13 +22,17 @@ export const dimensions = {
   /** Threshold temperature coefficient. */
   voltagePerKelvin: { unit: "V/K", tex: "\\mathrm{V/K}", label: "voltage per kelvin" },
   length: { unit: "m", tex: "\\mathrm{m}", label: "length" },
+  /** Pelgrom's threshold-mismatch coefficient AVt (mV·µm in the trade). */
+  /** Gate area W·L. */
+  area: { unit: "m^2", tex: "\\mathrm{m^2}", label: "area" },
+  /** Slew rate of a node voltage. */
+  slewRate: { unit: "V/s", tex: "\\mathrm{V/s}", label: "slew rate" },
+  voltageLength: { unit: "V*m", tex: "\\mathrm{V\\,m}", label: "voltage times length" },
   temperature: { unit: "K", tex: "\\mathrm{K}", label: "temperature" },
   power: { unit: "W", tex: "\\mathrm{W}", label: "power" },
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
   /** Cox, gate capacitance per area. */
   capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
-  /** Drain and source diffusion areas AD, AS. */
-  area: { unit: "m^2", tex: "\\mathrm{m^2}", label: "area" },
   mobility: { unit: "m^2/(V s)", tex: "\\mathrm{m^2/(V\\,s)}", label: "mobility" },
   time: { unit: "s", tex: "\\mathrm{s}", label: "time" },
   /** Transconductance efficiency gm/ID. */
@@ -61,12 +65,14 @@ export type PerVolt = Quantity<"inverseVoltage">;
 export type SqrtVolts = Quantity<"sqrtVoltage">;
 export type VoltsPerKelvin = Quantity<"voltagePerKelvin">;
 export type Meters = Quantity<"length">;
+export type VoltMeters = Quantity<"voltageLength">;
+export type SquareMeters = Quantity<"area">;
+export type VoltsPerSecond = Quantity<"slewRate">;
 export type Kelvin = Quantity<"temperature">;
 export type Watts = Quantity<"power">;
 export type Farads = Quantity<"capacitance">;
 export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
 export type Mobility = Quantity<"mobility">;
-export type SquareMeters = Quantity<"area">;
 export type Seconds = Quantity<"time">;
 export type SiemensPerAmpere = Quantity<"inverseVoltageEfficiency">;
 export type Ratio = Quantity<"dimensionless">;
@@ -86,6 +92,7 @@ export const perVolt = (v: number) => v as PerVolt;
 export const sqrtVolts = (v: number) => v as SqrtVolts;
 export const voltsPerKelvin = (v: number) => v as VoltsPerKelvin;
 export const meters = (v: number) => v as Meters;
+export const voltMeters = (v: number) => v as VoltMeters;
 export const kelvin = (v: number) => v as Kelvin;
 export const watts = (v: number) => v as Watts;
 export const farads = (v: number) => v as Farads;

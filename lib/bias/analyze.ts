@@ -5,6 +5,8 @@
 import type { Derivation } from "../record/derivation.js";
 import { deckText } from "./spice.js";
 import { registerTopology, topologyFor, type SpiceCircuit, type Stage, type StageAnalysis } from "./topology.js";
+import { cascodeMirror, cascodeStage } from "./topologies/cascode.js";
+import { diffPair, mirrorLoadPair } from "./topologies/diff-pair.js";
 import { currentSourceBias } from "./topologies/current-source-bias.js";
 import { currentMirror } from "./topologies/current-mirror.js";
 import { diodeLoad } from "./topologies/diode-load.js";
@@ -20,6 +22,10 @@ registerTopology(sourceFollower);
 registerTopology(currentSourceBias);
 registerTopology(currentMirror);
 registerTopology(diodeLoad);
+registerTopology(diffPair);
+registerTopology(mirrorLoadPair);
+registerTopology(cascodeStage);
+registerTopology(cascodeMirror);
 
 export const builtinTopologies = { fixedGate, fourResistor, drainFeedback, sourceFollower, currentSourceBias } as const;
 

@@ -161,7 +161,7 @@ export interface StageSmallSignal {
   readonly ro: Ohms;
 }
 
-export const amplifierKinds = ["common-source", "common-source-degenerated", "source-follower", "common-gate"] as const;
+export const amplifierKinds = ["common-source", "common-source-degenerated", "source-follower", "common-gate", "differential", "common-mode", "cascode"] as const;
 export type AmplifierKind = (typeof amplifierKinds)[number];
 
 /** One small-signal view of the stage: where the signal goes in and comes out. */
@@ -219,7 +219,7 @@ export interface StagePower {
   readonly total: Watts;
 }
 
-export type SolveMethod = "closed-form" | "bracketed-newton" | "bracketed-regula-falsi" | "direct";
+export type SolveMethod = "closed-form" | "bracketed-newton" | "bracketed-regula-falsi" | "direct" | "newton" | "newton-gmin-stepping" | "newton-source-stepping";
 
 export interface SolverReport {
   readonly method: SolveMethod;
@@ -227,7 +227,7 @@ export interface SolverReport {
   /** Largest final step or bracket width in the unknown, in its unit. */
   readonly tolerance: number;
   /** The unknown that was solved for. */
-  readonly unknown: "drain current" | "source voltage" | "output voltage" | "none";
+  readonly unknown: "drain current" | "source voltage" | "output voltage" | "node voltages" | "none";
 }
 
 /** A further transistor of a two-transistor stage, in `StageAnalysis.devices` keyed by its role. */
@@ -276,7 +276,7 @@ export interface StageAnalysis {
 /** What a topology module provides to the registry. */
 export interface ComponentField {
   readonly name: string;
-  readonly dim: "resistance" | "voltage" | "current";
+  readonly dim: "resistance" | "voltage" | "current" | "capacitance";
   readonly required: boolean;
   readonly meaning: string;
 }

@@ -5,7 +5,7 @@
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
 import { checkDatasheetCapacitances, checkProcessCapacitances, type DatasheetCapacitances, type ProcessCapacitances } from "./capacitance-card.js";
-import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, SqrtVolts, Volts, VoltsPerKelvin } from "../quantity.js";
+import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, SqrtVolts, VoltMeters, Volts, VoltsPerKelvin } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
 export type Polarity = (typeof polarities)[number];
@@ -37,6 +37,10 @@ export interface DeviceCard {
   readonly capacitance?: ProcessCapacitances;
   /** A discrete part's datasheet Ciss, Crss, Coss, for frequency analysis. */
   readonly datasheetCapacitances?: DatasheetCapacitances;
+  /** Pelgrom threshold-mismatch coefficient: σ(ΔVt) = AVt/√(W·L) for a pair of these devices, in V·m (1 mV·µm = 1e-9 V·m). */
+  readonly avt?: VoltMeters;
+  /** Pelgrom current-factor mismatch coefficient: σ(Δβ/β) = Aβ/√(W·L), in m (1 %·µm = 1e-8 m). */
+  readonly abeta?: Meters;
   /** Where the numbers come from: a datasheet, a PDK, a measurement, or "invented for the demo". */
   readonly provenance?: string;
 }
@@ -63,6 +67,8 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   if (card.lambda !== undefined) requireNonNegative(card.lambda, at("lambda"), "λ ≥ 0 in 1/V");
   if (card.gamma !== undefined) requireNonNegative(card.gamma, at("gamma"), "γ ≥ 0 in √V");
   if (card.phi !== undefined) requirePositive(card.phi, at("phi"), "2φF > 0 in V");
+  if (card.avt !== undefined) requireNonNegative(card.avt, at("avt"), "a Pelgrom coefficient AVt ≥ 0 in V·m (e.g. 5e-9 V·m = 5 mV·µm)");
+  if (card.abeta !== undefined) requireNonNegative(card.abeta, at("abeta"), "a Pelgrom coefficient Aβ ≥ 0 in m (e.g. 1e-8 m = 1 %·µm)");
   if (card.temperature) {
     requirePositive(card.temperature.t0, at("temperature.t0"), "a reference temperature > 0 K");
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");

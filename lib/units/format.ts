@@ -40,6 +40,10 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   sqrtVoltage: { text: "√V", tex: "\\sqrt{\\mathrm{V}}", prefix: false },
   voltagePerKelvin: { text: "V/K", tex: "\\mathrm{V/K}", prefix: true },
   length: { text: "m", tex: "\\mathrm{m}", prefix: true },
+  // Gate areas, slew rates and Pelgrom coefficients in the units the trade quotes them (common practice).
+  area: { text: "µm²", tex: "\\mathrm{\\mu m^{2}}", prefix: false, scale: 1e12 },
+  slewRate: { text: "V/µs", tex: "\\mathrm{V/\\mu s}", prefix: false, scale: 1e-6 },
+  voltageLength: { text: "mV·µm", tex: "\\mathrm{mV\\,\\mu m}", prefix: false, scale: 1e9 },
   temperature: { text: "K", tex: "\\mathrm{K}", prefix: false },
   power: { text: "W", tex: "\\mathrm{W}", prefix: true },
   capacitance: { text: "F", tex: "\\mathrm{F}", prefix: true },
@@ -48,8 +52,6 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   // Mobility is quoted in cm²/(V·s) (common practice).
   mobility: { text: "cm²/(V·s)", tex: "\\mathrm{cm^{2}/(V\\,s)}", prefix: false, scale: 1e4 },
   time: { text: "s", tex: "\\mathrm{s}", prefix: true },
-  // Diffusion areas in µm² (common practice).
-  area: { text: "µm²", tex: "\\mathrm{\\mu m^{2}}", prefix: false, scale: 1e12 },
   inverseVoltageEfficiency: { text: "S/A", tex: "\\mathrm{S/A}", prefix: false },
   // Current density and gate capacitance per width are quoted per micrometre of width (common practice).
   currentPerWidth: { text: "A/µm", tex: "\\mathrm{A/\\mu m}", prefix: true, scale: 1e-6 },
