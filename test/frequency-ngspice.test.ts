@@ -134,8 +134,13 @@ describe("frequency response against ngspice 39 Level 1 .ac", () => {
       lines.push(...ac.lines);
       outs.push(ac.output);
     });
+    if (process.env.FREQ_DEBUG) {
+      const k = cases[Number(process.env.FREQ_DEBUG)]!;
+      console.log(JSON.stringify({ stage: k.stage, ss: k.dc.smallSignal, nodes: k.dc.nodes, fa: { gain: k.fa.midbandGain, nodes: k.fa.nodes } }));
+      console.log(acCircuit(k.stage, k.dc, k.fa, "").lines.join("\n"));
+    }
     const res = runAc(lines.join("\n"), outs, { pointsPerDecade: 60, start: 1e-5, stop: 1e12 });
-    const stats = { noCorner: 0, low: 0, lowFlagged: 0, dom: 0, domFlagged: 0, two: 0, complex: 0, designed: 0, sctcWithin25: 0, octcWithin10: 0, worstLow: 0, worstDom: 0, worstTwo: 0, worstDesign: 0, worstGain: 0 };
+    const stats = { dividerFlagged: 0, noCorner: 0, low: 0, lowFlagged: 0, dom: 0, domFlagged: 0, two: 0, complex: 0, designed: 0, sctcWithin25: 0, octcWithin10: 0, worstLow: 0, worstDom: 0, worstTwo: 0, worstDesign: 0, worstGain: 0 };
     const fails: string[] = [];
     cases.forEach((k, i) => {
       const fa = k.fa;
@@ -150,8 +155,11 @@ describe("frequency response against ngspice 39 Level 1 .ac", () => {
       const id = `${k.stage.topology} ${k.stage.device.card.polarity} #${i}`;
       const g = rel(ng.mid, Math.abs(fa.midbandGain));
       stats.worstGain = Math.max(stats.worstGain, g);
-      const flat = fl === 0 || fh >= 100 * fl;
-      if (flat && g > 0.02) fails.push(`${id}: midband ${ng.mid} vs hand ${fa.midbandGain}`);
+      // The record flags an output coupling capacitor too close to the load capacitance (a capacitive divider the hand model leaves out).
+      const divider = fa.checks.some((c) => c.name.startsWith("Output coupling capacitor") && !c.passed);
+      if (divider) stats.dividerFlagged++;
+      const flat = (fl === 0 || fh >= 100 * fl) && !divider;
+      if (flat && g > 0.02) fails.push(`${id}: midband ${ng.mid} vs hand ${fa.midbandGain} (fl ${fl}, fh ${fh}, sctc ${fa.low?.sctcCorner}, ng ${ng.low} ${ng.high}, ${JSON.stringify(fa.high.complexPair ?? fa.high.nonDominantPole)}, rsig ${fa.source.resistance} body ${k.stage.body})`);
       if (fa.low && flat) {
         stats.low++;
         const e = rel(fa.low.corner, ng.low!);

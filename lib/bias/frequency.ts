@@ -240,6 +240,13 @@ export function analyzeFrequency(stage: Stage, analysis: StageAnalysis, spec: Fr
   // ---- high frequencies
   const nodes = follower ? followerNodes(stage, caps, cl, RSP, RSL, ctx) : commonSourceNodes(caps, cl, RSP, RLP, ctx);
   const high = highFrequency(nodes, follower, ctx, checks, findings, low?.corner);
+  const cout = low?.capacitors.find((k) => k.role === "output")?.value;
+  if (cout !== undefined && cl > 0) {
+    // CL sits behind the output coupling capacitor: above the low corner they divide the signal by Cout/(Cout + CL).
+    const chk = stageCheck("Output coupling capacitor ≥ 50 × load capacitance", cout / cl, "dimensionless", { min: 50 }, rec, "the hand model puts CL at the output node with the coupling capacitor shorted; the midband loss is CL/(Cout + CL)");
+    checks.push(chk);
+    if (!chk.passed) findings.push(`The output coupling capacitor (${fmt(cout)} F) is not much larger than the load capacitance (${fmt(cl)} F): together they divide the signal by ${fmt(cout / (cout + cl))} above the low corner, which this hand model leaves out.`);
+  }
   const tHigh = spec.targets?.highCorner;
   if (tHigh !== undefined) {
     const chk = stageCheck("Upper corner at or above its target", high.corner, "frequency", { min: tHigh }, rec, "−3 dB corner of the hand transfer function");
@@ -347,7 +354,7 @@ function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, ch
   const rest = sorted.slice(1).reduce((a, b) => a + b, 0);
   const dominance = rest > 0 ? sorted[0]! / rest : Infinity;
   rec?.note("Low-frequency corner of the hand transfer function", `Taking the poles as independent (each capacitor's loop barely loads the others) and the bypass zero into account, |H| falls to 1/√2 of midband at ${fmt(corner)} Hz; the short-circuit sum ${fmt(sctc)} Hz is an upper estimate that is close only when one pole dominates.`);
-  if (rec) rec.check("Low corner: one pole dominates (largest ≥ 4 × the sum of the others)", dominance, "dimensionless", { min: 4 }, "the short-circuit time-constant sum's own assumption");
+  checks.push(stageCheck("Low corner: one pole dominates (largest ≥ 4 × the sum of the others)", Number.isFinite(dominance) ? dominance : 1e12, "dimensionless", { min: 4 }, rec, "the short-circuit time-constant sum's own assumption"));
   if (dominance < 4) findings.push(`No single low-frequency pole dominates (ratio ${fmt(dominance)}): the short-circuit sum ${fmt(sctc)} Hz overstates the corner; the hand transfer function gives ${fmt(corner)} Hz.`);
   if (target !== undefined) {
     const chk = stageCheck("Low-frequency corner within 15 % of its target", corner, "frequency", { min: target / 1.15, max: target * 1.15 }, rec);
@@ -435,7 +442,7 @@ function designCapacitors(
   for (const [r, v] of ideal) ideal.set(r, v * k);
   // Standard values as a set: the nearest candidates each, the combination whose corner is nearest the target.
   // When single values miss by more than 5 % (E6 steps are ~47 %), two standard values in parallel may be used.
-  let cands = missing.map((m) => standardValuesAround(ideal.get(m.role)!, series, 3, `${m.role} capacitor`));
+  let cands = missing.map((m) => capsAround(ideal.get(m.role)!, series, 3, `${m.role} capacitor`));
   let best: { v: Map<CapacitorRole, number>; err: number; sum: number } | undefined;
   const walk = (i: number, acc: Map<CapacitorRole, number>) => {
     if (i === missing.length) {
@@ -459,17 +466,22 @@ function designCapacitors(
     values.set(m.role, best!.v.get(m.role)!);
     ideals.set(m.role, ideal.get(m.role)!);
     const v = best!.v.get(m.role)!;
-    const single = Math.abs(nearestStandard(v, series) / v - 1) < 1e-9;
-    rec?.note(`${m.role} capacitor`, `ideal ${fmt(ideal.get(m.role)!)} F → ${single ? `${series} ${fmt(v)} F` : `${fmt(v)} F as two ${series} values in parallel`} (nearest single value ${fmt(nearestStandard(ideal.get(m.role)!, series))} F)`);
+    const single = Math.abs(nearestCap(v, series, "capacitor") / v - 1) < 1e-9;
+    rec?.note(`${m.role} capacitor`, `ideal ${fmt(ideal.get(m.role)!)} F → ${single ? `${series} ${fmt(v)} F` : `${fmt(v)} F as two ${series} values in parallel`} (nearest single value ${fmt(nearestCap(ideal.get(m.role)!, series, "capacitor"))} F)`);
   }
 }
+
+// The E-series helpers take values from 1e-6 up (resistors); capacitors are snapped in picofarads.
+const pF = 1e12;
+const capsAround = (v: number, series: SeriesName, n: number, origin: string) => standardValuesAround(v * pF, series, n, origin).map((x) => x / pF);
+const nearestCap = (v: number, series: SeriesName, origin: string) => nearestStandard(v * pF, series, origin) / pF;
 
 /** Sums of two standard values (a ≥ b) within 5 % of a value: a parallel pair. */
 export function parallelPairs(value: number, series: SeriesName): number[] {
   const out: number[] = [];
-  for (const a of standardValuesAround(value * 0.75, series, 6, "parallel pair")) {
+  for (const a of capsAround(value * 0.75, series, 6, "parallel pair")) {
     if (a >= value) continue;
-    const b = nearestStandard(value - a, series, "parallel pair");
+    const b = nearestCap(value - a, series, "parallel pair");
     if (b <= a && Math.abs((a + b) / value - 1) <= 0.05) out.push(a + b);
   }
   return out;
@@ -554,9 +566,9 @@ function highFrequency(n: FrequencyNodes, follower: boolean, ctx: Ctx, checks: S
   const corner = highCornerOf(b1, b2, fz, !follower);
   if (corner === Infinity) findings.push(`The response levels off above the zero ${fmt(fz)} Hz instead of falling 3 dB (the gate-to-output capacitance feeds the signal through; ideal signal source): there is no upper −3 dB corner in this model.`);
   const holds = sep >= dominanceRatio && zRatio >= dominanceRatio;
+  checks.push(stageCheck("Upper poles: one dominates (fp2/fp1 ≥ 10)", Number.isFinite(sep) ? sep : 1e12, "dimensionless", { min: dominanceRatio }, rec, "the open-circuit time-constant and Miller estimates' own assumption"));
+  checks.push(stageCheck("Zero well above the dominant pole (fz/fp1 ≥ 10)", Number.isFinite(zRatio) ? zRatio : 1e12, "dimensionless", { min: dominanceRatio }, rec));
   if (rec) {
-    checks.push(stageCheck("Upper poles: one dominates (fp2/fp1 ≥ 10)", Number.isFinite(sep) ? sep : 1e12, "dimensionless", { min: dominanceRatio }, rec, "the open-circuit time-constant and Miller estimates' own assumption"));
-    checks.push(stageCheck("Zero well above the dominant pole (fz/fp1 ≥ 10)", Number.isFinite(zRatio) ? zRatio : 1e12, "dimensionless", { min: dominanceRatio }, rec));
     rec.note("Upper corner of the hand transfer function", `|H| falls to 1/√2 of midband at ${fmt(corner)} Hz (two-pole denominator with the zero).`);
   }
   if (!holds && !complexPair) findings.push(`The upper poles are not widely separated (fp2/fp1 = ${fmt(sep)}, fz/fp1 = ${fmt(zRatio)}): the open-circuit and Miller estimates are rough; use the two-pole corner ${fmt(corner)} Hz and verify by simulation.`);
