@@ -617,3 +617,31 @@ export function highCornerOf(b1: number, b2: number, fz: number, _rhp: boolean):
 const fmt = (x: number) => (Number.isFinite(x) ? String(+x.toPrecision(4)) : String(x));
 
 
+
+/**
+ * The hand transfer function at each frequency: midband gain × each low-frequency
+ * factor jf/(p + jf) (the bypass capacitor's (z + jf)/(p + jf)) × (1 ∓ jf/fz)/(1 + b1·s + b2²·s²).
+ * Magnitude as |vout/vsig|, phase in degrees (an inverting stage starts at ±180°).
+ */
+export function handResponse(fa: FrequencyAnalysis, freqs: readonly number[]): { magnitude: number[]; phaseDeg: number[] } {
+  const magnitude: number[] = [];
+  const phaseDeg: number[] = [];
+  const { b1, b2 } = fa.high;
+  const fz = fa.high.zero.frequency;
+  const sz = fa.high.zero.rightHalfPlane ? -1 : 1;
+  for (const f of freqs) {
+    let mag = Math.abs(fa.midbandGain);
+    let ph = fa.midbandGain < 0 ? 180 : 0;
+    for (const c of fa.low?.capacitors ?? []) {
+      const z = c.role === "bypass" ? (fa.low?.bypassZero ?? 0) : 0;
+      mag *= Math.hypot(z, f) / Math.hypot(c.pole, f);
+      ph += (Math.atan2(f, z) - Math.atan2(f, c.pole)) * (180 / Math.PI);
+    }
+    const w = 2 * Math.PI * f;
+    mag *= Math.hypot(1, f / fz) / Math.hypot(1 - b2 * b2 * w * w, b1 * w);
+    ph += (Math.atan2(sz * f, fz) - Math.atan2(b1 * w, 1 - b2 * b2 * w * w)) * (180 / Math.PI);
+    magnitude.push(mag);
+    phaseDeg.push(ph);
+  }
+  return { magnitude, phaseDeg };
+}

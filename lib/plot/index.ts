@@ -7,3 +7,5 @@ export * from "./transconductance.js";
 export * from "./html.js";
 export * from "./notebook.js";
 export * from "./stage.js";
+export * from "./bode.js";
+export { simulateFrequency, trySimulateFrequency, type SimulatedResponse } from "../bias/frequency-sim.js";
