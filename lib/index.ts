@@ -14,6 +14,8 @@ export * from "./device/inverse.js";
 export * from "./device/inversion.js";
 export * from "./device/temperature.js";
 export * from "./device/extract.js";
+export * from "./device/discrete-part.js";
+export * as discreteFormulas from "./formulas/discrete.formulas.js";
 export { Derivation, unitOf, derivationSchemaVersion } from "./record/derivation.js";
 export type * from "./record/derivation.js";
 export type { Formula, FormulaSpec, SymbolSpec } from "./formulas/define.js";
@@ -55,6 +57,8 @@ export {
   type FourResistorResult,
 } from "./bias/synthesis.js";
 export * from "./bias/tolerance.js";
+export { toleranceChecks, idBandCheckName, type CheckYield, type ToleranceChecks } from "./bias/check-yield.js";
+export type { ToleranceSection } from "./bias/tolerance-file.js";
 export * from "./bias/dissipation.js";
 export * as synthesisFormulas from "./formulas/synthesis.formulas.js";
 export * as mirrorFormulas from "./formulas/mirror.formulas.js";

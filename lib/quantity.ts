@@ -30,6 +30,8 @@ export const dimensions = {
   voltageLength: { unit: "V*m", tex: "\\mathrm{V\\,m}", label: "voltage times length" },
   temperature: { unit: "K", tex: "\\mathrm{K}", label: "temperature" },
   power: { unit: "W", tex: "\\mathrm{W}", label: "power" },
+  /** Junction-to-ambient or junction-to-case thermal resistance RθJA, RθJC. */
+  thermalResistance: { unit: "K/W", tex: "\\mathrm{K/W}", label: "thermal resistance" },
   capacitance: { unit: "F", tex: "\\mathrm{F}", label: "capacitance" },
   /** Cox, gate capacitance per area. */
   capacitancePerArea: { unit: "F/m^2", tex: "\\mathrm{F/m^2}", label: "capacitance per area" },
@@ -70,6 +72,7 @@ export type SquareMeters = Quantity<"area">;
 export type VoltsPerSecond = Quantity<"slewRate">;
 export type Kelvin = Quantity<"temperature">;
 export type Watts = Quantity<"power">;
+export type KelvinPerWatt = Quantity<"thermalResistance">;
 export type Farads = Quantity<"capacitance">;
 export type FaradsPerSquareMeter = Quantity<"capacitancePerArea">;
 export type Mobility = Quantity<"mobility">;

@@ -1,6 +1,7 @@
 // pinchoff new and list: copying templates without ever replacing a user's file.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { mkdtempSync, readFileSync, rmSync, writeFileSync, mkdirSync } from "node:fs";
+import { lstatSync, mkdtempSync, readFileSync, readlinkSync, readdirSync, rmSync, symlinkSync, writeFileSync, mkdirSync } from "node:fs";
+import { nodeFileSystem, type FileSystemSeam } from "../lib/io/atomic-write.js";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { PinchoffError } from "../lib/errors.js";
@@ -69,6 +70,36 @@ describe("pinchoff new", () => {
   it("into a folder, names the copy after the template", () => {
     const r = newNotebook("alpha", dir, false, templates);
     expect(r.dest).toBe(join(dir, "alpha.ipynb"));
+  });
+
+  it("--force onto a symbolic link replaces the link itself, never the file it points to", () => {
+    const target = join(dir, "someone-elses.ipynb");
+    writeFileSync(target, "not mine to change");
+    const link = join(dir, "link.ipynb");
+    symlinkSync(target, link);
+    expect(() => newNotebook("alpha", link, false, templates)).toThrow(/already exists; it was left untouched/);
+    newNotebook("alpha", link, true, templates);
+    expect(readFileSync(target, "utf8")).toBe("not mine to change");
+    expect(lstatSync(link).isSymbolicLink()).toBe(false);
+    expect(readFileSync(link, "utf8")).toBe(readFileSync(join(templates, "alpha.ipynb"), "utf8"));
+  });
+
+  it("a dangling link is an existing name: refused without --force, and nothing is created at its target", () => {
+    const link = join(dir, "dangling.ipynb");
+    const target = join(dir, "nowhere.ipynb");
+    symlinkSync(target, link);
+    expect(() => newNotebook("alpha", link, false, templates)).toThrow(/already exists/);
+    expect(readlinkSync(link)).toBe(target);
+    expect(() => lstatSync(target)).toThrow();
+  });
+
+  it("a full disk while copying leaves the existing file intact and no temporary behind", () => {
+    const dest = join(dir, "full.ipynb");
+    writeFileSync(dest, "earlier design");
+    const full: FileSystemSeam = { ...nodeFileSystem, writeSync: () => { throw Object.assign(new Error("no space left on device"), { code: "ENOSPC" }); } };
+    expect(() => newNotebook("alpha", dest, true, templates, full)).toThrow(/cannot write \(ENOSPC\)/);
+    expect(readFileSync(dest, "utf8")).toBe("earlier design");
+    expect(readdirSync(dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
   });
 
   it("an unknown template writes nothing", () => {

@@ -3,14 +3,20 @@
  * written atomically; bad designs get errors naming the file and the field.
  * The design values are invented for the test.
  */
+import { createHash } from "node:crypto";
 import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
-import { join } from "node:path";
+import { dirname, join, resolve } from "node:path";
+import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { main } from "../lib/cli/op.js";
 import { captureCli } from "./support/cli.js";
+import { checkStamp } from "../lib/record/stamp.js";
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), "..");
 import { parseDesign } from "../lib/bias/design-file.js";
 import { InputError } from "../lib/errors.js";
+import { UsageError } from "../lib/cli/args.js";
 
 let dir: string;
 const design = {
@@ -79,16 +85,54 @@ describe("pinchoff op", () => {
     expect(readdirSync(dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
     expect(readFileSync(file, "utf8")).toBe(before);
   });
-  it("replaces its own earlier record, but never a file it did not write unless --force", async () => {
+  it("replaces its own unchanged record, but never a file it did not write, not even one quoting the old marker phrase, unless --force", async () => {
     const file = write("stage4.json", design);
-    const out = join(dir, "again.md");
-    expect((await run([file, "--record", out])).code).toBe(0);
-    expect((await run([file, "--record", out])).code).toBe(0); // its own record: replaced
-    const notes = write("notes.md", "# my own notes\n");
-    await expect(run([file, "--record", notes])).rejects.toThrow(/notes\.md.*not written by pinchoff op/);
-    expect(readFileSync(notes, "utf8")).toBe("# my own notes\n");
+    for (const name of ["again.md", "again.html"]) {
+      const out = join(dir, name);
+      expect((await run([file, "--record", out])).code).toBe(0);
+      expect(checkStamp(readFileSync(out, "utf8")).ok).toBe(true);
+      expect((await run([file, "--record", out])).code).toBe(0); // its own record: replaced
+      // Edited by hand after it was written: no longer the tool's to replace.
+      const edited = readFileSync(out, "utf8").replace("Given", "Given (checked by me)");
+      writeFileSync(out, edited);
+      await expect(run([file, "--record", out])).rejects.toThrow(/text differs from what pinchoff wrote/);
+      expect(readFileSync(out, "utf8")).toBe(edited);
+    }
+    // A user's notes that happen to contain the phrase earlier versions used as a marker.
+    const quoted = "# my own notes\n\nThe old record said <!-- written by pinchoff op --> at the end.\n<meta name=\"generator\" content=\"written by pinchoff op\">\n";
+    const notes = write("notes.md", quoted);
+    await expect(run([file, "--record", notes])).rejects.toThrow(/notes\.md.*carries no pinchoff record stamp/);
+    expect(readFileSync(notes, "utf8")).toBe(quoted);
+    // A stamp copied from a real record into another file does not make that file the tool's.
+    const real = readFileSync(join(dir, "again.html"), "utf8");
+    const stampBlock = /<script type="application\/vnd\.pinchoff\.record\+json">[^<]*<\/script>/.exec(real)![0];
+    const copied = write("copied.html", `<html><head>${stampBlock}</head><body>my page</body></html>`);
+    await expect(run([file, "--record", copied])).rejects.toThrow(/text differs/);
     expect((await run([file, "--record", notes, "--force"])).code).toBe(0);
-    expect(readFileSync(notes, "utf8")).toContain("written by pinchoff op");
+    expect(checkStamp(readFileSync(notes, "utf8")).ok).toBe(true);
+  });
+  it("stamps the record with the tool version, the date, the design file and its SHA-256, and records the limits as inputs", async () => {
+    const file = write("stamped.json", { ...design, limits: { maxDevicePower: "50 mW", minSaturationMargin: "0.2 V" } });
+    const digest = createHash("sha256").update(readFileSync(file)).digest("hex");
+    const version = JSON.parse(readFileSync(join(root, "package.json"), "utf8")).version as string;
+    const before = Date.now();
+    for (const name of ["stamped.md", "stamped.html"]) {
+      const out = join(dir, name);
+      expect((await run([file, "--record", out])).code).toBe(0);
+      const text = readFileSync(out, "utf8");
+      const c = checkStamp(text);
+      if (!c.ok) throw new Error(c.reason);
+      expect(c.stamp).toMatchObject({ tool: "pinchoff", version, command: "op", design: { path: file, sha256: digest } });
+      expect(Date.parse(c.stamp.written)).toBeGreaterThanOrEqual(before - 1000);
+      expect(Date.parse(c.stamp.written)).toBeLessThanOrEqual(Date.now());
+      expect(c.stamp.inputs).toMatch(/^[0-9a-f]{64}$/);
+      // Visible to the reader too, and the limits are among the given values.
+      expect(text).toContain(digest);
+      expect(text).toContain(`pinchoff ${version}`);
+      expect(text).toMatch(/P transistor, max/);
+      expect(text).toMatch(/saturation margin, min/);
+    }
+    expect(readFileSync(join(dir, "stamped.md"), "utf8")).toMatch(/^---\npinchoff-record: \{/);
   });
   it("refuses to write the record over the design file", async () => {
     const file = write("stage3.json", design);
@@ -118,7 +162,28 @@ describe("pinchoff op", () => {
     await expect(run([join(dir, "nope.json")])).rejects.toThrow(/nope\.json: cannot read the design file \(ENOENT\)/);
     const bad = write("bad.json", "{ not json");
     await expect(run([bad])).rejects.toThrow(/bad\.json: got .* expected JSON/);
-    expect((await run([])).code).toBe(2);
+    await expect(run([])).rejects.toThrow(UsageError);
     expect((await run(["--help"])).code).toBe(0);
+  });
+});
+
+describe("pinchoff op exit status", () => {
+  // Invented stage values; each variant breaks one check.
+  const variants: [string, Record<string, unknown>, RegExp][] = [
+    ["triode (RD far too large)", { components: { ...design.components, rd: "200k" } }, /check failed: Saturation margin/],
+    ["cutoff (gate below threshold)", { components: { ...design.components, rg1: "10Meg" } }, /check failed: Overdrive/],
+    ["over its power limit", { limits: { maxDevicePower: "1 uW" } }, /check failed: Transistor dissipation/],
+  ];
+  for (const [what, change, message] of variants)
+    it(`exits 1 and names the check when the stage is in ${what}`, async () => {
+      const r = await run([write(`fail-${what.split(" ")[0]}.json`, { ...design, ...change })]);
+      expect(r.code).toBe(1);
+      expect(r.err).toMatch(message);
+      expect(JSON.parse(r.out).metrics.checks.some((c: { passed: boolean }) => !c.passed)).toBe(true);
+    });
+  it("exits 0 when every check passes", async () => {
+    const r = await run([write("pass.json", design)]);
+    expect(r.code).toBe(0);
+    expect(r.err).toBe("");
   });
 });

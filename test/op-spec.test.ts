@@ -187,7 +187,7 @@ describe("pinchoff op with a specification", () => {
     // RD carries about 1 mA: about 2 mW in 2 kΩ, over a 1 mW rating at 50 % derating (invented ratings).
     const dissipation = { resistor: { rating: "0.25 W" }, resistors: { rd: { rating: "1 mW", derating: 0.5 } }, transistor: { rating: "0.5 W" } };
     const r = await run([write("power.json", { ...fourResistor, specification: { ...fourResistor.specification, dissipation } })]);
-    expect(r.code).toBe(0);
+    expect(r.code).toBe(1); // a failed check exits 1
     const j = JSON.parse(r.out);
     const rd = j.dissipation.items.find((i: { name: string }) => i.name === "rd");
     const i = j.operatingPoint.currents.rd;
@@ -195,7 +195,7 @@ describe("pinchoff op with a specification", () => {
     expect(rd.allowed).toBeCloseTo(0.5e-3, 15);
     expect(rd.passed).toBe(false);
     expect(j.dissipation.failures.map((f: { name: string }) => f.name)).toEqual(["rd"]);
-    expect(r.err).toMatch(/over its allowed power: rd/);
+    expect(r.err).toMatch(/check failed: rd over its allowed power/);
   });
 
   it("designs a diode-loaded stage for a gain: the load's card read inside the specification, no resistor to choose", async () => {

@@ -1,6 +1,7 @@
 import { createRequire } from "node:module";
 import { afterEach, describe, expect, it, vi } from "vitest";
 import { device, amperesPerVoltSquared, volts, meters, type DeviceCard } from "../lib/index.js";
+import { InputError } from "../lib/errors.js";
 import { outputCharacteristics, plotBundle, plotHtml, plotLibraryHtml, plotMimeType, showPlot } from "../lib/plot/index.js";
 
 // Invented card for the tests (not a real process).
@@ -27,6 +28,17 @@ describe("plot HTML", () => {
     expect(scripts[0]![1]).toContain("\\u003c/script>\\u003cb>");
     expect(html).toContain("&lt;/script&gt;&lt;b&gt;x&lt;/b&gt;");
     expect(html).not.toContain("<b>x</b>");
+  });
+
+  it("refuses a layout height that is not a finite number of px in range (it goes into a style attribute)", () => {
+    const crafted = '1px"><img src=x onerror=alert(1)><div style="';
+    for (const height of [crafted, "300", Number.NaN, Number.POSITIVE_INFINITY, -5, 1e9]) {
+      const bad = { ...spec, figure: { ...spec.figure, layout: { ...spec.figure.layout, height: height as number } } };
+      expect(() => plotHtml(bad)).toThrow(InputError);
+      expect(() => plotBundle(bad, false)).toThrow(/layout\.height of plot/);
+    }
+    expect(() => plotHtml(spec, { height: Number.NaN })).toThrow(InputError);
+    expect(plotHtml({ ...spec, figure: { ...spec.figure, layout: { ...spec.figure.layout, height: 333 } } })).toContain("height:333px");
   });
 
   it("gives every plot its own element id", () => {

@@ -2,6 +2,8 @@
 import { describe, expect, it } from "vitest";
 import { buildReport, reportMarker, type ReportModel } from "../lib/report/html.js";
 import { cautionList as cautions } from "../lib/record/cautions.js";
+import { collect, plotMime } from "../lib/runner/collect.js";
+import type { Notebook } from "../lib/runner/notebook-file.js";
 
 const hostile = '<script>alert("x")</script>&';
 const model = (over: Partial<ReportModel> = {}): ReportModel => ({
@@ -30,6 +32,21 @@ describe("report", () => {
     const spec = /spec = (\{.*\}), tries = 0;/.exec(script)![1]!;
     expect(spec).not.toContain("<");
     expect(JSON.parse(spec).data[0].name).toBe("</script><b>trace</b>");
+  });
+
+  it("a crafted plot height read back from a notebook never reaches an attribute", () => {
+    const crafted = '1px"></div><script>alert("h")</script><div style="';
+    const nb: Notebook = {
+      nbformat: 4,
+      nbformat_minor: 5,
+      metadata: {},
+      cells: [{ cell_type: "code", id: "p", metadata: {}, source: "", outputs: [{ output_type: "display_data", data: { [plotMime]: { title: "t", summary: "s", figure: { data: [{ x: [1], y: [2] }], layout: { height: crafted } } } } }] }],
+    };
+    const got = collect(nb, new Map([[0, "ok"]]));
+    expect(got.plots).toHaveLength(1);
+    const html = buildReport(model({ plots: got.plots }));
+    expect(html).not.toContain('alert("h")');
+    expect(html).toContain("height:420px");
   });
 
   it("marks overrides, the failing check and its margin, and carries the record and cautions", () => {

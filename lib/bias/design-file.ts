@@ -12,6 +12,9 @@
  *                 "lambda": "0.05 1/V", "gamma": 0.4, "phi": "0.7 V", "provenance": "…" },
  *       "w": "10 um", "l": "1 um"
  *     },
+ *     — or, for a discrete part from its datasheet, instead of card, w and l:
+ *     "device": { "part": { "name": "…", "polarity": "nmos", "threshold": …, "forwardTransconductance": …,
+ *                           "onResistance": …, "ratings": … }, "ambient": "40 degC" },   see ./part-file.ts
  *     "components": { "rg1": "200k", "rg2": "100k", "rd": "5k", "rs": "1k" },
  *     — or, to design the stage, instead of components:
  *     "specification": { "id": "1 mA", "sizing": { "vov": "0.3 V", "l": "1 um" }, "drain": { "vd": "3 V" }, … },
@@ -23,20 +26,29 @@
  *     "options": { "clm": "continuous" | "saturation-only" },   optional
  *     "limits": { "maxDevicePower": "50 mW", "maxTotalPower": …, "minSaturationMargin": "0.2 V",
  *                 "minOverdrive": …, "minSourceHeadroom": … },  optional
+ *     "tolerance": { "resistors": "1 %", "process": { "vt0": "50 mV", "kp": "10 %" }, … },
+ *                                                  optional: see ./tolerance-file.ts
  *     "notes": "free text"                         optional, ignored
  *   }
  */
+import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
-import type { Dimension } from "../quantity.js";
+import type { Dimension, Kelvin } from "../quantity.js";
+import { partModel } from "../device/discrete-part.js";
+import { parsePartCard } from "./part-file.js";
+
+/** Ambient of a discrete part when the design file states none: 25 °C, where datasheets state their figures (common practice). */
+const roomTemperature = 298.15;
 import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
+import { parseToleranceSection, type ToleranceSection } from "./tolerance-file.js";
 import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -102,9 +114,17 @@ function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCa
   return card as unknown as DeviceCard;
 }
 
-/** Parse one transistor `{ card, w, l }` found at field path `f`. */
+/** Parse one transistor `{ card, w, l }`, or a discrete part `{ part, ambient? }`, found at field path `f`. */
 function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
-  const dev = object(raw, at(f), "a device { card, w, l }");
+  const dev = object(raw, at(f), "a device { card, w, l } or a discrete part { part, ambient? }");
+  if (dev.part !== undefined) {
+    onlyKeys(dev, ["part", "ambient"], at(f));
+    const part = parsePartCard(dev.part, at(`${f}.part`));
+    const ambient = dev.ambient === undefined ? roomTemperature : quantity(dev.ambient, "temperature", at(`${f}.ambient`));
+    if (!(ambient > 0)) throw new InputError(dev.ambient, "an ambient temperature above absolute zero", at(`${f}.ambient`));
+    const model = partModel(part, undefined, at(`${f}.part`));
+    return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
+  }
   onlyKeys(dev, ["card", "w", "l"], at(f));
   const card = parseCard(dev.card, `${f}.card`, at);
   const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
@@ -194,8 +214,8 @@ function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path
 
 /** A design file read: a stage to analyse, or a specification to design. */
 export type DesignFile =
-  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage }
-  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec };
+  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection }
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection };
 
 /** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
 export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
@@ -205,6 +225,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
   const topo = topologyFor(d.topology, at("topology"));
   if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
   if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
+  const tolerance = d.tolerance === undefined ? {} : { tolerance: parseToleranceSection(d.tolerance, at("tolerance")) };
   const given = (["components", "specification"] as const).filter((k) => d[k] !== undefined);
   if (given.length !== 1)
     throw new InputError(given.length ? given : undefined, "exactly one of components (the values, to analyse the stage) or specification (the targets, to design it)", at("components/specification"), "invalid-design");
@@ -227,7 +248,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     for (const k of Object.keys(byName ?? {}))
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     const spec = { topology: topo.id, ...parseCommon(d, at), card, ...own } as unknown as StageSpec;
-    return { kind: "specification", origin, spec };
+    return { kind: "specification", origin, spec, ...tolerance };
   }
 
   const device = parseStageDevice(d.device, "device", at);
@@ -250,6 +271,9 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     components[f.name] = quantity(v, f.dim, at(`components.${f.name}`));
   }
   const common = parseCommon(d, at);
+  for (const [role, dv] of [["device", device] as const, ...Object.entries(devices ?? {}).map(([r, dv]) => [`devices.${r}`, dv] as const)])
+    if (dv.part && common.body === "rail")
+      throw new InputError("rail", `body "source" (or omitted): the discrete part at ${role} has its body tied to its source inside the package`, at("body"), "invalid-design");
   const stage: Stage = {
     topology: topo.id,
     ...(common.name !== undefined ? { name: common.name } : {}),
@@ -261,7 +285,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     ...(common.options ? { options: common.options } : {}),
     ...(common.limits ? { limits: common.limits } : {}),
   };
-  return { kind: "analysis", origin, stage };
+  return { kind: "analysis", origin, stage, ...tolerance };
 }
 
 /** Validate and parse a design with components into a stage; `origin` names the file. */
@@ -279,6 +303,10 @@ function readJson(path: string): unknown {
   } catch (e) {
     throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
   }
+  return parseJsonText(text, path);
+}
+
+function parseJsonText(text: string, path: string): unknown {
   try {
     return JSON.parse(text);
   } catch (e) {
@@ -289,6 +317,21 @@ function readJson(path: string): unknown {
 /** Read and parse a design file, with components or a specification; errors name the file (and the field path). */
 export function readDesignFile(path: string): DesignFile {
   return parseDesignFile(readJson(path), path);
+}
+
+/**
+ * Read a design file once and parse it, with the SHA-256 (hex) of the exact
+ * bytes read, so a record can name the file it came from without a second read.
+ */
+export function readDesignSource(path: string): { design: DesignFile; sha256: string } {
+  let bytes: Buffer;
+  try {
+    bytes = readFileSync(path);
+  } catch (e) {
+    throw new PinchoffError("io", `cannot read the design file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
+  }
+  const raw = parseJsonText(bytes.toString("utf8"), path);
+  return { design: parseDesignFile(raw, path), sha256: createHash("sha256").update(bytes).digest("hex") };
 }
 
 /** Read and parse a design file with components; errors name the file (and the field path). */

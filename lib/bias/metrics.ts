@@ -11,6 +11,7 @@ import * as bf from "../formulas/bias.formulas.js";
 import { dimensions, type Dimension, type Ohms, type Ratio, type Siemens, type Volts } from "../quantity.js";
 import { checkMargin, type Derivation, type Severity } from "../record/derivation.js";
 import type { SolvedStage } from "./stage.js";
+import { ratingChecks } from "../device/discrete-part.js";
 import type { AmplifierMetrics, StageCheck, SwingLimits } from "./topology.js";
 
 type Fn = { fn: (...a: any[]) => number };
@@ -149,6 +150,9 @@ export function stageMetrics(s: SolvedStage, pDev: number, pTotal: number, rec?:
   }
   if (lim.maxDevicePower !== undefined) checks.push(stageCheck("Transistor dissipation", pDev, "power", { max: lim.maxDevicePower }, rec));
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", pTotal, "power", { max: lim.maxTotalPower }, rec));
+  // A discrete part carries its absolute maximum ratings: checked in every analysis that uses it.
+  const part = s.stage.device.part;
+  if (part) checks.push(...ratingChecks(part, { vgs: s.sol.vg - s.sol.vs, vds: s.vds, id: s.sol.id, power: pDev }, (name, value, dim, max, detail) => stageCheck(name, value, dim, { max }, rec, detail), rec));
   if (s.net.iss > 0) {
     const head = s.sol.vs - s.net.vsr;
     checks.push(stageCheck("Current-source headroom (source node to its rail)", head, "voltage", { min: lim.minSourceHeadroom ?? 0 }, rec, "a real current source needs some voltage across it"));

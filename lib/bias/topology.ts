@@ -21,6 +21,7 @@
  */
 import type { DeviceCard, Polarity } from "../device/card.js";
 import type { DiffusionGeometry } from "../device/capacitance-card.js";
+import type { PartInUse } from "../device/discrete-part.js";
 import type { ModelOptions, OperatingPoint } from "../device/drain-current.js";
 import type { Region } from "../device/region.js";
 import { InputError } from "../errors.js";
@@ -44,6 +45,8 @@ export interface StageDevice {
   readonly l: Meters;
   /** Drain and source diffusion areas and perimeters, for junction capacitances (default rule in lib/device/capacitance.ts). */
   readonly diffusion?: DiffusionGeometry;
+  /** A discrete part: its datasheet card (the card above is derived from it) and ambient; its ratings are checked in every analysis. */
+  readonly part?: PartInUse;
 }
 
 /** Design limits a stage is checked against; all optional. */

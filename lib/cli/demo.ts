@@ -4,9 +4,11 @@
  * four-resistor bias) through `pinchoff run`, then print where the report is
  * and the check summary. The demo values are the template's own, invented.
  */
+import { realpathSync } from "node:fs";
 import { join, relative } from "node:path";
 import { fileURLToPath } from "node:url";
 import { PinchoffError } from "../errors.js";
+import { defineCommand, type CommandSpec } from "./args.js";
 import { packageRoot } from "../runner/paths.js";
 import { runNotebook } from "../runner/run.js";
 import { summarize } from "../runner/summary.js";
@@ -20,7 +22,15 @@ export function demoTemplate(all: readonly Template[] = listTemplates()): Templa
   return flagged[0]!;
 }
 
-export async function main(_argv: string[] = []): Promise<number> {
+export const command = {
+  name: "demo",
+  positionals: [],
+  options: {},
+  description: `Runs the demo template (invented values) through pinchoff run into out/demo/
+in the package folder, prints the check summary and the report's path.`,
+} as const satisfies CommandSpec;
+
+export const main = defineCommand(command, async () => {
   const t = demoTemplate();
   const outDir = join(packageRoot, "out", "demo");
   console.log(`demo: running template ${t.name} (${t.description})`);
@@ -28,14 +38,10 @@ export async function main(_argv: string[] = []): Promise<number> {
   console.log(summarize(r, (p) => relative(process.cwd(), p) || p));
   console.log(`\nreport: ${r.reportPath}\nopen it in a browser; it works offline.`);
   return r.exitCode;
-}
+});
 
-if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
-  main(process.argv.slice(2)).then(
-    (code) => process.exit(code),
-    (e) => {
-      console.error(e instanceof PinchoffError ? `pinchoff demo: ${e.message}` : e);
-      process.exit(1);
-    },
-  );
+// `npm run demo` runs this file directly: the same error handling and exit statuses as `pinchoff demo`.
+if (process.argv[1] && fileURLToPath(import.meta.url) === realpathSync(process.argv[1])) {
+  const { runCommand } = await import("./main.js");
+  process.exit(await runCommand("demo", main, process.argv.slice(2)));
 }

@@ -1,24 +1,21 @@
-/** pinchoff kernel [--user]: register the tslab TypeScript kernel for Jupyter. */
+/** pinchoff kernel: register the tslab TypeScript kernel for Jupyter. */
 import { spawnSync } from "node:child_process";
 import { join } from "node:path";
-import { parseArgs } from "node:util";
 import { PinchoffError } from "../errors.js";
 import { findJupyter } from "../runner/execute.js";
 import { kernelDataDir, packageRoot } from "../runner/paths.js";
+import { defineCommand, type CommandSpec } from "./args.js";
 
-export const help = `usage: pinchoff kernel [--user]
-
-Registers the tslab TypeScript kernel. By default it goes into the package's
+export const command = {
+  name: "kernel",
+  positionals: [],
+  options: { user: { kind: "flag", help: "register it in your own Jupyter instead (jupyter kernelspec list shows it)" } },
+  description: `Registers the tslab TypeScript kernel. By default it goes into the package's
 own .kernel/ folder, which pinchoff run and pinchoff notebook use, and
-node_modules/pinchoff is linked so cells can import "pinchoff".
---user registers it in your own Jupyter (jupyter kernelspec list shows it).`;
+node_modules/pinchoff is linked so cells can import "pinchoff".`,
+} as const satisfies CommandSpec;
 
-export async function main(argv: string[]): Promise<number> {
-  const { values } = parseArgs({ args: argv, options: { user: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
+export const main = defineCommand(command, async ({ values }) => {
   if (!values.user) {
     const r = spawnSync(process.execPath, [join(packageRoot, "lib/setup/prepare.mjs"), "kernel"], { stdio: "inherit", cwd: packageRoot });
     if (r.status !== 0) throw new PinchoffError("io", `kernel registration failed (exit ${r.status})`, "kernel");
@@ -31,4 +28,4 @@ export async function main(argv: string[]): Promise<number> {
   if (r.error || r.status !== 0) throw new PinchoffError("io", `tslab install failed (${r.error?.message ?? `exit ${r.status}`})`, tslab);
   console.log(`tslab kernel registered in your own Jupyter, running ${tslab} on ${python}; cells import "pinchoff" from a project where it is installed`);
   return 0;
-}
+});

@@ -1,13 +1,15 @@
 /** pinchoff list: the template notebooks, one line each. */
-import { parseArgs } from "node:util";
 import { listTemplates } from "../templates.js";
+import { defineCommand, type CommandSpec } from "./args.js";
 
-export async function main(argv: string[]): Promise<number> {
-  const { values } = parseArgs({ args: argv, options: { help: { type: "boolean", short: "h" } } });
-  if (values.help) {
-    console.log("usage: pinchoff list\n\nLists the template notebooks for pinchoff new, with a one-line description each.");
-    return 0;
-  }
+export const command = {
+  name: "list",
+  positionals: [],
+  options: {},
+  description: "Lists the template notebooks for pinchoff new, with a one-line description each.",
+} as const satisfies CommandSpec;
+
+export const main = defineCommand(command, async () => {
   const all = listTemplates();
   if (!all.length) {
     console.log("no templates installed");
@@ -16,4 +18,4 @@ export async function main(argv: string[]): Promise<number> {
   const w = Math.max(...all.map((t) => t.name.length));
   for (const t of all) console.log(`${t.name.padEnd(w)}  ${t.description}`);
   return 0;
-}
+});

@@ -1,40 +1,50 @@
-/** pinchoff new <template> <path> [--force] */
-import { copyFileSync, constants as fsc, existsSync, mkdirSync, statSync } from "node:fs";
+/** pinchoff new: copy a template notebook to a path, never over a file without --force. */
+import { existsSync, lstatSync, mkdirSync, readFileSync, statSync, type Stats } from "node:fs";
 import { dirname, resolve } from "node:path";
-import { parseArgs } from "node:util";
-import { InputError, PinchoffError } from "../errors.js";
+import { PinchoffError } from "../errors.js";
 import { findTemplate, type Template } from "../templates.js";
+import { defineCommand, type CommandSpec } from "./args.js";
+import { errnoOf, writeFileAtomic, type FileSystemSeam } from "../io/atomic-write.js";
 
-export const help = `usage: pinchoff new <template> <path.ipynb> [--force]
+export const command = {
+  name: "new",
+  positionals: [{ name: "template" }, { name: "path.ipynb" }],
+  options: { force: { kind: "flag", help: "replace an existing file at <path.ipynb>" } },
+  description: `Copies a template notebook to <path.ipynb> (or into it, when it is a
+folder). An existing file is never replaced unless --force is given.
+pinchoff list shows the templates.`,
+} as const satisfies CommandSpec;
 
-Copies a template notebook to <path>. An existing file is never replaced
-unless --force is given. pinchoff list shows the templates.`;
-
-export async function main(argv: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({ args: argv, allowPositionals: true, options: { force: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
-  if (positionals.length !== 2) throw new InputError(positionals.join(" ") || undefined, "a template name and a destination path", "pinchoff new");
-  const { dest, template } = newNotebook(positionals[0]!, positionals[1]!, !!values.force);
+export const main = defineCommand(command, async ({ values, positionals }) => {
+  const { dest, template } = newNotebook(positionals[0]!, positionals[1]!, values.force === true);
   console.log(`created ${dest} from template ${template.name}: ${template.description}`);
   return 0;
-}
+});
 
-/** Copy template `name` to `path` (a file, or a folder to put `<name>.ipynb` in); never replaces a file unless `force`. */
-export function newNotebook(name: string, path: string, force: boolean, dir?: string): { dest: string; template: Template } {
+/**
+ * Copy template `name` to `path` (a file, or a folder to put `<name>.ipynb` in);
+ * never replaces anything unless `force`. With `force` a symbolic link at the
+ * destination is itself replaced (rename over the link), never its target.
+ */
+export function newNotebook(name: string, path: string, force: boolean, dir?: string, fs?: FileSystemSeam): { dest: string; template: Template } {
   const t = findTemplate(name, dir);
   let dest = resolve(path);
   if (existsSync(dest) && statSync(dest).isDirectory()) dest = resolve(dest, `${t.name}.ipynb`);
-  if (existsSync(dest) && !force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
-  if (existsSync(dest) && !statSync(dest).isFile()) throw new PinchoffError("io", "exists and is not a file", dest);
+  let st: Stats | undefined;
+  try {
+    st = lstatSync(dest);
+  } catch {
+    /* nothing there */
+  }
+  if (st && !force) throw new PinchoffError("io", "already exists; it was left untouched (use --force to replace it)", dest);
+  if (st && !st.isFile() && !st.isSymbolicLink()) throw new PinchoffError("io", "exists and is not a file", dest);
+  const content = readFileSync(t.path);
   try {
     mkdirSync(dirname(dest), { recursive: true });
-    // COPYFILE_EXCL makes the no-overwrite promise hold even if the file appears meanwhile.
-    copyFileSync(t.path, dest, force ? 0 : fsc.COPYFILE_EXCL);
   } catch (e) {
-    throw new PinchoffError("io", `cannot write the notebook (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, dest);
+    throw new PinchoffError("io", `cannot create the folder (${errnoOf(e)})`, dirname(dest));
   }
+  // Without --force the file is linked into place, which fails if the name appeared meanwhile.
+  writeFileAtomic(dest, content, { exclusive: !force, ...(fs ? { fs } : {}) });
   return { dest, template: t };
 }

@@ -1,46 +1,64 @@
 /**
- * `pinchoff op <design.json> [--record out.html|out.md]`: solve a bias stage's
+ * `pinchoff op`: solve a bias stage's
  * operating point from its design file, print region, nodes, currents, margins
  * and metrics as JSON; with --record also write the derivation. A design file
  * with a specification instead of components is designed first: ideal values,
  * standard values chosen as a set, the re-solve and the deviation from the
- * specification. Files are written atomically (temp file + rename) and the
+ * specification. Files are written through the one atomic writer (lib/io/atomic-write.ts) and the
  * design file is never written.
  */
-import { randomBytes } from "node:crypto";
-import { existsSync, readFileSync, realpathSync, renameSync, rmSync, writeFileSync } from "node:fs";
-import { basename, dirname, extname, join, resolve } from "node:path";
-import { parseArgs } from "node:util";
+import { existsSync, readFileSync, realpathSync } from "node:fs";
+import { extname, resolve } from "node:path";
 import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
 import { analyzeStage } from "../bias/analyze.js";
-import { readDesignFile, type DesignFile } from "../bias/design-file.js";
+import { readDesignSource, type DesignFile } from "../bias/design-file.js";
+import type { PartRating } from "../bias/dissipation.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
-import type { Stage, StageAnalysis } from "../bias/topology.js";
+import type { Stage, StageAnalysis, StageCheck, StageLimits } from "../bias/topology.js";
+import type { Dimension } from "../quantity.js";
+import { checkStamp, stampRecord } from "../record/stamp.js";
+import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
+import { partModel } from "../device/discrete-part.js";
+import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
+import { checkLine, formatChecked, opText } from "./op-text.js";
+import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
+import { writeFileAtomic } from "../io/atomic-write.js";
 
-const help = `usage: pinchoff op <design.json> [--record out.html|out.md]
-
-Solves the DC operating point of the bias stage in the design file and prints
-it as JSON: region, node voltages, currents, device operating point,
-small-signal parameters, gain/resistance/swing metrics, checks with margins,
-power per component. Infinite values are written as the string "Infinity".
+export const command = {
+  name: "op",
+  positionals: [{ name: "design.json" }],
+  options: {
+    record: { kind: "value", placeholder: "FILE", help: "also write the derivation (the reasoning, every formula with\nits numbers) as HTML (.html) or Markdown (.md); an existing\nfile is replaced only if it is a record pinchoff wrote,\nunchanged since (its stamp is checked)" },
+    force: { kind: "flag", help: "replace an existing record file whatever wrote it" },
+    json: { kind: "flag", help: "print JSON (the default when the output is not a terminal)" },
+    text: { kind: "flag", help: "print the readable summary (the default at a terminal)" },
+  },
+  description: `Solves the DC operating point of the bias stage in the design file. At a
+terminal it prints a summary: the values with units, the operating point,
+region and margins, every check with pass/FAIL and its margin. Otherwise (or
+with --json) it prints JSON: region, node voltages, currents, device operating
+point, small-signal parameters, metrics, checks with margins, power, and
+"failedChecks". Infinite values are written as the string "Infinity".
 
 When the design file gives a "specification" instead of "components", the
-stage is designed first and the JSON holds the ideal values, the standard
-values chosen as a set from the series, the deviation from the specification
-and, under "operatingPoint", the operating point of the chosen stage.
-
-  --record FILE   also write the derivation (the reasoning, every formula with
-                  its numbers) as HTML (.html) or Markdown (.md); an existing
-                  file is replaced only if an earlier pinchoff op wrote it
-  --force         replace an existing record file whatever wrote it
-  -h, --help      this text
-
-Hand analysis is approximate: verify by simulation and measurement.`;
+stage is designed first: the ideal values, the standard values chosen as a set
+from the series, the deviation from the specification and the operating point
+of the chosen stage. A "tolerance" section adds worst-case corners or a Monte
+Carlo run over part tolerances and temperatures: the spread of the bias and the
+yield of every check (corners must all pass).`,
+  notes: "Hand analysis is approximate: verify by simulation and measurement.",
+} as const satisfies CommandSpec;
 
 /** The op result as a library call: the stage, its analysis and the recorded derivation. */
 export function operatingPointOf(stage: Stage): { analysis: StageAnalysis; derivation: Derivation } {
   const derivation = new Derivation(`Operating point: ${stage.name ?? stage.topology} (${stage.device.card.polarity})`);
+  // A discrete part's model is derived from its datasheet first, each step recorded.
+  for (const d of [stage.device, ...Object.values(stage.devices ?? {})])
+    if (d.part) {
+      partModel(d.part.part, derivation);
+      derivation.input(`ambient (${d.part.part.name})`, d.part.ambient, "temperature", "device.ambient");
+    }
   const analysis = analyzeStage(stage, derivation);
   return { analysis, derivation };
 }
@@ -101,20 +119,12 @@ export function toJson(value: unknown): string {
   return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? (Number.isNaN(v) ? "NaN" : v > 0 ? "Infinity" : "-Infinity") : v), 2);
 }
 
-/** Marks a record file as written by `pinchoff op`, so a later run may replace it (and nothing else). */
-export const recordMarker = "written by pinchoff op";
-
-/** The record text with the marker: a generator meta tag in HTML, a comment at the end of Markdown. */
-export function markRecord(text: string, format: "html" | "md"): string {
-  return format === "html" ? text.replace(/<head>/i, `<head><meta name="generator" content="${recordMarker}">`) : `${text.trimEnd()}\n\n<!-- ${recordMarker} -->\n`;
-}
-
 /**
- * Write a file atomically next to its destination; never the protected paths,
- * and never over an existing file that an earlier `pinchoff op` did not write
- * (unless `force`).
+ * Write the record atomically; never over the design file, and never over an
+ * existing file unless it is an intact record the tool wrote (its stamp checks
+ * out, lib/record/stamp.ts) or `force` is given.
  */
-export function writeAtomic(path: string, text: string, protect: string[] = [], force = false): void {
+export function writeRecord(path: string, text: string, protect: readonly string[] = [], force = false): void {
   const target = resolve(path);
   for (const p of protect) {
     let same = resolve(p) === target;
@@ -126,42 +136,58 @@ export function writeAtomic(path: string, text: string, protect: string[] = [], 
     if (same) throw new InputError(path, "an output path other than the design file", "--record", "io");
   }
   if (!force && existsSync(target)) {
-    let head = "";
+    let existing: string | undefined;
     try {
-      head = readFileSync(target, "utf8");
-    } catch {
-      /* unreadable: treated as not ours */
+      existing = readFileSync(target, "utf8");
+    } catch (e) {
+      throw new PinchoffError("io", `exists and cannot be read to check what wrote it (${(e as NodeJS.ErrnoException).code ?? (e as Error).message}); it was left untouched (--force replaces it)`, path);
     }
-    if (!head.includes(recordMarker)) throw new InputError(path, "a new file, or a record an earlier pinchoff op wrote (this file exists and was not written by pinchoff op; choose another path, or pass --force to replace it)", "--record", "io");
+    const own = checkStamp(existing);
+    if (!own.ok) throw new InputError(path, `a new file, or an unchanged record pinchoff wrote; this file exists and ${own.reason}, so it was left untouched (choose another path, or pass --force to replace it)`, "--record", "io");
   }
-  const tmp = join(dirname(target), `.${basename(target)}.${randomBytes(6).toString("hex")}.tmp`);
-  try {
-    writeFileSync(tmp, text, { flag: "wx" });
-    renameSync(tmp, target);
-  } catch (e) {
-    rmSync(tmp, { force: true });
-    if (e instanceof PinchoffError) throw e;
-    throw new PinchoffError("io", `cannot write (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
-  }
+  writeFileAtomic(target, text);
 }
 
-export async function main(argv: string[]): Promise<number> {
-  let parsed;
-  try {
-    parsed = parseArgs({ args: argv, allowPositionals: true, options: { record: { type: "string" }, force: { type: "boolean" }, help: { type: "boolean", short: "h" } } });
-  } catch (e) {
-    console.error(`pinchoff op: ${(e as Error).message}\n\n${help}`);
-    return 2;
+/** Named limits of a design file, as recorded inputs (they decide checks, so they belong to the inputs and their fingerprint). */
+const limitInputs: Record<keyof StageLimits, [string, Dimension]> = {
+  maxDevicePower: ["P transistor, max", "power"],
+  maxTotalPower: ["P supply, max", "power"],
+  minSaturationMargin: ["saturation margin, min", "voltage"],
+  minOverdrive: ["VOV, min", "voltage"],
+  minSourceHeadroom: ["source headroom, min", "voltage"],
+};
+
+/** Record what the design file states as limits and ratings (and the specification's power ratings) as inputs. */
+export function recordLimits(rec: Derivation, file: DesignFile): void {
+  const at = (f: string) => `${file.origin}: ${f}`;
+  const limits = file.kind === "analysis" ? file.stage.limits : file.spec.limits;
+  for (const [k, v] of Object.entries(limits ?? {})) {
+    const [name, dim] = limitInputs[k as keyof StageLimits];
+    if (typeof v === "number") rec.input(name, v, dim, at(`limits.${k}`));
   }
-  const { values, positionals } = parsed;
-  if (values.help) {
-    console.log(help);
-    return 0;
-  }
-  if (positionals.length !== 1) {
-    console.error(`pinchoff op: expected one design file, got ${positionals.length}\n\n${help}`);
-    return 2;
-  }
+  if (file.kind !== "specification" || !file.spec.dissipation) return;
+  const d = file.spec.dissipation;
+  const rating = (who: string, r: PartRating | undefined, f: string) => {
+    if (!r) return;
+    rec.input(`P rating, ${who}`, r.rating, "power", at(`${f}.rating`));
+    if (r.derating !== undefined) rec.input(`derating, ${who}`, r.derating, "dimensionless", at(`${f}.derating`));
+  };
+  rating("resistors", d.resistor, "specification.dissipation.resistor");
+  for (const [n, r] of Object.entries(d.resistors ?? {})) rating(n, r, `specification.dissipation.resistors.${n}`);
+  rating("transistor", d.transistor, "specification.dissipation.transistor");
+}
+
+/** The failed checks of an outcome, one line each, with enough digits to show why. */
+function failedChecks(analysis: StageAnalysis, design: SynthesisResult | undefined, tolerance: ToleranceChecks | undefined, extra: readonly StageCheck[]): string[] {
+  return [
+    ...[...analysis.metrics.checks, ...extra].filter((c) => !c.passed).map(checkLine),
+    ...(design?.dissipation?.failures ?? []).map((f) => `FAIL  ${f.name} over its allowed power: ${formatChecked(f.power, "W")} > ${formatChecked(f.allowed!, "W")}`),
+    ...(tolerance?.checks ?? []).filter((c) => !c.ok).map((c) => `FAIL  over tolerances, ${c.name}: ${c.passed} of ${c.cases} cases pass (${+(c.yield * 100).toPrecision(4)} %)`),
+  ];
+}
+
+export const main = defineCommand(command, async ({ values, positionals }) => {
+  if (values.json && values.text) throw new UsageError("--json and --text exclude each other", usageLine(command));
   const file = positionals[0]!;
   const record = values.record;
   let format: "html" | "md" | undefined;
@@ -170,20 +196,33 @@ export async function main(argv: string[]): Promise<number> {
     format = ext === ".html" || ext === ".htm" ? "html" : ext === ".md" || ext === ".markdown" ? "md" : undefined;
     if (!format) throw new InputError(record, "a record file ending in .html or .md", "--record");
   }
-  const read = readDesignFile(file);
+  const { design: read, sha256: designSha256 } = readDesignSource(file);
   const result = read.kind === "analysis" ? operatingPointOf(read.stage) : designOf(read);
+  const rec = result.derivation;
+  const design = "design" in result ? result.design : undefined;
+  const stage = design ? (design.stage as Stage) : (read as Extract<DesignFile, { kind: "analysis" }>).stage;
+  const analysis = design ? design.analysis : (result as { analysis: StageAnalysis }).analysis;
+  const tolerance = read.tolerance ? toleranceChecks(stage, read.tolerance, record !== undefined ? rec : undefined) : undefined;
+  const extraChecks: StageCheck[] = [];
   if (record !== undefined) {
+    recordLimits(rec, read);
+    const written = new Date().toISOString();
+    rec.describe(`From design file ${file} (SHA-256 ${designSha256}); ${toolVersion()}; written ${written.replace("T", " ").replace(/\.\d+Z$/, " UTC")}`);
     const render = await import("../record/render.js");
-    const data = result.derivation.toJSON();
-    const text = markRecord(format === "html" ? render.renderHtml(data) : render.renderMarkdown(data), format!);
-    writeAtomic(record, text, [file], values.force === true);
+    const data = rec.toJSON();
+    const body = format === "html" ? render.renderHtml(data) : render.renderMarkdown(data);
+    const version = toolVersion().replace(/^pinchoff /, "");
+    const text = stampRecord(body, format!, { version, command: "op", written, design: { path: file, sha256: designSha256 }, inputs: rec.fingerprint() });
+    writeRecord(record, text, [file], values.force === true);
   }
-  const head = { design: file, ...(record ? { record } : {}) };
-  const analysis = "analysis" in result ? result.analysis : result.design.analysis;
-  console.log(toJson("analysis" in result ? { ...head, ...result.analysis } : { ...head, ...designSummary(read as Extract<DesignFile, { kind: "specification" }>, result.design) }));
-  const failed = analysis.metrics.checks.filter((c) => !c.passed);
-  if (failed.length) console.error(`pinchoff op: ${failed.length} check(s) failed: ${failed.map((c) => c.name).join("; ")}`);
-  if ("design" in result && result.design.dissipation && !result.design.dissipation.passed)
-    console.error(`pinchoff op: over its allowed power: ${result.design.dissipation.failures.map((f) => f.name).join("; ")}`);
-  return 0;
-}
+  const failures = failedChecks(analysis, design, tolerance, extraChecks);
+  const asText = values.text === true || (values.json !== true && process.stdout.isTTY === true);
+  if (asText) console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }));
+  else {
+    const head = { design: file, ...(record ? { record } : {}) };
+    const body = design ? designSummary(read as Extract<DesignFile, { kind: "specification" }>, design) : analysis;
+    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), failedChecks: failures }));
+    for (const f of failures) console.error(`check failed: ${f.replace(/^FAIL\s+/, "")}`);
+  }
+  return failures.length ? exitStatus.failed : exitStatus.ok;
+});

@@ -178,12 +178,12 @@ function level1(
   }
   const cdb =
     vbd < FC * PB
-      ? evaluateFormula(cf.drainJunction, { CJ, AD: geometry.ad, VBD: vbd, PB, MJ, CJSW, PD: geometry.pd, MJSW }, rec)
-      : evaluateFormula(cf.drainJunctionForward, { CJ, AD: geometry.ad, FC, MJ, VBD: vbd, PB, CJSW, PD: geometry.pd, MJSW }, rec, "the drain junction is forward biased beyond FC·PB");
+      ? evaluateFormula(cf.drainJunction, { CJ, AD: geometry.ad, VBD: vbd, PB, MJ, CJSW, PerD: geometry.pd, MJSW }, rec)
+      : evaluateFormula(cf.drainJunctionForward, { CJ, AD: geometry.ad, FC, MJ, VBD: vbd, PB, CJSW, PerD: geometry.pd, MJSW }, rec, "the drain junction is forward biased beyond FC·PB");
   const csb =
     vbs < FC * PB
-      ? evaluateFormula(cf.sourceJunction, { CJ, AS: geometry.as, VBS: vbs, PB, MJ, CJSW, PS: geometry.ps, MJSW }, rec)
-      : evaluateFormula(cf.sourceJunctionForward, { CJ, AS: geometry.as, FC, MJ, VBS: vbs, PB, CJSW, PS: geometry.ps, MJSW }, rec, "the source junction is forward biased beyond FC·PB");
+      ? evaluateFormula(cf.sourceJunction, { CJ, AS: geometry.as, VBS: vbs, PB, MJ, CJSW, PerS: geometry.ps, MJSW }, rec)
+      : evaluateFormula(cf.sourceJunctionForward, { CJ, AS: geometry.as, FC, MJ, VBS: vbs, PB, CJSW, PerS: geometry.ps, MJSW }, rec, "the source junction is forward biased beyond FC·PB");
   return { cgs: cgs as Farads, cgd: cgd as Farads, cgb: cgb as Farads, cdb: cdb as Farads, csb: csb as Farads, cds: 0 as Farads, from: "level1-meyer", geometry };
 }
 

@@ -156,60 +156,60 @@ export const gateSourceWeak = {
   fn: (VOV: Volts, phi: Volts, Cch: Farads, CGSO: FaradsPerMeter, W: Meters): Farads => (((((2 / 3) + (((4 / 3) * VOV) / phi))) * Cch) + (CGSO * W)) as Farads,
 } as const satisfies Formula;
 
-/** Drain-body junction capacitance (reverse or weak forward bias): Cdb = CJ * AD * (1 - VBD / PB)^(-MJ) + CJSW * PD * (1 - VBD / PB)^(-MJSW) */
+/** Drain-body junction capacitance (reverse or weak forward bias): Cdb = CJ * AD * (1 - VBD / PB)^(-MJ) + CJSW * PerD * (1 - VBD / PB)^(-MJSW) */
 export const drainJunction = {
   id: "drainJunction",
   title: "Drain-body junction capacitance (reverse or weak forward bias)",
-  expr: "CJ * AD * (1 - VBD / PB)^(-MJ) + CJSW * PD * (1 - VBD / PB)^(-MJSW)",
+  expr: "CJ * AD * (1 - VBD / PB)^(-MJ) + CJSW * PerD * (1 - VBD / PB)^(-MJSW)",
   tex: "C_{db} = {C_{J}}\\cdot{A_{D}}\\cdot{\\left(1-\\frac{{V_{BD}}}{{\\phi_{B}}}\\right)}^{-{M_{J}}}+{C_{JSW}}\\cdot{P_{D}}\\cdot{\\left(1-\\frac{{V_{BD}}}{{\\phi_{B}}}\\right)}^{-{M_{JSW}}}",
   result: "Cdb",
   resultDim: "capacitance",
-  vars: ["CJ","AD","VBD","PB","MJ","CJSW","PD","MJSW"],
+  vars: ["CJ","AD","VBD","PB","MJ","CJSW","PerD","MJSW"],
   dims: ["capacitancePerArea","area","voltage","voltage","dimensionless","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
-  fn: (CJ: FaradsPerSquareMeter, AD: SquareMeters, VBD: Volts, PB: Volts, MJ: Ratio, CJSW: FaradsPerMeter, PD: Meters, MJSW: Ratio): Farads => (((CJ * AD) * (((1 - (VBD / PB))) ** ((-MJ)))) + ((CJSW * PD) * (((1 - (VBD / PB))) ** ((-MJSW))))) as Farads,
+  fn: (CJ: FaradsPerSquareMeter, AD: SquareMeters, VBD: Volts, PB: Volts, MJ: Ratio, CJSW: FaradsPerMeter, PerD: Meters, MJSW: Ratio): Farads => (((CJ * AD) * (((1 - (VBD / PB))) ** ((-MJ)))) + ((CJSW * PerD) * (((1 - (VBD / PB))) ** ((-MJSW))))) as Farads,
 } as const satisfies Formula;
 
-/** Drain-body junction capacitance above FC·PB (linear extension): Cdb = CJ * AD * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBD / PB) + CJSW * PD * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBD / PB) */
+/** Drain-body junction capacitance above FC·PB (linear extension): Cdb = CJ * AD * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBD / PB) + CJSW * PerD * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBD / PB) */
 export const drainJunctionForward = {
   id: "drainJunctionForward",
   title: "Drain-body junction capacitance above FC·PB (linear extension)",
-  expr: "CJ * AD * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBD / PB) + CJSW * PD * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBD / PB)",
+  expr: "CJ * AD * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBD / PB) + CJSW * PerD * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBD / PB)",
   tex: "C_{db} = {C_{J}}\\cdot{A_{D}}\\cdot{\\left(1-{F_{C}}\\right)}^{-1-{M_{J}}}\\cdot\\left(1-{F_{C}}\\cdot\\left(1+{M_{J}}\\right)+\\frac{{M_{J}}\\cdot{V_{BD}}}{{\\phi_{B}}}\\right)+{C_{JSW}}\\cdot{P_{D}}\\cdot{\\left(1-{F_{C}}\\right)}^{-1-{M_{JSW}}}\\cdot\\left(1-{F_{C}}\\cdot\\left(1+{M_{JSW}}\\right)+\\frac{{M_{JSW}}\\cdot{V_{BD}}}{{\\phi_{B}}}\\right)",
   result: "Cdb",
   resultDim: "capacitance",
-  vars: ["CJ","AD","FC","MJ","VBD","PB","CJSW","PD","MJSW"],
+  vars: ["CJ","AD","FC","MJ","VBD","PB","CJSW","PerD","MJSW"],
   dims: ["capacitancePerArea","area","dimensionless","dimensionless","voltage","voltage","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
-  fn: (CJ: FaradsPerSquareMeter, AD: SquareMeters, FC: Ratio, MJ: Ratio, VBD: Volts, PB: Volts, CJSW: FaradsPerMeter, PD: Meters, MJSW: Ratio): Farads => ((((CJ * AD) * (((1 - FC)) ** (((-1) - MJ)))) * (((1 - (FC * ((1 + MJ)))) + ((MJ * VBD) / PB)))) + (((CJSW * PD) * (((1 - FC)) ** (((-1) - MJSW)))) * (((1 - (FC * ((1 + MJSW)))) + ((MJSW * VBD) / PB))))) as Farads,
+  fn: (CJ: FaradsPerSquareMeter, AD: SquareMeters, FC: Ratio, MJ: Ratio, VBD: Volts, PB: Volts, CJSW: FaradsPerMeter, PerD: Meters, MJSW: Ratio): Farads => ((((CJ * AD) * (((1 - FC)) ** (((-1) - MJ)))) * (((1 - (FC * ((1 + MJ)))) + ((MJ * VBD) / PB)))) + (((CJSW * PerD) * (((1 - FC)) ** (((-1) - MJSW)))) * (((1 - (FC * ((1 + MJSW)))) + ((MJSW * VBD) / PB))))) as Farads,
 } as const satisfies Formula;
 
-/** Source-body junction capacitance (reverse or weak forward bias): Csb = CJ * AS * (1 - VBS / PB)^(-MJ) + CJSW * PS * (1 - VBS / PB)^(-MJSW) */
+/** Source-body junction capacitance (reverse or weak forward bias): Csb = CJ * AS * (1 - VBS / PB)^(-MJ) + CJSW * PerS * (1 - VBS / PB)^(-MJSW) */
 export const sourceJunction = {
   id: "sourceJunction",
   title: "Source-body junction capacitance (reverse or weak forward bias)",
-  expr: "CJ * AS * (1 - VBS / PB)^(-MJ) + CJSW * PS * (1 - VBS / PB)^(-MJSW)",
+  expr: "CJ * AS * (1 - VBS / PB)^(-MJ) + CJSW * PerS * (1 - VBS / PB)^(-MJSW)",
   tex: "C_{sb} = {C_{J}}\\cdot{A_{S}}\\cdot{\\left(1-\\frac{{V_{BS}}}{{\\phi_{B}}}\\right)}^{-{M_{J}}}+{C_{JSW}}\\cdot{P_{S}}\\cdot{\\left(1-\\frac{{V_{BS}}}{{\\phi_{B}}}\\right)}^{-{M_{JSW}}}",
   result: "Csb",
   resultDim: "capacitance",
-  vars: ["CJ","AS","VBS","PB","MJ","CJSW","PS","MJSW"],
+  vars: ["CJ","AS","VBS","PB","MJ","CJSW","PerS","MJSW"],
   dims: ["capacitancePerArea","area","voltage","voltage","dimensionless","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
-  fn: (CJ: FaradsPerSquareMeter, AS: SquareMeters, VBS: Volts, PB: Volts, MJ: Ratio, CJSW: FaradsPerMeter, PS: Meters, MJSW: Ratio): Farads => (((CJ * AS) * (((1 - (VBS / PB))) ** ((-MJ)))) + ((CJSW * PS) * (((1 - (VBS / PB))) ** ((-MJSW))))) as Farads,
+  fn: (CJ: FaradsPerSquareMeter, AS: SquareMeters, VBS: Volts, PB: Volts, MJ: Ratio, CJSW: FaradsPerMeter, PerS: Meters, MJSW: Ratio): Farads => (((CJ * AS) * (((1 - (VBS / PB))) ** ((-MJ)))) + ((CJSW * PerS) * (((1 - (VBS / PB))) ** ((-MJSW))))) as Farads,
 } as const satisfies Formula;
 
-/** Source-body junction capacitance above FC·PB (linear extension): Csb = CJ * AS * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBS / PB) + CJSW * PS * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBS / PB) */
+/** Source-body junction capacitance above FC·PB (linear extension): Csb = CJ * AS * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBS / PB) + CJSW * PerS * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBS / PB) */
 export const sourceJunctionForward = {
   id: "sourceJunctionForward",
   title: "Source-body junction capacitance above FC·PB (linear extension)",
-  expr: "CJ * AS * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBS / PB) + CJSW * PS * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBS / PB)",
+  expr: "CJ * AS * (1 - FC)^(-1 - MJ) * (1 - FC * (1 + MJ) + MJ * VBS / PB) + CJSW * PerS * (1 - FC)^(-1 - MJSW) * (1 - FC * (1 + MJSW) + MJSW * VBS / PB)",
   tex: "C_{sb} = {C_{J}}\\cdot{A_{S}}\\cdot{\\left(1-{F_{C}}\\right)}^{-1-{M_{J}}}\\cdot\\left(1-{F_{C}}\\cdot\\left(1+{M_{J}}\\right)+\\frac{{M_{J}}\\cdot{V_{BS}}}{{\\phi_{B}}}\\right)+{C_{JSW}}\\cdot{P_{S}}\\cdot{\\left(1-{F_{C}}\\right)}^{-1-{M_{JSW}}}\\cdot\\left(1-{F_{C}}\\cdot\\left(1+{M_{JSW}}\\right)+\\frac{{M_{JSW}}\\cdot{V_{BS}}}{{\\phi_{B}}}\\right)",
   result: "Csb",
   resultDim: "capacitance",
-  vars: ["CJ","AS","FC","MJ","VBS","PB","CJSW","PS","MJSW"],
+  vars: ["CJ","AS","FC","MJ","VBS","PB","CJSW","PerS","MJSW"],
   dims: ["capacitancePerArea","area","dimensionless","dimensionless","voltage","voltage","capacitancePerWidth","length","dimensionless"],
   source: "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1",
-  fn: (CJ: FaradsPerSquareMeter, AS: SquareMeters, FC: Ratio, MJ: Ratio, VBS: Volts, PB: Volts, CJSW: FaradsPerMeter, PS: Meters, MJSW: Ratio): Farads => ((((CJ * AS) * (((1 - FC)) ** (((-1) - MJ)))) * (((1 - (FC * ((1 + MJ)))) + ((MJ * VBS) / PB)))) + (((CJSW * PS) * (((1 - FC)) ** (((-1) - MJSW)))) * (((1 - (FC * ((1 + MJSW)))) + ((MJSW * VBS) / PB))))) as Farads,
+  fn: (CJ: FaradsPerSquareMeter, AS: SquareMeters, FC: Ratio, MJ: Ratio, VBS: Volts, PB: Volts, CJSW: FaradsPerMeter, PerS: Meters, MJSW: Ratio): Farads => ((((CJ * AS) * (((1 - FC)) ** (((-1) - MJ)))) * (((1 - (FC * ((1 + MJ)))) + ((MJ * VBS) / PB)))) + (((CJSW * PerS) * (((1 - FC)) ** (((-1) - MJSW)))) * (((1 - (FC * ((1 + MJSW)))) + ((MJSW * VBS) / PB))))) as Farads,
 } as const satisfies Formula;
 
 /** Drain area from the diffusion length: AD = W * Ldif */
@@ -226,13 +226,13 @@ export const drainAreaDefault = {
   fn: (W: Meters, Ldif: Meters): SquareMeters => (W * Ldif) as SquareMeters,
 } as const satisfies Formula;
 
-/** Drain perimeter from the diffusion length: PD = 2 * (W + Ldif) */
+/** Drain perimeter from the diffusion length: PerD = 2 * (W + Ldif) */
 export const drainPerimeterDefault = {
   id: "drainPerimeterDefault",
   title: "Drain perimeter from the diffusion length",
   expr: "2 * (W + Ldif)",
   tex: "P_{D} = 2\\cdot\\left({W}+{L_{dif}}\\right)",
-  result: "PD",
+  result: "PerD",
   resultDim: "length",
   vars: ["W","Ldif"],
   dims: ["length","length"],
@@ -254,13 +254,13 @@ export const sourceAreaDefault = {
   fn: (W: Meters, Ldif: Meters): SquareMeters => (W * Ldif) as SquareMeters,
 } as const satisfies Formula;
 
-/** Source perimeter from the diffusion length: PS = 2 * (W + Ldif) */
+/** Source perimeter from the diffusion length: PerS = 2 * (W + Ldif) */
 export const sourcePerimeterDefault = {
   id: "sourcePerimeterDefault",
   title: "Source perimeter from the diffusion length",
   expr: "2 * (W + Ldif)",
   tex: "P_{S} = 2\\cdot\\left({W}+{L_{dif}}\\right)",
-  result: "PS",
+  result: "PerS",
   resultDim: "length",
   vars: ["W","Ldif"],
   dims: ["length","length"],

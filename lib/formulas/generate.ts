@@ -31,6 +31,7 @@ const typeOfDim: Record<Dimension, string> = {
   voltageLength: "VoltMeters",
   temperature: "Kelvin",
   power: "Watts",
+  thermalResistance: "KelvinPerWatt",
   capacitance: "Farads",
   capacitancePerArea: "FaradsPerSquareMeter",
   mobility: "Mobility",

@@ -8,7 +8,7 @@
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import escapeHtml from "escape-html";
-import { PinchoffError } from "../errors.js";
+import { InputError, PinchoffError } from "../errors.js";
 import type { PlotSpec } from "./figure.js";
 
 /** Event the library script fires once window.Plotly exists. */
@@ -64,10 +64,21 @@ export interface PlotHtmlOptions {
 /** What plotHtml draws: a whole spec, or a figure read back from a saved notebook with its title. */
 export type DrawablePlot = Pick<PlotSpec, "title"> & Partial<Pick<PlotSpec, "summary" | "kind">> & { readonly figure: { readonly data: unknown; readonly layout?: { readonly height?: number }; readonly config?: unknown } };
 
-/** A figure as an HTML fragment: a box, a note shown until drawn, and the drawing script. */
+/** Plot heights a page accepts, in CSS px. */
+export const plotHeightRange = { min: 50, max: 10_000, default: 420 } as const;
+
+/** A height that may go into a style attribute: a finite number of px in range, nothing else (a string could carry markup). */
+export function plotHeight(value: unknown, origin: string): number {
+  if (value === undefined) return plotHeightRange.default;
+  if (typeof value !== "number" || !Number.isFinite(value) || value < plotHeightRange.min || value > plotHeightRange.max)
+    throw new InputError(value, `a plot height in px, a number from ${plotHeightRange.min} to ${plotHeightRange.max}`, origin);
+  return value;
+}
+
+/** A figure as an HTML fragment: a box, a note shown until drawn, and the drawing script. Every value in an attribute is escaped or checked. */
 export function plotHtml(spec: DrawablePlot, opts: PlotHtmlOptions = {}): string {
   const id = plotId();
-  const height = opts.height ?? spec.figure.layout?.height ?? 420;
+  const height = opts.height !== undefined ? plotHeight(opts.height, "plot height option") : plotHeight(spec.figure.layout?.height, `layout.height of plot "${spec.title}"`);
   const note =
     `Plot “${escapeHtml(spec.title)}” is drawn by the embedded plotting library. If this text stays, the library is not in this page: ` +
     `run the notebook again from the top (restart the kernel and run all cells), so the first plot output carries it.`;

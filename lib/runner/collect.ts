@@ -5,6 +5,7 @@
  * well-formed, since a notebook may have been edited by hand.
  */
 import type { CheckEntry, DerivationData } from "../record/derivation.js";
+import { plotHeight } from "../plot/html.js";
 import type { CellStatus } from "./execute.js";
 import { cellSource, type Notebook, type NotebookOutput } from "./notebook-file.js";
 
@@ -66,6 +67,23 @@ function isFigure(v: unknown): v is PlotFigure {
   return !!v && typeof v === "object" && Array.isArray((v as PlotFigure).data);
 }
 
+/**
+ * A saved notebook may have been edited by anyone: a layout height that is not
+ * a plain number in range is dropped (the plot takes the default height), so
+ * it can never reach an HTML attribute.
+ */
+function saneFigure(fig: PlotFigure): PlotFigure {
+  const h = fig.layout?.height;
+  if (h === undefined) return fig;
+  try {
+    plotHeight(h, "layout.height");
+    return fig;
+  } catch {
+    const { height: _dropped, ...layout } = fig.layout!;
+    return { ...fig, layout };
+  }
+}
+
 /** The text a failed cell left: error outputs first, else its stderr. */
 function errorLines(outputs: readonly NotebookOutput[], max = 6): string[] {
   const err = outputs.find((o) => o.output_type === "error");
@@ -95,7 +113,7 @@ export function collect(nb: Notebook, status: ReadonlyMap<number, CellStatus>): 
         const title = (p as { title?: unknown }).title ?? (fig.layout?.title as { text?: unknown } | string | undefined);
         const t = typeof title === "string" ? title : typeof (title as { text?: unknown })?.text === "string" ? ((title as { text: string }).text) : undefined;
         const summary = (p as { summary?: unknown }).summary;
-        plots.push({ cell: i, figure: fig, ...(t ? { title: t } : {}), ...(typeof summary === "string" ? { summary } : {}) });
+        plots.push({ cell: i, figure: saneFigure(fig), ...(t ? { title: t } : {}), ...(typeof summary === "string" ? { summary } : {}) });
       }
     }
     const s = status.get(i);

@@ -10,7 +10,7 @@ import { basename, dirname, extname, join, resolve } from "node:path";
 import { PinchoffError } from "../errors.js";
 import { fingerprint } from "../record/fingerprint.js";
 import { buildReport, reportMarker, type ReportModel } from "../report/html.js";
-import { checkReplaceable, prepareOutputDir, removeIfEmpty, writeAtomically } from "./atomic-write.js";
+import { checkReplaceable, prepareOutputDir, removeIfEmpty, writeAtomically } from "../io/atomic-write.js";
 import { allChecks, collect, type CellFailure, type CheckLine, type Collected } from "./collect.js";
 import { findJupyter, requireKernel, startKernelSession, type KernelSession } from "./execute.js";
 import { applyOverrides, findInputsCell, resolveInputs, type Override, type ParsedInput } from "./inputs-cell.js";

@@ -46,6 +46,8 @@ const displayUnits: Record<Dimension, DisplayUnit> = {
   voltageLength: { text: "mV·µm", tex: "\\mathrm{mV\\,\\mu m}", prefix: false, scale: 1e9 },
   temperature: { text: "K", tex: "\\mathrm{K}", prefix: false },
   power: { text: "W", tex: "\\mathrm{W}", prefix: true },
+  // Datasheets quote RθJA in °C/W; a kelvin step equals a degree Celsius step.
+  thermalResistance: { text: "K/W", tex: "\\mathrm{K/W}", prefix: false },
   capacitance: { text: "F", tex: "\\mathrm{F}", prefix: true },
   // Oxide capacitance is quoted per square micrometre in the trade (common practice).
   capacitancePerArea: { text: "fF/µm²", tex: "\\mathrm{fF/\\mu m^{2}}", prefix: false, scale: 1e3 },

@@ -7,3 +7,6 @@ export { parseQuantity, parseAny, unitEngineLoaded, describeDimension, type AnyQ
 export { readSpiceNumber, spiceScaleFactors } from "./spice-number.js";
 export { readValueCode, valueCodeLetters, type ValueCode, type ValueCodeDimension } from "./value-code.js";
 export * from "./format.js";
+// Card and design-file sections read from JSON with units.
+export { parsePartCard, readPartCard } from "../bias/part-file.js";
+export { parseToleranceSection } from "../bias/tolerance-file.js";

@@ -27,7 +27,7 @@ import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
 import { spiceNumber } from "../spice.js";
 import { spicePrefix } from "../../spice/deck.js";
-import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
+import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
 export const mirrorComponents: readonly ComponentField[] = [
   { name: "rref", dim: "resistance", required: true, meaning: "reference resistor from the drain-side rail to the diode-connected reference transistor" },
@@ -277,6 +277,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     checks.push(stageCheck("M2 dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  checks.push(...partChecks(stage.devices?.reference, { vgs, vds: vgs, id: iref, power: p1 }, "M1", rec), ...partChecks(stage.device, { vgs, vds: vds2, id: iout, power: p2 }, "M2", rec));
   const findings: string[] = [];
   const ideal = (iref * ratio) as Amperes;
   if (m2.small.op.region === "triode")

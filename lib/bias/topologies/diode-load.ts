@@ -29,7 +29,7 @@ import { checkComponents, checkStage } from "../stage.js";
 import { spiceNumber } from "../spice.js";
 import { spicePrefix } from "../../spice/deck.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
-import { evaluateDevice, fmt, modelLine, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
+import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
 export const diodeLoadComponents: readonly ComponentField[] = [{ name: "vg", dim: "voltage", required: true, meaning: "driver gate bias voltage (absolute, from an ideal source)" }];
 
@@ -303,6 +303,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     checks.push(stageCheck("Load dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
   }
   if (lim.maxTotalPower !== undefined) checks.push(stageCheck("Total supply power", total, "power", { max: lim.maxTotalPower }, rec));
+  checks.push(...partChecks(stage.device, { vgs: s * c.vg - p.vsr, vds: vds1, id: idNet, power: p1 }, "driver", rec), ...partChecks(stage.devices?.load, { vgs: vload, vds: vload, id: idNet, power: p2 }, "load", rec));
   if (p.sameType && stage.body !== "rail" && (load.card.gamma ?? 0) > 0) findings.push("The load's body is tied to its own source: that needs a separate well. On a common substrate set body to \"rail\" for the body effect.");
   findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
   recordFindings(findings, rec);

@@ -11,7 +11,9 @@ import { InputError } from "../../errors.js";
 import type { Volts, Watts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
 import { level1Model } from "../spice.js";
-import type { Stage, StageDeviceAnalysis, SwingLimits } from "../topology.js";
+import type { Stage, StageCheck, StageDevice, StageDeviceAnalysis, SwingLimits } from "../topology.js";
+import { ratingChecks, type PartStress } from "../../device/discrete-part.js";
+import { stageCheck } from "../metrics.js";
 
 export const stageOrigin = (stage: Stage<string, unknown>): string => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -120,3 +122,9 @@ export function recordFindings(findings: readonly string[], rec?: Derivation): v
 }
 
 export const fmt = (x: number): string => String(+x.toPrecision(6));
+
+/** A discrete part's ratings checks for one transistor of a stage (none for a device without a part); `label` tells the transistors apart. */
+export function partChecks(d: StageDevice | undefined, stress: PartStress, label: string, rec?: Derivation): StageCheck[] {
+  if (!d?.part) return [];
+  return ratingChecks(d.part, stress, (name, value, dim, max, detail) => stageCheck(name, value, dim, { max }, rec, detail), rec, `${label} ${d.part.part.name}`);
+}
