@@ -52,6 +52,25 @@ describe("pinchoff op with a frequency section", () => {
     expect(r.code).toBe(1);
     expect(r.err).toMatch(/Low-frequency corner/);
   });
+  it("takes a discrete part's datasheet capacitances from its part card", async () => {
+    // Invented part: k = gfs²/(2·ID) = 0.1 A/V², VGS(th) 2 V; Ciss 60 pF, Crss 5 pF, Coss 25 pF at 25 V.
+    const part = {
+      name: "QN-60 (invented)",
+      polarity: "nmos",
+      threshold: { vgs: "2.0 V", id: "1 mA" },
+      forwardTransconductance: { gfs: "200 mS", id: "200 mA", vds: "10 V" },
+      ratings: { vds: "60 V", vgs: "20 V", id: "300 mA", pd: "400 mW", pdAt: { ambient: "25 degC" }, tjMax: "150 degC", rthJA: "312.5 K/W" },
+      capacitances: { ciss: "60 pF", crss: "5 pF", coss: "25 pF", vds: "25 V" },
+      provenance: "invented for the tests",
+    };
+    const d = { name: "discrete stage (invented)", topology: "four-resistor", device: { part }, components: { rg1: "1 Mohm", rg2: "270 kohm", rd: "1 kohm", rs: "220 ohm" }, supplies: { vdd: "12 V" }, frequency: { source: { resistance: "600 ohm" }, load: { resistance: "10 kohm" }, targets: { lowCorner: "50 Hz" } } };
+    const r = await captureCli(main, [write("part.json", d), "--json"]);
+    const j = JSON.parse(r.out);
+    expect(j.frequency.capacitances.from).toBe("datasheet");
+    expect(j.frequency.capacitances.cgs).toBeCloseTo(55e-12, 20);
+    expect(j.frequency.capacitances.cgd).toBeCloseTo(5e-12, 20);
+    expect(j.frequency.capacitances.cds).toBeCloseTo(20e-12, 20);
+  }, 60_000);
   it("refuses a source impedance that is not a resistance, naming the field", () => {
     expect(() => parseDesignFile({ ...design, frequency: { source: { resistance: "50 ohm", reactance: "10 ohm" } } }, "d.json")).toThrow(/d\.json: frequency\.source\.reactance.*resistance/);
     expect(() => parseDesignFile({ ...design, frequency: { source: { resistance: "10 pF" } } }, "d.json")).toThrow(/frequency\.source\.resistance/);
