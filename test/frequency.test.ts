@@ -147,3 +147,41 @@ describe("bad input", () => {
     expect(() => analyzeFrequency(fb, analyzeStage(fb as never), spec)).toThrow(/topology the frequency analysis covers/);
   });
 });
+
+describe("cascode stage poles", () => {
+  // Invented: equal input and cascode devices, body at the source, RD far below ro (λ small).
+  const cas: Stage = {
+    topology: "cascode-stage",
+    name: "cascode gain stage (invented)",
+    device: { card, w: meters(40e-6), l: meters(2e-6) },
+    devices: { cascode: { card, w: meters(40e-6), l: meters(2e-6) } },
+    components: { vg: volts(1.2), vcas: volts(3), rd: ohms(10e3) },
+    supplies: { vdd: volts(12) },
+  } as never;
+  const dc = analyzeStage(cas as never);
+  it("M1's Miller factor is 1 + gm1·RX ≈ 1 + gm1/gm2 ≈ 2 (hand calculation), the output pole dominates", () => {
+    const rec = new Derivation("cascode");
+    const fa = analyzeFrequency(cas, dc, { source: { resistance: ohms(1e3) }, load: { capacitance: farads(5e-12) } }, rec);
+    const gm1 = dc.smallSignal.gm;
+    const gm2 = dc.devices!.M2!.smallSignal.gm;
+    // Same current, same size, body at the source: gm2 = gm1 up to λ; RX ≈ (1 + gds2·RD)/gm2.
+    expect(Math.abs(gm2 / gm1 - 1)).toBeLessThan(0.1); // differs only through λ·VDS
+    expectReevaluates(rec);
+    expect(1 + fa.cascode!.gainToX).toBeGreaterThan(1.9);
+    expect(1 + fa.cascode!.gainToX).toBeLessThan(2.3);
+    expect(fa.checks.find((c) => c.name.startsWith("Miller factor"))!.passed).toBe(true);
+    // Output pole 1/(2π·RD'·(CL + Cgd2)) is the lowest node pole and the open-circuit estimate lies just below it.
+    expect(fa.cascode!.outputPole).toBeLessThan(fa.cascode!.nodePole);
+    expect(fa.high.octcCorner).toBeLessThan(fa.cascode!.outputPole);
+    expect(fa.high.octcCorner / fa.cascode!.outputPole).toBeGreaterThan(0.8);
+    expect(fa.high.dominantPoleHolds).toBe(true);
+    expect(fa.midbandGain).toBeLessThan(0);
+  });
+  it("refuses a load resistor and capacitors (the stage is DC-coupled) and a cascode card without capacitances", () => {
+    expect(() => analyzeFrequency(cas, dc, { load: { resistance: ohms(10e3) } })).toThrow(InputError);
+    expect(() => analyzeFrequency(cas, dc, { targets: { lowCorner: hertz(20) } })).toThrow(InputError);
+    const bare = { ...cas, devices: { cascode: { card: { ...card, capacitance: undefined }, w: meters(40e-6), l: meters(2e-6) } } } as Stage;
+    expect(() => analyzeFrequency(bare, analyzeStage(bare as never), {})).toThrow(/TOX/);
+    expect(() => analyzeFrequency(cas, dc, { targets: { highCorner: hertz(1e12) } })).toThrow(InfeasibleError);
+  });
+});

@@ -48,16 +48,18 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     lines.push(`C${p}IN ${gateIn} ${n.gate} ${spiceNumber(cap("input")!)}`);
   } else {
     // DC-coupled gate: the signal source goes in series with the gate bias source.
-    const i = lines.findIndex((l) => l.startsWith(`V${p}G `));
-    if (i < 0) throw new Error(`internal: no gate bias source V${p}G in the ${stage.topology} deck`);
+    // The source holding the gate node: V<p>G (single-transistor decks) or V<p>vg (circuit decks).
+    const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === n.gate && l.split(" ")[2] === "0");
+    if (i < 0) throw new Error(`internal: no gate bias source at node ${n.gate} in the ${stage.topology} deck`);
     const bias = `${p}gdc`;
-    lines[i] = lines[i]!.replace(`V${p}G ${n.gate} `, `V${p}G ${bias} `);
+    const [name, , ...rest] = lines[i]!.split(" ");
+    lines[i] = [name, bias, ...rest].join(" ");
     lines.push(`V${p}SIG ${sig} ${bias} DC 0 AC 1`);
     lines.push(rsig > 0 ? `R${p}SIG ${sig} ${n.gate} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${n.gate} 0`);
   }
   const cb = cap("bypass");
   if (cb !== undefined) lines.push(`C${p}B ${n.source} 0 ${spiceNumber(cb)}`);
-  const outNode = fa.outputNode === "drain" ? n.drain : n.source;
+  const outNode = fa.view === "cascode" ? (dc.nodes as Record<string, string>).out! : fa.outputNode === "drain" ? n.drain : n.source;
   let out = outNode;
   if (fa.load.resistance !== undefined) {
     out = `${p}out`;
@@ -68,6 +70,16 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   if (!stage.device.card.capacitance && stage.device.card.datasheetCapacitances) {
     const c = deviceCapacitances(stage.device, analysis.op);
     lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`, `C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+  }
+  const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
+  const m2 = analysis.devices?.M2;
+  if (fa.view === "cascode" && cas && m2 && !cas.card.capacitance && cas.card.datasheetCapacitances) {
+    // The cascode device M2: gate at vcas, source at x, drain at out.
+    const c = deviceCapacitances(cas, m2.op);
+    const g = (dc.nodes as Record<string, string>).vcas!;
+    const x = (dc.nodes as Record<string, string>).x!;
+    const d = (dc.nodes as Record<string, string>).out!;
+    lines.push(`C${p}GS2 ${g} ${x} ${spiceNumber(c.cgs)}`, `C${p}GD2 ${g} ${d} ${spiceNumber(c.cgd)}`, `C${p}DS2 ${d} ${x} ${spiceNumber(c.cds)}`);
   }
   return { lines, output: out, sweep };
 }

@@ -21,7 +21,7 @@
  * Views: common source (four-resistor, fixed-gate, current-source-bias; gate
  * AC-coupled through a divider or DC-coupled in series with its bias source,
  * source bypassed when it has a resistor or current source) and source
- * follower (drain at its rail). Other topologies are refused with an InputError.
+ * follower (drain at its rail); the cascode stage in lib/bias/frequency-cascode.ts. Other topologies are refused with an InputError.
  * Small-signal values are the DC analysis's (square law); device capacitances
  * from lib/device/capacitance.ts. Not on a hot path; allocates its result.
  */
@@ -32,6 +32,7 @@ import * as ff from "../formulas/frequency.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 import { nearestStandard, standardValuesAround, type SeriesName } from "./eseries.js";
+import { analyzeCascodeFrequency, type CascodeFrequencyNodes } from "./frequency-cascode.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -48,7 +49,7 @@ export interface FrequencySpec {
   readonly series?: "E6" | "E12";
 }
 
-export type FrequencyView = "common-source" | "source-follower";
+export type FrequencyView = "common-source" | "source-follower" | "cascode";
 export type CapacitorRole = "input" | "output" | "bypass";
 
 export interface CouplingCapacitor {
@@ -125,6 +126,8 @@ export interface FrequencyAnalysis {
   readonly findings: readonly string[];
   /** What the SPICE export needs: the gate coupling (divider: AC-coupled), the source resistor of the bypass zero. */
   readonly circuit: { readonly gateCoupled: boolean; readonly rs: number; readonly bypassToIdealSource: boolean };
+  /** Cascode stage only: the node between the devices and the node poles (lib/bias/frequency-cascode.ts). */
+  readonly cascode?: CascodeFrequencyNodes;
 }
 
 /** The pole-dominance ratio the OCTC and Miller estimates assume (common practice: a decade). */
@@ -132,7 +135,7 @@ export const dominanceRatio = 10;
 /** Share of the target corner given to each non-dominant capacitor: a decade below (common practice). */
 export const nonDominantShare = 0.1;
 
-const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower"] as const;
+const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage"] as const;
 
 const origin = (stage: Stage) => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -194,6 +197,18 @@ export function analyzeFrequency(stage: Stage, analysis: StageAnalysis, spec: Fr
   if (!hasCapacitanceData(stage.device.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: device.card "${stage.device.card.name}"`, "invalid-design");
   if (analysis.region !== "saturation")
     throw new InfeasibleError(`the device is in ${analysis.region}, not saturation: there is no amplifier to analyse; fix the bias first`, o);
+  if (stage.topology === "cascode-stage") {
+    const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
+    if (cas && !hasCapacitanceData(cas.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.cascode.card "${cas.card.name}"`, "invalid-design");
+    const fa = analyzeCascodeFrequency(stage, analysis, spec, o, rec);
+    const t = spec.targets?.highCorner;
+    if (t !== undefined && fa.high.corner < t)
+      throw new InfeasibleError(
+        `the upper corner is ${fmt(fa.high.corner)} Hz (open-circuit time constants: ${fmt(fa.high.octcCorner)} Hz), below the target ${fmt(t)} Hz: lower the source resistance, the load capacitance or RD, or use smaller devices`,
+        `${o}: frequency.targets.highCorner`,
+      );
+    return fa;
+  }
   const c = stage.components as Record<string, number | undefined>;
   const follower = stage.topology === "source-follower";
   if (follower && (c.rd ?? 0) > 0)

@@ -66,6 +66,26 @@ export const symbols = defineSymbols({
   fz: { tex: "f_{z}", dim: "frequency", meaning: "zero" },
   sep: { tex: "f_{p2}/f_{p1}", dim: "dimensionless", meaning: "pole separation" },
   share: { tex: "s_{x}", dim: "dimensionless", meaning: "share of the target corner given to one capacitor" },
+  // cascode stage
+  gm1: { tex: "g_{m1}", dim: "conductance", meaning: "transconductance of the input device" },
+  gds1: { tex: "g_{ds1}", dim: "conductance", meaning: "output conductance of the input device" },
+  gm2: { tex: "g_{m2}", dim: "conductance", meaning: "transconductance of the cascode device" },
+  gmb2: { tex: "g_{mb2}", dim: "conductance", meaning: "body transconductance of the cascode device (0 with its body at its source)" },
+  gds2: { tex: "g_{ds2}", dim: "conductance", meaning: "output conductance of the cascode device" },
+  RoutCas: { tex: "R_{out}", dim: "resistance", meaning: "resistance looking into the cascode drain" },
+  RX: { tex: "R_{X}", dim: "resistance", meaning: "resistance at the node between the input and cascode devices" },
+  CX: { tex: "C_{X}", dim: "capacitance", meaning: "capacitance from the node between the devices to AC ground" },
+  Cdb1: { tex: "C_{db1}", dim: "capacitance", meaning: "drain junction capacitance of the input device" },
+  Cds1: { tex: "C_{ds1}", dim: "capacitance", meaning: "drain-source capacitance of the input device" },
+  Cgs2: { tex: "C_{gs2}", dim: "capacitance", meaning: "gate-source capacitance of the cascode device" },
+  Cgd2: { tex: "C_{gd2}", dim: "capacitance", meaning: "gate-drain capacitance of the cascode device" },
+  Cgb2: { tex: "C_{gb2}", dim: "capacitance", meaning: "gate-body capacitance of the cascode device" },
+  Csb2: { tex: "C_{sb2}", dim: "capacitance", meaning: "source junction capacitance of the cascode device" },
+  Cdb2: { tex: "C_{db2}", dim: "capacitance", meaning: "drain junction capacitance of the cascode device" },
+  Cds2: { tex: "C_{ds2}", dim: "capacitance", meaning: "drain-source capacitance of the cascode device" },
+  tau4: { tex: "\\tau_{4}", dim: "time", meaning: "open-circuit time constant of the capacitance across the cascode device, drain to source" },
+  CDS2: { tex: "C_{ds2}'", dim: "capacitance", meaning: "capacitance across the cascode device from drain to source (Cds2, plus Cdb2 with its body at its source)" },
+  AvX: { tex: "A_{vX}", dim: "dimensionless", meaning: "magnitude of the gain from the input gate to the node between the devices" },
 });
 
 export const formulas = defineFormulas({
@@ -132,6 +152,46 @@ export const formulas = defineFormulas({
   millerCapacitance: { title: "Miller input capacitance", result: "CM", expr: "CGI + CGO * (1 + gm * RLP)", source: miller },
   millerInputPole: { title: "Input pole with the Miller capacitance", result: "f1", expr: "1 / (2 * pi * RSP * CM)", source: miller },
   millerOutputPole: { title: "Output pole with the Miller-reflected gate-drain capacitance", result: "f2", expr: "1 / (2 * pi * RLP * (CO + CGO * (1 + 1 / (gm * RLP))))", source: miller },
+  // cascode stage (input M1, cascode M2, output at M2's drain)
+  cascodeOutputNodeResistance: { title: "Total resistance at the cascode stage's output (RD in parallel with the cascode)", result: "RLP", expr: "1 / (1 / RD + 1 / RoutCas)", source: nodal },
+  cascodeNodeResistance: {
+    title: "Resistance at the node between the devices: ro1 in parallel with the cascode's source, (ro2 + RD)/(1 + (gm2 + gmb2)·ro2)",
+    result: "RX",
+    expr: "1 / (gds1 + (gm2 + gmb2 + gds2) / (1 + gds2 * RD))",
+    source: nodal,
+  },
+  cascodeNodeGain: { title: "Gain from the input gate to the node between the devices (≈ gm1/gm2 when RD ≪ ro2)", result: "AvX", expr: "gm1 * RX", source: nodal },
+  cascodeNodeCapacitance: { title: "Capacitance at the node between the devices, cascode body at its rail", result: "CX", expr: "Cdb1 + Cds1 + Cgs2 + Csb2", source: nodal },
+  cascodeNodeCapacitanceTied: { title: "Capacitance at the node between the devices, cascode body at its source", result: "CX", expr: "Cdb1 + Cds1 + Cgs2 + Cgb2", source: nodal },
+
+  cascodeOutputCapacitance: { title: "Capacitance at the cascode stage's output, cascode body at its rail", result: "CO", expr: "CL + Cgd2 + Cdb2", source: nodal },
+  cascodeOutputCapacitanceTied: { title: "Capacitance at the cascode stage's output, cascode body at its source (Cdb2 then bridges drain and source)", result: "CO", expr: "CL + Cgd2", source: nodal },
+  cascodeAcrossCapacitance: { title: "Capacitance across the cascode device, cascode body at its rail", result: "CDS2", expr: "Cds2", source: nodal },
+  cascodeAcrossCapacitanceTied: { title: "Capacitance across the cascode device, cascode body at its source", result: "CDS2", expr: "Cds2 + Cdb2", source: nodal },
+  cascodeAcrossTimeConstant: {
+    title: "Open-circuit time constant of the capacitance across the cascode device (≈ CDS2/gm2: the cascode returns its current to the output)",
+    result: "tau4",
+    expr: "CDS2 * (1 + gds1 * RD) / (gm2 + gmb2 + gds1 + gds2 + gds1 * gds2 * RD)",
+    source: octc,
+  },
+  cascodeMidband: {
+    title: "Midband gain of the cascode stage: M1's current less the share ro1 takes, into the output resistance",
+    result: "Av",
+    expr: "-gm1 * (gm2 + gmb2 + gds2) / (gm2 + gmb2 + gds2 + gds1) * RLP",
+    source: nodal,
+  },
+  cascodeBridgeTimeConstant: { title: "Open-circuit time constant of the input device's gate-drain capacitance, drain at the node between the devices", result: "tau", expr: "CGO * (RSP * (1 + gm1 * RX) + RX)", source: octc },
+  cascodeNodeTimeConstant: { title: "Open-circuit time constant of the capacitance at the node between the devices", result: "tau", expr: "CX * RX", source: octc },
+  cascodeTimeConstantSum: { title: "Sum of the open-circuit time constants (five capacitances)", result: "b1", expr: "tau1 + tau2 + tau3 + tau + tau4", source: octc },
+  cascodeMillerCapacitance: { title: "Miller input capacitance of the input device, its drain at the node between the devices", result: "CM", expr: "CGI + CGO * (1 + AvX)", source: miller },
+  cascodeNodePole: { title: "Pole of the node between the devices, with the Miller-reflected gate-drain capacitance", result: "f2", expr: "1 / (2 * pi * RX * (CX + CGO * (1 + 1 / AvX)))", source: miller },
+  cascodeB2: {
+    title: "Second-order coefficient (as √b2) that puts the two-pole denominator's roots at the open-circuit estimate and the non-dominant node pole",
+    result: "b2",
+    expr: "sqrt(b1 / (2 * pi * fp2))",
+    source: octc,
+  },
+  cascodeOutputPole: { title: "Pole of the cascode stage's output node", result: "f3", expr: "1 / (2 * pi * RLP * CO)", source: nodal },
   // source follower
   followerBridgeTimeConstant: {
     title: "Open-circuit time constant of the gate-source capacitance (follower)",

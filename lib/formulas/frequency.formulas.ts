@@ -576,6 +576,258 @@ export const millerOutputPole = {
   fn: (RLP: Ohms, CO: Farads, CGO: Farads, gm: Siemens): Hertz => (1 / ((((2 * Math.PI) * RLP) * ((CO + (CGO * ((1 + (1 / ((gm * RLP))))))))))) as Hertz,
 } as const satisfies Formula;
 
+/** Total resistance at the cascode stage's output (RD in parallel with the cascode): RLP = 1 / (1 / RD + 1 / RoutCas) */
+export const cascodeOutputNodeResistance = {
+  id: "cascodeOutputNodeResistance",
+  title: "Total resistance at the cascode stage's output (RD in parallel with the cascode)",
+  expr: "1 / (1 / RD + 1 / RoutCas)",
+  tex: "R_{L}' = \\frac{1}{\\frac{1}{{R_{D}}}+\\frac{1}{{R_{out}}}}",
+  result: "RLP",
+  resultDim: "resistance",
+  vars: ["RD","RoutCas"],
+  dims: ["resistance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RD: Ohms, RoutCas: Ohms): Ohms => (1 / (((1 / RD) + (1 / RoutCas)))) as Ohms,
+} as const satisfies Formula;
+
+/** Resistance at the node between the devices: ro1 in parallel with the cascode's source, (ro2 + RD)/(1 + (gm2 + gmb2)·ro2): RX = 1 / (gds1 + (gm2 + gmb2 + gds2) / (1 + gds2 * RD)) */
+export const cascodeNodeResistance = {
+  id: "cascodeNodeResistance",
+  title: "Resistance at the node between the devices: ro1 in parallel with the cascode's source, (ro2 + RD)/(1 + (gm2 + gmb2)·ro2)",
+  expr: "1 / (gds1 + (gm2 + gmb2 + gds2) / (1 + gds2 * RD))",
+  tex: "R_{X} = \\frac{1}{{g_{ds1}}+\\frac{{g_{m2}}+{g_{mb2}}+{g_{ds2}}}{1+{g_{ds2}}\\cdot{R_{D}}}}",
+  result: "RX",
+  resultDim: "resistance",
+  vars: ["gds1","gm2","gmb2","gds2","RD"],
+  dims: ["conductance","conductance","conductance","conductance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gds1: Siemens, gm2: Siemens, gmb2: Siemens, gds2: Siemens, RD: Ohms): Ohms => (1 / ((gds1 + ((((gm2 + gmb2) + gds2)) / ((1 + (gds2 * RD))))))) as Ohms,
+} as const satisfies Formula;
+
+/** Gain from the input gate to the node between the devices (≈ gm1/gm2 when RD ≪ ro2): AvX = gm1 * RX */
+export const cascodeNodeGain = {
+  id: "cascodeNodeGain",
+  title: "Gain from the input gate to the node between the devices (≈ gm1/gm2 when RD ≪ ro2)",
+  expr: "gm1 * RX",
+  tex: "A_{vX} = {g_{m1}}\\cdot{R_{X}}",
+  result: "AvX",
+  resultDim: "dimensionless",
+  vars: ["gm1","RX"],
+  dims: ["conductance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm1: Siemens, RX: Ohms): Ratio => (gm1 * RX) as Ratio,
+} as const satisfies Formula;
+
+/** Capacitance at the node between the devices, cascode body at its rail: CX = Cdb1 + Cds1 + Cgs2 + Csb2 */
+export const cascodeNodeCapacitance = {
+  id: "cascodeNodeCapacitance",
+  title: "Capacitance at the node between the devices, cascode body at its rail",
+  expr: "Cdb1 + Cds1 + Cgs2 + Csb2",
+  tex: "C_{X} = {C_{db1}}+{C_{ds1}}+{C_{gs2}}+{C_{sb2}}",
+  result: "CX",
+  resultDim: "capacitance",
+  vars: ["Cdb1","Cds1","Cgs2","Csb2"],
+  dims: ["capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cdb1: Farads, Cds1: Farads, Cgs2: Farads, Csb2: Farads): Farads => (((Cdb1 + Cds1) + Cgs2) + Csb2) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance at the node between the devices, cascode body at its source: CX = Cdb1 + Cds1 + Cgs2 + Cgb2 */
+export const cascodeNodeCapacitanceTied = {
+  id: "cascodeNodeCapacitanceTied",
+  title: "Capacitance at the node between the devices, cascode body at its source",
+  expr: "Cdb1 + Cds1 + Cgs2 + Cgb2",
+  tex: "C_{X} = {C_{db1}}+{C_{ds1}}+{C_{gs2}}+{C_{gb2}}",
+  result: "CX",
+  resultDim: "capacitance",
+  vars: ["Cdb1","Cds1","Cgs2","Cgb2"],
+  dims: ["capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cdb1: Farads, Cds1: Farads, Cgs2: Farads, Cgb2: Farads): Farads => (((Cdb1 + Cds1) + Cgs2) + Cgb2) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance at the cascode stage's output, cascode body at its rail: CO = CL + Cgd2 + Cdb2 */
+export const cascodeOutputCapacitance = {
+  id: "cascodeOutputCapacitance",
+  title: "Capacitance at the cascode stage's output, cascode body at its rail",
+  expr: "CL + Cgd2 + Cdb2",
+  tex: "C_{o} = {C_{L}}+{C_{gd2}}+{C_{db2}}",
+  result: "CO",
+  resultDim: "capacitance",
+  vars: ["CL","Cgd2","Cdb2"],
+  dims: ["capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Cgd2: Farads, Cdb2: Farads): Farads => ((CL + Cgd2) + Cdb2) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance at the cascode stage's output, cascode body at its source (Cdb2 then bridges drain and source): CO = CL + Cgd2 */
+export const cascodeOutputCapacitanceTied = {
+  id: "cascodeOutputCapacitanceTied",
+  title: "Capacitance at the cascode stage's output, cascode body at its source (Cdb2 then bridges drain and source)",
+  expr: "CL + Cgd2",
+  tex: "C_{o} = {C_{L}}+{C_{gd2}}",
+  result: "CO",
+  resultDim: "capacitance",
+  vars: ["CL","Cgd2"],
+  dims: ["capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Cgd2: Farads): Farads => (CL + Cgd2) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance across the cascode device, cascode body at its rail: CDS2 = Cds2 */
+export const cascodeAcrossCapacitance = {
+  id: "cascodeAcrossCapacitance",
+  title: "Capacitance across the cascode device, cascode body at its rail",
+  expr: "Cds2",
+  tex: "C_{ds2}' = {C_{ds2}}",
+  result: "CDS2",
+  resultDim: "capacitance",
+  vars: ["Cds2"],
+  dims: ["capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cds2: Farads): Farads => Cds2 as Farads,
+} as const satisfies Formula;
+
+/** Capacitance across the cascode device, cascode body at its source: CDS2 = Cds2 + Cdb2 */
+export const cascodeAcrossCapacitanceTied = {
+  id: "cascodeAcrossCapacitanceTied",
+  title: "Capacitance across the cascode device, cascode body at its source",
+  expr: "Cds2 + Cdb2",
+  tex: "C_{ds2}' = {C_{ds2}}+{C_{db2}}",
+  result: "CDS2",
+  resultDim: "capacitance",
+  vars: ["Cds2","Cdb2"],
+  dims: ["capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cds2: Farads, Cdb2: Farads): Farads => (Cds2 + Cdb2) as Farads,
+} as const satisfies Formula;
+
+/** Open-circuit time constant of the capacitance across the cascode device (≈ CDS2/gm2: the cascode returns its current to the output): tau4 = CDS2 * (1 + gds1 * RD) / (gm2 + gmb2 + gds1 + gds2 + gds1 * gds2 * RD) */
+export const cascodeAcrossTimeConstant = {
+  id: "cascodeAcrossTimeConstant",
+  title: "Open-circuit time constant of the capacitance across the cascode device (≈ CDS2/gm2: the cascode returns its current to the output)",
+  expr: "CDS2 * (1 + gds1 * RD) / (gm2 + gmb2 + gds1 + gds2 + gds1 * gds2 * RD)",
+  tex: "\\tau_{4} = \\frac{{C_{ds2}'}\\cdot\\left(1+{g_{ds1}}\\cdot{R_{D}}\\right)}{{g_{m2}}+{g_{mb2}}+{g_{ds1}}+{g_{ds2}}+{g_{ds1}}\\cdot{g_{ds2}}\\cdot{R_{D}}}",
+  result: "tau4",
+  resultDim: "time",
+  vars: ["CDS2","gds1","RD","gm2","gmb2","gds2"],
+  dims: ["capacitance","conductance","resistance","conductance","conductance","conductance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CDS2: Farads, gds1: Siemens, RD: Ohms, gm2: Siemens, gmb2: Siemens, gds2: Siemens): Seconds => ((CDS2 * ((1 + (gds1 * RD)))) / (((((gm2 + gmb2) + gds1) + gds2) + ((gds1 * gds2) * RD)))) as Seconds,
+} as const satisfies Formula;
+
+/** Midband gain of the cascode stage: M1's current less the share ro1 takes, into the output resistance: Av = -gm1 * (gm2 + gmb2 + gds2) / (gm2 + gmb2 + gds2 + gds1) * RLP */
+export const cascodeMidband = {
+  id: "cascodeMidband",
+  title: "Midband gain of the cascode stage: M1's current less the share ro1 takes, into the output resistance",
+  expr: "-gm1 * (gm2 + gmb2 + gds2) / (gm2 + gmb2 + gds2 + gds1) * RLP",
+  tex: "A_{v} = \\frac{-{g_{m1}}\\cdot\\left({g_{m2}}+{g_{mb2}}+{g_{ds2}}\\right)}{{g_{m2}}+{g_{mb2}}+{g_{ds2}}+{g_{ds1}}}\\cdot{R_{L}'}",
+  result: "Av",
+  resultDim: "dimensionless",
+  vars: ["gm1","gm2","gmb2","gds2","gds1","RLP"],
+  dims: ["conductance","conductance","conductance","conductance","conductance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm1: Siemens, gm2: Siemens, gmb2: Siemens, gds2: Siemens, gds1: Siemens, RLP: Ohms): Ratio => ((((-gm1) * (((gm2 + gmb2) + gds2))) / ((((gm2 + gmb2) + gds2) + gds1))) * RLP) as Ratio,
+} as const satisfies Formula;
+
+/** Open-circuit time constant of the input device's gate-drain capacitance, drain at the node between the devices: tau = CGO * (RSP * (1 + gm1 * RX) + RX) */
+export const cascodeBridgeTimeConstant = {
+  id: "cascodeBridgeTimeConstant",
+  title: "Open-circuit time constant of the input device's gate-drain capacitance, drain at the node between the devices",
+  expr: "CGO * (RSP * (1 + gm1 * RX) + RX)",
+  tex: "\\tau = {C_{go}}\\cdot\\left({R_{sig}'}\\cdot\\left(1+{g_{m1}}\\cdot{R_{X}}\\right)+{R_{X}}\\right)",
+  result: "tau",
+  resultDim: "time",
+  vars: ["CGO","RSP","gm1","RX"],
+  dims: ["capacitance","resistance","conductance","resistance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CGO: Farads, RSP: Ohms, gm1: Siemens, RX: Ohms): Seconds => (CGO * (((RSP * ((1 + (gm1 * RX)))) + RX))) as Seconds,
+} as const satisfies Formula;
+
+/** Open-circuit time constant of the capacitance at the node between the devices: tau = CX * RX */
+export const cascodeNodeTimeConstant = {
+  id: "cascodeNodeTimeConstant",
+  title: "Open-circuit time constant of the capacitance at the node between the devices",
+  expr: "CX * RX",
+  tex: "\\tau = {C_{X}}\\cdot{R_{X}}",
+  result: "tau",
+  resultDim: "time",
+  vars: ["CX","RX"],
+  dims: ["capacitance","resistance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CX: Farads, RX: Ohms): Seconds => (CX * RX) as Seconds,
+} as const satisfies Formula;
+
+/** Sum of the open-circuit time constants (five capacitances): b1 = tau1 + tau2 + tau3 + tau + tau4 */
+export const cascodeTimeConstantSum = {
+  id: "cascodeTimeConstantSum",
+  title: "Sum of the open-circuit time constants (five capacitances)",
+  expr: "tau1 + tau2 + tau3 + tau + tau4",
+  tex: "b_{1} = {\\tau_{1}}+{\\tau_{2}}+{\\tau_{3}}+{\\tau}+{\\tau_{4}}",
+  result: "b1",
+  resultDim: "time",
+  vars: ["tau1","tau2","tau3","tau","tau4"],
+  dims: ["time","time","time","time","time"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (tau1: Seconds, tau2: Seconds, tau3: Seconds, tau: Seconds, tau4: Seconds): Seconds => ((((tau1 + tau2) + tau3) + tau) + tau4) as Seconds,
+} as const satisfies Formula;
+
+/** Miller input capacitance of the input device, its drain at the node between the devices: CM = CGI + CGO * (1 + AvX) */
+export const cascodeMillerCapacitance = {
+  id: "cascodeMillerCapacitance",
+  title: "Miller input capacitance of the input device, its drain at the node between the devices",
+  expr: "CGI + CGO * (1 + AvX)",
+  tex: "C_{M} = {C_{gi}}+{C_{go}}\\cdot\\left(1+{A_{vX}}\\right)",
+  result: "CM",
+  resultDim: "capacitance",
+  vars: ["CGI","CGO","AvX"],
+  dims: ["capacitance","capacitance","dimensionless"],
+  source: "Miller approximation (J. M. Miller, Scientific Papers of the Bureau of Standards 15(351), 1920)",
+  fn: (CGI: Farads, CGO: Farads, AvX: Ratio): Farads => (CGI + (CGO * ((1 + AvX)))) as Farads,
+} as const satisfies Formula;
+
+/** Pole of the node between the devices, with the Miller-reflected gate-drain capacitance: f2 = 1 / (2 * pi * RX * (CX + CGO * (1 + 1 / AvX))) */
+export const cascodeNodePole = {
+  id: "cascodeNodePole",
+  title: "Pole of the node between the devices, with the Miller-reflected gate-drain capacitance",
+  expr: "1 / (2 * pi * RX * (CX + CGO * (1 + 1 / AvX)))",
+  tex: "f_{2} = \\frac{1}{2\\cdot\\pi\\cdot{R_{X}}\\cdot\\left({C_{X}}+{C_{go}}\\cdot\\left(1+\\frac{1}{{A_{vX}}}\\right)\\right)}",
+  result: "f2",
+  resultDim: "frequency",
+  vars: ["RX","CX","CGO","AvX"],
+  dims: ["resistance","capacitance","capacitance","dimensionless"],
+  source: "Miller approximation (J. M. Miller, Scientific Papers of the Bureau of Standards 15(351), 1920)",
+  fn: (RX: Ohms, CX: Farads, CGO: Farads, AvX: Ratio): Hertz => (1 / ((((2 * Math.PI) * RX) * ((CX + (CGO * ((1 + (1 / AvX))))))))) as Hertz,
+} as const satisfies Formula;
+
+/** Second-order coefficient (as √b2) that puts the two-pole denominator's roots at the open-circuit estimate and the non-dominant node pole: b2 = sqrt(b1 / (2 * pi * fp2)) */
+export const cascodeB2 = {
+  id: "cascodeB2",
+  title: "Second-order coefficient (as √b2) that puts the two-pole denominator's roots at the open-circuit estimate and the non-dominant node pole",
+  expr: "sqrt(b1 / (2 * pi * fp2))",
+  tex: "b_{2} = \\sqrt{\\frac{{b_{1}}}{2\\cdot\\pi\\cdot{f_{p2}}}}",
+  result: "b2",
+  resultDim: "time",
+  vars: ["b1","fp2"],
+  dims: ["time","frequency"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (b1: Seconds, fp2: Hertz): Seconds => Math.sqrt((b1 / (((2 * Math.PI) * fp2)))) as Seconds,
+} as const satisfies Formula;
+
+/** Pole of the cascode stage's output node: f3 = 1 / (2 * pi * RLP * CO) */
+export const cascodeOutputPole = {
+  id: "cascodeOutputPole",
+  title: "Pole of the cascode stage's output node",
+  expr: "1 / (2 * pi * RLP * CO)",
+  tex: "f_{3} = \\frac{1}{2\\cdot\\pi\\cdot{R_{L}'}\\cdot{C_{o}}}",
+  result: "f3",
+  resultDim: "frequency",
+  vars: ["RLP","CO"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RLP: Ohms, CO: Farads): Hertz => (1 / ((((2 * Math.PI) * RLP) * CO))) as Hertz,
+} as const satisfies Formula;
+
 /** Open-circuit time constant of the gate-source capacitance (follower): tau = CGO * (RSP + RSL) / (1 + gm * RSL) */
 export const followerBridgeTimeConstant = {
   id: "followerBridgeTimeConstant",
