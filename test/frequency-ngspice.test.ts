@@ -311,3 +311,119 @@ describe("cascode stage poles against ngspice 39 Level 1 .ac", () => {
     expect(stats.millerFlagged).toBeLessThan(stats.stages / 2);
   }, 120_000);
 });
+
+// ---- differential pair with a current-mirror load (diff-pair-mirror-load), driven differentially.
+// Invented seeded cards and stages; ideal tail current, vid = 0.
+function randomMirrorPair(i: number): Case | undefined {
+  const pol: Polarity = rand() < 0.5 ? "nmos" : "pmos";
+  const cin = card(pol, 3000 + i);
+  const cld = card(pol === "nmos" ? "pmos" : "nmos", 4000 + i);
+  if (cin.datasheetCapacitances || cld.datasheetCapacitances || !((cin.lambda as number) > 0) || !((cld.lambda as number) > 0)) return undefined;
+  const vdd = uni(3, 12);
+  const itail = logu(20e-6, 1e-3);
+  const stage: Stage = {
+    topology: "diff-pair-mirror-load",
+    name: `p${i}`,
+    device: { card: cin, w: meters(logu(2e-6, 200e-6)), l: meters(logu(0.5e-6, 4e-6)) },
+    devices: { load: { card: cld, w: meters(logu(2e-6, 200e-6)), l: meters(logu(0.5e-6, 4e-6)) } },
+    components: { vcm: volts(pol === "nmos" ? uni(0.45, 0.75) * vdd : uni(0.25, 0.55) * vdd), itail },
+    supplies: { vdd: volts(vdd) },
+    body: pick(["source", "rail"] as const),
+  } as never;
+  let dc: StageAnalysis;
+  try {
+    dc = analyzeStage(stage as never);
+  } catch {
+    return undefined;
+  }
+  const ds = dc.devices ?? {};
+  if (dc.region !== "saturation" || ["M2", "M3", "M4"].some((m) => ds[m]?.region !== "saturation" || ds[m]!.op.saturationMargin < 0.2) || dc.op.saturationMargin < 0.2) return undefined;
+  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
+  const spec: FrequencySpec = { load: { capacitance: farads(logu(0.2e-12, 20e-12)) } };
+  try {
+    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
+  } catch {
+    return undefined;
+  }
+}
+
+const pairs: Case[] = [];
+for (let i = 0; pairs.length < 60 && i < 20000; i++) {
+  const k = randomMirrorPair(i);
+  if (k) pairs.push(k);
+}
+
+/** First frequency where the magnitude crosses `level` downwards (log interpolation). */
+function crossing(freq: number[], mag: number[], level: number): number | undefined {
+  for (let j = 1; j < freq.length; j++)
+    if (mag[j - 1]! >= level && mag[j]! < level) {
+      const t = Math.log(mag[j - 1]! / level) / Math.log(mag[j - 1]! / mag[j]!);
+      return Math.exp(Math.log(freq[j - 1]!) + t * Math.log(freq[j]! / freq[j - 1]!));
+    }
+  return undefined;
+}
+
+describe("differential pair with a mirror load against ngspice 39 Level 1 .ac", () => {
+  it("output pole, unity-gain frequency and phase margin on seeded random five-transistor amplifiers", () => {
+    expect(pairs.length).toBeGreaterThanOrEqual(40);
+    const lines: string[] = [];
+    const outs: string[] = [];
+    pairs.forEach((k, i) => {
+      const ac = acCircuit(k.stage, k.dc, k.fa, `z${i}_`);
+      lines.push(...ac.lines);
+      outs.push(ac.output);
+    });
+    const sweep = { pointsPerDecade: 80, start: 1, stop: 1e13 };
+    const res = runAc(lines.join("\n"), outs, sweep);
+    const ph = runAc(lines.join("\n"), outs, sweep, "vp");
+    const stats = { stages: pairs.length, dom: 0, domFlagged: 0, worstGain: 0, worstPole: 0, worstFu: 0, worstPm: 0, pmMin: 180, pmMax: 0 };
+    const fails: string[] = [];
+    pairs.forEach((k, i) => {
+      const fa = k.fa;
+      const p = fa.pair!;
+      const id = `pair ${k.stage.device.card.polarity} #${i}`;
+      const mag = res.mag[i]!;
+      const a0 = mag[0]!;
+      const g = rel(a0, Math.abs(fa.midbandGain));
+      stats.worstGain = Math.max(stats.worstGain, g);
+      if (g > 0.05) fails.push(`${id}: gain ${a0} vs hand ${fa.midbandGain}`);
+      if (!fa.high.dominantPoleHolds) {
+        stats.domFlagged++;
+        return;
+      }
+      stats.dom++;
+      const f3 = crossing(res.freq, mag, a0 / Math.SQRT2)!;
+      const e = rel(p.outputPole, f3);
+      stats.worstPole = Math.max(stats.worstPole, e);
+      if (!(e <= 0.1)) fails.push(`${id}: output pole ${p.outputPole} vs ngspice ${f3}`);
+      if (p.unityGain === undefined) return;
+      const fu = crossing(res.freq, mag, 1)!;
+      const eu = rel(p.unityGain, fu);
+      stats.worstFu = Math.max(stats.worstFu, eu);
+      if (!(eu <= 0.1)) fails.push(`${id}: unity-gain ${p.unityGain} vs ngspice ${fu} (GBW ${p.gainBandwidth}, fm ${p.mirrorPole})`);
+      // Phase at fu relative to the low-frequency phase, unwrapped.
+      const phase = ph.mag[i]!;
+      let prev = phase[0]!;
+      let acc = 0;
+      let at = 0;
+      for (let j = 1; j < res.freq.length; j++) {
+        let d = phase[j]! - prev;
+        if (d > Math.PI) d -= 2 * Math.PI;
+        if (d < -Math.PI) d += 2 * Math.PI;
+        prev = phase[j]!;
+        if (res.freq[j]! > fu) break;
+        acc += d;
+        at = acc;
+      }
+      const pmSim = 180 + (at * 180) / Math.PI;
+      const dp = Math.abs(p.phaseMargin! - pmSim);
+      stats.worstPm = Math.max(stats.worstPm, dp);
+      stats.pmMin = Math.min(stats.pmMin, pmSim);
+      stats.pmMax = Math.max(stats.pmMax, pmSim);
+      if (!(dp <= 5)) fails.push(`${id}: phase margin ${p.phaseMargin} vs ngspice ${pmSim} (fu ${fu}, fm ${p.mirrorPole})`);
+    });
+    console.log(`mirror-load pair oracle: ${JSON.stringify(stats)}`);
+    expect(fails).toEqual([]);
+    expect(stats.dom).toBeGreaterThanOrEqual(30);
+  }, 120_000);
+});

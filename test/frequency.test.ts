@@ -185,3 +185,36 @@ describe("cascode stage poles", () => {
     expect(() => analyzeFrequency(cas, dc, { targets: { highCorner: hertz(1e12) } })).toThrow(InfeasibleError);
   });
 });
+
+describe("differential pair with a mirror load", () => {
+  // Invented: the test NMOS card as the pair, a PMOS of the same shape as the mirror.
+  const pcard: DeviceCard = { ...card, name: "test-p", polarity: "pmos", vt0: volts(-0.7), kp: amperesPerVoltSquared(40e-6) };
+  const amp: Stage = {
+    topology: "diff-pair-mirror-load",
+    name: "five-transistor amplifier (invented)",
+    device: { card, w: meters(20e-6), l: meters(1e-6) },
+    devices: { load: { card: pcard, w: meters(20e-6), l: meters(1e-6) } },
+    components: { vcm: volts(2.5), itail: 100e-6 },
+    supplies: { vdd: volts(5) },
+  } as never;
+  const dc = analyzeStage(amp as never);
+  it("GBW = gm1/(2π·CO), the mirror pole gm3/(2π·Cm) with its zero at twice it, and the phase margin they imply (hand calculation)", () => {
+    const rec = new Derivation("pair");
+    const fa = analyzeFrequency(amp, dc, { load: { capacitance: farads(2e-12) } }, rec);
+    const p = fa.pair!;
+    expect(p.gainBandwidth).toBeCloseTo(dc.smallSignal.gm / (2 * Math.PI * fa.nodes.cOut), 6);
+    expect(p.mirrorPole).toBeCloseTo(dc.devices!.M3!.smallSignal.gm / (2 * Math.PI * p.mirrorCapacitance), 3);
+    expect(p.mirrorZero / p.mirrorPole).toBeCloseTo(2, 12);
+    // Written out: PM = 180° − atan(fu/fp1) − atan(fu/fm) + atan(fu/2fm).
+    const deg = (x: number) => (Math.atan(x) * 180) / Math.PI;
+    expect(p.phaseMargin!).toBeCloseTo(180 - deg(p.unityGain! / p.outputPole) - deg(p.unityGain! / p.mirrorPole) + deg(p.unityGain! / p.mirrorZero), 9);
+    // The crossing lies at GBW when the mirror pole is far above it.
+    expect(Math.abs(p.unityGain! / p.gainBandwidth - 1)).toBeLessThan(0.1);
+    expect(fa.checks.some((c) => c.name.startsWith("Phase margin"))).toBe(true);
+    expectReevaluates(rec);
+  });
+  it("refuses a source resistance and a load resistor (ideal differential drive, DC-coupled output)", () => {
+    expect(() => analyzeFrequency(amp, dc, { source: { resistance: ohms(1e3) } })).toThrow(InputError);
+    expect(() => analyzeFrequency(amp, dc, { load: { resistance: ohms(1e3) } })).toThrow(InputError);
+  });
+});

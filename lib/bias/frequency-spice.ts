@@ -6,6 +6,7 @@
  * sweep. The transfer function is v(<prefix>out)/1 V.
  */
 import { deviceCapacitances } from "../device/capacitance.js";
+import { InputError } from "../errors.js";
 import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
 import { spiceNumber } from "./spice.js";
 import { writeDeck } from "../spice/deck.js";
@@ -42,6 +43,20 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   const gateIn = `${p}gin`;
   const rsig = fa.source.resistance;
   const cap = (role: "input" | "output" | "bypass") => fa.low?.capacitors.find((c) => c.role === role)?.value;
+  if (fa.view === "differential-pair") {
+    // Differential drive: 1 V between the inputs, half on each in opposite phase; the response is v(out).
+    const nn = dc.nodes as Record<string, string>;
+    const devs = stage.devices as Record<string, Stage["device"]> | undefined;
+    if (!stage.device.card.capacitance || !devs?.load?.card.capacitance)
+      throw new InputError(stage.device.card.name, "Level 1 capacitance blocks on the pair and load cards for the AC export (datasheet capacitances are not placed in a pair's deck)", `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    for (const [node, ac] of [[nn.in1!, "AC 0.5"], [nn.in2!, "AC 0.5 180"]] as const) {
+      const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === node && l.split(" ")[2] === "0");
+      if (i < 0) throw new Error(`internal: no input source at node ${node}`);
+      lines[i] = `${lines[i]} ${ac}`;
+    }
+    if (fa.load.capacitance > 0) lines.push(`C${p}L ${nn.out} 0 ${spiceNumber(fa.load.capacitance)}`);
+    return { lines, output: nn.out!, sweep };
+  }
   if (fa.circuit.gateCoupled) {
     lines.push(`V${p}SIG ${sig} 0 DC 0 AC 1`);
     lines.push(rsig > 0 ? `R${p}SIG ${sig} ${gateIn} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${gateIn} 0`);

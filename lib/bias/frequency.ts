@@ -33,6 +33,7 @@ import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 import { nearestStandard, standardValuesAround, type SeriesName } from "./eseries.js";
 import { analyzeCascodeFrequency, type CascodeFrequencyNodes } from "./frequency-cascode.js";
+import { analyzeMirrorPairFrequency, type MirrorPairFrequency } from "./frequency-pair.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -49,7 +50,7 @@ export interface FrequencySpec {
   readonly series?: "E6" | "E12";
 }
 
-export type FrequencyView = "common-source" | "source-follower" | "cascode";
+export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair";
 export type CapacitorRole = "input" | "output" | "bypass";
 
 export interface CouplingCapacitor {
@@ -128,6 +129,8 @@ export interface FrequencyAnalysis {
   readonly circuit: { readonly gateCoupled: boolean; readonly rs: number; readonly bypassToIdealSource: boolean };
   /** Cascode stage only: the node between the devices and the node poles (lib/bias/frequency-cascode.ts). */
   readonly cascode?: CascodeFrequencyNodes;
+  /** Differential pair with a mirror load only: GBW, mirror pole, phase margin (lib/bias/frequency-pair.ts). */
+  readonly pair?: MirrorPairFrequency;
 }
 
 /** The pole-dominance ratio the OCTC and Miller estimates assume (common practice: a decade). */
@@ -135,7 +138,7 @@ export const dominanceRatio = 10;
 /** Share of the target corner given to each non-dominant capacitor: a decade below (common practice). */
 export const nonDominantShare = 0.1;
 
-const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage"] as const;
+const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage", "diff-pair-mirror-load"] as const;
 
 const origin = (stage: Stage) => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -197,6 +200,11 @@ export function analyzeFrequency(stage: Stage, analysis: StageAnalysis, spec: Fr
   if (!hasCapacitanceData(stage.device.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: device.card "${stage.device.card.name}"`, "invalid-design");
   if (analysis.region !== "saturation")
     throw new InfeasibleError(`the device is in ${analysis.region}, not saturation: there is no amplifier to analyse; fix the bias first`, o);
+  if (stage.topology === "diff-pair-mirror-load") {
+    const ld = (stage.devices as Record<string, Stage["device"]> | undefined)?.load;
+    if (ld && !hasCapacitanceData(ld.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.load.card "${ld.card.name}"`, "invalid-design");
+    return analyzeMirrorPairFrequency(stage, analysis, spec, o, rec);
+  }
   if (stage.topology === "cascode-stage") {
     const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
     if (cas && !hasCapacitanceData(cas.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.cascode.card "${cas.card.name}"`, "invalid-design");

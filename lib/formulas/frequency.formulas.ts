@@ -828,6 +828,132 @@ export const cascodeOutputPole = {
   fn: (RLP: Ohms, CO: Farads): Hertz => (1 / ((((2 * Math.PI) * RLP) * CO))) as Hertz,
 } as const satisfies Formula;
 
+/** Resistance at the output of the pair with a mirror load: RLP = 1 / (gds2 + gds4) */
+export const mirrorPairOutputNode = {
+  id: "mirrorPairOutputNode",
+  title: "Resistance at the output of the pair with a mirror load",
+  expr: "1 / (gds2 + gds4)",
+  tex: "R_{L}' = \\frac{1}{{g_{ds2}}+{g_{ds4}}}",
+  result: "RLP",
+  resultDim: "resistance",
+  vars: ["gds2","gds4"],
+  dims: ["conductance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gds2: Siemens, gds4: Siemens): Ohms => (1 / ((gds2 + gds4))) as Ohms,
+} as const satisfies Formula;
+
+/** Differential gain of the pair with a mirror load, single-ended output: Av = gm1 * RLP */
+export const mirrorPairMidband = {
+  id: "mirrorPairMidband",
+  title: "Differential gain of the pair with a mirror load, single-ended output",
+  expr: "gm1 * RLP",
+  tex: "A_{v} = {g_{m1}}\\cdot{R_{L}'}",
+  result: "Av",
+  resultDim: "dimensionless",
+  vars: ["gm1","RLP"],
+  dims: ["conductance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm1: Siemens, RLP: Ohms): Ratio => (gm1 * RLP) as Ratio,
+} as const satisfies Formula;
+
+/** Capacitance at the output of the pair with a mirror load (the input gates at AC ground for it): CO = CL + Cdb2i + Cds2i + Cgd2i + Cdb4 + Cds4 + Cgd4 */
+export const mirrorPairOutputCapacitance = {
+  id: "mirrorPairOutputCapacitance",
+  title: "Capacitance at the output of the pair with a mirror load (the input gates at AC ground for it)",
+  expr: "CL + Cdb2i + Cds2i + Cgd2i + Cdb4 + Cds4 + Cgd4",
+  tex: "C_{o} = {C_{L}}+{C_{db2}}+{C_{ds2}}+{C_{gd2}}+{C_{db4}}+{C_{ds4}}+{C_{gd4}}",
+  result: "CO",
+  resultDim: "capacitance",
+  vars: ["CL","Cdb2i","Cds2i","Cgd2i","Cdb4","Cds4","Cgd4"],
+  dims: ["capacitance","capacitance","capacitance","capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Cdb2i: Farads, Cds2i: Farads, Cgd2i: Farads, Cdb4: Farads, Cds4: Farads, Cgd4: Farads): Farads => ((((((CL + Cdb2i) + Cds2i) + Cgd2i) + Cdb4) + Cds4) + Cgd4) as Farads,
+} as const satisfies Formula;
+
+/** Output (dominant) pole of the pair with a mirror load: fp1 = 1 / (2 * pi * RLP * CO) */
+export const mirrorPairOutputPole = {
+  id: "mirrorPairOutputPole",
+  title: "Output (dominant) pole of the pair with a mirror load",
+  expr: "1 / (2 * pi * RLP * CO)",
+  tex: "f_{p1} = \\frac{1}{2\\cdot\\pi\\cdot{R_{L}'}\\cdot{C_{o}}}",
+  result: "fp1",
+  resultDim: "frequency",
+  vars: ["RLP","CO"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RLP: Ohms, CO: Farads): Hertz => (1 / ((((2 * Math.PI) * RLP) * CO))) as Hertz,
+} as const satisfies Formula;
+
+/** Gain-bandwidth product of a single-pole transconductance amplifier: GBW = gm1 / (2 * pi * CO) */
+export const gainBandwidth = {
+  id: "gainBandwidth",
+  title: "Gain-bandwidth product of a single-pole transconductance amplifier",
+  expr: "gm1 / (2 * pi * CO)",
+  tex: "GBW = \\frac{{g_{m1}}}{2\\cdot\\pi\\cdot{C_{o}}}",
+  result: "GBW",
+  resultDim: "frequency",
+  vars: ["gm1","CO"],
+  dims: ["conductance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm1: Siemens, CO: Farads): Hertz => (gm1 / (((2 * Math.PI) * CO))) as Hertz,
+} as const satisfies Formula;
+
+/** Capacitance at the mirror's gate node (Cgd4 taken to AC ground: the output is held low by CO there): CMIR = Cgs3 + Cgs4 + Cgb3 + Cgb4 + Cdb3 + Cdb1 + Cds1 + Cgd1 + Cgd4 */
+export const mirrorNodeCapacitance = {
+  id: "mirrorNodeCapacitance",
+  title: "Capacitance at the mirror's gate node (Cgd4 taken to AC ground: the output is held low by CO there)",
+  expr: "Cgs3 + Cgs4 + Cgb3 + Cgb4 + Cdb3 + Cdb1 + Cds1 + Cgd1 + Cgd4",
+  tex: "C_{m} = {C_{gs3}}+{C_{gs4}}+{C_{gb3}}+{C_{gb4}}+{C_{db3}}+{C_{db1}}+{C_{ds1}}+{C_{gd1}}+{C_{gd4}}",
+  result: "CMIR",
+  resultDim: "capacitance",
+  vars: ["Cgs3","Cgs4","Cgb3","Cgb4","Cdb3","Cdb1","Cds1","Cgd1","Cgd4"],
+  dims: ["capacitance","capacitance","capacitance","capacitance","capacitance","capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cgs3: Farads, Cgs4: Farads, Cgb3: Farads, Cgb4: Farads, Cdb3: Farads, Cdb1: Farads, Cds1: Farads, Cgd1: Farads, Cgd4: Farads): Farads => ((((((((Cgs3 + Cgs4) + Cgb3) + Cgb4) + Cdb3) + Cdb1) + Cds1) + Cgd1) + Cgd4) as Farads,
+} as const satisfies Formula;
+
+/** Mirror pole: fm = gm3 / (2 * pi * CMIR) */
+export const mirrorPole = {
+  id: "mirrorPole",
+  title: "Mirror pole",
+  expr: "gm3 / (2 * pi * CMIR)",
+  tex: "f_{m} = \\frac{{g_{m3}}}{2\\cdot\\pi\\cdot{C_{m}}}",
+  result: "fm",
+  resultDim: "frequency",
+  vars: ["gm3","CMIR"],
+  dims: ["conductance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm3: Siemens, CMIR: Farads): Hertz => (gm3 / (((2 * Math.PI) * CMIR))) as Hertz,
+} as const satisfies Formula;
+
+/** Mirror zero (left half plane: half the signal bypasses the mirror): fz = 2 * fm */
+export const mirrorZero = {
+  id: "mirrorZero",
+  title: "Mirror zero (left half plane: half the signal bypasses the mirror)",
+  expr: "2 * fm",
+  tex: "f_{z} = 2\\cdot{f_{m}}",
+  result: "fz",
+  resultDim: "frequency",
+  vars: ["fm"],
+  dims: ["frequency"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (fm: Hertz): Hertz => (2 * fm) as Hertz,
+} as const satisfies Formula;
+
+/** Phase margin at the unity-gain frequency (output pole, mirror pole and zero): PM = 180 - (atan(fu / fp1) + atan(fu / fm) - atan(fu / fz)) * 180 / pi */
+export const phaseMargin = {
+  id: "phaseMargin",
+  title: "Phase margin at the unity-gain frequency (output pole, mirror pole and zero)",
+  expr: "180 - (atan(fu / fp1) + atan(fu / fm) - atan(fu / fz)) * 180 / pi",
+  tex: "\\varphi_{m} = 180-\\frac{\\left(\\tan^{-1}\\left(\\frac{{f_{u}}}{{f_{p1}}}\\right)+\\tan^{-1}\\left(\\frac{{f_{u}}}{{f_{m}}}\\right)-\\tan^{-1}\\left(\\frac{{f_{u}}}{{f_{z}}}\\right)\\right)\\cdot180}{\\pi}",
+  result: "PM",
+  resultDim: "dimensionless",
+  vars: ["fu","fp1","fm","fz"],
+  dims: ["frequency","frequency","frequency","frequency"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (fu: Hertz, fp1: Hertz, fm: Hertz, fz: Hertz): Ratio => (180 - (((((Math.atan((fu / fp1)) + Math.atan((fu / fm))) - Math.atan((fu / fz)))) * 180) / Math.PI)) as Ratio,
+} as const satisfies Formula;
+
 /** Open-circuit time constant of the gate-source capacitance (follower): tau = CGO * (RSP + RSL) / (1 + gm * RSL) */
 export const followerBridgeTimeConstant = {
   id: "followerBridgeTimeConstant",

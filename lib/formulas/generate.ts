@@ -45,7 +45,7 @@ const typeOfDim: Record<Dimension, string> = {
   fraction: "Fraction",
 };
 
-const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", exp: "Math.exp", log: "Math.log", abs: "Math.abs", max: "Math.max", min: "Math.min" };
+const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", atan: "Math.atan", exp: "Math.exp", log: "Math.log", abs: "Math.abs", max: "Math.max", min: "Math.min" };
 
 interface Catalog {
   file: string;

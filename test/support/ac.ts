@@ -14,14 +14,15 @@ export interface AcResult {
   readonly mag: number[][];
 }
 
-export function runAc(circuit: string, nodes: readonly string[], sweep: { pointsPerDecade: number; start: number; stop: number }): AcResult {
+/** `quantity` "vp" reads the phase in radians (ngspice's vp) instead of the magnitude. */
+export function runAc(circuit: string, nodes: readonly string[], sweep: { pointsPerDecade: number; start: number; stop: number }, quantity: "vm" | "vp" = "vm"): AcResult {
   const dir = mkdtempSync(join(tmpdir(), "pinchoff-ac-"));
   try {
     const deck = join(dir, "deck.cir");
     const data = join(dir, "ac.txt");
     writeFileSync(
       deck,
-      `* pinchoff ac oracle\n${circuit}\n.control\nset wr_singlescale\nset wr_vecnames\noption numdgt=12\nac dec ${sweep.pointsPerDecade} ${sweep.start} ${sweep.stop}\nwrdata ${data} ${nodes.map((n) => `vm(${n})`).join(" ")}\nquit 0\n.endc\n.end\n`,
+      `* pinchoff ac oracle\n${circuit}\n.control\nset wr_singlescale\nset wr_vecnames\noption numdgt=12\nac dec ${sweep.pointsPerDecade} ${sweep.start} ${sweep.stop}\nwrdata ${data} ${nodes.map((n) => `${quantity}(${n})`).join(" ")}\nquit 0\n.endc\n.end\n`,
     );
     execFileSync("ngspice", ["-b", deck], { encoding: "utf8", stdio: ["ignore", "pipe", "pipe"], maxBuffer: 256 << 20 });
     const rows = readFileSync(data, "utf8").trim().split("\n").slice(1).map((l) => l.trim().split(/\s+/).map(Number));
