@@ -49,11 +49,15 @@ async function drawnPlots(sel: string) {
 
 describe("offline pages in headless Chromium", () => {
   it("the pinchoff run report draws its plots and typesets its formulas with no network", async () => {
-    const report = readdirSync(out).find((f) => f.endsWith(".report.html"));
+    const report = readdirSync(out).find((f) => f === "report.html");
     expect(report).toBeDefined();
     browser.refused.length = 0;
     browser.errors.length = 0;
-    await browser.page.goto(pathToFileURL(join(out, report!)).href, { waitUntil: "load", timeout: 60_000 });
+    await browser.page.goto(pathToFileURL(join(out, report!)).href, { waitUntil: "load", timeout: 120_000 });
+    // The results box opens the page with the demo's marked summary table; the spread and the deck follow.
+    expect(await browser.page.$$eval('.results table[data-part="summary"] tr', (r) => r.length)).toBeGreaterThan(5);
+    expect(await browser.page.$$eval('table[data-part="corner-spread"]', (t) => t.length)).toBe(1);
+    expect(await browser.page.$eval('pre[data-part="spice-deck"]', (p) => p.textContent ?? "")).toMatch(/^\.end$/m);
     // Plotly stacks several .main-svg layers per plot: count plot boxes that hold one.
     await browser.page.waitForFunction(() => [...document.querySelectorAll(".js-plotly-plot")].filter((e) => e.querySelector(".main-svg")).length >= 3, undefined, { timeout: 60_000 });
     const plots = await drawnPlots(".js-plotly-plot");
@@ -72,11 +76,11 @@ describe("offline pages in headless Chromium", () => {
   }, 120_000);
 
   it("an nbconvert HTML export of the executed notebook draws every plot output", async () => {
-    const executed = readdirSync(out).find((f) => f.endsWith(".executed.ipynb"))!;
+    const executed = readdirSync(out).find((f) => f === "notebook-as-run.ipynb")!;
     execFileSync("jupyter", ["nbconvert", "--to", "html", join(out, executed), "--output-dir", out, "--output", "export"], { cwd: out, stdio: "pipe", timeout: 120_000 });
     browser.refused.length = 0;
     browser.errors.length = 0;
-    await browser.page.goto(pathToFileURL(join(out, "export.html")).href, { waitUntil: "load", timeout: 60_000 });
+    await browser.page.goto(pathToFileURL(join(out, "export.html")).href, { waitUntil: "load", timeout: 120_000 });
     const boxes = await browser.page.$$eval(".pinchoff-plot-area", (e) => e.length);
     expect(boxes).toBe(3);
     await browser.page.waitForFunction((n) => [...document.querySelectorAll(".pinchoff-plot-area[data-drawn]")].filter((e) => e.querySelector(".main-svg")).length >= n, boxes, { timeout: 60_000 });
@@ -99,10 +103,10 @@ describe("offline pages in headless Chromium", () => {
     writeFileSync(join(out, "no-library.html"), page(plotHtml(spec)));
     browser.refused.length = 0;
     browser.errors.length = 0;
-    await browser.page.goto(pathToFileURL(join(out, "late-library.html")).href, { waitUntil: "load", timeout: 60_000 });
+    await browser.page.goto(pathToFileURL(join(out, "late-library.html")).href, { waitUntil: "load", timeout: 120_000 });
     await browser.page.waitForFunction(() => [...document.querySelectorAll(".pinchoff-plot-area[data-drawn]")].filter((e) => e.querySelector(".main-svg")).length === 2, undefined, { timeout: 60_000 });
     expect(browser.errors).toEqual([]);
-    await browser.page.goto(pathToFileURL(join(out, "no-library.html")).href, { waitUntil: "load", timeout: 60_000 });
+    await browser.page.goto(pathToFileURL(join(out, "no-library.html")).href, { waitUntil: "load", timeout: 120_000 });
     await browser.page.waitForTimeout(500);
     expect(await browser.page.$$eval(".pinchoff-plot-area .main-svg", (e) => e.length)).toBe(0);
     const note = await browser.page.$eval(".pinchoff-plot-note", (e) => ({ shown: (e as HTMLElement).style.display !== "none", text: e.textContent ?? "" }));

@@ -1,6 +1,7 @@
 import { createRequire } from "node:module";
 import { afterEach, describe, expect, it, vi } from "vitest";
-import { derivationBundle, derivationMime, emit, inKernel, quantityBundle, show, showQuantity, showTable, tableBundle } from "../lib/notebook/display.js";
+import { deckBundle, derivationBundle, derivationMime, emit, inKernel, partMime, quantityBundle, show, showQuantity, showTable, tableBundle, type ReportPart } from "../lib/notebook/display.js";
+import { collect, partMime as collectedPartMime } from "../lib/runner/collect.js";
 import { InputError } from "../lib/errors.js";
 import { fixtureDerivation } from "./support/derivation-fixture.js";
 import { expectReevaluates } from "./support/reevaluate.js";
@@ -60,6 +61,31 @@ describe("notebook display", () => {
     showQuantity(1e-3, "current", "ID");
     showTable([{ name: "VDD", value: 5, dim: "voltage" }]);
     expect(sent.map((s) => s.content.data["text/plain"])).toEqual(["ID = 1.00 mA", "quantity  value\n--------  ------\nVDD       5.00 V"]);
+  });
+
+  it("marks the summary table, the corner spread and the deck so a run collects them, and refuses an unknown part", () => {
+    expect(collectedPartMime).toBe(partMime);
+    const plain = tableBundle([{ name: "ID", value: 1e-3, dim: "current" }], "t");
+    expect(plain[partMime]).toBeUndefined();
+    const summary = tableBundle([{ name: "ID", value: 1e-3, dim: "current" }, { name: "VDS − VOV", value: 1.15, dim: "voltage", note: "saturation margin; region: saturation" }, { name: "R", value: Infinity, dim: "resistance" }], "Summary", { part: "summary" });
+    expect(summary[partMime]).toEqual({
+      part: "summary",
+      title: "Summary",
+      rows: [
+        { name: "ID", value: 1e-3, dim: "current", text: "1.00 mA" },
+        { name: "VDS − VOV", value: 1.15, dim: "voltage", text: "1.15 V", note: "saturation margin; region: saturation" },
+        { name: "R", value: "Infinity", dim: "resistance", text: "∞ Ω" },
+      ],
+    });
+    expect(() => tableBundle([], "x", { part: "results" as ReportPart })).toThrow(InputError);
+    const deck = deckBundle("* stage <x>\nM1 d g s s nmos1 W=1u L=1u\n.end");
+    expect(deck["text/html"]).toContain("&lt;x&gt;");
+    expect(deck[partMime]).toEqual({ part: "spice-deck", title: "SPICE deck", text: "* stage <x>\nM1 d g s s nmos1 W=1u L=1u\n.end" });
+    expect(() => deckBundle("  ")).toThrow(InputError);
+    // Read back as a run reads a saved notebook; a malformed or unknown part is left out.
+    const outputs = [summary, deck, { [partMime]: { part: "bogus", rows: [] } }, { [partMime]: { part: "summary", rows: "x" } }].map((data) => ({ output_type: "display_data" as const, data: JSON.parse(JSON.stringify(data)) as Record<string, unknown> }));
+    const got = collect({ nbformat: 4, nbformat_minor: 5, metadata: {}, cells: [{ cell_type: "code", id: "a", metadata: {}, source: "", outputs }] }, new Map([[0, "ok"]]));
+    expect(got.parts.map((p) => p.part)).toEqual(["summary", "spice-deck"]);
   });
 
   it("prints plain text outside a kernel, and emit reports false", () => {

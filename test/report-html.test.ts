@@ -49,6 +49,33 @@ describe("report", () => {
     expect(html).toContain("height:420px");
   });
 
+  it("opens with the results box: verdict, the summary table, every check; then the corner spread and the deck", () => {
+    const html = buildReport(
+      model({
+        parts: [
+          { cell: 9, part: "summary", title: "Summary at the chosen values", rows: [{ name: "ID", text: "1.00 mA" }, { name: "VDS − VOV", text: "1.15 V", note: `saturation margin ${hostile}` }] },
+          { cell: 5, part: "corner-spread", title: "Spread over 192 corner cases", rows: [{ name: "ID min", text: "852 µA", note: "rg1+ @ -40 °C" }] },
+          { cell: 11, part: "spice-deck", title: "SPICE deck", text: `* deck ${hostile}\nM1 d g s s n1\n.end` },
+        ],
+      }),
+    );
+    expect(html).not.toContain(hostile);
+    const at = (s: string) => html.indexOf(s);
+    const box = html.slice(at('<section class="results">'), html.indexOf("</section>", at('<section class="results">')));
+    expect(box).toContain("1 of 1 checks fail");
+    expect(box).toContain("Summary at the chosen values");
+    expect(box).toContain("1.15 V");
+    expect(box).toContain("check &lt;script&gt;");
+    expect(box).not.toContain("852 µA");
+    expect(at('<section class="results">')).toBeLessThan(at("<h2>Design inputs</h2>"));
+    expect(at("<h2>Spread over the corners</h2>")).toBeGreaterThan(at("<h2>Derivations</h2>"));
+    expect(html).toContain("852 µA");
+    expect(html).toMatch(/<pre data-part="spice-deck">\* deck &lt;script&gt;/);
+    expect(at("<h2>SPICE deck</h2>")).toBeLessThan(at("<h2>Cautions</h2>"));
+    // Without a marked summary the box says how to mark one.
+    expect(buildReport(model())).toContain('showTable(rows, title, { part: "summary" })');
+  });
+
   it("marks overrides, the failing check and its margin, and carries the record and cautions", () => {
     const html = buildReport(model());
     expect(html).toContain(reportMarker);

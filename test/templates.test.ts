@@ -20,7 +20,7 @@ const jupyterPath = join(root, ".kernel/share/jupyter");
 
 interface Cell { cell_type: string; id?: string; metadata: { tags?: string[] }; source: string | string[]; outputs?: Output[] }
 interface Output { output_type: string; name?: string; text?: string | string[]; data?: Record<string, unknown>; ename?: string; evalue?: string }
-interface Notebook { nbformat: number; nbformat_minor: number; metadata: { kernelspec?: { name?: string } }; cells: Cell[] }
+interface Notebook { nbformat: number; nbformat_minor: number; metadata: { kernelspec?: { name?: string }; pinchoff?: { demo?: boolean } }; cells: Cell[] }
 
 const src = (c: Cell) => (Array.isArray(c.source) ? c.source.join("") : c.source);
 const text = (t: string | string[] | undefined) => (Array.isArray(t) ? t.join("") : t ?? "");
@@ -65,6 +65,15 @@ describe("template files", () => {
       const md = nb.cells.filter((c) => c.cell_type === "markdown").map(src).join("\n");
       for (const phrase of [/approximate/i, /simulation/i, /measurement/i, /ratings/i, /local codes/i, /licensed/i]) expect(md).toMatch(phrase);
     });
+    it("an on-chip design uses drawn resistor values and their on-chip spread, never an E-series at its board tolerance", () => {
+      const all = nb.cells.map(src).join("\n");
+      if (!/on-chip/i.test(src(nb.cells[0]!))) return;
+      // Integrated resistors are drawn to any value and spread about ±20 % (from memory, typical of polysilicon).
+      expect(all).not.toMatch(/series:\s*"E\d+"/);
+      const rtol = /R_TOL: \["([\d.]+) %"/.exec(all);
+      if (rtol) expect(Number(rtol[1])).toBeGreaterThanOrEqual(15);
+    });
+
     it("has a tolerance section after the design and before the plots, with spreads, temperatures and their limits stated", () => {
       const heading = (re: RegExp) => nb.cells.findIndex((c) => c.cell_type === "markdown" && re.test(src(c)));
       const tol = heading(/^## Tolerances and temperature/);
@@ -99,8 +108,9 @@ describe("templates run through the tslab kernel", () => {
     });
     const nb = read(target);
     const problems: string[] = [];
-    const derivations: Array<{ title: string; checks: Array<{ title: string; passed: boolean }> }> = [];
+    const derivations: Array<{ title: string; checks: Array<{ title: string; passed: boolean; value: number; max?: number; margin: number }>; findings?: Array<{ severity: string; text: string }> }> = [];
     const plots: Array<{ kind: string; figure: { data: Array<{ meta?: { role?: string } }> } }> = [];
+    const parts: string[] = [];
     let libraryCarriers = 0;
     nb.cells.forEach((c, i) => {
       for (const o of c.outputs ?? []) {
@@ -111,6 +121,8 @@ describe("templates run through the tslab kernel", () => {
         if (d) derivations.push(d as (typeof derivations)[number]);
         const p = o.data?.["application/vnd.pinchoff.plot+json"];
         if (p) plots.push(p as (typeof plots)[number]);
+        const part = o.data?.["application/vnd.pinchoff.part+json"] as { part?: string } | undefined;
+        if (part?.part) parts.push(part.part);
         if (text(o.data?.["text/html"] as string | string[] | undefined).includes("data-pinchoff-plot-library")) libraryCarriers++;
       }
     });
@@ -126,6 +138,13 @@ describe("templates run through the tslab kernel", () => {
     expect(tolChecks.some((t) => /^Saturation margin in every case/.test(t))).toBe(true);
     expect(tolChecks.some((t) => /^Drain current within ±[\d.]+ % of nominal in every case/.test(t))).toBe(true);
     expect(tolChecks.some((t) => /^No corner out of saturation/.test(t))).toBe(true);
+    // A design an experienced engineer would sign (common practice): every transistor in strong inversion, where the
+    // square law holds, and the drain-current band met with at least 15 % of the band to spare.
+    const inversion = derivations.flatMap((d) => (d.findings ?? []).filter((f) => /\b(moderate|weak) inversion\b/i.test(f.text)).map((f) => `${d.title}: ${f.text}`));
+    expect(inversion).toEqual([]);
+    const band = tolerance!.checks.find((c) => /^Drain current within/.test(c.title))!;
+    expect(band.margin / band.max!).toBeGreaterThanOrEqual(0.15);
+    if (read(join(dir, file)).metadata.pinchoff?.demo) expect(band.max!).toBeLessThanOrEqual(0.2);
     const output = plots.find((p) => p.kind === "output-characteristics");
     expect(output).toBeDefined();
     const roles = output!.figure.data.map((t) => t.meta?.role);
@@ -133,5 +152,7 @@ describe("templates run through the tslab kernel", () => {
     expect(roles).toContain("boundary");
     expect(roles.some((r) => r === "load-line" || r === "load-curve")).toBe(true);
     expect(libraryCarriers).toBe(1);
+    // The report's results box, corner spread and deck come from these marked outputs.
+    expect(parts.sort()).toEqual(["corner-spread", "spice-deck", "summary"]);
   }, 600_000);
 });

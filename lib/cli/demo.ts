@@ -10,7 +10,8 @@ import { fileURLToPath } from "node:url";
 import { PinchoffError } from "../errors.js";
 import { defineCommand, type CommandSpec } from "./args.js";
 import { packageRoot } from "../runner/paths.js";
-import { runNotebook } from "../runner/run.js";
+import { interruptOnSignals } from "../runner/interrupt.js";
+import { RunInterrupted, runNotebook } from "../runner/run.js";
 import { summarize } from "../runner/summary.js";
 import { listTemplates, type Template } from "../templates.js";
 
@@ -34,10 +35,21 @@ export const main = defineCommand(command, async () => {
   const t = demoTemplate();
   const outDir = join(packageRoot, "out", "demo");
   console.log(`demo: running template ${t.name} (${t.description})`);
-  const r = await runNotebook({ notebook: t.path, outDir });
-  console.log(summarize(r, (p) => relative(process.cwd(), p) || p));
-  console.log(`\nreport: ${r.reportPath}\nopen it in a browser; it works offline.`);
-  return r.exitCode;
+  const stop = interruptOnSignals((x) => console.error(`demo: ${x}`));
+  try {
+    const r = await runNotebook({ notebook: t.path, outDir, signal: stop.signal, note: (x) => console.error(`demo: ${x}`) });
+    console.log(summarize(r, (p) => relative(process.cwd(), p) || p));
+    console.log(`\nreport: ${r.reportPath}\nopen it in a browser; it works offline. The run record (JSON) is ${r.recordPath}.`);
+    return r.exitCode;
+  } catch (e) {
+    if (e instanceof RunInterrupted) {
+      console.error(`demo: ${e.message}`);
+      return stop.exitCode() ?? 130;
+    }
+    throw e;
+  } finally {
+    stop.dispose();
+  }
 });
 
 // `npm run demo` runs this file directly: the same error handling and exit statuses as `pinchoff demo`.

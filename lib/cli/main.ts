@@ -19,11 +19,11 @@ type Command = { summary: string; load: () => Promise<{ main: (argv: string[]) =
 
 // One line per subcommand; add yours here when its module exists.
 export const commands: Record<string, Command> = {
-  run: { summary: "run a notebook headless; write the executed notebook and an HTML report", load: () => import("./run.js") },
+  run: { summary: "run a design notebook headless into a design-run folder: report, run record, notebook as run", load: () => import("./run.js") },
   new: { summary: "copy a template notebook to a path", load: () => import("./new.js") },
   list: { summary: "list the template notebooks", load: () => import("./list.js") },
   kernel: { summary: "register the TypeScript kernel for Jupyter", load: () => import("./kernel.js") },
-  notebook: { summary: "open the Jupyter Notebook UI on the templates (127.0.0.1)", load: () => import("./notebook.js") },
+  notebook: { summary: "open the Jupyter Notebook UI on a working folder (127.0.0.1)", load: () => import("./notebook.js") },
   demo: { summary: "run the demo template and print its report's path", load: () => import("./demo.js") },
   op: { summary: "solve a design file's operating point (or design it from its specification)", load: () => import("./op.js") },
 };

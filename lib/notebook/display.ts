@@ -101,8 +101,47 @@ function checkRow(r: QuantityRow, origin: string): QuantityRow {
   return r;
 }
 
+// ---------------------------------------------------------------------------
+// Parts of a design the report carries in full.
+
+/**
+ * The parts a design-run report lifts out of the notebook by role: the
+ * summary table (shown in the results box at the top), the corner-spread
+ * table and the SPICE deck. A cell marks an output as one of them with
+ * `showTable(rows, title, { part: "summary" })` or `showDeck(text)`.
+ */
+export const reportParts = {
+  summary: "the summary table: chosen values, operating point, region and margin",
+  "corner-spread": "the spread of the figures over the tolerance and temperature corners",
+  "spice-deck": "the SPICE deck for the cross-check by simulation",
+} as const;
+export type ReportPart = keyof typeof reportParts;
+
+/** Our MIME type for a marked part: { part, title, rows } for a table, { part, title, text } for a deck. */
+export const partMime = "application/vnd.pinchoff.part+json";
+
+export interface PartRow {
+  readonly name: string;
+  /** SI value, or null where JSON cannot hold it (NaN). Infinity is written as the string "Infinity". */
+  readonly value: number | string | null;
+  readonly dim: Dimension;
+  /** The value as the notebook showed it, with its unit. */
+  readonly text: string;
+  readonly note?: string;
+}
+
+export interface TableOptions extends FormatOptions {
+  /** Mark the table as a part the report carries (see `reportParts`). */
+  readonly part?: ReportPart;
+}
+
+function checkPart(part: unknown, origin: string): ReportPart {
+  if (typeof part !== "string" || !Object.prototype.hasOwnProperty.call(reportParts, part)) throw new InputError(part, `one of ${Object.keys(reportParts).join(", ")}`, origin);
+  return part as ReportPart;
+}
+
 /** The MIME bundle for a small table of named quantities. */
-export function tableBundle(rows: readonly QuantityRow[], title?: string, opts: FormatOptions = {}): MimeBundle {
+export function tableBundle(rows: readonly QuantityRow[], title?: string, opts: TableOptions = {}): MimeBundle {
   rows.forEach((r, i) => checkRow(r, `table row ${i + 1}`));
   const shown = rows.map((r) => [r.name, formatQuantity(r.value, r.dim, { celsius: true, ...opts, origin: r.name }), r.note ?? ""] as const);
   const hasNote = rows.some((r) => r.note);
@@ -113,7 +152,25 @@ export function tableBundle(rows: readonly QuantityRow[], title?: string, opts: 
     .join("")}</tbody></table></div>`;
   const md = [title ? `**${escapeMarkdown(title)}**\n` : "", `| ${head.join(" | ")} |`, `|${head.map(() => " --- ").join("|")}|`, ...shown.map((r) => `| ${cut(r).map(escapeMarkdown).join(" | ")} |`)].join("\n");
   const text = (title ? `${title}\n` : "") + textTable(head, shown.map(cut), "");
-  return { "text/html": html, "text/markdown": md, "text/plain": text };
+  const bundle: Record<string, unknown> = { "text/html": html, "text/markdown": md, "text/plain": text };
+  if (opts.part !== undefined) {
+    const part = checkPart(opts.part, "showTable part");
+    const jsonValue = (v: number) => (Number.isFinite(v) ? v : Number.isNaN(v) ? null : String(v));
+    const partRows: PartRow[] = rows.map((r, i) => ({ name: r.name, value: jsonValue(r.value), dim: r.dim, text: shown[i]![1], ...(r.note ? { note: r.note } : {}) }));
+    bundle[partMime] = { part, title: title ?? reportParts[part], rows: partRows };
+  }
+  return bundle;
+}
+
+/** The MIME bundle for a SPICE deck: preformatted text, marked as the report's deck part. */
+export function deckBundle(deck: string, title = "SPICE deck"): MimeBundle {
+  if (typeof deck !== "string" || deck.trim() === "") throw new InputError(deck, "the deck's text (spiceDeck(stage))", "showDeck");
+  return {
+    "text/html": `${style}<div class="pinchoff"><h3 class="po-part">${escapeHtml(title)}</h3><pre>${escapeHtml(deck)}</pre></div>`,
+    "text/markdown": `**${escapeMarkdown(title)}**\n\n\`\`\`\n${deck.replace(/\`\`\`/g, "` ` `")}\n\`\`\``,
+    "text/plain": deck,
+    [partMime]: { part: "spice-deck", title, text: deck },
+  };
 }
 
 /** The MIME bundle for one named quantity: `ID = 81.0 µA`. */
@@ -146,7 +203,12 @@ export function showQuantity(value: number, dim: Dimension, name?: string, opts:
   send(quantityBundle(value, dim, name, opts));
 }
 
-/** Show a small table of named quantities. */
-export function showTable(rows: readonly QuantityRow[], title?: string, opts: FormatOptions = {}): void {
+/** Show a small table of named quantities; `{ part: "summary" }` (or "corner-spread") puts it in the run report too. */
+export function showTable(rows: readonly QuantityRow[], title?: string, opts: TableOptions = {}): void {
   send(tableBundle(rows, title, opts));
+}
+
+/** Show a SPICE deck; the run report carries it in full. */
+export function showDeck(deck: string, title?: string): void {
+  send(deckBundle(deck, title));
 }

@@ -1,6 +1,9 @@
 /**
- * The standalone run report: one HTML file a reviewer opens offline. It holds
- * the design inputs (overrides marked), every derivation with typeset formulas,
+ * The standalone run report: one HTML file a reviewer opens offline and signs.
+ * It opens with a results box (the verdict, the notebook's summary table with
+ * the chosen values, operating point, region and margin, and every check with
+ * pass/fail and margin), then the design inputs (overrides marked), every
+ * derivation with typeset formulas, the corner-spread table, the SPICE deck,
  * the checks with margins, the plots, the fingerprints, the tool version, the
  * date, the notebook path and the cautions. Every string from the notebook or
  * the command line is escaped; scripts and styles come from installed packages.
@@ -8,7 +11,7 @@
 import escapeHtml from "escape-html";
 import type { Dimension } from "../quantity.js";
 import { formatQuantity } from "../units/format.js";
-import type { CellFailure, CheckLine, CollectedPlot } from "../runner/collect.js";
+import type { CellFailure, CheckLine, CollectedPart, CollectedPlot } from "../runner/collect.js";
 import { plotHtml, plotLibraryHtml } from "../plot/html.js";
 import { cautionList } from "../record/cautions.js";
 
@@ -43,6 +46,8 @@ export interface ReportModel {
   readonly derivations: readonly ReportDerivation[];
   readonly checks: readonly CheckLine[];
   readonly plots: readonly CollectedPlot[];
+  /** The notebook's marked parts: summary table, corner-spread table, SPICE deck. */
+  readonly parts?: readonly CollectedPart[];
   readonly failures: readonly CellFailure[];
   readonly skipped: readonly number[];
   /** <style> elements the derivation markup needs (from "pinchoff/render"), placed once. */
@@ -86,6 +91,7 @@ dl.meta{display:grid;grid-template-columns:max-content 1fr;gap:2px 14px;margin:0
 code,pre{font-family:ui-monospace,"DejaVu Sans Mono",monospace;font-size:.9em}pre{background:var(--band);padding:8px 10px;overflow-x:auto;white-space:pre-wrap}
 section.derivation{border-left:3px solid var(--line);padding-left:14px;margin:18px 0}
 .plot{width:100%;height:420px}
+.results{border:2px solid var(--ink);border-radius:6px;padding:4px 16px 8px;margin:16px 0 8px}.results h2{margin-top:12px}.results h3{font-size:1em;margin:14px 0 4px}
 .cautions{background:var(--band);padding:10px 14px 10px 30px;border-radius:4px}
 footer{margin-top:28px;color:var(--muted);font-size:.85em}
 @media print{.plot{page-break-inside:avoid}main{max-width:none}}
@@ -100,7 +106,28 @@ export function buildReport(m: ReportModel): string {
   if (m.derivations.length && m.formulaStyles) out.push(m.formulaStyles);
   out.push(`</head><body><main>`);
   out.push(`<h1>${esc(m.title)}</h1><p class="sub">Design calculation report from <code>${esc(m.notebookPath)}</code></p>`);
+  const parts = m.parts ?? [];
+  const table = (p: Extract<CollectedPart, { rows: unknown }>) => {
+    const notes = p.rows.some((r) => r.note);
+    return `<table data-part="${esc(p.part)}"><thead><tr><th>Quantity</th><th>Value</th>${notes ? "<th>Note</th>" : ""}</tr></thead><tbody>${p.rows.map((r) => `<tr><td>${esc(r.name)}</td><td class="num">${esc(r.text)}</td>${notes ? `<td>${esc(r.note ?? "")}</td>` : ""}</tr>`).join("")}</tbody></table>`;
+  };
+  const tablesOf = (kind: "summary" | "corner-spread") => parts.filter((p): p is Extract<CollectedPart, { rows: unknown }> => p.part === kind);
+
+  // The results box: what the reviewer signs, first.
+  out.push(`<section class="results"><h2>Results</h2>`);
   out.push(`<div class="verdict ${v.cls}">${esc(v.text)}</div>`);
+  const summaries = tablesOf("summary");
+  if (summaries.length) for (const p of summaries) out.push(`<h3>${esc(p.title)} <small>(cell ${p.cell + 1})</small></h3>${table(p)}`);
+  else out.push(`<p>The notebook marked no summary table (show one with <code>showTable(rows, title, { part: "summary" })</code>).</p>`);
+  out.push(`<h3>Checks</h3>`);
+  if (!m.checks.length) out.push(`<p>No derivation in this notebook recorded a check.</p>`);
+  else {
+    out.push(`<table><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th><th>Derivation</th></tr></thead><tbody>`);
+    for (const c of m.checks)
+      out.push(`<tr><td class="${c.passed ? "pass" : "fail"}">${c.passed ? "pass" : "FAIL"}</td><td>${esc(c.title)}${c.detail ? `<br><small>${esc(c.detail)}</small>` : ""}</td><td class="num">${esc(q(c.value, c.dim))}</td><td class="num">${esc(bound(c))}</td><td class="num">${esc(q(c.margin, c.dim))}</td><td>${esc(c.derivation)} <small>(cell ${c.cell + 1})</small></td></tr>`);
+    out.push(`</tbody></table>`);
+  }
+  out.push(`</section>`);
 
   out.push(`<h2>Record</h2><dl class="meta">`);
   out.push(`<dt>Notebook</dt><dd><code>${esc(m.notebookPath)}</code></dd>`);
@@ -116,15 +143,6 @@ export function buildReport(m: ReportModel): string {
     out.push(`<tr><td><code>${esc(i.name)}</code></td><td><code>${esc(i.text)}</code></td><td class="num">${esc(q(i.value, i.dim))}</td><td>${esc(i.dim)}</td><td>${i.overridden ? `<span class="set">set on the command line</span> notebook value <code>${esc(i.original ?? "")}</code>` : ""}</td></tr>`);
   out.push(`</tbody></table>`);
 
-  out.push(`<h2>Checks</h2>`);
-  if (!m.checks.length) out.push(`<p>No derivation in this notebook recorded a check.</p>`);
-  else {
-    out.push(`<table><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th><th>Derivation</th></tr></thead><tbody>`);
-    for (const c of m.checks)
-      out.push(`<tr><td class="${c.passed ? "pass" : "fail"}">${c.passed ? "pass" : "FAIL"}</td><td>${esc(c.title)}${c.detail ? `<br><small>${esc(c.detail)}</small>` : ""}</td><td class="num">${esc(q(c.value, c.dim))}</td><td class="num">${esc(bound(c))}</td><td class="num">${esc(q(c.margin, c.dim))}</td><td>${esc(c.derivation)} <small>(cell ${c.cell + 1})</small></td></tr>`);
-    out.push(`</tbody></table>`);
-  }
-
   if (m.failures.length || m.skipped.length) {
     out.push(`<h2>Cells that failed</h2>`);
     for (const f of m.failures) out.push(`<p class="fail">Cell ${f.cell + 1}: ${f.status === "timeout" ? "timed out" : "raised an error"}</p><pre>${esc(f.lines.join("\n"))}</pre><details><summary>Cell source</summary><pre>${esc(f.source)}</pre></details>`);
@@ -135,14 +153,26 @@ export function buildReport(m: ReportModel): string {
   if (!m.derivations.length) out.push(`<p>No derivation was displayed by the notebook.</p>`);
   for (const d of m.derivations) out.push(`<section class="derivation" data-cell="${d.cell + 1}">${d.html}</section>`);
 
+  const spreads = tablesOf("corner-spread");
+  if (spreads.length) {
+    out.push(`<h2>Spread over the corners</h2>`);
+    for (const p of spreads) out.push(`<h3>${esc(p.title)} <small>(cell ${p.cell + 1})</small></h3>${table(p)}`);
+  }
+
   if (m.plots.length) {
     out.push(`<h2>Plots</h2>`);
     out.push(plotLibraryHtml());
     for (const p of m.plots) out.push(plotHtml({ figure: p.figure, title: p.title ?? "plot", ...(p.summary ? { summary: p.summary } : {}) }));
   }
 
+  const decks = parts.filter((p): p is Extract<CollectedPart, { text: string }> => p.part === "spice-deck");
+  if (decks.length) {
+    out.push(`<h2>SPICE deck</h2><p>For the cross-check by simulation; it runs unchanged in ngspice.</p>`);
+    for (const d of decks) out.push(`<pre data-part="spice-deck">${esc(d.text)}</pre>`);
+  }
+
   out.push(`<h2>Cautions</h2><ul class="cautions">${cautionList.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>`);
-  out.push(`<footer>Written by ${esc(m.toolVersion)} on ${esc(m.date.toISOString())}. Numbers are SI values shown with three significant digits; the executed notebook beside this file holds the full record.</footer>`);
+  out.push(`<footer>Written by ${esc(m.toolVersion)} on ${esc(m.date.toISOString())}. Numbers are SI values shown with three significant digits; the notebook as run and the run record (JSON) beside this file hold the full record.</footer>`);
   out.push(`</main></body></html>\n`);
   return out.join("\n");
 }

@@ -11,6 +11,19 @@ import { cellSource, type Notebook, type NotebookOutput } from "./notebook-file.
 
 export const derivationMime = "application/vnd.pinchoff.derivation+json";
 export const plotMime = "application/vnd.pinchoff.plot+json";
+/** Marked parts (summary table, corner spread, SPICE deck): see `reportParts` in lib/notebook/display.ts. */
+export const partMime = "application/vnd.pinchoff.part+json";
+const partNames = ["summary", "corner-spread", "spice-deck"] as const;
+
+export interface CollectedPartRow {
+  readonly name: string;
+  readonly text: string;
+  readonly note?: string;
+}
+
+export type CollectedPart =
+  | { readonly cell: number; readonly part: "summary" | "corner-spread"; readonly title: string; readonly rows: readonly CollectedPartRow[] }
+  | { readonly cell: number; readonly part: "spice-deck"; readonly title: string; readonly text: string };
 
 export interface CollectedDerivation {
   readonly cell: number;
@@ -42,6 +55,7 @@ export interface CellFailure {
 export interface Collected {
   readonly derivations: readonly CollectedDerivation[];
   readonly plots: readonly CollectedPlot[];
+  readonly parts: readonly CollectedPart[];
   readonly failures: readonly CellFailure[];
   /** Cells that did not run because an earlier one failed. */
   readonly skipped: readonly number[];
@@ -84,6 +98,21 @@ function saneFigure(fig: PlotFigure): PlotFigure {
   }
 }
 
+/** A marked part read back from a saved notebook; anything malformed is left out (it is shown in the notebook itself). */
+function asPart(v: unknown, cell: number): CollectedPart | undefined {
+  if (!v || typeof v !== "object") return undefined;
+  const p = v as { part?: unknown; title?: unknown; rows?: unknown; text?: unknown };
+  if (!partNames.includes(p.part as (typeof partNames)[number])) return undefined;
+  const title = typeof p.title === "string" ? p.title : String(p.part);
+  if (p.part === "spice-deck") return typeof p.text === "string" ? { cell, part: "spice-deck", title, text: p.text } : undefined;
+  if (!Array.isArray(p.rows)) return undefined;
+  const rows = p.rows.flatMap((r: unknown) => {
+    const x = r as { name?: unknown; text?: unknown; note?: unknown };
+    return x && typeof x.name === "string" && typeof x.text === "string" ? [{ name: x.name, text: x.text, ...(typeof x.note === "string" && x.note ? { note: x.note } : {}) }] : [];
+  });
+  return { cell, part: p.part as "summary" | "corner-spread", title, rows };
+}
+
 /** The text a failed cell left: error outputs first, else its stderr. */
 function errorLines(outputs: readonly NotebookOutput[], max = 6): string[] {
   const err = outputs.find((o) => o.output_type === "error");
@@ -98,6 +127,7 @@ function errorLines(outputs: readonly NotebookOutput[], max = 6): string[] {
 export function collect(nb: Notebook, status: ReadonlyMap<number, CellStatus>): Collected {
   const derivations: CollectedDerivation[] = [];
   const plots: CollectedPlot[] = [];
+  const parts: CollectedPart[] = [];
   const failures: CellFailure[] = [];
   const skipped: number[] = [];
   nb.cells.forEach((cell, i) => {
@@ -107,6 +137,8 @@ export function collect(nb: Notebook, status: ReadonlyMap<number, CellStatus>): 
       if (!o || typeof o !== "object" || !o.data || typeof o.data !== "object") continue;
       const d = jsonPayload(o.data[derivationMime]);
       if (isDerivation(d)) derivations.push({ cell: i, data: d, ...(typeof d.fingerprint === "string" ? { fingerprint: d.fingerprint } : {}) });
+      const part = asPart(jsonPayload(o.data[partMime]), i);
+      if (part) parts.push(part);
       const p = jsonPayload(o.data[plotMime]);
       const fig = isFigure(p) ? p : isFigure((p as { figure?: unknown })?.figure) ? (p as { figure: PlotFigure }).figure : undefined;
       if (fig) {
@@ -120,7 +152,7 @@ export function collect(nb: Notebook, status: ReadonlyMap<number, CellStatus>): 
     if (s === "error" || s === "timeout") failures.push({ cell: i, status: s, lines: s === "timeout" ? ["the cell did not finish within the time limit (--timeout)"] : errorLines(outputs), source: cellSource(cell) });
     else if (s === "abort" || s === "not run") skipped.push(i);
   });
-  return { derivations, plots, failures, skipped };
+  return { derivations, plots, parts, failures, skipped };
 }
 
 export interface CheckLine extends CheckEntry {

@@ -5,7 +5,8 @@
  * line or end of input stops it), so the kernel's start-up overlaps the checks
  * and staging done in Node. It executes every code cell, stops at the first
  * failing cell (tslab aborts the rest anyway), writes the executed notebook and
- * prints one JSON line describing each cell. Kept as a string so it ships
+ * prints one JSON line describing each cell (after an early line with the
+ * kernel's pid, which runs in a session of its own). Kept as a string so it ships
  * inside dist/ with the rest of the runner.
  */
 export const driverSource = String.raw`
@@ -31,6 +32,8 @@ async def main():
     try:
         client.km = client.create_kernel_manager()
         await client.async_start_new_kernel()
+        # The kernel runs in a session of its own; Node needs its pid to stop it on an interruption.
+        print(json.dumps({"kernel_pid": getattr(client.km.provisioner, "pid", None)}), flush=True)
         await client.async_start_new_kernel_client()
     except NoSuchKernel as e:
         return {"fatal": "no-kernel", "message": str(e)}

@@ -101,6 +101,11 @@ export interface ExecuteOptions {
 export interface KernelSession {
   run(input: string, output: string, opts: ExecuteOptions): Promise<ExecutionResult>;
   cancel(): void;
+  /**
+   * Stop at once: SIGKILL to the driver's process group and the kernel's (its
+   * own session); resolves when the driver has exited. Used on an interruption.
+   */
+  stop(): Promise<void>;
 }
 
 /** Start the kernel in `cwd` (the staging folder, which must exist). */
@@ -112,27 +117,59 @@ export function startKernelSession(cwd: string, opts: { readonly timeout: number
   const child = spawn(setup.python, ["-c", driverSource, JSON.stringify(args)], { cwd, env: jupyterEnv(opts.env), detached: true, stdio: ["pipe", "pipe", "pipe"] });
   let out = "";
   let err = "";
-  child.stdout!.on("data", (d: Buffer) => (out += d.toString()));
+  let kernelPid: number | undefined;
+  let announced: () => void = () => undefined;
+  const kernelKnown = new Promise<void>((r) => (announced = r));
+  child.stdout!.on("data", (d: Buffer) => {
+    out += d.toString();
+    if (kernelPid === undefined) {
+      const m = /^\{"kernel_pid": (\d+)\}$/m.exec(out);
+      if (m) {
+        kernelPid = Number(m[1]);
+        announced();
+      }
+    }
+  });
   child.stderr!.on("data", (d: Buffer) => (err += d.toString()));
   child.stdin!.on("error", () => {
     /* the driver stopped before reading; its stdout says why */
   });
-  const kill = () => {
+  const killGroup = (pid: number | undefined) => {
+    if (!pid) return;
     try {
-      process.kill(-child.pid!, "SIGKILL");
+      process.kill(-pid, "SIGKILL");
     } catch {
-      /* already gone */
+      try {
+        process.kill(pid, "SIGKILL");
+      } catch {
+        /* already gone */
+      }
     }
   };
+  const kill = () => {
+    killGroup(kernelPid);
+    killGroup(child.pid);
+  };
+  let exited = false;
   const done = new Promise<{ code: number | null; stdout: string; stderr: string }>((resolve, reject) => {
     child.on("error", (e) => reject(new PinchoffError("io", `cannot start ${setup.python} (${e.message}); ${installHint}`, "jupyter")));
-    child.on("close", (c) => resolve({ code: c, stdout: out, stderr: err }));
+    child.on("close", (c) => {
+      exited = true;
+      resolve({ code: c, stdout: out, stderr: err });
+    });
   });
   done.catch(() => undefined); // observed in run(); a cancelled session may never be awaited
   return {
     cancel() {
       child.stdin!.end("\n");
       setTimeout(kill, 5000).unref();
+    },
+    async stop() {
+      // A kernel being launched has no pid yet: give the driver a moment to name it, so it is not orphaned.
+      if (kernelPid === undefined && !exited) await Promise.race([kernelKnown, done.then(() => undefined, () => undefined), new Promise((r) => setTimeout(r, 10_000).unref())]);
+      kill();
+      await done.then(() => undefined, () => undefined);
+      killGroup(kernelPid); // in case it was named while the driver died
     },
     async run(input, output, runOpts) {
       child.stdin!.end(JSON.stringify({ input, output }) + "\n");

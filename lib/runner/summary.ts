@@ -1,4 +1,4 @@
-/** The run summary printed on the terminal: checks with margins, failed cells, files written. */
+/** The run summary printed on the terminal: checks with margins, failed cells, the design-run folder written (printed only after every file is in place). */
 import { formatQuantity } from "../units/format.js";
 import type { RunResult } from "./run.js";
 
@@ -21,8 +21,10 @@ export function summarize(r: RunResult, shown: (p: string) => string = (p) => p)
     for (const l of f.lines) out.push(`  ${l}`);
   }
   if (r.skipped.length) out.push(`not run after the failure: cell${r.skipped.length > 1 ? "s" : ""} ${r.skipped.map((i) => i + 1).join(", ")}`);
-  out.push(`wrote ${shown(r.executedPath)}`);
-  out.push(`wrote ${shown(r.reportPath)} (${(r.reportBytes / 1e6).toFixed(2)} MB)`);
+  out.push(`design-run folder ${shown(r.outDir)}:`);
+  out.push(`  report      ${shown(r.reportPath)} (${(r.reportBytes / 1e6).toFixed(2)} MB)`);
+  out.push(`  run record  ${shown(r.recordPath)}`);
+  out.push(`  notebook    ${shown(r.notebookPath)}`);
   const failed = r.checks.filter((c) => !c.passed).length;
   const verdict = r.failures.length ? `incomplete: cell ${r.failures[0]!.cell + 1} failed` : failed ? `${failed} of ${r.checks.length} checks fail` : `${r.checks.length} of ${r.checks.length} checks pass`;
   out.push(`result: ${verdict} (${r.seconds.total.toFixed(1)} s)`);
