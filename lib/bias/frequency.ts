@@ -192,7 +192,9 @@ interface Ctx {
  * The frequency response of a stage at its operating point. `analysis` is the
  * stage's DC analysis (`analyzeStage`), `spec` the source, load and capacitors.
  */
-export function analyzeFrequency(stage: Stage, analysis: StageAnalysis, spec: FrequencySpec = {}, rec?: Derivation): FrequencyAnalysis {
+export function analyzeFrequency(anyStage: Stage<string, object>, analysis: StageAnalysis, spec: FrequencySpec = {}, rec?: Derivation): FrequencyAnalysis {
+  // Any topology's typed stage (a synthesis result's included); its components are read by name below.
+  const stage = anyStage as unknown as Stage;
   const o = origin(stage);
   checkFrequencySpec(spec, `${o}: frequency`);
   if (!(supported as readonly string[]).includes(stage.topology))
