@@ -93,3 +93,9 @@ export { simulateDevices, type DeviceBias, type SimulatedDevice } from "./proces
 export { sizeByEfficiency, squareLawCard, vgsForEfficiency, type EfficiencySpec, type EfficiencyDesign, type SquareLawDesign } from "./sizing/gm-id.js";
 export { verifyStage, correctStage, processCircuit, type StageVerification, type DeviceVerification, type CorrectionOptions, type StageCorrection, type VerifyOptions } from "./bias/simulation-check.js";
 export * as gmIdFormulas from "./formulas/gm-id.formulas.js";
+export * from "./device/capacitance-card.js";
+export { deviceCapacitances, diffusionGeometry, oxidePermittivity, hasCapacitanceData, type DeviceCapacitances } from "./device/capacitance.js";
+export * from "./bias/frequency.js";
+export { acCircuit, acDeckText, defaultSweep, type AcCircuit, type AcSweep } from "./bias/frequency-spice.js";
+export * as capacitanceFormulas from "./formulas/capacitance.formulas.js";
+export * as frequencyFormulas from "./formulas/frequency.formulas.js";

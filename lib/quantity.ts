@@ -104,6 +104,9 @@ export const kelvin = (v: number) => v as Kelvin;
 export const watts = (v: number) => v as Watts;
 export const farads = (v: number) => v as Farads;
 export const seconds = (v: number) => v as Seconds;
+export const hertz = (v: number) => v as Hertz;
+export const faradsPerMeter = (v: number) => v as FaradsPerMeter;
+export const squareMeters = (v: number) => v as SquareMeters;
 export const ratio = (v: number) => v as Ratio;
 
 /** Brand by dimension name, for code that is generic over dimensions. */

@@ -23,6 +23,7 @@
  */
 import type { Device } from "../device/card.js";
 import { drainCurrent, type ClmMode } from "../device/drain-current.js";
+import { diffusionGeometry } from "../device/capacitance.js";
 import { ConvergenceError, InputError } from "../errors.js";
 import { spiceNumber } from "./spice.js";
 import { modelLine } from "./topologies/two-transistor.js";
@@ -458,6 +459,13 @@ export function smallSignalResponse(c: CompiledNetlist, drive: Readonly<Record<s
 }
 
 /** SPICE lines of a netlist: one Level 1 .model per device card, held nodes as sources named V<node>, elements, MOSFETs M<name> with a 0 V ammeter VA<name> in the drain lead. */
+/** AD/AS/PD/PS on an instance line when the card has a Level 1 capacitance block (the junctions the hand analysis counts). */
+function junctionGeometry(dev: NetMosfet["device"]): string {
+  if (!dev.card.capacitance) return "";
+  const g = diffusionGeometry(dev);
+  return ` AD=${spiceNumber(g.ad)} AS=${spiceNumber(g.as)} PD=${spiceNumber(g.pd)} PS=${spiceNumber(g.ps)}`;
+}
+
 export function netlistSpice(net: Netlist, prefix = ""): { lines: string[]; node: (name: string) => string; instance: (name: string) => string; ammeter: (name: string) => string } {
   const p = prefix;
   const node = (nm: string) => (nm === "0" ? "0" : `${p}${nm}`);
@@ -477,7 +485,7 @@ export function netlistSpice(net: Netlist, prefix = ""): { lines: string[]; node
   for (const m of net.mosfets)
     lines.push(
       `VA${p}${m.name} ${node(m.d)} ${p}dm${m.name} 0`,
-      `M${p}${m.name} ${p}dm${m.name} ${node(m.g)} ${node(m.s)} ${node(m.b)} ${models.get(m.device.card)} W=${spiceNumber(m.device.w)} L=${spiceNumber(m.device.l)}`,
+      `M${p}${m.name} ${p}dm${m.name} ${node(m.g)} ${node(m.s)} ${node(m.b)} ${models.get(m.device.card)} W=${spiceNumber(m.device.w)} L=${spiceNumber(m.device.l)}${junctionGeometry(m.device)}`,
     );
   return { lines, node, instance: (nm: string) => `M${p}${nm}`, ammeter: (nm: string) => `VA${p}${nm}` };
 }

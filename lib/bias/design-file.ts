@@ -38,6 +38,8 @@ import { InputError, PinchoffError, requirePositive } from "../errors.js";
 import type { Dimension, Kelvin } from "../quantity.js";
 import { partModel, type PartInUse } from "../device/discrete-part.js";
 import { parsePartCard } from "./part-file.js";
+import { checkFrequencySpec, type FrequencySpec } from "./frequency.js";
+import type { DiffusionGeometry } from "../device/capacitance-card.js";
 
 /** Ambient of a discrete part when the design file states none: 25 °C, where datasheets state their figures (common practice). */
 const roomTemperature = 298.15;
@@ -49,7 +51,7 @@ import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./t
 import { checkLimits } from "./stage.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "frequency", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -67,6 +69,50 @@ const cardFields: Record<string, Dimension | "string"> = {
   sigma: "dimensionless",
 };
 const temperatureFields: Record<string, Dimension> = { t0: "temperature", alphaVt: "voltagePerKelvin", muExp: "dimensionless" };
+const capacitanceFields: Record<string, Dimension> = {
+  tox: "length",
+  cgso: "capacitancePerWidth",
+  cgdo: "capacitancePerWidth",
+  cgbo: "capacitancePerWidth",
+  cj: "capacitancePerArea",
+  mj: "dimensionless",
+  pb: "voltage",
+  cjsw: "capacitancePerWidth",
+  mjsw: "dimensionless",
+  fc: "dimensionless",
+  diffusionLength: "length",
+};
+const diffusionFields: Record<string, Dimension> = { ad: "area", as: "area", pd: "length", ps: "length" };
+
+/** A group of optional quantities `{ field: value with unit }` at `f`. */
+function quantities(raw: unknown, fields: Record<string, Dimension>, f: string, at: (p: string) => string, what: string, required: readonly string[] = []): Record<string, number> {
+  const o = object(raw, at(f), what);
+  onlyKeys(o, Object.keys(fields), at(f));
+  const out: Record<string, number> = {};
+  for (const [k, dim] of Object.entries(fields)) if (o[k] !== undefined || required.includes(k)) out[k] = quantity(o[k], dim, at(`${f}.${k}`));
+  return out;
+}
+
+/** A design file's `frequency` section: signal source, load, coupling and bypass capacitors, target corners. */
+function parseFrequency(raw: unknown, at: (p: string) => string): FrequencySpec {
+  const f = object(raw, at("frequency"), "a frequency section { source?, load?, capacitors?, targets?, series? }");
+  onlyKeys(f, ["source", "load", "capacitors", "targets", "series"], at("frequency"));
+  const spec: Record<string, unknown> = {};
+  if (f.source !== undefined) {
+    const src = object(f.source, at("frequency.source"), "a signal source { resistance }");
+    for (const k of Object.keys(src))
+      if (k !== "resistance") throw new InputError(k, "only resistance: the source impedance must be a resistance (put a source capacitance in the card or the load)", at(`frequency.source.${k}`), "invalid-design");
+    spec.source = quantities(src, { resistance: "resistance" }, "frequency.source", at, "a signal source { resistance }", ["resistance"]);
+  }
+  if (f.load !== undefined) spec.load = quantities(f.load, { resistance: "resistance", capacitance: "capacitance" }, "frequency.load", at, "a load { resistance?, capacitance? }");
+  if (f.capacitors !== undefined) spec.capacitors = quantities(f.capacitors, { input: "capacitance", output: "capacitance", bypass: "capacitance" }, "frequency.capacitors", at, "coupling and bypass capacitors { input?, output?, bypass? }");
+  if (f.targets !== undefined) spec.targets = quantities(f.targets, { lowCorner: "frequency", highCorner: "frequency" }, "frequency.targets", at, "target corners { lowCorner?, highCorner? }");
+  if (f.series !== undefined) {
+    if (f.series !== "E6" && f.series !== "E12") throw new InputError(f.series, `"E6" or "E12" (IEC 60063 capacitor series)`, at("frequency.series"), "invalid-design");
+    spec.series = f.series;
+  }
+  return checkFrequencySpec(spec as FrequencySpec, at("frequency"));
+}
 const limitFields: Record<keyof StageLimits, Dimension> = {
   maxDevicePower: "power",
   maxTotalPower: "power",
@@ -95,7 +141,7 @@ function quantity(v: unknown, dim: Dimension, at: string): number {
 /** Parse a device card found at field path `f` (e.g. "device.card"). */
 function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCard {
   const c = object(raw, at(f), "a device card { name, polarity, kp, vt0, … }");
-  onlyKeys(c, [...Object.keys(cardFields), "temperature"], at(f));
+  onlyKeys(c, [...Object.keys(cardFields), "temperature", "capacitance", "datasheetCapacitances"], at(f));
   const card: Record<string, unknown> = {};
   for (const [k, dim] of Object.entries(cardFields)) {
     const v = c[k];
@@ -117,6 +163,9 @@ function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCa
     for (const [k, dim] of Object.entries(temperatureFields)) tc[k] = quantity(t[k], dim, at(`${f}.temperature.${k}`));
     card.temperature = tc;
   }
+  if (c.capacitance !== undefined) card.capacitance = quantities(c.capacitance, capacitanceFields, `${f}.capacitance`, at, "Level 1 capacitance parameters { tox, cgso?, cgdo?, cgbo?, cj?, mj?, pb?, cjsw?, mjsw?, fc?, diffusionLength? }", ["tox"]);
+  if (c.datasheetCapacitances !== undefined)
+    card.datasheetCapacitances = quantities(c.datasheetCapacitances, { ciss: "capacitance", crss: "capacitance", coss: "capacitance", vds: "voltage" }, `${f}.datasheetCapacitances`, at, "datasheet capacitances { ciss, crss, coss, vds }", ["ciss", "crss", "coss", "vds"]);
   checkCard(card as unknown as DeviceCard, at(f));
   return card as unknown as DeviceCard;
 }
@@ -132,12 +181,12 @@ function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): S
     const model = partModel(part, undefined, at(`${f}.part`));
     return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
   }
-  onlyKeys(dev, ["card", "w", "l"], at(f));
+  onlyKeys(dev, ["card", "w", "l", "diffusion"], at(f));
   const card = parseCard(dev.card, `${f}.card`, at);
   const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
   const l = requirePositive(quantity(dev.l, "length", at(`${f}.l`)), at(`${f}.l`), "a channel length L > 0 in m");
-
-  return { card, w: w as StageDevice["w"], l: l as StageDevice["l"] };
+  const diffusion = dev.diffusion === undefined ? undefined : (quantities(dev.diffusion, diffusionFields, `${f}.diffusion`, at, "drain and source diffusions { ad, as, pd, ps }", ["ad", "as", "pd", "ps"]) as unknown as DiffusionGeometry);
+  return { card, w: w as StageDevice["w"], l: l as StageDevice["l"], ...(diffusion ? { diffusion } : {}) };
 }
 
 /** What a design file states besides the device and the components or specification. */
@@ -225,8 +274,8 @@ function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path
 
 /** A design file read: a stage to analyse, or a specification to design. */
 export type DesignFile =
-  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection }
-  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection; readonly part?: PartInUse };
+  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection; readonly frequency?: FrequencySpec }
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection; readonly part?: PartInUse; readonly frequency?: FrequencySpec };
 
 /** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
 export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
@@ -236,7 +285,10 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
   const topo = topologyFor(d.topology, at("topology"));
   if (d.name !== undefined && typeof d.name !== "string") throw new InputError(d.name, "a name as text", at("name"), "invalid-design");
   if (d.notes !== undefined && typeof d.notes !== "string") throw new InputError(d.notes, "notes as text", at("notes"), "invalid-design");
-  const tolerance = d.tolerance === undefined ? {} : { tolerance: parseToleranceSection(d.tolerance, at("tolerance")) };
+  const tolerance = {
+    ...(d.tolerance === undefined ? {} : { tolerance: parseToleranceSection(d.tolerance, at("tolerance")) }),
+    ...(d.frequency === undefined ? {} : { frequency: parseFrequency(d.frequency, at) }),
+  };
   const given = (["components", "specification"] as const).filter((k) => d[k] !== undefined);
   if (given.length !== 1)
     throw new InputError(given.length ? given : undefined, "exactly one of components (the values, to analyse the stage) or specification (the targets, to design it)", at("components/specification"), "invalid-design");

@@ -45,7 +45,7 @@ function group(v: unknown, at: string, fields: Record<string, [Dimension, boolea
 /** Read a part card (already JSON-parsed) found at `at` (e.g. "design.json: device.part"). */
 export function parsePartCard(raw: unknown, at = "part"): DiscretePart {
   if (!isObject(raw)) throw new InputError(raw, "a discrete part card { name, polarity, threshold, forwardTransconductance, onResistance?, ratings }", at, "invalid-design");
-  const allowed = ["name", "polarity", "threshold", "forwardTransconductance", "onResistance", "ratings", "provenance"];
+  const allowed = ["name", "polarity", "threshold", "forwardTransconductance", "onResistance", "ratings", "capacitances", "provenance"];
   for (const k of Object.keys(raw)) if (!allowed.includes(k)) throw new InputError(k, `one of the fields ${allowed.join(", ")}`, `${at}.${k}`, "invalid-design");
   if (typeof raw.name !== "string" || !raw.name.trim()) throw new InputError(raw.name, "the part's name as text", `${at}.name`, "invalid-design");
   if (raw.polarity !== "nmos" && raw.polarity !== "pmos") throw new InputError(raw.polarity, `"nmos" (N-channel) or "pmos" (P-channel)`, `${at}.polarity`, "invalid-design");
@@ -62,7 +62,9 @@ export function parsePartCard(raw: unknown, at = "part"): DiscretePart {
     throw new InputError(pdAt, `where PD is stated: { "ambient": "25 degC" } or { "case": "25 degC" }`, `${at}.ratings.pdAt`, "invalid-design");
   const kind = "ambient" in pdAt ? "ambient" : "case";
   const t = group(pdAt, `${at}.ratings.pdAt`, { [kind]: ["temperature", true] }, "the temperature PD is stated at", false)[kind]!;
+  const caps = raw.capacitances === undefined ? undefined : group(raw.capacitances, `${at}.capacitances`, { ciss: ["capacitance", true], crss: ["capacitance", true], coss: ["capacitance", true], vds: ["voltage", true] }, "the datasheet capacitances { ciss, crss, coss, vds }", pmos);
   const part = {
+    ...(caps ? { capacitances: caps } : {}),
     name: raw.name,
     polarity: raw.polarity,
     threshold,

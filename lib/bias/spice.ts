@@ -6,15 +6,44 @@
  * optional prefix so several stages can share one deck.
  */
 import { defaultPhi, polaritySign, type DeviceCard } from "../device/card.js";
+import { diffusionGeometry } from "../device/capacitance.js";
 import { element, modelCard, spiceNumber, spicePrefix, writeDeck } from "../spice/deck.js";
 import type { NetworkMapping } from "./stage.js";
-import type { SpiceCircuit, Stage } from "./topology.js";
+import type { SpiceCircuit, Stage, StageDevice } from "./topology.js";
 
 export { spiceNumber };
 
-/** A Level 1 .model line from a device card (LEVEL=1 VTO KP LAMBDA GAMMA PHI). */
+/** A Level 1 .model line from a device card (LEVEL=1 VTO KP LAMBDA GAMMA PHI, and TOX CGSO … FC when the card has a capacitance block). */
 export function level1Model(name: string, card: DeviceCard): string {
-  return modelCard(name, card.polarity, { level: 1, vto: card.vt0, kp: card.kp, lambda: card.lambda ?? 0, gamma: card.gamma ?? 0, phi: card.phi ?? defaultPhi });
+  return modelCard(name, card.polarity, { level: 1, vto: card.vt0, kp: card.kp, lambda: card.lambda ?? 0, gamma: card.gamma ?? 0, phi: card.phi ?? defaultPhi, ...capacitanceModelParams(card) });
+}
+
+/** Level 1 capacitance parameters for the .model line (none when the card has no capacitance block). */
+export function capacitanceModelParams(card: DeviceCard): Record<string, number> {
+  const c = card.capacitance;
+  if (!c) return {};
+  const fields: Array<[string, number | undefined]> = [
+    ["tox", c.tox],
+    ["cgso", c.cgso],
+    ["cgdo", c.cgdo],
+    ["cgbo", c.cgbo],
+    ["cj", c.cj],
+    ["mj", c.mj],
+    ["pb", c.pb],
+    ["cjsw", c.cjsw],
+    ["mjsw", c.mjsw],
+    ["fc", c.fc],
+  ];
+  const out: Record<string, number> = {};
+  for (const [k, v] of fields) if (v !== undefined) out[k] = v;
+  return out;
+}
+
+/** AD/AS/PD/PS for the instance line, when the card has a capacitance block (stated or by the default rule). */
+export function diffusionParams(dev: StageDevice): Record<string, number> {
+  if (!dev.card.capacitance) return {};
+  const g = diffusionGeometry(dev);
+  return { AD: g.ad, AS: g.as, PD: g.pd, PS: g.ps };
 }
 
 /** Circuit lines of a single-transistor stage (no title, .op or .end). */
@@ -52,7 +81,7 @@ export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): Spic
   } else lines.push(`V${p}G ${g} 0 ${spiceNumber(map.vg ?? 0)}`);
   const b = stage.body === "rail" ? srail : s;
   const inst = `M${p}1`;
-  lines.push(element(inst, [d, g, s, b], model, { W: stage.device.w, L: stage.device.l }));
+  lines.push(element(inst, [d, g, s, b], model, { W: stage.device.w, L: stage.device.l, ...diffusionParams(stage.device) }));
   return { lines, nodes: { gate: g, source: s, drain: d, body: b, vdd, vss }, drainAmmeter: ammeter, instance: inst, models: { [model]: card.polarity } };
 }
 

@@ -20,6 +20,7 @@
  *   and the body effect applies. Body "source" ties body to source (VSB = 0).
  */
 import type { DeviceCard, Polarity } from "../device/card.js";
+import type { DiffusionGeometry } from "../device/capacitance-card.js";
 import type { PartInUse } from "../device/discrete-part.js";
 import type { ModelOptions, OperatingPoint } from "../device/drain-current.js";
 import type { Region } from "../device/region.js";
@@ -42,6 +43,8 @@ export interface StageDevice {
   readonly card: DeviceCard;
   readonly w: Meters;
   readonly l: Meters;
+  /** Drain and source diffusion areas and perimeters, for junction capacitances (default rule in lib/device/capacitance.ts). */
+  readonly diffusion?: DiffusionGeometry;
   /** A discrete part: its datasheet card (the card above is derived from it) and ambient; its ratings are checked in every analysis. */
   readonly part?: PartInUse;
 }

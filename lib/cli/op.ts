@@ -24,6 +24,8 @@ import { partModel, ratingChecks } from "../device/discrete-part.js";
 import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
+import { analyzeFrequency, type FrequencyAnalysis } from "../bias/frequency.js";
+import { formatQuantity } from "../units/format.js";
 import { writeFileAtomic } from "../io/atomic-write.js";
 import { verificationFailure, verificationText, verifyFromCommandLine } from "./verify-text.js";
 
@@ -219,6 +221,22 @@ function failedChecks(analysis: StageAnalysis, design: SynthesisResult | undefin
   ];
 }
 
+/** The frequency block of the readable summary. */
+export function frequencyText(fa: FrequencyAnalysis): string {
+  const hz = (x: number) => (Number.isFinite(x) ? formatQuantity(x, "frequency") : "none");
+  const lines = [`Frequency response (${fa.view}, hand analysis): midband gain ${+fa.midbandGain.toPrecision(4)}`];
+  if (fa.low) {
+    for (const c of fa.low.capacitors) lines.push(`  ${c.role.padEnd(6)} capacitor ${formatQuantity(c.value, "capacitance")}${c.designed ? " (designed)" : ""}: sees ${formatQuantity(c.resistance, "resistance")}, pole ${hz(c.pole)}`);
+    lines.push(`  low corner ${hz(fa.low.corner)} (short-circuit sum ${hz(fa.low.sctcCorner)})`);
+  }
+  const h = fa.high;
+  lines.push(`  upper corner ${hz(h.corner)} (open-circuit estimate ${hz(h.octcCorner)}); poles ${h.complexPair ? `complex pair at ${hz(h.complexPair.naturalFrequency)}, Q = ${+h.complexPair.q.toPrecision(3)}` : `${hz(h.dominantPole ?? NaN)} and ${hz(h.nonDominantPole ?? Infinity)}`}; zero ${hz(h.zero.frequency)}${h.zero.rightHalfPlane ? " (right half plane)" : ""}`);
+  if (h.miller) lines.push(`  Miller: input capacitance ${formatQuantity(h.miller.capacitance, "capacitance")}, input pole ${hz(h.miller.inputPole)}, output pole ${hz(h.miller.outputPole)}`);
+  lines.push(`  one dominant pole: ${h.dominantPoleHolds ? "yes" : "no — the estimates are rough"}`);
+  for (const f of fa.findings) lines.push(`  caution: ${f}`);
+  return lines.join("\n");
+}
+
 export const main = defineCommand(command, async ({ values, positionals }) => {
   if (values.json && values.text) throw new UsageError("--json and --text exclude each other", usageLine(command));
   const file = positionals[0]!;
@@ -238,6 +256,8 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   const tolerance = read.tolerance ? toleranceChecks(stage, read.tolerance, record !== undefined ? rec : undefined) : undefined;
   const extraChecks: StageCheck[] = [];
   const verification = values.verify !== undefined ? await verifyFromCommandLine(stage, values.verify, values["verify-tolerance"], values["verify-deck"], rec) : undefined;
+  // A "frequency" section: the response by hand analysis, its checks failing the op like the others.
+  const frequency = read.frequency ? analyzeFrequency(stage, analysis, read.frequency, record !== undefined ? rec : undefined) : undefined;
   if (record !== undefined) {
     recordLimits(rec, read);
     const written = new Date().toISOString();
@@ -250,12 +270,17 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
     writeRecord(record, text, [file], values.force === true);
   }
   const failures = [...failedChecks(analysis, design, tolerance, extraChecks), ...(verification && !verification.passed ? [verificationFailure(verification)] : [])];
+  // Target corners are checks of the design; the methods' own assumptions are cautions, not failures.
+  for (const c of frequency?.checks ?? [])
+    if (!c.passed && (c.name.startsWith("Low-frequency corner") || c.name.startsWith("Upper corner"))) failures.push(`FAIL  frequency, ${c.name}: ${+c.value.toPrecision(4)} ${c.unit}`);
   const asText = values.text === true || (values.json !== true && process.stdout.isTTY === true);
-  if (asText) console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }) + (verification ? `\n${verificationText(verification)}` : ""));
-  else {
+  if (asText) {
+    console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }) + (verification ? `\n${verificationText(verification)}` : ""));
+    if (frequency) console.log(frequencyText(frequency));
+  } else {
     const head = { design: file, ...(record ? { record } : {}) };
     const body = design ? designSummary(read as Extract<DesignFile, { kind: "specification" }>, design) : analysis;
-    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), ...(verification ? { verification } : {}), failedChecks: failures }));
+    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(frequency ? { frequency } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), ...(verification ? { verification } : {}), failedChecks: failures }));
     for (const f of failures) console.error(`check failed: ${f.replace(/^FAIL\s+/, "")}`);
   }
   return failures.length ? exitStatus.failed : exitStatus.ok;

@@ -7,6 +7,7 @@
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
 import { cardAt, checkCardSet, type CardSet } from "./card-set.js";
+import { checkDatasheetCapacitances, checkProcessCapacitances, type DatasheetCapacitances, type ProcessCapacitances } from "./capacitance-card.js";
 import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, Ratio, SqrtVolts, VoltMeters, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
@@ -66,6 +67,10 @@ export interface DeviceCard {
   /** ekv only: drain-induced threshold lowering, VP shifts by σ·VDS; ≥ 0, 0 when omitted. */
   readonly sigma?: Ratio;
   readonly temperature?: TemperatureCoefficients;
+  /** SPICE Level 1 capacitance parameters (TOX, overlaps, junctions), for frequency analysis. */
+  readonly capacitance?: ProcessCapacitances;
+  /** A discrete part's datasheet Ciss, Crss, Coss, for frequency analysis. */
+  readonly datasheetCapacitances?: DatasheetCapacitances;
   /** Pelgrom threshold-mismatch coefficient: σ(ΔVt) = AVt/√(W·L) for a pair of these devices, in V·m (1 mV·µm = 1e-9 V·m). */
   readonly avt?: VoltMeters;
   /** Pelgrom current-factor mismatch coefficient: σ(Δβ/β) = Aβ/√(W·L), in m (1 %·µm = 1e-8 m). */
@@ -140,6 +145,8 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");
     requireFinite(card.temperature.muExp, at("temperature.muExp"), "a mobility exponent (typically 1.2 to 2)");
   }
+  if (card.capacitance !== undefined) checkProcessCapacitances(card.capacitance, at);
+  if (card.datasheetCapacitances !== undefined) checkDatasheetCapacitances(card.datasheetCapacitances, at);
   return card;
 }
 

@@ -17,6 +17,7 @@
  * Failure mode: a part whose figures give Vt ≤ 0 or are not finite and
  * positive is refused with an InputError naming the field.
  */
+import type { DatasheetCapacitances } from "./capacitance-card.js";
 import type { DeviceCard, Polarity } from "./card.js";
 import { InputError, requireFinite, requirePositive } from "../errors.js";
 import * as df from "../formulas/discrete.formulas.js";
@@ -55,6 +56,8 @@ export interface DiscretePart {
   /** On-resistance RDS(on) at a stated gate drive and current, for the cross-check. */
   readonly onResistance?: { readonly rds: Ohms; readonly vgs: Volts; readonly id: Amperes };
   readonly ratings: PartRatings;
+  /** The datasheet's Ciss, Crss, Coss at their test VDS, for frequency analysis (copied onto the derived card). */
+  readonly capacitances?: DatasheetCapacitances;
   /** Where the figures come from: the datasheet and its revision, or "invented". */
   readonly provenance?: string;
 }
@@ -173,6 +176,7 @@ export function partModel(part: DiscretePart, rec?: Derivation, origin = "part")
     lambda: 0 as DeviceCard["lambda"] & number,
     gamma: 0 as DeviceCard["gamma"] & number,
     provenance: `derived from the datasheet figures of ${part.name}${part.provenance ? ` (${part.provenance})` : ""}; W = L = 1 µm so KP = k`,
+    ...(part.capacitances ? { datasheetCapacitances: part.capacitances } : {}),
   };
   return { card, w: partSize, l: partSize, k, vt, ...(ron !== undefined ? { ron, ronRatio: ronRatio! } : {}), findings };
 }

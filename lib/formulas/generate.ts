@@ -46,7 +46,7 @@ const typeOfDim: Record<Dimension, string> = {
   fraction: "Fraction",
 };
 
-const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", exp: "Math.exp", log: "Math.log", log1p: "Math.log1p", abs: "Math.abs", max: "Math.max", min: "Math.min" };
+const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", atan: "Math.atan", exp: "Math.exp", log: "Math.log", log1p: "Math.log1p", abs: "Math.abs", max: "Math.max", min: "Math.min" };
 
 interface Catalog {
   file: string;
@@ -96,7 +96,7 @@ function toJs(node: MathNode, where: string): string {
     case "ConstantNode":
       return String(n.value);
     case "SymbolNode":
-      return n.name;
+      return n.name === "pi" ? "Math.PI" : n.name;
     case "ParenthesisNode":
       return `(${toJs(n.content, where)})`;
     case "OperatorNode": {
@@ -125,7 +125,8 @@ function freeSymbols(node: MathNode): string[] {
   node.traverse((c, _path, parent) => {
     const s = c as MathNode & { name?: string };
     const isFunctionName = parent && parent.type === "FunctionNode" && (parent as any).fn === c;
-    if (c.type === "SymbolNode" && !isFunctionName && !names.includes(s.name!)) names.push(s.name!);
+    // pi is the one named constant (mathjs knows it, so re-evaluation needs no input for it).
+    if (c.type === "SymbolNode" && !isFunctionName && s.name !== "pi" && !names.includes(s.name!)) names.push(s.name!);
   });
   return names;
 }

@@ -11,7 +11,7 @@ import { scaleFor, type Scale } from "../units/format.js";
 export const plotMimeType = "application/vnd.pinchoff.plot+json";
 export const plotSchema = "pinchoff.plot/1";
 
-export type PlotKind = "output-characteristics" | "transfer-characteristic" | "transconductance" | "measured-against-model" | "fit-residuals" | "validity-map";
+export type PlotKind = "output-characteristics" | "transfer-characteristic" | "transconductance" | "measured-against-model" | "fit-residuals" | "validity-map" | "bode";
 
 export interface Trace {
   readonly type: "scatter";
@@ -30,7 +30,7 @@ export interface Trace {
   readonly meta?: { readonly role: TraceRole; readonly [key: string]: unknown };
 }
 
-export type TraceRole = "curve" | "boundary" | "load-line" | "load-curve" | "operating-point" | "threshold" | "gm" | "gm-over-id" | "measured" | "model" | "residual" | "validity";
+export type TraceRole = "curve" | "boundary" | "load-line" | "load-curve" | "operating-point" | "threshold" | "gm" | "gm-over-id" | "measured" | "model" | "residual" | "validity" | "magnitude" | "phase" | "corner";
 
 export interface Axis {
   readonly type?: "linear" | "log";
@@ -43,6 +43,8 @@ export interface Axis {
   readonly overlaying?: "y";
   readonly side?: "left" | "right";
   readonly showgrid?: boolean;
+  /** Plotly axis type; linear when omitted. */
+  readonly type?: "linear" | "log";
 }
 
 export interface Layout {

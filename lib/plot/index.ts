@@ -8,3 +8,5 @@ export * from "./html.js";
 export * from "./notebook.js";
 export * from "./stage.js";
 export * from "./pair.js";
+export * from "./bode.js";
+export { simulateFrequency, trySimulateFrequency, type SimulatedResponse } from "../bias/frequency-sim.js";

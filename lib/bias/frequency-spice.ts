@@ -1,0 +1,114 @@
+/**
+ * SPICE export of a stage's frequency response: the DC deck of its topology
+ * with the signal source (AC 1 V) and its resistance, the coupling and bypass
+ * capacitors, the load, the device's datasheet capacitances as explicit
+ * capacitors when the card has no Level 1 capacitance block, and an `.ac`
+ * sweep. The transfer function is v(<prefix>out)/1 V.
+ */
+import { deviceCapacitances } from "../device/capacitance.js";
+import { InputError } from "../errors.js";
+import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
+import { spiceNumber } from "./spice.js";
+import { writeDeck } from "../spice/deck.js";
+import type { FrequencyAnalysis } from "./frequency.js";
+
+export interface AcSweep {
+  readonly pointsPerDecade: number;
+  readonly start: number;
+  readonly stop: number;
+}
+
+export interface AcCircuit {
+  readonly lines: string[];
+  /** Node whose voltage is the response to the 1 V AC source. */
+  readonly output: string;
+  readonly sweep: AcSweep;
+}
+
+/** Default sweep: two decades below the low corner (or 1 Hz) to two decades above the upper corner. */
+export function defaultSweep(fa: FrequencyAnalysis): AcSweep {
+  const lo = fa.low ? fa.low.corner / 100 : Math.min(1, fa.high.corner / 1e4);
+  const hi = fa.high.corner * 100;
+  const dec = (x: number, up: boolean) => 10 ** (up ? Math.ceil(Math.log10(x)) : Math.floor(Math.log10(x)));
+  return { pointsPerDecade: 50, start: dec(lo, false), stop: dec(hi, true) };
+}
+
+/** Circuit lines for the AC response of a single-transistor stage. */
+export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAnalysis, prefix = "", sweep = defaultSweep(fa)): AcCircuit {
+  const p = prefix;
+  const dc = topologyFor(stage.topology).spice(stage, p);
+  const n = dc.nodes as Readonly<Record<"gate" | "source" | "drain", string>>;
+  const lines = [...dc.lines];
+  const sig = `${p}sig`;
+  const gateIn = `${p}gin`;
+  const rsig = fa.source.resistance;
+  const cap = (role: "input" | "output" | "bypass") => fa.low?.capacitors.find((c) => c.role === role)?.value;
+  if (fa.view === "differential-pair") {
+    // Differential drive: 1 V between the inputs, half on each in opposite phase; the response is v(out).
+    const nn = dc.nodes as Record<string, string>;
+    const devs = stage.devices as Record<string, Stage["device"]> | undefined;
+    if (!stage.device.card.capacitance || !devs?.load?.card.capacitance)
+      throw new InputError(stage.device.card.name, "Level 1 capacitance blocks on the pair and load cards for the AC export (datasheet capacitances are not placed in a pair's deck)", `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    for (const [node, ac] of [[nn.in1!, "AC 0.5"], [nn.in2!, "AC 0.5 180"]] as const) {
+      const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === node && l.split(" ")[2] === "0");
+      if (i < 0) throw new Error(`internal: no input source at node ${node}`);
+      lines[i] = `${lines[i]} ${ac}`;
+    }
+    if (fa.load.capacitance > 0) lines.push(`C${p}L ${nn.out} 0 ${spiceNumber(fa.load.capacitance)}`);
+    return { lines, output: nn.out!, sweep };
+  }
+  if (fa.circuit.gateCoupled) {
+    lines.push(`V${p}SIG ${sig} 0 DC 0 AC 1`);
+    lines.push(rsig > 0 ? `R${p}SIG ${sig} ${gateIn} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${gateIn} 0`);
+    lines.push(`C${p}IN ${gateIn} ${n.gate} ${spiceNumber(cap("input")!)}`);
+  } else {
+    // DC-coupled gate: the signal source goes in series with the gate bias source.
+    // The source holding the gate node: V<p>G (single-transistor decks) or V<p>vg (circuit decks).
+    const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === n.gate && l.split(" ")[2] === "0");
+    if (i < 0) throw new Error(`internal: no gate bias source at node ${n.gate} in the ${stage.topology} deck`);
+    const bias = `${p}gdc`;
+    const [name, , ...rest] = lines[i]!.split(" ");
+    lines[i] = [name, bias, ...rest].join(" ");
+    lines.push(`V${p}SIG ${sig} ${bias} DC 0 AC 1`);
+    lines.push(rsig > 0 ? `R${p}SIG ${sig} ${n.gate} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${n.gate} 0`);
+  }
+  const cb = cap("bypass");
+  if (cb !== undefined) lines.push(`C${p}B ${n.source} 0 ${spiceNumber(cb)}`);
+  const outNode = fa.view === "cascode" ? (dc.nodes as Record<string, string>).out! : fa.outputNode === "drain" ? n.drain : n.source;
+  let out = outNode;
+  if (fa.load.resistance !== undefined) {
+    out = `${p}out`;
+    lines.push(`C${p}OUT ${outNode} ${out} ${spiceNumber(cap("output")!)}`);
+    lines.push(`R${p}L ${out} 0 ${spiceNumber(fa.load.resistance)}`);
+  }
+  if (fa.load.capacitance > 0) lines.push(`C${p}L ${out} 0 ${spiceNumber(fa.load.capacitance)}`);
+  if (!stage.device.card.capacitance && stage.device.card.datasheetCapacitances) {
+    const c = deviceCapacitances(stage.device, analysis.op);
+    lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`, `C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+  }
+  const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
+  const m2 = analysis.devices?.M2;
+  if (fa.view === "cascode" && cas && m2 && !cas.card.capacitance && cas.card.datasheetCapacitances) {
+    // The cascode device M2: gate at vcas, source at x, drain at out.
+    const c = deviceCapacitances(cas, m2.op);
+    const g = (dc.nodes as Record<string, string>).vcas!;
+    const x = (dc.nodes as Record<string, string>).x!;
+    const d = (dc.nodes as Record<string, string>).out!;
+    lines.push(`C${p}GS2 ${g} ${x} ${spiceNumber(c.cgs)}`, `C${p}GD2 ${g} ${d} ${spiceNumber(c.cgd)}`, `C${p}DS2 ${d} ${x} ${spiceNumber(c.cds)}`);
+  }
+  return { lines, output: out, sweep };
+}
+
+/** A whole deck: title, cautions, circuit, .ac and .end. */
+export function acDeckText(title: string, ac: AcCircuit): string {
+  return writeDeck({
+    title,
+    comments: [
+      "Exported by pinchoff: SPICE Level 1 card with its capacitances, signal source AC 1 V.",
+      "Hand-analysis cross-check only: verify with your process models and by measurement.",
+      `Response: v(${ac.output}) (the gain, since the source is 1 V).`,
+    ],
+    lines: ac.lines,
+    analyses: [".op", `.ac dec ${ac.sweep.pointsPerDecade} ${spiceNumber(ac.sweep.start)} ${spiceNumber(ac.sweep.stop)}`],
+  });
+}

@@ -1,0 +1,84 @@
+/**
+ * `pinchoff op` with a design file's `frequency` section: the capacitance block
+ * on the card, the source, load and target corner read with their units, the
+ * response in the JSON output and the summary, a missed target failing the op,
+ * and a source impedance that is not a resistance refused with the field path.
+ */
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { afterAll, describe, expect, it } from "vitest";
+import { main } from "../lib/cli/op.js";
+import { parseDesignFile } from "../lib/bias/design-file.js";
+import { captureCli } from "./support/cli.js";
+
+const dir = mkdtempSync(join(tmpdir(), "pinchoff-op-freq-"));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+// Invented: a microphone preamplifier stage on an invented 20 nm-oxide process.
+const design = {
+  name: "microphone preamp (invented)",
+  topology: "four-resistor",
+  device: {
+    card: { name: "demo-n", polarity: "nmos", kp: "100 uA/V^2", vt0: "0.7 V", lambda: "0.02 1/V", capacitance: { tox: "20 nm", cgso: "0.2 fF/um", cgdo: "0.2 fF/um", cj: "0.5 fF/um^2", cjsw: "0.2 fF/um", diffusionLength: "3 um" }, provenance: "invented for the tests" },
+    w: "40 um",
+    l: "2 um",
+  },
+  components: { rg1: "680 kohm", rg2: "220 kohm", rd: "10 kohm", rs: "1.5 kohm" },
+  supplies: { vdd: "12 V" },
+  frequency: { source: { resistance: "10 kohm" }, load: { resistance: "100 kohm", capacitance: "10 pF" }, targets: { lowCorner: "20 Hz" }, series: "E12" },
+};
+const write = (name: string, d: unknown) => {
+  const p = join(dir, name);
+  writeFileSync(p, JSON.stringify(d));
+  return p;
+};
+
+describe("pinchoff op with a frequency section", () => {
+  it("reads the units and reports the designed capacitors and both corners", async () => {
+    const r = await captureCli(main, [write("ok.json", design), "--json"]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.frequency.low.capacitors).toHaveLength(3);
+    expect(Math.abs(j.frequency.low.corner / 20 - 1)).toBeLessThan(0.15);
+    expect(j.frequency.high.corner).toBeGreaterThan(1e4);
+    const t = await captureCli(main, [write("ok.json", design), "--text"]);
+    expect(t.out).toMatch(/Frequency response \(common-source/);
+    expect(t.out).toMatch(/bypass capacitor .*\(designed\)/);
+  }, 60_000);
+  it("fails the op when given capacitors miss the low-corner target: exit 1", async () => {
+    const d = { ...design, frequency: { ...design.frequency, capacitors: { input: "1 uF", output: "1 uF", bypass: "1 mF" }, targets: { lowCorner: "1 Hz" } } };
+    const r = await captureCli(main, [write("low.json", d), "--json"]);
+    expect(r.code).toBe(1);
+    expect(r.err).toMatch(/Low-frequency corner/);
+  });
+  it("takes a discrete part's datasheet capacitances from its part card", async () => {
+    // Invented part: k = gfs²/(2·ID) = 0.1 A/V², VGS(th) 2 V; Ciss 60 pF, Crss 5 pF, Coss 25 pF at 25 V.
+    const part = {
+      name: "QN-60 (invented)",
+      polarity: "nmos",
+      threshold: { vgs: "2.0 V", id: "1 mA" },
+      forwardTransconductance: { gfs: "200 mS", id: "200 mA", vds: "10 V" },
+      ratings: { vds: "60 V", vgs: "20 V", id: "300 mA", pd: "400 mW", pdAt: { ambient: "25 degC" }, tjMax: "150 degC", rthJA: "312.5 K/W" },
+      capacitances: { ciss: "60 pF", crss: "5 pF", coss: "25 pF", vds: "25 V" },
+      provenance: "invented for the tests",
+    };
+    const d = { name: "discrete stage (invented)", topology: "four-resistor", device: { part }, components: { rg1: "1 Mohm", rg2: "270 kohm", rd: "1 kohm", rs: "220 ohm" }, supplies: { vdd: "12 V" }, frequency: { source: { resistance: "600 ohm" }, load: { resistance: "10 kohm" }, targets: { lowCorner: "50 Hz" } } };
+    const r = await captureCli(main, [write("part.json", d), "--json"]);
+    const j = JSON.parse(r.out);
+    expect(j.frequency.capacitances.from).toBe("datasheet");
+    expect(j.frequency.capacitances.cgs).toBeCloseTo(55e-12, 20);
+    expect(j.frequency.capacitances.cgd).toBeCloseTo(5e-12, 20);
+    expect(j.frequency.capacitances.cds).toBeCloseTo(20e-12, 20);
+  }, 60_000);
+  it("refuses a source impedance that is not a resistance, naming the field", () => {
+    expect(() => parseDesignFile({ ...design, frequency: { source: { resistance: "50 ohm", reactance: "10 ohm" } } }, "d.json")).toThrow(/d\.json: frequency\.source\.reactance.*resistance/);
+    expect(() => parseDesignFile({ ...design, frequency: { source: { resistance: "10 pF" } } }, "d.json")).toThrow(/frequency\.source\.resistance/);
+  });
+  it("asks for the card's capacitance data when a frequency section is given without it", async () => {
+    const card = { ...design.device.card } as Record<string, unknown>;
+    delete card.capacitance;
+    const r = await captureCli(main, [write("bare.json", { ...design, device: { ...design.device, card } })]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(`${r.err}`).toMatch(/TOX/);
+  });
+});
