@@ -33,7 +33,6 @@ export interface Trace {
 export type TraceRole = "curve" | "boundary" | "load-line" | "load-curve" | "operating-point" | "threshold" | "gm" | "gm-over-id" | "measured" | "model" | "residual" | "validity" | "magnitude" | "phase" | "corner";
 
 export interface Axis {
-  readonly type?: "linear" | "log";
   readonly title: { readonly text: string };
   readonly range?: [number, number];
   readonly zeroline?: boolean;
