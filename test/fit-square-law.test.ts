@@ -7,6 +7,7 @@
  *   3.3 V devices, W = 10 µm, 25 °C; google/globalfoundries-pdk-libs-gf180mcu_fd_pr,
  *   Apache-2.0): inside the window the fit reports, RMS relative error ≤ 5 %.
  */
+import { mulberry32 } from "../lib/random.js";
 import { describe, expect, it } from "vitest";
 import { InputError } from "../lib/errors.js";
 import { fitSweep } from "../lib/fit/fit.js";
@@ -43,14 +44,7 @@ function ngspiceCsv(card: Card, w: number, l: number): string {
 
 /** Seeded Gaussian noise (mulberry32 + Box–Muller), relative. */
 function addNoise(csv: string, rel: number, seed: number): string {
-  let a = seed >>> 0;
-  const rnd = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const rnd = mulberry32(seed);
   const gauss = () => Math.sqrt(-2 * Math.log(1 - rnd())) * Math.cos(2 * Math.PI * rnd());
   const [head, ...rows] = csv.split("\n");
   return [head, ...rows.map((r) => r.replace(/,([^,]+)$/, (_, id: string) => `,${Number(id) * (1 + rel * gauss())}`))].join("\n");

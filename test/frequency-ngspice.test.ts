@@ -25,17 +25,8 @@ import type { Stage, StageAnalysis } from "../lib/bias/topology.js";
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { farads, hertz, meters, ohms, volts } from "../lib/quantity.js";
 import { cornersAround, runAc } from "./support/ac.js";
+import { mulberry32 } from "../lib/random.js";
 
-function mulberry32(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 const rand = mulberry32(20261202);
 const uni = (lo: number, hi: number) => lo + rand() * (hi - lo);
 const logu = (lo: number, hi: number) => Math.exp(uni(Math.log(lo), Math.log(hi)));

@@ -21,6 +21,7 @@
  * stays constant however many cases run. The total (corners, or samples ×
  * temperatures) is bounded by `maxCases`; more is refused with InputError.
  */
+import { mulberry32 } from "../random.js";
 import type { DeviceCard } from "../device/card.js";
 import { polaritySign } from "../device/card.js";
 import { cardAtTemperature } from "../device/temperature.js";
@@ -124,17 +125,6 @@ export const keptCases = 1_000;
 /** Failing cases kept in the report. */
 export const keptFailures = 100;
 
-/** mulberry32: a small seeded 32-bit generator (public domain), enough for reproducible tolerance runs. */
-function seeded(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function checkFraction(x: number, origin: string): number {
   if (typeof x !== "number" || !Number.isFinite(x) || x < 0 || x >= 1) throw new InputError(x, "a relative tolerance 0 ≤ t < 1 (0.05 for 5 %)", origin);
@@ -260,7 +250,7 @@ export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceS
     if (!Number.isInteger(mc.seed) || mc.seed < 0 || mc.seed >= 2 ** 32) throw new InputError(mc.seed, "an integer seed from 0 to 4294967295 (2³² − 1)", "tolerance.monteCarlo.seed");
     const dist = mc.distribution ?? "uniform";
     if (dist !== "uniform" && dist !== "normal") throw new InputError(dist, `"uniform" or "normal"`, "tolerance.monteCarlo.distribution");
-    const rand = seeded(mc.seed);
+    const rand = mulberry32(mc.seed);
     // Box–Muller for the normal case, with the band as 3σ.
     const draw = () => (dist === "uniform" ? 2 * rand() - 1 : (Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand())) / 3);
     for (let n = 0; n < mc.samples; n++) for (const t of temps) take(runCase(params.map(draw), t));
