@@ -15,6 +15,12 @@
  */
 import { InputError } from "../errors.js";
 import type { Derivation } from "../record/derivation.js";
+import type { DeviceCard } from "../device/card.js";
+import type { ModelOptions } from "../device/drain-current.js";
+import { defaultAmbient, partModel, ratingChecks, type DiscretePart, type PartInUse } from "../device/discrete-part.js";
+import type { Kelvin } from "../quantity.js";
+import { analyzeStage } from "./analyze.js";
+import type { BodyTie, StageLimits, Supplies } from "./topology.js";
 import type { SynthesisResult } from "./synthesis/common.js";
 import { synthesizeCurrentMirror, type CurrentMirrorSpec } from "./synthesis/current-mirror.js";
 import { synthesizeCurrentSourceBias, type CurrentSourceBiasSpec } from "./synthesis/current-source-bias.js";
@@ -30,7 +36,69 @@ export { synthesizeDiodeLoad, synthesizeCurrentMirror, synthesizeCurrentSourceBi
 export type { DiodeLoadSpec, CurrentMirrorSpec, CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
 export type { FourResistorResult } from "./synthesis/four-resistor.js";
 
-export type StageSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec | DiodeLoadSpec;
+/** The designers' flat form (card, sizing and targets side by side); internal: callers state a {@link SynthesisSpec}. */
+type FlatSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec | DiodeLoadSpec;
+
+/** The fields of one topology's specification section: everything its designer takes besides the common ones. */
+type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
+
+/** One topology's specification section (the design file's `specification`), e.g. SpecificationOf<"four-resistor">. */
+export type SpecificationOf<T extends FlatSpec["topology"]> = Own<Extract<FlatSpec, { topology: T }>>;
+
+/** The device of a specification: a card (its size comes from specification.sizing), or a discrete part (its size is fixed by the part). */
+export type SpecDevice = { readonly card: DeviceCard } | { readonly part: DiscretePart; readonly ambient?: Kelvin };
+
+/** A specification section with no sizing: a discrete part fixes its own size. */
+type PartOwn<S> = Omit<Own<S>, "sizing">;
+
+/**
+ * A specification in the design file's shape, the same JSON a `pinchoff op`
+ * design file holds when it has a `specification` (values as SI numbers):
+ * `{ topology, name?, device: { card } | { part, ambient? }, specification: { id, sizing, drain, … }, supplies, body?, options?, limits? }`.
+ */
+export type SynthesisSpec<S extends FlatSpec = FlatSpec> = S extends unknown
+  ? {
+      readonly topology: S["topology"];
+      readonly name?: string;
+      readonly supplies: Supplies;
+      readonly body?: BodyTie;
+      readonly options?: ModelOptions;
+      readonly limits?: StageLimits;
+    } & ({ readonly device: { readonly card: DeviceCard }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin }; readonly specification: PartOwn<S> })
+  : never;
+
+/** Any topology's specification, in the design file's shape. */
+export type StageSpec = SynthesisSpec;
+
+const commonKeys = ["topology", "name", "device", "specification", "supplies", "body", "options", "limits"] as const;
+const isObject = (v: unknown): v is Record<string, unknown> => typeof v === "object" && v !== null && !Array.isArray(v);
+
+/**
+ * The one converter from the design file's shape to the designers' flat form.
+ * A discrete part becomes its derived model (recorded in `rec`) and its fixed size.
+ */
+function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: PartInUse } {
+  if (!isObject(spec)) throw new InputError(spec, "a specification { topology, device, specification, supplies, … }", "spec", "invalid-design");
+  for (const k of Object.keys(spec))
+    if (!(commonKeys as readonly string[]).includes(k)) throw new InputError(k, `a field of a specification (${commonKeys.join(", ")})`, `spec.${k}`, "invalid-design");
+  const { device, specification, ...common } = spec;
+  if (!isObject(device)) throw new InputError(device, "a device { card } or a discrete part { part, ambient? }", "spec.device", "invalid-design");
+  if (!isObject(specification)) throw new InputError(specification, "the topology's specification { id, sizing, … }", "spec.specification", "invalid-design");
+  if (device.part === undefined) {
+    for (const k of Object.keys(device)) if (k !== "card") throw new InputError(k, "only card in device (the size comes from specification.sizing)", `spec.device.${k}`, "invalid-design");
+    return { flat: { ...common, card: device.card, ...specification } as unknown as FlatSpec };
+  }
+  for (const k of Object.keys(device)) if (k !== "part" && k !== "ambient") throw new InputError(k, "part and ambient in a discrete part's device", `spec.device.${k}`, "invalid-design");
+  if (specification.sizing !== undefined)
+    throw new InputError(specification.sizing, "no specification.sizing with a discrete part: its size is fixed by the part (W/L is absorbed in its k)", "spec.specification.sizing", "invalid-design");
+  if (common.body === "rail") throw new InputError("rail", `body "source" (or omitted): the discrete part has its body tied to its source inside the package`, "spec.body", "invalid-design");
+  const ambient = device.ambient === undefined ? defaultAmbient : device.ambient;
+  if (typeof ambient !== "number" || !(ambient > 0)) throw new InputError(ambient, "an ambient temperature above absolute zero in K", "spec.device.ambient", "invalid-design");
+  const model = partModel(device.part as DiscretePart, rec, "spec.device.part");
+  const part: PartInUse = { part: device.part as DiscretePart, ambient: ambient as Kelvin };
+  rec?.input(`ambient (${part.part.name})`, part.ambient, "temperature", "device.ambient");
+  return { flat: { ...common, card: model.card, ...specification, sizing: { w: model.w, l: model.l } } as unknown as FlatSpec, part };
+}
 
 const designers = {
   "four-resistor": synthesizeFourResistor,
@@ -44,10 +112,21 @@ const designers = {
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];
 
-/** Design a stage of any supported topology from its specification. */
+/**
+ * Design a stage of any supported topology from its specification, stated in
+ * the design file's shape: a design file's JSON (values as SI numbers) gives
+ * the same design here as through `pinchoff op`. With a discrete part, its
+ * model is derived first and the chosen stage is checked against its ratings.
+ */
 export function synthesize(spec: StageSpec, rec?: Derivation): SynthesisResult {
-  const id = (spec as { topology?: unknown } | null)?.topology;
+  const id = isObject(spec) ? spec.topology : undefined;
   const f = typeof id === "string" ? (designers as Record<string, (s: never, r?: Derivation) => SynthesisResult<object>>)[id] : undefined;
   if (!f) throw new InputError(id, `one of the topologies with synthesis: ${synthesisTopologies.map((t) => JSON.stringify(t)).join(", ")}`, "spec.topology", "invalid-design");
-  return f(spec as never, rec) as SynthesisResult;
+  const { flat, part } = flatten(spec, rec);
+  const design = f(flat as never, rec) as SynthesisResult;
+  if (!part) return design;
+  const stage = { ...design.stage, device: { ...design.stage.device, part } };
+  const analysis = analyzeStage(stage);
+  ratingChecks(part, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drainMagnitude, power: analysis.power.transistor }, (name, value, dim, max, detail) => rec?.check(name, value, dim, { max }, detail), rec);
+  return { ...design, stage, analysis };
 }
