@@ -20,24 +20,23 @@ import type { ModelOptions } from "../device/drain-current.js";
 import { defaultAmbient, partModel, ratingChecks, type DiscretePart, type PartInUse } from "../device/discrete-part.js";
 import type { Kelvin } from "../quantity.js";
 import { analyzeStage } from "./analyze.js";
+import { specFields, type SpecTopology } from "./spec-fields.js";
 import type { BodyTie, StageLimits, Supplies } from "./topology.js";
 import type { SynthesisResult } from "./synthesis/common.js";
-import { synthesizeCurrentMirror, type CurrentMirrorSpec } from "./synthesis/current-mirror.js";
-import { synthesizeCurrentSourceBias, type CurrentSourceBiasSpec } from "./synthesis/current-source-bias.js";
-import { synthesizeDiodeLoad, type DiodeLoadSpec } from "./synthesis/diode-load.js";
-import { synthesizeDrainFeedback, type DrainFeedbackSpec } from "./synthesis/drain-feedback.js";
-import { synthesizeFixedGate, type FixedGateSpec } from "./synthesis/fixed-gate.js";
-import { synthesizeFourResistor, type FourResistorSpec } from "./synthesis/four-resistor.js";
-import { synthesizeSourceFollower, type SourceFollowerSpec } from "./synthesis/source-follower.js";
+import { synthesizeCurrentMirror as currentMirror, type CurrentMirrorSpec as CurrentMirrorFlat } from "./synthesis/current-mirror.js";
+import { synthesizeCurrentSourceBias as currentSourceBias, type CurrentSourceBiasSpec as CurrentSourceBiasFlat } from "./synthesis/current-source-bias.js";
+import { synthesizeDiodeLoad as diodeLoad, type DiodeLoadSpec as DiodeLoadFlat } from "./synthesis/diode-load.js";
+import { synthesizeDrainFeedback as drainFeedback, type DrainFeedbackSpec as DrainFeedbackFlat } from "./synthesis/drain-feedback.js";
+import { synthesizeFixedGate as fixedGate, type FixedGateSpec as FixedGateFlat } from "./synthesis/fixed-gate.js";
+import { synthesizeFourResistor as fourResistor, type FourResistorSpec as FourResistorFlat, type FourResistorResult } from "./synthesis/four-resistor.js";
+import { synthesizeSourceFollower as sourceFollower, type SourceFollowerSpec as SourceFollowerFlat } from "./synthesis/source-follower.js";
 
 export * from "./synthesis/common.js";
 export type { CorePlan, DividerTarget, DrainTarget, SourceBudget } from "./synthesis/core.js";
-export { synthesizeDiodeLoad, synthesizeCurrentMirror, synthesizeCurrentSourceBias, synthesizeDrainFeedback, synthesizeFixedGate, synthesizeFourResistor, synthesizeSourceFollower };
-export type { DiodeLoadSpec, CurrentMirrorSpec, CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
-export type { FourResistorResult } from "./synthesis/four-resistor.js";
+export type { FourResistorResult };
 
 /** The designers' flat form (card, sizing and targets side by side); internal: callers state a {@link SynthesisSpec}. */
-type FlatSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec | DiodeLoadSpec;
+type FlatSpec = FourResistorFlat | FixedGateFlat | DrainFeedbackFlat | SourceFollowerFlat | CurrentSourceBiasFlat | CurrentMirrorFlat | DiodeLoadFlat;
 
 /** The fields of one topology's specification section: everything its designer takes besides the common ones. */
 type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
@@ -67,6 +66,14 @@ export type SynthesisSpec<S extends FlatSpec = FlatSpec> = S extends unknown
     } & ({ readonly device: { readonly card: DeviceCard }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin }; readonly specification: PartOwn<S> })
   : never;
 
+export type FourResistorSpec = SynthesisSpec<FourResistorFlat>;
+export type FixedGateSpec = SynthesisSpec<FixedGateFlat>;
+export type DrainFeedbackSpec = SynthesisSpec<DrainFeedbackFlat>;
+export type SourceFollowerSpec = SynthesisSpec<SourceFollowerFlat>;
+export type CurrentSourceBiasSpec = SynthesisSpec<CurrentSourceBiasFlat>;
+export type CurrentMirrorSpec = SynthesisSpec<CurrentMirrorFlat>;
+export type DiodeLoadSpec = SynthesisSpec<DiodeLoadFlat>;
+
 /** Any topology's specification, in the design file's shape. */
 export type StageSpec = SynthesisSpec;
 
@@ -84,6 +91,9 @@ function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: Part
   const { device, specification, ...common } = spec;
   if (!isObject(device)) throw new InputError(device, "a device { card } or a discrete part { part, ambient? }", "spec.device", "invalid-design");
   if (!isObject(specification)) throw new InputError(specification, "the topology's specification { id, sizing, … }", "spec.specification", "invalid-design");
+  const own = Object.keys(specFields[spec.topology as SpecTopology]);
+  for (const k of Object.keys(specification))
+    if (!own.includes(k)) throw new InputError(k, `a field of the ${String(spec.topology)} specification (${own.join(", ")})`, `spec.specification.${k}`, "invalid-design");
   if (device.part === undefined) {
     for (const k of Object.keys(device)) if (k !== "card") throw new InputError(k, "only card in device (the size comes from specification.sizing)", `spec.device.${k}`, "invalid-design");
     return { flat: { ...common, card: device.card, ...specification } as unknown as FlatSpec };
@@ -101,13 +111,13 @@ function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: Part
 }
 
 const designers = {
-  "four-resistor": synthesizeFourResistor,
-  "fixed-gate": synthesizeFixedGate,
-  "drain-feedback": synthesizeDrainFeedback,
-  "source-follower": synthesizeSourceFollower,
-  "current-source-bias": synthesizeCurrentSourceBias,
-  "current-mirror": synthesizeCurrentMirror,
-  "diode-load": synthesizeDiodeLoad,
+  "four-resistor": fourResistor,
+  "fixed-gate": fixedGate,
+  "drain-feedback": drainFeedback,
+  "source-follower": sourceFollower,
+  "current-source-bias": currentSourceBias,
+  "current-mirror": currentMirror,
+  "diode-load": diodeLoad,
 } as const;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];
@@ -130,3 +140,16 @@ export function synthesize(spec: StageSpec, rec?: Derivation): SynthesisResult {
   ratingChecks(part, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drainMagnitude, power: analysis.power.transistor }, (name, value, dim, max, detail) => rec?.check(name, value, dim, { max }, detail), rec);
   return { ...design, stage, analysis };
 }
+
+/** One topology's designer, taking the design file's shape (as {@link synthesize} does). */
+const one =
+  <S extends StageSpec, R = SynthesisResult>() =>
+  (spec: S, rec?: Derivation): R =>
+    synthesize(spec, rec) as unknown as R;
+export const synthesizeFourResistor = one<FourResistorSpec, FourResistorResult>();
+export const synthesizeFixedGate = one<FixedGateSpec>();
+export const synthesizeDrainFeedback = one<DrainFeedbackSpec>();
+export const synthesizeSourceFollower = one<SourceFollowerSpec>();
+export const synthesizeCurrentSourceBias = one<CurrentSourceBiasSpec>();
+export const synthesizeCurrentMirror = one<CurrentMirrorSpec>();
+export const synthesizeDiodeLoad = one<DiodeLoadSpec>();
