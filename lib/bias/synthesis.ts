@@ -104,7 +104,7 @@ function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: Part
   if (common.body === "rail") throw new InputError("rail", `body "source" (or omitted): the discrete part has its body tied to its source inside the package`, "spec.body", "invalid-design");
   const ambient = device.ambient === undefined ? defaultAmbient : device.ambient;
   if (typeof ambient !== "number" || !(ambient > 0)) throw new InputError(ambient, "an ambient temperature above absolute zero in K", "spec.device.ambient", "invalid-design");
-  const model = partModel(device.part as DiscretePart, rec, "spec.device.part");
+  const model = partModel(device.part as DiscretePart, rec, "device.part");
   const part: PartInUse = { part: device.part as DiscretePart, ambient: ambient as Kelvin };
   rec?.input(`ambient (${part.part.name})`, part.ambient, "temperature", "device.ambient");
   return { flat: { ...common, card: model.card, ...specification, sizing: { w: model.w, l: model.l } } as unknown as FlatSpec, part };
