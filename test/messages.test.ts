@@ -16,6 +16,7 @@ import { amperes, amperesPerVoltSquared, meters, volts } from "../lib/quantity.j
 import { Derivation } from "../lib/record/derivation.js";
 import { renderText } from "../lib/record/render-text.js";
 import { contrastDigits } from "../lib/units/format.js";
+import { designShape } from "./support/design-shape.js";
 
 // Invented card and stage (not a real process).
 const card = { name: "msg-n (invented)", polarity: "nmos", kp: "200 uA/V^2", vt0: "0.5 V" };
@@ -82,14 +83,14 @@ describe("a value and its limit never print alike when they differ", () => {
   });
   it("the synthesis triode message shows VDS and VOV with enough digits", () => {
     const bad = () =>
-      synthesize({
+      synthesize(designShape({
         topology: "fixed-gate",
         card: { name: "msg-n", polarity: "nmos", kp: amperesPerVoltSquared(200e-6), vt0: volts(0.5) },
         supplies: { vdd: volts(5) },
         id: amperes(1e-3),
         sizing: { vov: volts(0.3), l: meters(1e-6) },
         drain: { vd: volts(0.29999) },
-      });
+      }));
     expect(bad).toThrow(InfeasibleError);
     expect(bad).toThrow(/VDS = 0\.29999 V < VOV = 0\.3 V/);
   });

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { analyzeStage, synthesizeFourResistor, amperesPerVoltSquared, volts, meters, perVolt, amperes, ohms, type DeviceCard } from "../lib/index.js";
 import { stageLoad, stagePlots, type PlotSpec, type Trace } from "../lib/plot/index.js";
+import { designShape } from "./support/design-shape.js";
 
 // Invented cards for the tests (not real parts).
 const n: DeviceCard = { name: "inv-n", polarity: "nmos", kp: amperesPerVoltSquared(0.1), vt0: volts(1.8), lambda: perVolt(0.01) };
@@ -28,7 +29,7 @@ function at(s: PlotSpec, t: Trace, x: number): number {
 
 describe("stage plots", () => {
   it("draws the four-resistor load line VDS = VDD − ID·(RD + RS) through the solved operating point (KVL round the drain–source loop)", () => {
-    const r = synthesizeFourResistor({ topology: "four-resistor", card: n, supplies: { vdd: volts(5) }, id: amperes(1e-3), sizing: { w: one, l: one }, drain: { vd: volts(3) }, source: { vrs: volts(1) }, gate: { current: amperes(50e-6) } });
+    const r = synthesizeFourResistor(designShape({ topology: "four-resistor", card: n, supplies: { vdd: volts(5) }, id: amperes(1e-3), sizing: { w: one, l: one }, drain: { vd: volts(3) }, source: { vrs: volts(1) }, gate: { current: amperes(50e-6) } }));
     const load = stageLoad(r.stage);
     expect(load.loadLine).toEqual({ openCircuit: 5, resistance: r.stage.components.rd + r.stage.components.rs });
     const p = stagePlots(r.stage, r.analysis);

@@ -18,6 +18,7 @@ import { Derivation, type FormulaStep, type NoteStep } from "../lib/record/deriv
 import { renderHtml } from "../lib/record/render-html.js";
 import { renderMarkdown } from "../lib/record/render-markdown.js";
 import { renderText } from "../lib/record/render-text.js";
+import { designShape } from "./support/design-shape.js";
 
 // Invented cards (not a real process).
 const pcard: DeviceCard = { name: "hy-p", polarity: "pmos", kp: amperesPerVoltSquared(80e-6), vt0: volts(-0.7), lambda: perVolt(0.02) };
@@ -50,7 +51,7 @@ describe("PMOS records state one sign convention and follow it (item 19)", () =>
   });
   it("four-resistor synthesis: the convention first; the drain target recorded as given (to ground), the mirrored value in a note", () => {
     const rec = new Derivation("p synth");
-    synthesize({ topology: "four-resistor", card: pcard, supplies: { vdd: volts(12) }, id: amperes(1e-3), sizing: { vov: volts(0.4), l: meters(1e-6) }, drain: { vd: volts(3) } }, rec);
+    synthesize(designShape({ topology: "four-resistor", card: pcard, supplies: { vdd: volts(12) }, id: amperes(1e-3), sizing: { vov: volts(0.4), l: meters(1e-6) }, drain: { vd: volts(3) } }), rec);
     expect(notes(rec)[0]!.title).toBe("Sign convention (PMOS)");
     expect(rec.inputs.find((i) => i.name === "VD")!.value).toBe(3);
     expect(rec.inputs.some((i) => /device polarity/.test(i.name))).toBe(false);
@@ -122,7 +123,7 @@ describe("record hygiene (item 20)", () => {
   });
   it("no input is stated twice under two names (IDIV, not Idiv beside it)", () => {
     const rec = new Derivation("t");
-    synthesize({ topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) }, drain: { vd: volts(5) }, gate: { current: amperes(50e-6) } }, rec);
+    synthesize(designShape({ topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) }, drain: { vd: volts(5) }, gate: { current: amperes(50e-6) } }), rec);
     const names = rec.inputs.map((i) => i.name);
     expect(names).toContain("IDIV");
     expect(names).not.toContain("Idiv");
@@ -130,7 +131,7 @@ describe("record hygiene (item 20)", () => {
   });
   it("the standard-value inputs and the tolerance spread carry engineering units", () => {
     const rec = new Derivation("t");
-    const r = synthesize({ topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(566e-6), sizing: { vov: volts(0.3), l: meters(1e-6) } }, rec);
+    const r = synthesize(designShape({ topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(566e-6), sizing: { vov: volts(0.3), l: meters(1e-6) } }), rec);
     for (const i of rec.inputs.filter((x) => x.origin?.startsWith("standard value"))) expect(i.origin).toMatch(/^standard value for ideal [\d.]+ [kM]?Ω$/);
     const tol = new Derivation("tol");
     toleranceAnalysis(r.stage, { resistors: 0.05 }, tol);
@@ -140,7 +141,7 @@ describe("record hygiene (item 20)", () => {
   });
   it("a note's list (the best combinations) stays one line per entry in Markdown", () => {
     const rec = new Derivation("t");
-    synthesize({ topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) } }, rec);
+    synthesize(designShape({ topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) } }), rec);
     const md = renderMarkdown(rec);
     const at = md.indexOf("**Best combinations**");
     const block = md.slice(at, md.indexOf("\n\n", md.indexOf("1. ", at)));
@@ -158,8 +159,8 @@ describe("record hygiene (item 20)", () => {
 describe("dissipation is computed once (item 20)", () => {
   it("a synthesis with ratings reuses the analysis' dissipation figures instead of deriving them again", () => {
     const rec = new Derivation("t");
-    const r = synthesize(
-      { topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) }, dissipation: { resistors: { rd: { rating: 0.125 as never } }, transistor: { rating: 0.2 as never } } },
+    const r = synthesize(designShape(
+      { topology: "four-resistor", card: ncard, supplies: { vdd: volts(9) }, id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) }, dissipation: { resistors: { rd: { rating: 0.125 as never } }, transistor: { rating: 0.2 as never } } }),
       rec,
     );
     const rdPower = formulas(rec).filter((s) => s.formula === "resistorPower" && s.inputs.some((i) => i.value === r.stage.components.rd));

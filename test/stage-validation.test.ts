@@ -56,17 +56,18 @@ describe("stage inputs that were accepted silently", () => {
 describe("synthesis specifications that were accepted silently", () => {
   const spec: FourResistorSpec = {
     topology: "four-resistor",
-    card: ncard,
+    device: { card: ncard },
     supplies: { vdd: volts(9) },
-    id: amperes(1e-3),
-    sizing: { vov: volts(0.3), l: meters(1e-6) },
+    specification: { id: amperes(1e-3), sizing: { vov: volts(0.3), l: meters(1e-6) } },
   };
   it("an unknown field is refused, naming it and listing the known ones", () => {
-    expect(() => synthesize({ ...spec, gian: 5 } as never)).toThrow(/spec\.gian: got "gian", expected a field of the four-resistor specification \(topology, name, card, supplies/);
-    expect(() => synthesize({ ...spec, sizing: { vov: volts(0.3), l: meters(1e-6), m: 2 } } as never)).toThrow(/sizing\.m: got "m", expected a sizing field/);
+    expect(() => synthesize({ ...spec, gian: 5 } as never)).toThrow(/spec\.gian: got "gian", expected a field of a specification \(topology, name, device, specification, supplies/);
+    expect(() => synthesize({ ...spec, specification: { ...spec.specification, gian: 5 } } as never)).toThrow(/spec\.specification\.gian: got "gian", expected a field of the four-resistor specification \(id, sizing,/);
+    expect(() => synthesize({ ...spec, device: { card: ncard, w: meters(1e-6) } } as never)).toThrow(/spec\.device\.w: got "w", expected only card/);
+    expect(() => synthesize({ ...spec, specification: { ...spec.specification, sizing: { vov: volts(0.3), l: meters(1e-6), m: 2 } } } as never)).toThrow(/sizing\.m: got "m", expected a sizing field/);
   });
   it("both sizing.vov and sizing.w is refused", () => {
-    expect(() => synthesize({ ...spec, sizing: { vov: volts(0.3), w: meters(10e-6), l: meters(1e-6) } } as never)).toThrow(/sizing: .*expected sizing with either vov .* or w .*, not both/);
+    expect(() => synthesize({ ...spec, specification: { ...spec.specification, sizing: { vov: volts(0.3), w: meters(10e-6), l: meters(1e-6) } } } as never)).toThrow(/sizing: .*expected sizing with either vov .* or w .*, not both/);
   });
   it("a correct specification still designs", () => {
     expect(synthesize(spec).analysis.region).toBe("saturation");

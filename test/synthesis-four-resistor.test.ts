@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
-import { synthesizeFourResistor, type FourResistorSpec } from "../lib/bias/synthesis/four-resistor.js";
+import { synthesizeFourResistor } from "../lib/bias/synthesis.js";
 import { toleranceAnalysis } from "../lib/bias/tolerance.js";
 import { stageCircuit } from "../lib/bias/analyze.js";
 import { isStandard } from "../lib/bias/eseries.js";
@@ -9,6 +9,7 @@ import { Derivation } from "../lib/record/derivation.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import { amperesPerVoltSquared, perVolt, sqrtVolts, type Amperes, type Meters, type Volts, type Watts } from "../lib/quantity.js";
 import { runNgspice } from "./support/ngspice.js";
+import { designShape, type FlatCase } from "./support/design-shape.js";
 
 // Cards invented for the tests.
 const nCard = { name: "test-n (invented)", polarity: "nmos", kp: 200e-6, vt0: 0.6 } as DeviceCard;
@@ -17,7 +18,7 @@ const V = (x: number) => x as Volts;
 const A = (x: number) => x as Amperes;
 const m = (x: number) => x as Meters;
 
-const base: FourResistorSpec = { topology: "four-resistor", card: nCard, supplies: { vdd: V(5) }, id: A(1e-3), sizing: { vov: V(0.3), l: m(1e-6) } };
+const base: FlatCase = { topology: "four-resistor", card: nCard, supplies: { vdd: V(5) }, id: A(1e-3), sizing: { vov: V(0.3), l: m(1e-6) } };
 
 describe("four-resistor synthesis: ideal values", () => {
   it("matches a hand calculation with the square law (λ = 0, γ = 0; invented example)", () => {
@@ -25,7 +26,7 @@ describe("four-resistor synthesis: ideal values", () => {
     // VD = (5 + 2.15 − 0.6)/2 = 3.275 V → RD = 1.725 V / 1 mA = 1725 Ω; Idiv = 0.1 mA →
     // RG1 = 2.85 V / 0.1 mA = 28.5 kΩ, RG2 = 2.15 V / 0.1 mA = 21.5 kΩ; W/L = 2·1 mA/(200 µA/V²·0.09 V²) = 111.1.
     const rec = new Derivation("hand check");
-    const r = synthesizeFourResistor({ ...base, series: "exact" }, rec);
+    const r = synthesizeFourResistor(designShape({ ...base, series: "exact" }), rec);
     const c = r.ideal.components;
     expect(c.rs).toBeCloseTo(1250, 9);
     expect(c.rd).toBeCloseTo(1725, 9);
@@ -47,14 +48,14 @@ describe("four-resistor synthesis: ideal values", () => {
   });
 
   it("gate divider from an input resistance: RG1 ∥ RG2 = Rin and the divider gives VG", () => {
-    const r = synthesizeFourResistor({ ...base, series: "exact", gate: { rin: 100e3 as never } });
+    const r = synthesizeFourResistor(designShape({ ...base, series: "exact", gate: { rin: 100e3 as never } }));
     const { rg1, rg2 } = r.ideal.components;
     expect((rg1 * rg2) / (rg1 + rg2)).toBeCloseTo(100e3, 6);
     expect((5 * rg2) / (rg1 + rg2)).toBeCloseTo(r.ideal.vg, 12);
   });
 
   it("W/L given: the overdrive follows from ID (square law)", () => {
-    const r = synthesizeFourResistor({ ...base, series: "exact", sizing: { w: m(50e-6), l: m(1e-6) } });
+    const r = synthesizeFourResistor(designShape({ ...base, series: "exact", sizing: { w: m(50e-6), l: m(1e-6) } }));
     expect(r.ideal.vov).toBeCloseTo(Math.sqrt((2 * 1e-3) / (200e-6 * 50)), 12);
     expect(r.deviation.id.relative).toBeCloseTo(0, 10);
   });
@@ -63,7 +64,7 @@ describe("four-resistor synthesis: ideal values", () => {
 describe("four-resistor synthesis: standard values", () => {
   it("chooses E24 values as a set, better than rounding each, and re-solves them", () => {
     const rec = new Derivation("E24");
-    const r = synthesizeFourResistor(base, rec);
+    const r = synthesizeFourResistor(designShape(base), rec);
     for (const v of Object.values(r.stage.components)) expect(isStandard(v, "E24")).toBe(true);
     expect(r.snap!.score).toBeLessThan(r.snap!.nearestScore);
     expect(r.snap!.combinationsTried).toBe(16);
@@ -75,10 +76,10 @@ describe("four-resistor synthesis: standard values", () => {
   });
 
   it("PMOS with body at the rail and a gain target: E96 values, cross-checked with ngspice Level 1", () => {
-    const spec: FourResistorSpec = { ...base, card: pCard, id: A(0.5e-3), sizing: { vov: V(0.4), l: m(1e-6) }, body: "rail", drain: { gain: 8 }, series: "E96" };
-    const exact = synthesizeFourResistor({ ...spec, series: "exact" });
+    const spec: FlatCase = { ...base, card: pCard, id: A(0.5e-3), sizing: { vov: V(0.4), l: m(1e-6) }, body: "rail", drain: { gain: 8 }, series: "E96" };
+    const exact = synthesizeFourResistor(designShape({ ...spec, series: "exact" }));
     expect(exact.deviation.gain!.relative).toBeCloseTo(0, 9); // the gain inverse matches the analysis' degenerated/bypassed forms
-    const r = synthesizeFourResistor(spec);
+    const r = synthesizeFourResistor(designShape(spec));
     expect(Math.abs(r.deviation.gain!.relative)).toBeLessThan(0.02);
     // Oracle: ngspice (Debian package, SPICE Level 1) on the chosen stage's own deck.
     const c = stageCircuit(r.stage);
@@ -88,7 +89,7 @@ describe("four-resistor synthesis: standard values", () => {
   });
 
   it("checks dissipation of the chosen design when limits are given", () => {
-    const r = synthesizeFourResistor({ ...base, id: A(20e-3), dissipation: { resistor: { rating: 0.25 as Watts, derating: 0.5 }, transistor: { rating: 0.5 as Watts } } });
+    const r = synthesizeFourResistor(designShape({ ...base, id: A(20e-3), dissipation: { resistor: { rating: 0.25 as Watts, derating: 0.5 }, transistor: { rating: 0.5 as Watts } } }));
     const rd = r.dissipation!.items.find((i) => i.name === "rd")!;
     expect(rd.power).toBeCloseTo(r.analysis.currents.rd! ** 2 * r.stage.components.rd, 12);
     expect(rd.power).toBeCloseTo(r.analysis.power.components.rd!, 9); // agrees with the analysis' own power figure
@@ -114,7 +115,7 @@ const specArb = fc.record({
   bypassed: fc.boolean(),
 });
 type SpecDraw = typeof specArb extends fc.Arbitrary<infer T> ? T : never;
-const toSpec = (g: SpecDraw, series: FourResistorSpec["series"]): FourResistorSpec => ({
+const toSpec = (g: SpecDraw, series: FlatCase["series"]): FlatCase => ({
   topology: "four-resistor",
   card: { name: "random (invented)", polarity: g.pmos ? "pmos" : "nmos", kp: amperesPerVoltSquared(g.kp), vt0: V(g.pmos ? -g.vt : g.vt), lambda: perVolt(g.lambda), gamma: sqrtVolts(g.gamma), phi: V(0.7) },
   supplies: { vdd: V(g.vdd), vss: V(g.vss) },
@@ -125,9 +126,9 @@ const toSpec = (g: SpecDraw, series: FourResistorSpec["series"]): FourResistorSp
   ...(g.gain !== undefined ? { drain: { gain: g.gain }, bypassed: g.bypassed } : {}),
   series,
 });
-const attempt = (spec: FourResistorSpec) => {
+const attempt = (spec: FlatCase) => {
   try {
-    return synthesizeFourResistor(spec);
+    return synthesizeFourResistor(designShape(spec));
   } catch (e) {
     if (e instanceof InfeasibleError) return undefined;
     throw e;
@@ -183,23 +184,23 @@ describe("four-resistor synthesis: properties", () => {
 describe("four-resistor synthesis: infeasible and bad specifications", () => {
   it("explains infeasibility in numbers", () => {
     // VG = VRS + Vt + VOV = 1.25 + 0.6 + 3.5 = 5.35 V > VDD.
-    expect(() => synthesizeFourResistor({ ...base, sizing: { vov: V(3.5), l: m(1e-6) } })).toThrow(InfeasibleError);
-    expect(() => synthesizeFourResistor({ ...base, sizing: { vov: V(3.5), l: m(1e-6) } })).toThrow(/gate would have to sit at 5\.35 V .*beyond the VDD rail at 5 V/);
-    expect(() => synthesizeFourResistor({ ...base, drain: { vd: V(1.4) } })).toThrow(/below the triode edge VG − Vt = 1\.55 V.*triode/);
-    expect(() => synthesizeFourResistor({ ...base, drain: { vd: V(5.5) } })).toThrow(/RD would come out negative/);
-    expect(() => synthesizeFourResistor({ ...base, card: { ...nCard, lambda: 0.1 } as DeviceCard, drain: { gain: 100 } })).toThrow(/exceeds the device's intrinsic gain/);
-    expect(() => synthesizeFourResistor({ ...base, drain: { gain: 40 } })).toThrow(/triode/);
-    expect(() => synthesizeFourResistor({ ...base, source: { vrs: V(6) } })).toThrow(/leaves nothing of the 5 V rail span/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, sizing: { vov: V(3.5), l: m(1e-6) } }))).toThrow(InfeasibleError);
+    expect(() => synthesizeFourResistor(designShape({ ...base, sizing: { vov: V(3.5), l: m(1e-6) } }))).toThrow(/gate would have to sit at 5\.35 V .*beyond the VDD rail at 5 V/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, drain: { vd: V(1.4) } }))).toThrow(/below the triode edge VG − Vt = 1\.55 V.*triode/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, drain: { vd: V(5.5) } }))).toThrow(/RD would come out negative/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, card: { ...nCard, lambda: 0.1 } as DeviceCard, drain: { gain: 100 } }))).toThrow(/exceeds the device's intrinsic gain/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, drain: { gain: 40 } }))).toThrow(/triode/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, source: { vrs: V(6) } }))).toThrow(/leaves nothing of the 5 V rail span/);
   });
 
   it("rejects bad input with typed errors naming the field", () => {
-    expect(() => synthesizeFourResistor({ ...base, id: A(-1) })).toThrow(/four-resistor spec.id: got -1/);
-    expect(() => synthesizeFourResistor({ ...base, id: A(Number.NaN) })).toThrow(InputError);
-    expect(() => synthesizeFourResistor({ ...base, supplies: { vdd: V(5), vss: V(6) } })).toThrow(/supplies.vss/);
-    expect(() => synthesizeFourResistor({ ...base, sizing: { l: m(1e-6) } as never })).toThrow(/sizing with either vov/);
-    expect(() => synthesizeFourResistor({ ...base, series: "E20" as never })).toThrow(/four-resistor spec.series/);
-    expect(() => synthesizeFourResistor({ ...base, source: { fraction: 1.2 } })).toThrow(/source.fraction/);
-    expect(() => synthesizeFourResistor({ ...base, drain: { gain: -3 } })).toThrow(/drain.gain/);
-    expect(() => synthesizeFourResistor({ ...base, gate: { ratio: 0 } })).toThrow(/gate.ratio/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, id: A(-1) }))).toThrow(/four-resistor spec.id: got -1/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, id: A(Number.NaN) }))).toThrow(InputError);
+    expect(() => synthesizeFourResistor(designShape({ ...base, supplies: { vdd: V(5), vss: V(6) } }))).toThrow(/supplies.vss/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, sizing: { l: m(1e-6) } as never }))).toThrow(/sizing with either vov/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, series: "E20" as never }))).toThrow(/four-resistor spec.series/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, source: { fraction: 1.2 } }))).toThrow(/source.fraction/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, drain: { gain: -3 } }))).toThrow(/drain.gain/);
+    expect(() => synthesizeFourResistor(designShape({ ...base, gate: { ratio: 0 } }))).toThrow(/gate.ratio/);
   });
 });

@@ -36,13 +36,12 @@ import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
 import type { Dimension, Kelvin } from "../quantity.js";
-import { partModel, type PartInUse } from "../device/discrete-part.js";
+import { defaultAmbient, partModel, type PartInUse } from "../device/discrete-part.js";
 import { parsePartCard } from "./part-file.js";
 import { checkFrequencySpec, type FrequencySpec } from "./frequency.js";
 import type { DiffusionGeometry } from "../device/capacitance-card.js";
 
 /** Ambient of a discrete part when the design file states none: 25 °C, where datasheets state their figures (common practice). */
-const roomTemperature = 298.15;
 import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
@@ -176,7 +175,7 @@ function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): S
   if (dev.part !== undefined) {
     onlyKeys(dev, ["part", "ambient"], at(f));
     const part = parsePartCard(dev.part, at(`${f}.part`));
-    const ambient = dev.ambient === undefined ? roomTemperature : quantity(dev.ambient, "temperature", at(`${f}.ambient`));
+    const ambient = dev.ambient === undefined ? defaultAmbient : quantity(dev.ambient, "temperature", at(`${f}.ambient`));
     if (!(ambient > 0)) throw new InputError(dev.ambient, "an ambient temperature above absolute zero", at(`${f}.ambient`));
     const model = partModel(part, undefined, at(`${f}.part`));
     return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
@@ -325,7 +324,9 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     const byName = (own.dissipation as { resistors?: Record<string, unknown> } | undefined)?.resistors;
     for (const k of Object.keys(byName ?? {}))
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
-    const spec = { topology: topo.id, ...parseCommon(d, at, origin), card, ...own } as unknown as StageSpec;
+    // Passed to synthesis as parsed: the library takes this same shape (lib/bias/synthesis.ts converts it once).
+    const { sizing, ...partOwn } = own;
+    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient } : { card }, specification: part ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
     return { kind: "specification", origin, spec, ...(part ? { part } : {}), ...tolerance };
   }
 

@@ -12,7 +12,7 @@
  */
 import { describeDimension, type Dimension } from "../quantity.js";
 import { maxCandidates, seriesNames } from "./eseries.js";
-import type { StageSpec } from "./synthesis.js";
+import type { SpecificationOf, StageSpec } from "./synthesis.js";
 
 /** The range a number must lie in, checked after parsing. */
 export type SpecRange = "positive" | "finite" | "fraction" | "derating";
@@ -140,8 +140,6 @@ const gate: SpecField = {
 const bypassed: SpecField = { kind: "boolean", meaning: "whether RS is bypassed for signal (which gain a gain target means)", fallback: "true" };
 const midSwing = "mid-swing between the triode edge and the drain rail";
 
-type OwnFields<T> = Exclude<keyof T, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
-
 /** Each topology's specification fields; the type makes every field of its Spec type appear, and nothing else. */
 export const specFields = {
   "four-resistor": {
@@ -213,7 +211,7 @@ export const specFields = {
       fields: { vout: q("voltage", "finite", "output voltage, absolute"), gain: q("dimensionless", "positive", "gain magnitude |vout/vin|") },
     },
   },
-} as const satisfies { [T in StageSpec["topology"]]: Record<OwnFields<Extract<StageSpec, { topology: T }>>, SpecField> };
+} as const satisfies { [T in StageSpec["topology"]]: Record<keyof SpecificationOf<T>, SpecField> };
 
 export type SpecTopology = keyof typeof specFields;
 

@@ -15,39 +15,141 @@
  */
 import { InputError } from "../errors.js";
 import type { Derivation } from "../record/derivation.js";
+import type { DeviceCard } from "../device/card.js";
+import type { ModelOptions } from "../device/drain-current.js";
+import { defaultAmbient, partModel, ratingChecks, type DiscretePart, type PartInUse } from "../device/discrete-part.js";
+import type { Kelvin } from "../quantity.js";
+import { analyzeStage } from "./analyze.js";
+import { specFields, type SpecTopology } from "./spec-fields.js";
+import type { BodyTie, StageLimits, Supplies } from "./topology.js";
 import type { SynthesisResult } from "./synthesis/common.js";
-import { synthesizeCurrentMirror, type CurrentMirrorSpec } from "./synthesis/current-mirror.js";
-import { synthesizeCurrentSourceBias, type CurrentSourceBiasSpec } from "./synthesis/current-source-bias.js";
-import { synthesizeDiodeLoad, type DiodeLoadSpec } from "./synthesis/diode-load.js";
-import { synthesizeDrainFeedback, type DrainFeedbackSpec } from "./synthesis/drain-feedback.js";
-import { synthesizeFixedGate, type FixedGateSpec } from "./synthesis/fixed-gate.js";
-import { synthesizeFourResistor, type FourResistorSpec } from "./synthesis/four-resistor.js";
-import { synthesizeSourceFollower, type SourceFollowerSpec } from "./synthesis/source-follower.js";
+import { synthesizeCurrentMirror as currentMirror, type CurrentMirrorSpec as CurrentMirrorFlat } from "./synthesis/current-mirror.js";
+import { synthesizeCurrentSourceBias as currentSourceBias, type CurrentSourceBiasSpec as CurrentSourceBiasFlat } from "./synthesis/current-source-bias.js";
+import { synthesizeDiodeLoad as diodeLoad, type DiodeLoadSpec as DiodeLoadFlat } from "./synthesis/diode-load.js";
+import { synthesizeDrainFeedback as drainFeedback, type DrainFeedbackSpec as DrainFeedbackFlat } from "./synthesis/drain-feedback.js";
+import { synthesizeFixedGate as fixedGate, type FixedGateSpec as FixedGateFlat } from "./synthesis/fixed-gate.js";
+import { synthesizeFourResistor as fourResistor, type FourResistorSpec as FourResistorFlat, type FourResistorResult } from "./synthesis/four-resistor.js";
+import { synthesizeSourceFollower as sourceFollower, type SourceFollowerSpec as SourceFollowerFlat } from "./synthesis/source-follower.js";
 
 export * from "./synthesis/common.js";
 export type { CorePlan, DividerTarget, DrainTarget, SourceBudget } from "./synthesis/core.js";
-export { synthesizeDiodeLoad, synthesizeCurrentMirror, synthesizeCurrentSourceBias, synthesizeDrainFeedback, synthesizeFixedGate, synthesizeFourResistor, synthesizeSourceFollower };
-export type { DiodeLoadSpec, CurrentMirrorSpec, CurrentSourceBiasSpec, DrainFeedbackSpec, FixedGateSpec, FourResistorSpec, SourceFollowerSpec };
-export type { FourResistorResult } from "./synthesis/four-resistor.js";
+export type { FourResistorResult };
 
-export type StageSpec = FourResistorSpec | FixedGateSpec | DrainFeedbackSpec | SourceFollowerSpec | CurrentSourceBiasSpec | CurrentMirrorSpec | DiodeLoadSpec;
+/** The designers' flat form (card, sizing and targets side by side); internal: callers state a {@link SynthesisSpec}. */
+type FlatSpec = FourResistorFlat | FixedGateFlat | DrainFeedbackFlat | SourceFollowerFlat | CurrentSourceBiasFlat | CurrentMirrorFlat | DiodeLoadFlat;
+
+/** The fields of one topology's specification section: everything its designer takes besides the common ones. */
+type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
+
+/** One topology's specification section (the design file's `specification`), e.g. SpecificationOf<"four-resistor">. */
+export type SpecificationOf<T extends FlatSpec["topology"]> = Own<Extract<FlatSpec, { topology: T }>>;
+
+/** The device of a specification: a card (its size comes from specification.sizing), or a discrete part (its size is fixed by the part). */
+export type SpecDevice = { readonly card: DeviceCard } | { readonly part: DiscretePart; readonly ambient?: Kelvin };
+
+/** A specification section with no sizing: a discrete part fixes its own size. */
+type PartOwn<S> = Omit<Own<S>, "sizing">;
+
+/**
+ * A specification in the design file's shape, the same JSON a `pinchoff op`
+ * design file holds when it has a `specification` (values as SI numbers):
+ * `{ topology, name?, device: { card } | { part, ambient? }, specification: { id, sizing, drain, … }, supplies, body?, options?, limits? }`.
+ */
+export type SynthesisSpec<S extends FlatSpec = FlatSpec> = S extends unknown
+  ? {
+      readonly topology: S["topology"];
+      readonly name?: string;
+      readonly supplies: Supplies;
+      readonly body?: BodyTie;
+      readonly options?: ModelOptions;
+      readonly limits?: StageLimits;
+    } & ({ readonly device: { readonly card: DeviceCard }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin }; readonly specification: PartOwn<S> })
+  : never;
+
+export type FourResistorSpec = SynthesisSpec<FourResistorFlat>;
+export type FixedGateSpec = SynthesisSpec<FixedGateFlat>;
+export type DrainFeedbackSpec = SynthesisSpec<DrainFeedbackFlat>;
+export type SourceFollowerSpec = SynthesisSpec<SourceFollowerFlat>;
+export type CurrentSourceBiasSpec = SynthesisSpec<CurrentSourceBiasFlat>;
+export type CurrentMirrorSpec = SynthesisSpec<CurrentMirrorFlat>;
+export type DiodeLoadSpec = SynthesisSpec<DiodeLoadFlat>;
+
+/** Any topology's specification, in the design file's shape. */
+export type StageSpec = SynthesisSpec;
+
+const commonKeys = ["topology", "name", "device", "specification", "supplies", "body", "options", "limits"] as const;
+const isObject = (v: unknown): v is Record<string, unknown> => typeof v === "object" && v !== null && !Array.isArray(v);
+
+/**
+ * The one converter from the design file's shape to the designers' flat form.
+ * A discrete part becomes its derived model (recorded in `rec`) and its fixed size.
+ */
+function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: PartInUse } {
+  if (!isObject(spec)) throw new InputError(spec, "a specification { topology, device, specification, supplies, … }", "spec", "invalid-design");
+  for (const k of Object.keys(spec))
+    if (!(commonKeys as readonly string[]).includes(k)) throw new InputError(k, `a field of a specification (${commonKeys.join(", ")})`, `spec.${k}`, "invalid-design");
+  const { device, specification, ...common } = spec;
+  if (!isObject(device)) throw new InputError(device, "a device { card } or a discrete part { part, ambient? }", "spec.device", "invalid-design");
+  if (!isObject(specification)) throw new InputError(specification, "the topology's specification { id, sizing, … }", "spec.specification", "invalid-design");
+  const own = Object.keys(specFields[spec.topology as SpecTopology]);
+  for (const k of Object.keys(specification))
+    if (!own.includes(k)) throw new InputError(k, `a field of the ${String(spec.topology)} specification (${own.join(", ")})`, `spec.specification.${k}`, "invalid-design");
+  if (device.part === undefined) {
+    for (const k of Object.keys(device)) if (k !== "card") throw new InputError(k, "only card in device (the size comes from specification.sizing)", `spec.device.${k}`, "invalid-design");
+    return { flat: { ...common, card: device.card, ...specification } as unknown as FlatSpec };
+  }
+  for (const k of Object.keys(device)) if (k !== "part" && k !== "ambient") throw new InputError(k, "part and ambient in a discrete part's device", `spec.device.${k}`, "invalid-design");
+  if (specification.sizing !== undefined)
+    throw new InputError(specification.sizing, "no specification.sizing with a discrete part: its size is fixed by the part (W/L is absorbed in its k)", "spec.specification.sizing", "invalid-design");
+  if (common.body === "rail") throw new InputError("rail", `body "source" (or omitted): the discrete part has its body tied to its source inside the package`, "spec.body", "invalid-design");
+  const ambient = device.ambient === undefined ? defaultAmbient : device.ambient;
+  if (typeof ambient !== "number" || !(ambient > 0)) throw new InputError(ambient, "an ambient temperature above absolute zero in K", "spec.device.ambient", "invalid-design");
+  const model = partModel(device.part as DiscretePart, rec, "device.part");
+  const part: PartInUse = { part: device.part as DiscretePart, ambient: ambient as Kelvin };
+  rec?.input(`ambient (${part.part.name})`, part.ambient, "temperature", "device.ambient");
+  return { flat: { ...common, card: model.card, ...specification, sizing: { w: model.w, l: model.l } } as unknown as FlatSpec, part };
+}
 
 const designers = {
-  "four-resistor": synthesizeFourResistor,
-  "fixed-gate": synthesizeFixedGate,
-  "drain-feedback": synthesizeDrainFeedback,
-  "source-follower": synthesizeSourceFollower,
-  "current-source-bias": synthesizeCurrentSourceBias,
-  "current-mirror": synthesizeCurrentMirror,
-  "diode-load": synthesizeDiodeLoad,
+  "four-resistor": fourResistor,
+  "fixed-gate": fixedGate,
+  "drain-feedback": drainFeedback,
+  "source-follower": sourceFollower,
+  "current-source-bias": currentSourceBias,
+  "current-mirror": currentMirror,
+  "diode-load": diodeLoad,
 } as const;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];
 
-/** Design a stage of any supported topology from its specification. */
+/**
+ * Design a stage of any supported topology from its specification, stated in
+ * the design file's shape: a design file's JSON (values as SI numbers) gives
+ * the same design here as through `pinchoff op`. With a discrete part, its
+ * model is derived first and the chosen stage is checked against its ratings.
+ */
 export function synthesize(spec: StageSpec, rec?: Derivation): SynthesisResult {
-  const id = (spec as { topology?: unknown } | null)?.topology;
+  const id = isObject(spec) ? spec.topology : undefined;
   const f = typeof id === "string" ? (designers as Record<string, (s: never, r?: Derivation) => SynthesisResult<object>>)[id] : undefined;
   if (!f) throw new InputError(id, `one of the topologies with synthesis: ${synthesisTopologies.map((t) => JSON.stringify(t)).join(", ")}`, "spec.topology", "invalid-design");
-  return f(spec as never, rec) as SynthesisResult;
+  const { flat, part } = flatten(spec, rec);
+  const design = f(flat as never, rec) as SynthesisResult;
+  if (!part) return design;
+  const stage = { ...design.stage, device: { ...design.stage.device, part } };
+  const analysis = analyzeStage(stage);
+  ratingChecks(part, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drainMagnitude, power: analysis.power.transistor }, (name, value, dim, max, detail) => rec?.check(name, value, dim, { max }, detail), rec);
+  return { ...design, stage, analysis };
 }
+
+/** One topology's designer, taking the design file's shape (as {@link synthesize} does). */
+const one =
+  <S extends StageSpec, R = SynthesisResult>() =>
+  (spec: S, rec?: Derivation): R =>
+    synthesize(spec, rec) as unknown as R;
+export const synthesizeFourResistor = one<FourResistorSpec, FourResistorResult>();
+export const synthesizeFixedGate = one<FixedGateSpec>();
+export const synthesizeDrainFeedback = one<DrainFeedbackSpec>();
+export const synthesizeSourceFollower = one<SourceFollowerSpec>();
+export const synthesizeCurrentSourceBias = one<CurrentSourceBiasSpec>();
+export const synthesizeCurrentMirror = one<CurrentMirrorSpec>();
+export const synthesizeDiodeLoad = one<DiodeLoadSpec>();

@@ -12,7 +12,7 @@ import { extname, resolve } from "node:path";
 import { ConvergenceError, InfeasibleError, InputError, PinchoffError } from "../errors.js";
 import { analyzeStage } from "../bias/analyze.js";
 import { readDesignSource, type DesignFile } from "../bias/design-file.js";
-import type { PartRating } from "../bias/dissipation.js";
+import type { DissipationLimits, PartRating } from "../bias/dissipation.js";
 import { synthesize, type SynthesisResult } from "../bias/synthesis.js";
 import type { Stage, StageAnalysis, StageCheck, StageLimits } from "../bias/topology.js";
 import { stageOrigin } from "../bias/topologies/two-transistor.js";
@@ -20,7 +20,7 @@ import type { Dimension } from "../quantity.js";
 import { checkStamp, stampRecord } from "../record/stamp.js";
 import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
-import { partModel, ratingChecks } from "../device/discrete-part.js";
+import { partModel } from "../device/discrete-part.js";
 import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
@@ -108,18 +108,11 @@ function relocate(e: PinchoffError, topology: string, file: string): PinchoffErr
  */
 export function designOf(designFile: Extract<DesignFile, { kind: "specification" }>): { design: SynthesisResult; derivation: Derivation } {
   const { spec, origin } = designFile;
-  const derivation = new Derivation(`Design from a specification: ${spec.name ?? spec.topology} (${spec.card.polarity})`);
+  const card = "card" in spec.device ? spec.device.card : spec.device.part;
+  const derivation = new Derivation(`Design from a specification: ${spec.name ?? spec.topology} (${card.polarity})`);
   try {
-    const use = designFile.part;
-    if (!use) return { design: synthesize(spec, derivation), derivation };
-    // A discrete part: its model first, then the design with it, then the chosen stage against the part's ratings.
-    partModel(use.part, derivation);
-    derivation.input(`ambient (${use.part.name})`, use.ambient, "temperature", "device.ambient");
-    const design = synthesize(spec, derivation);
-    const stage = { ...design.stage, device: { ...design.stage.device, part: use } };
-    const analysis = analyzeStage(stage);
-    ratingChecks(use, { vgs: analysis.op.vgsDevice, vds: analysis.op.vdsDevice, id: analysis.currents.drainMagnitude, power: analysis.power.transistor }, (name, value, dim, max, detail) => derivation.check(name, value, dim, { max }, detail), derivation);
-    return { design: { ...design, stage, analysis }, derivation };
+    // The parsed file goes to the library call as it is: the same JSON gives the same design either way.
+    return { design: synthesize(spec, derivation), derivation };
   } catch (e) {
     throw e instanceof PinchoffError ? relocate(e, spec.topology, origin) : e;
   }
@@ -134,7 +127,7 @@ export function designSummary(designFile: Extract<DesignFile, { kind: "specifica
   return {
     topology: design.topology,
     // The series the resistors were chosen from; "exact" when kept ideal; null when the stage has no resistor to choose.
-    series: snap ? snap.series : designFile.spec.series === "exact" ? "exact" : null,
+    series: snap ? snap.series : (designFile.spec.specification as { series?: unknown }).series === "exact" ? "exact" : null,
     ideal: design.ideal,
     chosen: {
       components: stage.components,
@@ -200,8 +193,8 @@ export function recordLimits(rec: Derivation, file: DesignFile): void {
     const [name, dim] = limitInputs[k as keyof StageLimits];
     if (typeof v === "number") rec.input(name, v, dim, at(`limits.${k}`));
   }
-  if (file.kind !== "specification" || !file.spec.dissipation) return;
-  const d = file.spec.dissipation;
+  const d = file.kind === "specification" ? (file.spec.specification as { dissipation?: DissipationLimits }).dissipation : undefined;
+  if (!d) return;
   const rating = (who: string, r: PartRating | undefined, f: string) => {
     if (!r) return;
     rec.input(`P rating, ${who}`, r.rating, "power", at(`${f}.rating`));

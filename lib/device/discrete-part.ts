@@ -62,6 +62,9 @@ export interface DiscretePart {
   readonly provenance?: string;
 }
 
+/** The ambient a part's board runs at when none is stated: 25 °C (common practice for datasheet figures). */
+export const defaultAmbient = 298.15 as Kelvin;
+
 /** A part as used in a stage: the card and the ambient temperature its board runs at. */
 export interface PartInUse {
   readonly part: DiscretePart;

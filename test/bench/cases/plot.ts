@@ -3,15 +3,16 @@
  * line and bias point, transfer, gm and gm/ID) from plain numbers, and the size
  * of one notebook plot output. Invented four-resistor stage.
  */
-import { synthesizeFourResistor } from "../../../lib/bias/synthesis/four-resistor.js";
+import { synthesizeFourResistor } from "../../../lib/bias/synthesis.js";
 import type { DeviceCard } from "../../../lib/device/card.js";
 import { plotBundle, plotLibrary, stagePlots } from "../../../lib/plot/index.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, PerVolt, Volts } from "../../../lib/quantity.js";
 import { defineCases } from "../case.js";
+import { designShape } from "../../support/design-shape.js";
 
 // Invented card (not a real part).
 const card: DeviceCard = { name: "bench-n", polarity: "nmos", kp: 0.1 as AmperesPerVoltSquared, vt0: 1.8 as Volts, lambda: 0.01 as PerVolt };
-const design = synthesizeFourResistor({
+const design = synthesizeFourResistor(designShape({
   topology: "four-resistor",
   card,
   supplies: { vdd: 5 as Volts },
@@ -20,7 +21,7 @@ const design = synthesizeFourResistor({
   drain: { vd: 3 as Volts },
   source: { vrs: 1 as Volts },
   gate: { current: 50e-6 as Amperes },
-});
+}));
 // Keeps the results alive so the work is not optimised away.
 let sink = 0;
 

@@ -4,27 +4,26 @@
  * run (4 resistors, Vt and k', 3 temperatures: 192 stages). No record.
  * The specification and card are invented.
  */
-import { synthesizeFourResistor, type FourResistorSpec } from "../../../lib/bias/synthesis/four-resistor.js";
+import { synthesizeFourResistor, type FourResistorSpec } from "../../../lib/bias/synthesis.js";
 import { toleranceAnalysis } from "../../../lib/bias/tolerance.js";
 import type { DeviceCard } from "../../../lib/device/card.js";
 import type { Amperes, Kelvin, Meters, Volts } from "../../../lib/quantity.js";
 import { defineCases } from "../case.js";
 
 const card = { name: "bench-n (invented)", polarity: "nmos", kp: 120e-6, vt0: 0.55, lambda: 0.03, gamma: 0.45, phi: 0.7 } as DeviceCard;
-const spec: FourResistorSpec = {
+const specAt = (id: Amperes): FourResistorSpec => ({
   topology: "four-resistor",
-  card,
+  device: { card },
   supplies: { vdd: 9 as Volts },
-  id: 2e-3 as Amperes,
-  sizing: { vov: 0.35 as Volts, l: 1e-6 as Meters },
   body: "rail",
-  drain: { gain: 6 },
-};
+  specification: { id, sizing: { vov: 0.35 as Volts, l: 1e-6 as Meters }, drain: { gain: 6 } },
+});
+const spec = specAt(2e-3 as Amperes);
 let sink = 0;
 
 function designs(n: number): number {
   const t0 = performance.now();
-  for (let i = 0; i < n; i++) sink += synthesizeFourResistor({ ...spec, id: ((1 + (i % 16) / 16) * 1e-3) as Amperes }).analysis.currents.drainMagnitude!;
+  for (let i = 0; i < n; i++) sink += synthesizeFourResistor(specAt(((1 + (i % 16) / 16) * 1e-3) as Amperes)).analysis.currents.drainMagnitude!;
   return (n / (performance.now() - t0)) * 1000;
 }
 
