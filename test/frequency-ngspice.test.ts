@@ -141,7 +141,9 @@ describe("frequency response against ngspice 39 Level 1 .ac", () => {
         stats.noCorner++; // a shelf instead of a corner (the record says so), or a corner beyond the sweep
         return;
       }
-      const fMid = fl > 0 ? Math.sqrt(fl * fh) : fh / 1e4;
+      // Midband sits above every low-frequency pole (a bypass pole can lie above fL when its zero is near it).
+      const lowTop = Math.max(fl, ...(fa.low?.capacitors.map((c) => c.pole) ?? []));
+      const fMid = lowTop > 0 ? Math.sqrt(lowTop * fh) : fh / 1e4;
       const ng = cornersAround(res.freq, res.mag[i]!, fMid);
       const id = `${k.stage.topology} ${k.stage.device.card.polarity} #${i}`;
       const g = rel(ng.mid, Math.abs(fa.midbandGain));

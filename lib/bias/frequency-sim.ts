@@ -21,7 +21,9 @@ export interface SimulatedResponse {
   readonly source: string;
 }
 
-export function simulateFrequency(stage: Stage, analysis: StageAnalysis, fa: FrequencyAnalysis, sweep?: AcSweep): SimulatedResponse {
+// Any topology's stage is accepted, as analyzeFrequency accepts it (a synthesised stage carries its own component type).
+export function simulateFrequency(anyStage: Stage<string, object>, analysis: StageAnalysis, fa: FrequencyAnalysis, sweep?: AcSweep): SimulatedResponse {
+  const stage = anyStage as Stage;
   const ac = acCircuit(stage, analysis, fa, "", sweep);
   const s = ac.sweep;
   const deck = writeDeck({
@@ -47,7 +49,7 @@ export function simulateFrequency(stage: Stage, analysis: StageAnalysis, fa: Fre
 }
 
 /** The simulated response, or undefined when ngspice is not available (the Bode plot then shows the hand analysis alone). */
-export function trySimulateFrequency(stage: Stage, analysis: StageAnalysis, fa: FrequencyAnalysis, sweep?: AcSweep): SimulatedResponse | undefined {
+export function trySimulateFrequency(stage: Stage<string, object>, analysis: StageAnalysis, fa: FrequencyAnalysis, sweep?: AcSweep): SimulatedResponse | undefined {
   try {
     return simulateFrequency(stage, analysis, fa, sweep);
   } catch (e) {

@@ -10,7 +10,7 @@
  *   takes those poles as independent (with the bypass capacitor's zero at
  *   1/(2π·RS·CB)). Capacitors for a target corner: the one seeing the smallest
  *   resistance (the bypass capacitor when there is one) dominant, the others a
- *   decade below, all scaled so the hand corner lands on the target, then
+ *   twentieth of the target each, all scaled so the hand corner lands on the target, then
  *   chosen as a set from the E6 or E12 series (IEC 60063).
  * - High frequencies: the open-circuit time-constant estimate, the two-pole
  *   denominator 1 + b1·s + b2²·s² with its dominant and non-dominant poles and
@@ -135,8 +135,12 @@ export interface FrequencyAnalysis {
 
 /** The pole-dominance ratio the OCTC and Miller estimates assume (common practice: a decade). */
 export const dominanceRatio = 10;
-/** Share of the target corner given to each non-dominant capacitor: a decade below (common practice). */
-export const nonDominantShare = 0.1;
+/**
+ * Share of the target corner given to each non-dominant capacitor. A decade below is common practice, but with
+ * three capacitors 0.8 : 0.1 : 0.1 sits exactly on the low-corner dominance check (largest ≥ 4 × the rest) and
+ * E-series snapping pushes it under; a twentieth each leaves the dominant pole ≥ 9 × the rest before snapping.
+ */
+export const nonDominantShare = 0.05;
 
 const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage", "diff-pair-mirror-load"] as const;
 
@@ -440,12 +444,12 @@ function designCapacitors(
   const dominant = missing.reduce((a, b) => (b.rx < a.rx ? b : a));
   rec?.note(
     "Capacitor design",
-    `Target low corner ${fmt(target)} Hz. The ${dominant.role} capacitor sees the smallest resistance (${fmt(dominant.rx)} Ω), so it takes the dominant pole (a small resistance needs the largest capacitor, and making it dominant keeps the others small); the other capacitors go a decade below. All are then scaled together so the hand transfer function's corner lands on the target, and chosen from the ${series} series as a set.`,
+    `Target low corner ${fmt(target)} Hz. The ${dominant.role} capacitor sees the smallest resistance (${fmt(dominant.rx)} Ω), so it takes the dominant pole (a small resistance needs the largest capacitor, and making it dominant keeps the others small); the other capacitors each take a twentieth of the target, so the dominant pole keeps a margin over the rest after snapping. All are then scaled together so the hand transfer function's corner lands on the target, and chosen from the ${series} series as a set.`,
   );
   const share = (r: { role: CapacitorRole }) => (r.role === dominant.role ? 1 - nonDominantShare * (missing.length - 1) - givenSum / target : nonDominantShare);
   const ideal = new Map<CapacitorRole, number>();
   for (const m of missing) {
-    const fx = evaluateFormula(ff.poleShare, { share: share(m), fL: target }, rec, `${m.role} capacitor${m.role === dominant.role ? " (dominant)" : " (a decade below)"}`);
+    const fx = evaluateFormula(ff.poleShare, { share: share(m), fL: target }, rec, `${m.role} capacitor${m.role === dominant.role ? " (dominant)" : " (a twentieth of the target)"}`);
     ideal.set(m.role, evaluateFormula(ff.capacitorForPole, { Rx: m.rx, fx }, rec));
   }
   const bypass = roles.find((r) => r.role === "bypass");

@@ -137,7 +137,7 @@ export const formulas = defineFormulas({
   poleOfTimeConstant: { title: "Pole of a time constant", result: "fx", expr: "1 / (2 * pi * tau)", source: "single-pole response (common practice)" },
   lowCorner: { title: "Low-frequency corner (sum of the short-circuit poles)", result: "fL", expr: "f1 + f2 + f3", source: sctc },
   capacitorForPole: { title: "Capacitor for a pole frequency", result: "Cx", expr: "1 / (2 * pi * Rx * fx)", source: "single-pole response (common practice)" },
-  poleShare: { title: "Pole frequency given to one capacitor", result: "fx", expr: "share * fL", source: "dominant capacitor takes the rest, the others a decade below (common practice)" },
+  poleShare: { title: "Pole frequency given to one capacitor", result: "fx", expr: "share * fL", source: "dominant capacitor takes the rest, the others a twentieth of the target each, so the dominance check keeps a margin after snapping" },
   // common source: capacitances at the nodes
   gateToGround: { title: "Capacitance from the gate to AC ground (common source)", result: "CGI", expr: "Cgs + Cgb", source: nodal },
   gateToOutput: { title: "Capacitance from the gate to the output (common source)", result: "CGO", expr: "Cgd", source: nodal },

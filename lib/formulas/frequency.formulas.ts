@@ -237,7 +237,7 @@ export const poleShare = {
   resultDim: "frequency",
   vars: ["share","fL"],
   dims: ["dimensionless","frequency"],
-  source: "dominant capacitor takes the rest, the others a decade below (common practice)",
+  source: "dominant capacitor takes the rest, the others a twentieth of the target each, so the dominance check keeps a margin after snapping",
   fn: (share: Ratio, fL: Hertz): Hertz => (share * fL) as Hertz,
 } as const satisfies Formula;
 
