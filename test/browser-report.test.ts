@@ -82,7 +82,7 @@ describe("offline pages in headless Chromium", () => {
     browser.errors.length = 0;
     await browser.page.goto(pathToFileURL(join(out, "export.html")).href, { waitUntil: "load", timeout: 120_000 });
     const boxes = await browser.page.$$eval(".pinchoff-plot-area", (e) => e.length);
-    expect(boxes).toBe(3);
+    expect(boxes).toBe(4); // the demo draws four plots: the Bode plot, output and transfer characteristics, gm and gm/ID
     await browser.page.waitForFunction((n) => [...document.querySelectorAll(".pinchoff-plot-area[data-drawn]")].filter((e) => e.querySelector(".main-svg")).length >= n, boxes, { timeout: 60_000 });
     const plots = await drawnPlots(".pinchoff-plot-area");
     for (const p of plots) expect(p.paths).toBeGreaterThan(0);
