@@ -2,14 +2,16 @@
  * Device characterisation: a process library's transistor swept over VGS, VDS
  * and VSB for a set of L at a reference W, read back as per-width tables.
  *
- * Method: one ngspice deck per (device, L): the library is loaded once, then a
- * nested `dc` sweep (VGS inner, VDS outer) per VSB, each written to a binary raw
- * file (full double precision). Saved device outputs (BSIM4 in ngspice 39):
+ * Method: one ngspice deck per core, each holding a share of the lengths: one
+ * instance per (L, VSB) on shared gate and drain sources, so one library load and
+ * one nested `dc` sweep (VGS inner, VDS outer) give every point of those lengths,
+ * written to one binary raw file (full double precision). Saved device outputs (BSIM4 in ngspice 39):
  * `@m1[id]`, `gm`, `gds`, `gmbs`, `vth`, `vdsat`, `cgg`, `cgs`, `cgd`. Values are
  * stored in the device's own polarity as magnitudes (PMOS sweeps run with negative
  * VGS, VDS and positive VBS), per unit width (A/m, S/m, F/m); Cgs and Cgd are the
  * capacitances −∂Qg/∂Vs and −∂Qg/∂Vd (BSIM4 reports the signed derivatives).
- * Decks run in parallel, as many as the machine has cores (at most `jobs`).
+ * Decks run in parallel, one per core (`jobs`, default `availableParallelism()`;
+ * the runner also never starts more ngspice processes than cores).
  * Cache: keyed by a SHA-256 fingerprint of the library and include files' bytes,
  * section, device, W, temperature and grid, in `$PINCHOFF_CACHE`, else
  * `$XDG_CACHE_HOME/pinchoff`, else `~/.cache/pinchoff` (folder `characterisation/`).
@@ -133,29 +135,50 @@ export function tableFingerprint(p: ProcessDescription, polarity: Polarity, sect
   return h.digest("hex");
 }
 
-/** The deck for one length: all VSB sweeps, one raw file each. */
-export function characterisationDeck(p: ProcessDescription, polarity: Polarity, section: string, w: number, l: number, grid: SweepGrid): string {
+/** The vectors saved per swept instance, with the raw-file name each comes back under. */
+const savedOutputs = [
+  ["idw", "id", "i"],
+  ["gmw", "gm", ""],
+  ["gdsw", "gds", ""],
+  ["gmbw", "gmbs", ""],
+  ["vth", "vth", "v"],
+  ["vdsat", "vdsat", "v"],
+  ["cggw", "cgg", ""],
+  ["cgsw", "cgs", ""],
+  ["cgdw", "cgd", ""],
+] as const satisfies ReadonlyArray<readonly [TableQuantity, string, "" | "i" | "v"]>;
+
+/** The instance sweeping length `i` (of the deck's lengths) at VSB index `k`. */
+const instanceName = (i: number, k: number): string => `M${i}_${k}`;
+
+/**
+ * The deck for a group of lengths: one instance per (L, VSB) on shared gate and
+ * drain nodes, each VSB on its own body source, so a single nested `dc` (VGS
+ * inner, VDS outer) sweeps them all after one library load and writes one binary
+ * raw file, `table.raw`, holding only the saved device outputs and the two swept
+ * voltages. Every terminal is held by an ideal source, so the instances do not
+ * load one another: each point is the operating point of each device alone.
+ */
+export function characterisationDeck(p: ProcessDescription, polarity: Polarity, section: string, w: number, ls: readonly number[], grid: SweepGrid): string {
   const s = polarity === "nmos" ? 1 : -1;
   const range = (xs: readonly number[]) => {
     const h = xs.length > 1 ? (xs[xs.length - 1]! - xs[0]!) / (xs.length - 1) : 1;
     return `${spiceNumber(s * xs[0]!)} ${spiceNumber(s * xs[xs.length - 1]!)} ${spiceNumber(s * h)}`;
   };
-  const control = ["set filetype=binary", "save v(g) v(d) @m1[id] @m1[gm] @m1[gds] @m1[gmbs] @m1[vth] @m1[vdsat] @m1[cgg] @m1[cgs] @m1[cgd]"];
-  grid.vsb.forEach((vsb, k) => {
-    control.push(`alter VB dc = ${spiceNumber(-s * vsb)}`, `dc VG ${range(grid.vgs)} VD ${range(grid.vds)}`, `write sweep${k}.raw`, "destroy all");
-  });
-  control.push("quit 0");
+  const lines = [libLine(p.library.file, section), ...p.includes.map((f) => includeLine(f)), `.temp ${spiceNumber(p.temperature)}`, element("VD", ["d", "0"], 0), element("VG", ["g", "0"], 0)];
+  grid.vsb.forEach((vsb, k) => lines.push(element(`VB${k}`, [`b${k}`, "0"], -s * vsb)));
+  const control = ["set filetype=binary", "save v(g) v(d)"];
+  ls.forEach((l, i) =>
+    grid.vsb.forEach((_, k) => {
+      const m = instanceName(i, k);
+      lines.push(element(m, ["d", "g", "0", `b${k}`], p.devices[polarity].model, { W: w, L: l }));
+      control.push(`save ${savedOutputs.map(([, q]) => `@${m.toLowerCase()}[${q}]`).join(" ")}`);
+    }),
+  );
+  control.push(`dc VG ${range(grid.vgs)} VD ${range(grid.vds)}`, "write table.raw", "quit 0");
   return writeDeck({
-    title: `pinchoff characterisation: ${p.name} ${p.devices[polarity].model} W=${w} L=${l} section ${section}`,
-    lines: [
-      libLine(p.library.file, section),
-      ...p.includes.map((f) => includeLine(f)),
-      `.temp ${spiceNumber(p.temperature)}`,
-      element("VD", ["d", "0"], 0),
-      element("VG", ["g", "0"], 0),
-      element("VB", ["b", "0"], 0),
-      element("M1", ["d", "g", "0", "b"], p.devices[polarity].model, { W: w, L: l }),
-    ],
+    title: `pinchoff characterisation: ${p.name} ${p.devices[polarity].model} W=${w} L=${ls.join(" ")} section ${section}`,
+    lines,
     control,
   });
 }
@@ -208,51 +231,38 @@ export async function characterize(p: ProcessDescription, opts: CharacterizeOpti
   const data = Object.fromEntries(tableQuantities.map((q) => [q, new Float64Array(size)])) as Record<TableQuantity, Float64Array>;
   const s = polarity === "nmos" ? 1 : -1;
   let done = 0;
-  const one = async (li: number) => {
-    const l = grid.l[li]!;
-    const outputs = grid.vsb.map((_, k) => `sweep${k}.raw`);
-    const r = await runDeck({ deck: characterisationDeck(p, polarity, section, w, l, grid), outputs, timeoutMs: opts.timeoutMs ?? 120000, origin: `${p.name} ${p.devices[polarity].model} L=${l}` });
-    outputs.forEach((o, k) => {
-      const plot = r.raw[o]![0]!;
-      if (plot.points !== nG * nD) throw new InputError(plot.points, `${nG * nD} sweep points`, `${o} of L=${l}`, "io");
-      const vg = column(plot, "v(g)");
-      const vd = column(plot, "v(d)");
-      // Sanity: the sweep order is VGS fastest, as the table's index.
-      if (Math.abs(s * vg[1 % plot.points]! - grid.vgs[1 % nG]!) > 1e-6 || Math.abs(s * vd[plot.points - 1]! - grid.vds[nD - 1]!) > 1e-6)
-        throw new InputError(vg[1], `the sweep order VGS inside VDS`, `${o} of L=${l}`, "io");
-      const cols = {
-        idw: column(plot, "i(@m1[id])"),
-        gmw: column(plot, "@m1[gm]"),
-        gdsw: column(plot, "@m1[gds]"),
-        gmbw: column(plot, "@m1[gmbs]"),
-        vth: column(plot, "v(@m1[vth])"),
-        vdsat: column(plot, "v(@m1[vdsat])"),
-        cggw: column(plot, "@m1[cgg]"),
-        cgsw: column(plot, "@m1[cgs]"),
-        cgdw: column(plot, "@m1[cgd]"),
-      };
-      const base = li * perL + k * nG * nD;
-      for (let i = 0; i < nG * nD; i++) {
-        data.idw[base + i] = Math.abs(cols.idw[i]!) / w;
-        data.gmw[base + i] = Math.abs(cols.gmw[i]!) / w;
-        data.gdsw[base + i] = Math.abs(cols.gdsw[i]!) / w;
-        data.gmbw[base + i] = Math.abs(cols.gmbw[i]!) / w;
-        data.vth[base + i] = Math.abs(cols.vth[i]!);
-        data.vdsat[base + i] = Math.abs(cols.vdsat[i]!);
-        data.cggw[base + i] = cols.cggw[i]! / w;
-        data.cgsw[base + i] = -cols.cgsw[i]! / w;
-        data.cgdw[base + i] = -cols.cgdw[i]! / w;
-      }
-    });
-    opts.progress?.(++done, grid.l.length);
-  };
+  // As many decks as cores (at most one per length), lengths dealt round-robin so each deck gets short and long ones.
   const jobs = Math.max(1, Math.min(opts.jobs ?? availableParallelism(), grid.l.length));
-  let next = 0;
-  await Promise.all(
-    Array.from({ length: jobs }, async () => {
-      while (next < grid.l.length) await one(next++);
-    }),
-  );
+  const groups = Array.from({ length: jobs }, (_, j) => grid.l.map((_, li) => li).filter((li) => li % jobs === j));
+  const one = async (group: readonly number[]) => {
+    const ls = group.map((li) => grid.l[li]!);
+    const origin = `${p.name} ${p.devices[polarity].model} L=${ls.join(", ")}`;
+    const r = await runDeck({ deck: characterisationDeck(p, polarity, section, w, ls, grid), outputs: ["table.raw"], timeoutMs: opts.timeoutMs ?? 120000, origin });
+    const plot = r.raw["table.raw"]![0]!;
+    if (plot.points !== nG * nD) throw new InputError(plot.points, `${nG * nD} sweep points`, `table.raw of ${origin}`, "io");
+    const vg = column(plot, "v(g)");
+    const vd = column(plot, "v(d)");
+    // Sanity: the sweep order is VGS fastest, as the table's index.
+    if (Math.abs(s * vg[1 % plot.points]! - grid.vgs[1 % nG]!) > 1e-6 || Math.abs(s * vd[plot.points - 1]! - grid.vds[nD - 1]!) > 1e-6)
+      throw new InputError(vg[1], `the sweep order VGS inside VDS`, `table.raw of ${origin}`, "io");
+    group.forEach((li, i) => {
+      for (let k = 0; k < nB; k++) {
+        const m = instanceName(i, k).toLowerCase();
+        const base = li * perL + k * nG * nD;
+        for (const [q, name, kind] of savedOutputs) {
+          const col = column(plot, kind ? `${kind}(@${m}[${name}])` : `@${m}[${name}]`);
+          const out = data[q];
+          // Magnitudes per width; Cgs and Cgd are −∂Qg/∂Vs and −∂Qg/∂Vd (BSIM4 reports the signed derivatives).
+          if (q === "vth" || q === "vdsat") for (let x = 0; x < nG * nD; x++) out[base + x] = Math.abs(col[x]!);
+          else if (q === "cggw") for (let x = 0; x < nG * nD; x++) out[base + x] = col[x]! / w;
+          else if (q === "cgsw" || q === "cgdw") for (let x = 0; x < nG * nD; x++) out[base + x] = -col[x]! / w;
+          else for (let x = 0; x < nG * nD; x++) out[base + x] = Math.abs(col[x]!) / w;
+        }
+      }
+      opts.progress?.(++done, grid.l.length);
+    });
+  };
+  await Promise.all(groups.map(one));
   const table: DeviceTable = { kind: "pinchoff-device-table", version: 1, process: p.name, polarity, model: p.devices[polarity].model, library: p.library.file, section, temperature: p.temperature, w, grid, fingerprint, data };
   if (folder) writeCache(folder, table);
   return table;

@@ -51,8 +51,8 @@ export const cases = defineCases([
       return { seconds: (performance.now() - t0) / 1000, cpu: childCpuSeconds() - c0 };
     },
     figures: {
-      seconds: { unit: "s", better: "lower", target: 30, note: "12 decks (2 devices × 6 lengths), 2 at a time, 136 680 points" },
-      cpu: { unit: "s", better: "lower", note: "ngspice CPU time (user + system); on an idle 2-core machine the wall time is about half of it" },
+      seconds: { unit: "s", better: "lower", target: 30, note: "2 devices × 6 lengths × 5 VSB in one deck per core per device (4 decks, one ngspice per core), 136 680 points; on a loaded machine compare the CPU figure" },
+      cpu: { unit: "s", better: "lower", note: "ngspice CPU time (user + system) of the child processes: the work, whatever the load; on an idle 2-core machine the wall time is about half of it plus the start" },
     },
   },
   {
