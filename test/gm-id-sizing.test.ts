@@ -20,7 +20,7 @@ import { builtinProcessFile, checkProcess, readProcess, type ProcessDescription 
 import { simulateDevices } from "../lib/process/device-check.js";
 import { deviceLookup, emptyPoint, lookupInto } from "../lib/process/lookup.js";
 import { Derivation } from "../lib/record/derivation.js";
-import { sizeByEfficiency, type EfficiencyDesign } from "../lib/sizing/gm-id.js";
+import { sizeByEfficiency, sizeByEfficiencyForProcess, type EfficiencyDesign, type EfficiencySpec } from "../lib/sizing/gm-id.js";
 import { SimulatorError } from "../lib/spice/run.js";
 import { expectReevaluates } from "./support/reevaluate.js";
 
@@ -44,33 +44,37 @@ function rng(seed: number) {
 }
 
 describe("gm/ID sizing of single devices against ngspice 39 BSIM4 (GF180MCU sm141064.ngspice typical)", () => {
-  it("lands the simulated ID and gm/ID within 2 % on 120 seeded NMOS and PMOS cases, and says how far the square law lands", async () => {
+  it("lands the simulated ID and gm/ID within 2 % on 120 seeded NMOS and PMOS cases from 1 µA to 1 mA (parallel devices above the widest W, own-width tables below 5 µm), and says how far the square law lands", async () => {
     const r = rng(20261202);
     const ls = [0.5, 1, 2, 5, 0.55, 0.65, 0.9, 1.1, 1.35, 1.75, 2.2, 2.8, 3.5, 4.5].map((x) => x * 1e-6);
-    const cases: EfficiencyDesign[] = [];
-    let tried = 0;
-    while (cases.length < 120) {
-      tried++;
-      const polarity = cases.length % 2 ? "pmos" : "nmos";
-      const l = ls[Math.floor(r() * ls.length)]!;
-      const id = 1e-6 * 1000 ** r();
-      const gmId = 5 + 15 * r();
-      let d: EfficiencyDesign;
-      try {
-        d = sizeByEfficiency(tables[polarity], { id, gmId, l, vds: 1.2 }, proc);
-      } catch (e) {
-        // W outside the kit's range, or a gm/ID the device cannot reach at this L: refused, not sized.
-        expect(e).toBeInstanceOf(InputError);
-        continue;
-      }
-      // Narrower than half the reference width: narrow-width effects are outside the table (see the README).
-      if (d.w < tables[polarity].w / 2) continue;
-      cases.push(d);
+    const drawn: Array<{ polarity: "nmos" | "pmos"; spec: EfficiencySpec }> = [];
+    for (let k = 0; k < 150; k++) {
+      const polarity = k % 2 ? "pmos" : "nmos";
+      // ID log-uniform from 1 µA to 1 mA; the first and last case of each polarity pinned at the ends.
+      const u = k < 2 ? 0 : k >= 148 ? 1 : r();
+      drawn.push({ polarity, spec: { id: 1e-6 * 1000 ** u, gmId: 5 + 15 * r(), l: ls[Math.floor(r() * ls.length)]!, vds: 1.2 } });
     }
-    const sim = await simulateDevices(proc, cases.map((d) => ({ polarity: d.polarity, w: d.wDrawn, l: d.l, vgs: d.vgs, vds: d.vds })));
+    const refused: string[] = [];
+    const sized = await Promise.all(
+      drawn.map(({ polarity, spec }) =>
+        sizeByEfficiencyForProcess(proc, polarity, spec, { table: tables[polarity], cache }).catch((e: unknown) => {
+          // Outside what the kit can draw (W under its narrowest, more than 1000 parallel devices) or a gm/ID the device cannot reach at this L: refused with a typed error, not sized.
+          expect(e instanceof InputError || e instanceof InfeasibleError, String(e)).toBe(true);
+          refused.push(`${polarity} ID=${spec.id!.toExponential(2)} gm/ID=${spec.gmId!.toFixed(1)} L=${spec.l}: ${(e as Error).message.slice(0, 60)}`);
+          return undefined;
+        }),
+      ),
+    );
+    const cases = sized.filter((d): d is EfficiencyDesign => d !== undefined);
+    expect(cases.length).toBeGreaterThanOrEqual(120);
+    const sim = await simulateDevices(proc, cases.map((d) => ({ polarity: d.polarity, w: d.wDrawn, m: d.multiplier, l: d.l, vgs: d.vgs, vds: d.vds })));
+    // The square-law design of the same targets, drawn the same way (parallel devices above 100 µm, the kit's W range).
     const square = await simulateDevices(
       proc,
-      cases.map((d) => ({ polarity: d.polarity, w: Math.min(100e-6, Math.max(0.22e-6, d.squareLaw.w)), l: d.l, vgs: Math.min(3.3, d.squareLaw.vgs), vds: d.vds })),
+      cases.map((d) => {
+        const m = Math.max(1, Math.ceil(d.squareLaw.w / 100e-6));
+        return { polarity: d.polarity, w: Math.max(0.22e-6, d.squareLaw.w / m), m, l: d.l, vgs: Math.min(3.3, d.squareLaw.vgs), vds: d.vds };
+      }),
     );
     let worstId = 0, worstG = 0;
     const sq: number[] = [];
@@ -80,19 +84,56 @@ describe("gm/ID sizing of single devices against ngspice 39 BSIM4 (GF180MCU sm14
       const eG = s.gm / s.id / d.gmId - 1;
       worstId = Math.max(worstId, Math.abs(eId));
       worstG = Math.max(worstG, Math.abs(eG));
-      expect(Math.abs(eId), `case ${k}: ${d.polarity} L=${d.l} ID=${d.id} gm/ID=${d.gmId}`).toBeLessThan(0.02);
-      expect(Math.abs(eG), `case ${k}: ${d.polarity} L=${d.l} ID=${d.id} gm/ID=${d.gmId}`).toBeLessThan(0.02);
+      const what = `case ${k}: ${d.polarity} L=${d.l} ID=${d.id} gm/ID=${d.gmId} W=${d.wDrawn} m=${d.multiplier}`;
+      expect(Math.abs(eId), what).toBeLessThan(0.02);
+      expect(Math.abs(eG), what).toBeLessThan(0.02);
       sq.push(Math.abs(square.values[k]!.id / d.id - 1));
     });
     sq.sort((a, b) => a - b);
     const ids = cases.map((d) => d.id);
+    const parallel = cases.filter((d) => d.multiplier > 1).length;
+    const narrow = cases.filter((d) => d.wDrawn < 5e-6).length;
     console.log(
-      `gm/ID sizing: ${cases.length} cases (${tried} drawn), ID ${Math.min(...ids).toExponential(2)}…${Math.max(...ids).toExponential(2)} A; worst simulated ID ${(100 * worstId).toFixed(2)} %, gm/ID ${(100 * worstG).toFixed(2)} %. ` +
-        `Square-law sizing (card fitted to the table at VOV = 0.5 V) on the same cases: median ID error ${(100 * sq[sq.length >> 1]!).toFixed(1)} %, worst ${(100 * sq[sq.length - 1]!).toFixed(1)} %`,
+      `gm/ID sizing: ${cases.length} cases of ${drawn.length} drawn (${refused.length} refused), ID ${Math.min(...ids).toExponential(2)}…${Math.max(...ids).toExponential(2)} A, ${parallel} as parallel devices, ${narrow} under 5 µm from own-width tables; ` +
+        `worst simulated ID ${(100 * worstId).toFixed(2)} %, gm/ID ${(100 * worstG).toFixed(2)} %. ` +
+        `Square-law sizing (card fitted to the table at VOV = 0.5 V) on the same cases: median ID error ${(100 * sq[sq.length >> 1]!).toFixed(1)} %, worst ${(100 * sq[sq.length - 1]!).toFixed(1)} %` +
+        (refused.length ? `\nrefused: ${refused.join("; ")}` : ""),
     );
-    expect(Math.min(...ids)).toBeLessThan(1e-5);
-    expect(Math.max(...ids)).toBeGreaterThan(1e-4);
-  }, 300_000);
+    // The whole range is covered: both ends of the current range, parallel devices and narrow ones, both polarities.
+    expect(Math.min(...ids)).toBeLessThan(1.01e-6);
+    expect(Math.max(...ids)).toBeGreaterThan(0.99e-3);
+    expect(parallel).toBeGreaterThan(5);
+    expect(narrow).toBeGreaterThan(5);
+    expect(cases.filter((d) => d.polarity === "pmos").length).toBeGreaterThan(50);
+  }, 600_000);
+
+  it("draws a width above the widest device as m devices in parallel, records m and W/m, and the simulator agrees", async () => {
+    const rec = new Derivation("gm/ID sizing, 1 mA");
+    const d = sizeByEfficiency(tables.nmos, { id: 1e-3, gmId: 18, l: 2e-6, vds: 1.2 }, proc, rec);
+    expect(d.multiplier).toBeGreaterThan(1);
+    expect(d.wDrawn).toBeLessThanOrEqual(100e-6);
+    expect(d.multiplier * d.wDrawn).toBeCloseTo(d.w, 7);
+    const data = rec.toJSON();
+    expect(data.steps.some((s) => s.kind === "formula" && s.formula === "widthPerDevice")).toBe(true);
+    expect(expectReevaluates(rec)).toBeGreaterThanOrEqual(7);
+    const sim = await simulateDevices(proc, [{ polarity: "nmos", w: d.wDrawn, m: d.multiplier, l: d.l, vgs: d.vgs, vds: d.vds }]);
+    expect(sim.deck).toMatch(new RegExp(`M0 d0 g0 0 b0 nmos_3p3 W=\\S+ L=\\S+ m=${d.multiplier}`));
+    expect(Math.abs(sim.values[0]!.id / 1e-3 - 1)).toBeLessThan(0.02);
+  });
+
+  it("sizes a narrow device from a table at its own width, which the reference table misses", async () => {
+    const spec: EfficiencySpec = { id: 2e-6, gmId: 8, l: 1e-6, vds: 1.2 };
+    const fromRef = sizeByEfficiency(tables.nmos, spec, proc);
+    expect(fromRef.wDrawn).toBeLessThan(2e-6);
+    const rec = new Derivation("narrow device");
+    const d = await sizeByEfficiencyForProcess(proc, "nmos", spec, { table: tables.nmos, cache, rec });
+    expect(d.tableFingerprint).not.toBe(tables.nmos.fingerprint);
+    expect(JSON.stringify(rec.toJSON().steps)).toContain("Table at the device's own width");
+    const sim = await simulateDevices(proc, [fromRef, d].map((x) => ({ polarity: "nmos" as const, w: x.wDrawn, l: x.l, vgs: x.vgs, vds: x.vds })));
+    const eRef = Math.abs(sim.values[0]!.id / 2e-6 - 1), eOwn = Math.abs(sim.values[1]!.id / 2e-6 - 1);
+    expect(eOwn).toBeLessThan(0.02);
+    expect(eOwn).toBeLessThan(eRef);
+  });
 
   it("records each lookup and interpolation with the table's fingerprint, and every formula step re-evaluates with units", () => {
     const rec = new Derivation("gm/ID sizing");
@@ -192,7 +233,10 @@ describe("bad input", () => {
   });
 
   it("refuses a current the device cannot carry within the process's W range, and a gm/ID beyond the supply", () => {
-    expect(() => sizeByEfficiency(tables.nmos, { id: 0.5, gmId: 10, l: 5e-6, vds: 1.2 }, proc)).toThrow(/W from 2.2e-7 m to 0.0001 m/);
+    expect(() => sizeByEfficiency(tables.nmos, { id: 0.5, gmId: 10, l: 5e-6, vds: 1.2 }, proc)).toThrow(InfeasibleError);
+    expect(() => sizeByEfficiency(tables.nmos, { id: 0.5, gmId: 10, l: 5e-6, vds: 1.2 }, proc)).toThrow(/devices of the widest W \(0.0001 m\), above the 1000 allowed .* within the 3.3 V supply/);
+    expect(() => sizeByEfficiency(tables.nmos, { id: 5e-3, gmId: 10, l: 5e-6, vds: 1.2, maxMultiplier: 4 }, proc)).toThrow(/above the 4 allowed/);
+    expect(() => sizeByEfficiency(tables.nmos, { id: 1e-9, gmId: 5, l: 0.5e-6, vds: 1.2 }, proc)).toThrow(/W from 2.2e-7 m to 0.0001 m/);
     expect(() => sizeByEfficiency(tables.nmos, { id: 1e-3, gmId: 0.3, l: 1e-6, vds: 3.3 }, proc)).toThrow(InfeasibleError);
     expect(() => sizeByEfficiency(tables.nmos, { id: 1e-3, gmId: 0.3, l: 1e-6, vds: 3.3 }, proc)).toThrow(/beyond the table's supply range/);
     // A gm/ID whose VDsat exceeds VDS would leave the device in triode.
@@ -215,6 +259,6 @@ describe("bad input", () => {
     await expect(characterize(noSection, { polarity: "nmos", grid: small, cache: false })).rejects.toThrow(/has no section "nosuch"/);
     const noDevice = checkProcess({ ...builtin, devices: { ...(builtin.devices as object), nmos: { model: "nmos_9v9", l: { min: 0.28e-6, max: 50e-6 }, w: { min: 0.22e-6, max: 100e-6 } } } }, builtinProcessFile());
     await expect(characterize(noDevice, { polarity: "nmos", grid: small, cache: false })).rejects.toThrow(SimulatorError);
-    await expect(characterize(noDevice, { polarity: "nmos", grid: small, cache: false })).rejects.toThrow(/no device model for m1/);
+    await expect(characterize(noDevice, { polarity: "nmos", grid: small, cache: false })).rejects.toThrow(/no device model for m0_0/);
   });
 });

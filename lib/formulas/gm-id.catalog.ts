@@ -29,6 +29,8 @@ export const symbols = defineSymbols({
   Cgg: { tex: "C_{gg}", dim: "capacitance", meaning: "total gate capacitance ∂Qg/∂Vg" },
   fT: { tex: "f_{T}", dim: "frequency", meaning: "transit frequency" },
   P: { tex: "P", dim: "power", meaning: "power budget of the branch" },
+  m: { tex: "m", dim: "count", meaning: "number of identical devices in parallel (the multiplier)" },
+  Wunit: { tex: "W_{u}", dim: "length", meaning: "width of each of the m parallel devices (the unit device)" },
   VDD: { tex: "V_{DD}", dim: "voltage", meaning: "supply voltage across the branch" },
 });
 
@@ -40,6 +42,12 @@ export const formulas = defineFormulas({
     source: "linear interpolation in 1/L: exact for a current density that scales as 1/L, and the coordinate binned BSIM4 parameters are linear in (common practice)",
   },
   widthForCurrentDensity: { title: "Width from the current per width", result: "W", expr: "ID / JD", source: method },
+  widthPerDevice: {
+    title: "Width of each parallel device",
+    result: "Wunit",
+    expr: "W / m",
+    source: "common practice: m identical devices side by side carry m times the current of one, so a width above the process's maximum is drawn as m devices of W/m",
+  },
   transconductanceFromEfficiency: { title: "Transconductance from gm/ID", result: "gm", expr: "gmId * ID", source: method },
   outputConductanceFromRatio: { title: "Output conductance from gds/ID", result: "gds", expr: "gdsId * ID", source: method },
   gateCapacitanceFromDensity: { title: "Gate capacitance from Cgg/W", result: "Cgg", expr: "CggW * W", source: method },

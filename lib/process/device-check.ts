@@ -18,6 +18,8 @@ export interface DeviceBias {
   readonly vgs: number;
   readonly vds: number;
   readonly vsb?: number;
+  /** Identical devices in parallel (the instance's `m`, default 1); `w` is each one's width and the values returned are the total. */
+  readonly m?: number;
 }
 
 export interface SimulatedDevice {
@@ -41,15 +43,18 @@ export async function simulateDevices(p: ProcessDescription, devices: readonly D
     if (s === 0) throw new InputError(d.polarity, '"nmos" or "pmos"', `device ${k} polarity`);
     checkGeometry(p, d.polarity, "w", d.w, `device ${k} W`);
     checkGeometry(p, d.polarity, "l", d.l, `device ${k} L`);
+    const m = d.m ?? 1;
+    if (!(Number.isInteger(m) && m >= 1)) throw new InputError(m, "a whole number of parallel devices ≥ 1", `device ${k} m`);
     const n = (x: string) => `${x}${k}`;
     lines.push(element(`VG${k}`, [n("g"), "0"], s * d.vgs), element(`VD${k}`, [n("d"), "0"], s * d.vds), element(`VB${k}`, [n("b"), "0"], -s * (d.vsb ?? 0)));
-    lines.push(element(`M${k}`, [n("d"), n("g"), "0", n("b")], p.devices[d.polarity].model, { W: d.w, L: d.l }));
-    for (const q of ["id", "gm", "gds", "gmbs", "vth", "vdsat", "cgg"]) saves.push(`@m${k}[${q}]`);
+    lines.push(element(`M${k}`, [n("d"), n("g"), "0", n("b")], p.devices[d.polarity].model, m === 1 ? { W: d.w, L: d.l } : { W: d.w, L: d.l, m }));
+    // One save line per device: ngspice drops an over-long save line.
+    saves.push(`save ${["id", "gm", "gds", "gmbs", "vth", "vdsat", "cgg"].map((q) => `@m${k}[${q}]`).join(" ")}`);
   });
   const deck = writeDeck({
     title: `pinchoff device check: ${devices.length} device(s) of ${p.name}, section ${section}`,
     lines,
-    control: ["set filetype=binary", `save ${saves.join(" ")}`, "op", "write op.raw", "quit 0"],
+    control: ["set filetype=binary", ...saves, "op", "write op.raw", "quit 0"],
   });
   const r = await runDeck({ deck, outputs: ["op.raw"], origin: `${p.name} device check` });
   const plot = r.raw["op.raw"]![0]!;

@@ -21,10 +21,10 @@
 import { InfeasibleError, InputError, requirePositive } from "../errors.js";
 import * as dev from "../formulas/device.formulas.js";
 import * as gid from "../formulas/gm-id.formulas.js";
-import type { Amperes, AmperesPerMeter, AmperesPerVoltSquared, Farads, FaradsPerMeter, PerVolt, Meters, Siemens, SiemensPerAmpere, Volts, Watts } from "../quantity.js";
+import type { Amperes, AmperesPerMeter, AmperesPerVoltSquared, Count, Farads, FaradsPerMeter, PerVolt, Meters, Siemens, SiemensPerAmpere, Volts, Watts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 import { checkGeometry, snapToGrid, type ProcessDescription } from "../process/description.js";
-import type { DeviceTable } from "../process/characterize.js";
+import { characterize, type CharacterizeOptions, type DeviceTable } from "../process/characterize.js";
 import { deviceLookup, emptyPoint, lengthBracket, lookupAtLength, mixLengths, type DeviceLookup, type PointValues } from "../process/lookup.js";
 
 export interface EfficiencySpec {
@@ -42,6 +42,8 @@ export interface EfficiencySpec {
   /** |VDS| and |VSB| of the operating point (V); VSB defaults to 0. */
   readonly vds: number;
   readonly vsb?: number;
+  /** Most identical devices in parallel when W exceeds the process's widest device (default 1000). */
+  readonly maxMultiplier?: number;
 }
 
 export interface SquareLawDesign {
@@ -60,8 +62,11 @@ export interface EfficiencyDesign {
   readonly model: string;
   readonly tableFingerprint: string;
   readonly l: number;
-  /** W from the table (m) and W rounded to the drawing grid (when a process is given). */
+  /** Total W from the table (m). */
   readonly w: number;
+  /** Identical devices in parallel (the instance's `m`): 1 unless W exceeds the process's widest device. */
+  readonly multiplier: number;
+  /** Drawn W of each of the `multiplier` devices: W/m rounded to the drawing grid (when a process is given). */
   readonly wDrawn: number;
   readonly id: number;
   readonly gmId: number;
@@ -223,9 +228,15 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
     }
   }
   const w = rec ? rec.calc(gid.widthForCurrentDensity, [id as Amperes, jd as AmperesPerMeter] as const) : id / jd;
-  if (process) checkGeometry(process, table.polarity, "w", w, `W for I_D = ${id} A at gm/ID = ${gmId} S/A, L = ${l} m`);
-  else if (!(w > 0) || !Number.isFinite(w)) throw new InfeasibleError(`no finite width carries ${id} A at gm/ID = ${gmId} S/A`, "w");
-  const wDrawn = process ? snapToGrid(process, table.polarity, w) : w;
+  if (!(w > 0) || !Number.isFinite(w)) throw new InfeasibleError(`no finite width carries ${id} A at gm/ID = ${gmId} S/A`, "w");
+  const m = process ? multiplierFor(process, table, w, spec.maxMultiplier, { id, gmId, l, jd, vgs: r.vgs }) : 1;
+  let wUnit = w;
+  if (m > 1) {
+    rec?.input("m", m, "count", `the fewest parallel devices no wider than ${process!.devices[table.polarity].w.max} m, the process's widest`);
+    wUnit = rec ? rec.calc(gid.widthPerDevice, [w as Meters, m as Count] as const) : w / m;
+  }
+  if (process) checkGeometry(process, table.polarity, "w", wUnit, `W for I_D = ${id} A at gm/ID = ${gmId} S/A, L = ${l} m`);
+  const wDrawn = process ? snapToGrid(process, table.polarity, wUnit) : wUnit;
   const gm = rec ? rec.calc(gid.transconductanceFromEfficiency, [gmId as SiemensPerAmpere, id as Amperes] as const) : gmId * id;
   const gdsId = r.p.gdsw / r.p.idw;
   const gds = rec ? rec.calc(gid.outputConductanceFromRatio, [gdsId as SiemensPerAmpere, id as Amperes] as const, `g_ds/I_D = ${gdsId.toPrecision(6)} S/A from the table (${fp})`) : gdsId * id;
@@ -234,11 +245,11 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
   const ft = rec ? rec.calc(gid.transitFrequency, [gm as Siemens, cgg as Farads] as const) : gm / (2 * Math.PI * cgg);
   // Square law beside it: a Level 1 card fitted to the same table at VOV = 0.5 V.
   const sq = squareLawBeside(lk, l, r.p.vth, id, gmId, vds, vsb, w, r.vgs, rec);
-  if (w < table.w / 2)
-    rec?.find("caution", `W = ${w.toPrecision(3)} m is under half the table's reference width ${table.w} m: narrow-width effects are not in the table (ID/W of the open 180 nm NMOS is 6 % lower at W = 2 µm than at 10 µm); characterise at a width near this one or verify by simulation.`);
+  if (wUnit < table.w / 2)
+    rec?.find("caution", `W = ${wUnit.toPrecision(3)} m is under half the table's reference width ${table.w} m: narrow-width effects are not in the table (ID/W of the open 180 nm NMOS is 6 % lower at W = 2 µm than at 10 µm); characterise at a width near this one or verify by simulation.`);
   if (rec) {
     rec.input("W", w, "length", "gm/ID sizing");
-    rec.note("Bias point", `|VGS| = ${r.vgs.toFixed(5)} V, V_th = ${r.p.vth.toFixed(4)} V, V_Dsat = ${r.p.vdsat.toFixed(4)} V; drawn W = ${wDrawn} m.`);
+    rec.note("Bias point", `|VGS| = ${r.vgs.toFixed(5)} V, V_th = ${r.p.vth.toFixed(4)} V, V_Dsat = ${r.p.vdsat.toFixed(4)} V; drawn W = ${wDrawn} m${m > 1 ? ` for each of m = ${m} devices in parallel (total ${m * wDrawn} m)` : ""}.`);
     rec.check("|VDS| above VDsat (saturation in the simulator's terms)", vds, "voltage", { min: r.p.vdsat }, "VDsat from the table");
   }
   return {
@@ -247,6 +258,7 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
     tableFingerprint: table.fingerprint,
     l,
     w,
+    multiplier: m,
     wDrawn,
     id,
     gmId,
@@ -265,6 +277,72 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
     ft,
     squareLaw: sq,
   };
+}
+
+export interface ProcessSizingOptions {
+  /** The reference-width table (from `characterize`); characterised on the default grid (cached) when not given. */
+  readonly table?: DeviceTable;
+  /** Cache folder for the tables characterised here (as `characterize`); `false` disables it. */
+  readonly cache?: CharacterizeOptions["cache"];
+  readonly corner?: string;
+  /** Below this W per device a table at the device's own width is used; default half the reference table's W. */
+  readonly narrowWidth?: number;
+  readonly rec?: Derivation;
+}
+
+/**
+ * gm/ID sizing with the table matched to the device's width. Sized from the
+ * reference-width table first; when each device comes out narrower than
+ * `narrowWidth` (default half the table's W: ID/W does not scale there), a table
+ * is characterised at that drawn width, at exactly the chosen L, |VDS| and |VSB|
+ * (one short ngspice run, cached by fingerprint), and the sizing repeated until the
+ * width it gives is within 3 % of the table's (at most 4 tables; ID/W moves by well
+ * under 1 % over such a step). Widths above the process's widest device become
+ * `multiplier` devices in parallel (`sizeByEfficiency`). The record shows the final
+ * sizing and which table it used.
+ */
+export async function sizeByEfficiencyForProcess(process: ProcessDescription, polarity: "nmos" | "pmos", spec: EfficiencySpec, opts: ProcessSizingOptions = {}): Promise<EfficiencyDesign> {
+  const ref = opts.table ?? (await characterize(process, { polarity, cache: opts.cache, corner: opts.corner }));
+  if (ref.polarity !== polarity) throw new InputError(ref.polarity, `a ${polarity} table`, "sizeByEfficiencyForProcess table");
+  const narrow = opts.narrowWidth ?? ref.w / 2;
+  if (!(typeof narrow === "number" && narrow > 0 && Number.isFinite(narrow))) throw new InputError(narrow, "a width in m, > 0", "narrowWidth");
+  let d = sizeByEfficiency(ref, spec, process);
+  if (d.multiplier > 1 || d.wDrawn >= narrow) return opts.rec ? sizeByEfficiency(ref, spec, process, opts.rec) : d;
+  // Same target in terms of ID, gm/ID and L from here on (the first pass resolved a budget or a gain target).
+  const fixed: EfficiencySpec = { id: d.id, gmId: d.gmId, l: d.l, vds: d.vds, vsb: d.vsb, maxMultiplier: spec.maxMultiplier };
+  let table = ref;
+  for (let k = 0; k < 4; k++) {
+    const w = d.wDrawn;
+    table = await characterize(process, { polarity, w, grid: { l: [d.l], vgs: ref.grid.vgs, vds: [d.vds], vsb: [d.vsb] }, cache: opts.cache, corner: opts.corner });
+    d = sizeByEfficiency(table, fixed, process);
+    if (Math.abs(d.wDrawn / w - 1) < 0.03) break;
+  }
+  opts.rec?.note(
+    "Table at the device's own width",
+    `The reference table (W = ${ref.w} m, ${ref.fingerprint.slice(0, 12)}) gives W under ${narrow} m, where the current per width does not scale; the device is sized from a table characterised at W = ${table.w} m, L = ${d.l} m, |VDS| = ${d.vds} V, |VSB| = ${d.vsb} V (fingerprint ${table.fingerprint}).`,
+  );
+  return opts.rec ? sizeByEfficiency(table, fixed, process, opts.rec) : d;
+}
+
+/**
+ * The fewest identical parallel devices that keep each within the process's widest
+ * W, or an `InfeasibleError` when more than `maxMultiplier` (default 1000) are needed:
+ * at this gm/ID the device's current per width is fixed, so the current cannot be
+ * carried within the supply by a sensible layout.
+ */
+function multiplierFor(p: ProcessDescription, t: DeviceTable, w: number, maxMultiplier: number | undefined, at: { id: number; gmId: number; l: number; jd: number; vgs: number }): number {
+  const wMax = p.devices[t.polarity].w.max;
+  if (w <= wMax * (1 + 1e-9)) return 1;
+  const mMax = maxMultiplier ?? 1000;
+  if (!(Number.isInteger(mMax) && mMax >= 1)) throw new InputError(mMax, "a whole number of parallel devices ≥ 1", "maxMultiplier");
+  const m = Math.ceil(w / wMax - 1e-9);
+  if (m > mMax)
+    throw new InfeasibleError(
+      `I_D = ${at.id} A at gm/ID = ${at.gmId} S/A needs W = ${w.toPrecision(4)} m: ${m} devices of the widest W (${wMax} m), above the ${mMax} allowed (maxMultiplier). ` +
+        `At this gm/ID ${t.model} carries ${at.jd.toPrecision(4)} A per metre of width at |VGS| = ${at.vgs.toFixed(3)} V within the ${p.supply.nominal} V supply (L = ${at.l} m, table ${t.fingerprint.slice(0, 12)}); lower the current or the gm/ID, or shorten L`,
+      "id",
+    );
+  return m;
 }
 
 /** A square-law card (kp, Vt) read from the table at L: Vt is the table's threshold, kp from the current at VOV = 0.5 V. */

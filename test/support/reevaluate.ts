@@ -19,9 +19,9 @@ export function mathjsUnitOf(dim: Dimension): string {
   return inverse ? `${inverse[1]}^-1` : u;
 }
 
-/** A plain SI number as a mathjs quantity (a bare number when dimensionless). */
+/** A plain SI number as a mathjs quantity (a bare number when the dimension has no unit: ratios, counts). */
 export function asUnit(value: number, dim: Dimension): math.Unit | number {
-  return dim === "dimensionless" ? value : math.unit(value, mathjsUnitOf(dim));
+  return dimensions[dim].unit === "" ? value : math.unit(value, mathjsUnitOf(dim));
 }
 
 export interface Reevaluation {
