@@ -44,7 +44,7 @@ function rng(seed: number) {
 }
 
 describe("gm/ID sizing of single devices against ngspice 39 BSIM4 (GF180MCU sm141064.ngspice typical)", () => {
-  it("lands the simulated ID and gm/ID within 2 % on 120 seeded NMOS and PMOS cases from 1 µA to 1 mA (parallel devices above the widest W, own-width tables below 5 µm), and says how far the square law lands", async () => {
+  it("lands the simulated ID and gm/ID within 2 % on 150 seeded NMOS and PMOS cases (at least 120 sized, the rest refused with typed errors) from 1 µA to 1 mA (parallel devices above the widest W, own-width tables below 5 µm), and says how far the square law lands", async () => {
     const r = rng(20261202);
     const ls = [0.5, 1, 2, 5, 0.55, 0.65, 0.9, 1.1, 1.35, 1.75, 2.2, 2.8, 3.5, 4.5].map((x) => x * 1e-6);
     const drawn: Array<{ polarity: "nmos" | "pmos"; spec: EfficiencySpec }> = [];
@@ -205,6 +205,26 @@ describe("the table against outside references", () => {
       expect(median).toBeLessThan(0.05);
     }
     console.log(`table vs measured ID (W = 10 µm, L = 0.5/1/5 µm, |VGS| ≥ 1.3 V): ${report.join("; ")}`);
+  });
+});
+
+describe("characterisation: one deck per core, an instance per (L, VSB)", () => {
+  it("gives each grid point the operating point of a lone device (the instances on shared sources do not load one another)", async () => {
+    const picks: Array<{ polarity: "nmos" | "pmos"; li: number; b: number; d: number; g: number }> = [];
+    for (const polarity of ["nmos", "pmos"] as const)
+      for (const [li, b, d, g] of [[0, 0, 4, 30], [5, 1, 11, 66], [11, 1, 2, 20], [7, 0, 8, 45]] as const) picks.push({ polarity, li, b, d, g });
+    const sim = await simulateDevices(
+      proc,
+      picks.map((x) => ({ polarity: x.polarity, w: tables[x.polarity].w, l: grid.l[x.li]!, vgs: grid.vgs[x.g]!, vds: grid.vds[x.d]!, vsb: grid.vsb[x.b]! })),
+    );
+    picks.forEach((x, k) => {
+      const t = tables[x.polarity];
+      const i = ((x.li * grid.vsb.length + x.b) * grid.vds.length + x.d) * grid.vgs.length + x.g;
+      const v = sim.values[k]!;
+      expect(Math.abs((t.data.idw[i]! * t.w) / v.id - 1)).toBeLessThan(1e-6);
+      expect(Math.abs((t.data.gmw[i]! * t.w) / v.gm - 1)).toBeLessThan(1e-6);
+      expect(Math.abs((t.data.cggw[i]! * t.w) / v.cgg - 1)).toBeLessThan(1e-6);
+    });
   });
 });
 

@@ -12,7 +12,9 @@
  * Tolerance: at the table's grid points the values are the simulator's; between
  * them see the accuracy figures in the README. Outside the grid: `InputError`
  * naming the axis and its range. Allocation: `lookupInto` writes into a caller's
- * `PointValues` and allocates nothing.
+ * `PointValues` and allocates nothing: the Hermite cubics are precomputed per cell,
+ * the located cell sits in a module typed array, indices come from the even grids'
+ * first value and step (no search except over the few lengths).
  */
 import { InputError } from "../errors.js";
 import type { DeviceTable } from "./characterize.js";
@@ -32,11 +34,19 @@ export interface PointValues {
 
 export const emptyPoint = (): PointValues => ({ idw: 0, gmId: 0, gdsw: 0, gmbw: 0, vth: 0, vdsat: 0, cggw: 0, cgsw: 0, cgdw: 0 });
 
-/** A table prepared for lookups: ln(ID/W) and gm/ID per point, grid steps, and the trilinear figures side by side. */
+/** A table prepared for lookups: per-cell cubics of ln(ID/W) along VGS, grid steps, and the trilinear figures side by side. */
 export interface DeviceLookup {
   readonly table: DeviceTable;
+  /** ln(ID/W) per point (−∞ where no current flows). */
   readonly lnJ: Float64Array;
+  /** gm/ID per point (0 where no current flows). */
   readonly slope: Float64Array;
+  /**
+   * Per point k (the left end of a VGS cell), the cubic Hermite of ln(ID/W) on that
+   * cell in t ∈ [0, 1]: c0 + t·(c1 + t·(c2 + t·c3)), stride 4; c0 is NaN when either
+   * end carries no current (linear fallback).
+   */
+  readonly cubic: Float64Array;
   readonly invL: Float64Array;
   /** VGS grid step (V), the Hermite scale. */
   readonly hVgs: number;
@@ -74,13 +84,29 @@ export function deviceLookup(table: DeviceTable): DeviceLookup {
     for (let q = 0; q < stride; q++) rest[i * stride + q] = d[restOrder[q]!][i]!;
   }
   const g = table.grid;
+  const hVgs = g.vgs.length > 1 ? g.vgs[1]! - g.vgs[0]! : 1;
+  const cubic = new Float64Array(n * 4);
+  const nG = g.vgs.length;
+  for (let k = 0; k < n; k++) {
+    const y0 = lnJ[k]!, y1 = k % nG < nG - 1 ? lnJ[k + 1]! : Number.NEGATIVE_INFINITY;
+    if (y0 === Number.NEGATIVE_INFINITY || y1 === Number.NEGATIVE_INFINITY) {
+      cubic[4 * k] = Number.NaN;
+      continue;
+    }
+    const m0 = slope[k]! * hVgs, m1 = slope[k + 1]! * hVgs;
+    cubic[4 * k] = y0;
+    cubic[4 * k + 1] = m0;
+    cubic[4 * k + 2] = 3 * (y1 - y0) - 2 * m0 - m1;
+    cubic[4 * k + 3] = 2 * (y0 - y1) + m0 + m1;
+  }
   return {
     table,
     lnJ,
     slope,
+    cubic,
     invL: Float64Array.from(g.l, (l) => 1 / l),
-    hVgs: g.vgs.length > 1 ? g.vgs[1]! - g.vgs[0]! : 1,
-    nG: g.vgs.length,
+    hVgs,
+    nG,
     nD: g.vds.length,
     nB: g.vsb.length,
     g0: g.vgs[0]!,
@@ -98,48 +124,52 @@ interface Axis {
   t: number;
 }
 
-/** Where x falls on an even axis: returns the cell index and leaves the fraction in `cellT`. */
-let cellT = 0;
-function locate(xs: readonly number[], x0: number, h: number, n: number, x: number, name: string): number {
+/**
+ * The located cell of the current lookup: VGS, VDS, VSB index and fraction in
+ * slots 0–5 (a typed array, so writing a fraction allocates nothing; lookups are
+ * synchronous).
+ */
+const at = new Float64Array(6);
+
+/** Where x falls on an even axis: the cell index into at[slot], the fraction into at[slot + 1]. */
+function locate(xs: readonly number[], x0: number, h: number, n: number, x: number, name: string, slot: number): void {
   if (n === 1) {
-    if (Math.abs(x - x0) > 1e-9) throw new InputError(x, `${name} = ${x0} (the table has one point on this axis)`, `table ${name}`);
-    cellT = 0;
-    return 0;
+    if (!(Math.abs(x - x0) <= 1e-9)) throw new InputError(x, `${name} = ${x0} (the table has one point on this axis)`, `table ${name}`);
+    at[slot] = 0;
+    at[slot + 1] = 0;
+    return;
   }
   const u = (x - x0) / h;
   if (!(u >= -1e-9 && u <= n - 1 + 1e-9)) throw new InputError(x, `${name} from ${x0} to ${xs[n - 1]} (the table's range)`, `table ${name}`);
   let i = Math.floor(u);
   if (i > n - 2) i = n - 2;
   if (i < 0) i = 0;
-  cellT = Math.min(1, Math.max(0, u - i));
-  return i;
+  const t = u - i;
+  at[slot] = i;
+  at[slot + 1] = t < 0 ? 0 : t > 1 ? 1 : t;
 }
 
-// The located cell of the current lookup (module scratch: lookups are synchronous).
-let gi = 0, gt = 0, di = 0, dt = 0, bi = 0, bt = 0;
-
 /**
- * Scratch for two VGS lines, 5 slots each: ln J, gm/ID, J, gm/W, Hermite flag.
- * J and gm/W are filled only on the linear fallback; on a Hermite line they are
- * exp(ln J) and J·gm/ID, computed only when the VSB step needs them.
+ * Scratch for one VGS line: ln J, gm/ID, J, gm/W, Hermite flag. J and gm/W are
+ * filled only on the linear fallback; on a Hermite line they are exp(ln J) and
+ * J·gm/ID, computed only when the VSB step needs them.
  */
 const sc = new Float64Array(10);
 
-/** Along VGS at one (L, VSB, VDS) line starting at point k. */
+/** Along VGS at one (L, VSB, VDS) line starting at point k, into sc[o…o+4]. */
 function alongVgs(lk: DeviceLookup, k: number, t: number, o: number): void {
-  const lnJ = lk.lnJ;
-  const y0 = lnJ[k]!, y1 = lnJ[k + 1]!;
-  if (y0 > Number.NEGATIVE_INFINITY && y1 > Number.NEGATIVE_INFINITY) {
-    const h = lk.hVgs;
-    const m0 = lk.slope[k]! * h, m1 = lk.slope[k + 1]! * h;
-    const t2 = t * t, t3 = t2 * t;
-    sc[o] = (2 * t3 - 3 * t2 + 1) * y0 + (t3 - 2 * t2 + t) * m0 + (-2 * t3 + 3 * t2) * y1 + (t3 - t2) * m1;
-    sc[o + 1] = ((6 * t2 - 6 * t) * y0 + (3 * t2 - 4 * t + 1) * m0 + (-6 * t2 + 6 * t) * y1 + (3 * t2 - 2 * t) * m1) / h;
+  const c = lk.cubic;
+  const c0 = c[4 * k]!;
+  if (c0 === c0) {
+    const c1 = c[4 * k + 1]!, c2 = c[4 * k + 2]!, c3 = c[4 * k + 3]!;
+    sc[o] = c0 + t * (c1 + t * (c2 + t * c3));
+    sc[o + 1] = (c1 + t * (2 * c2 + 3 * t * c3)) / lk.hVgs;
     sc[o + 4] = 1;
   } else {
     const d = lk.table.data;
-    const j = d.idw[k]! + t * (d.idw[k + 1]! - d.idw[k]!);
-    const gmw = d.gmw[k]! + t * (d.gmw[k + 1]! - d.gmw[k]!);
+    const k1 = t > 0 ? k + 1 : k;
+    const j = d.idw[k]! + t * (d.idw[k1]! - d.idw[k]!);
+    const gmw = d.gmw[k]! + t * (d.gmw[k1]! - d.gmw[k]!);
     sc[o] = j > noCurrent ? Math.log(j) : Number.NEGATIVE_INFINITY;
     sc[o + 1] = j > noCurrent ? gmw / j : 0;
     sc[o + 2] = j;
@@ -148,86 +178,81 @@ function alongVgs(lk: DeviceLookup, k: number, t: number, o: number): void {
   }
 }
 
-/** Values at one characterised length index for (VGS, VDS, VSB) already located. */
+/** Current and gm per width at one VDS grid line, between the two VSB lines (index k, next VSB at k + bStep). */
+function acrossVsb(lk: DeviceLookup, k: number, bStep: number, gt: number, bt: number, out: LineValues): void {
+  alongVgs(lk, k, gt, 0);
+  if (bt === 0) {
+    if (sc[4] === 1) {
+      out.idw = Math.exp(sc[0]!);
+      out.gmw = out.idw * sc[1]!;
+    } else {
+      out.idw = sc[2]!;
+      out.gmw = sc[3]!;
+    }
+    return;
+  }
+  alongVgs(lk, k + bStep, gt, 5);
+  const y0 = sc[0]!, y1 = sc[5]!;
+  if (y0 > Number.NEGATIVE_INFINITY && y1 > Number.NEGATIVE_INFINITY) {
+    const j = Math.exp(y0 + bt * (y1 - y0));
+    out.idw = j;
+    out.gmw = j * (sc[1]! + bt * (sc[6]! - sc[1]!));
+    return;
+  }
+  const ja = sc[4] === 1 ? Math.exp(y0) : sc[2]!;
+  const ga = sc[4] === 1 ? ja * sc[1]! : sc[3]!;
+  const jb = sc[9] === 1 ? Math.exp(y1) : sc[7]!;
+  const gb = sc[9] === 1 ? jb * sc[6]! : sc[8]!;
+  out.idw = ja + bt * (jb - ja);
+  out.gmw = ga + bt * (gb - ga);
+}
+
+/** J and gm/W of one VDS line (reused, so the lookup allocates nothing). */
+interface LineValues {
+  idw: number;
+  gmw: number;
+}
+const line: LineValues = { idw: 0, gmw: 0 };
+
+/** Values at one characterised length index for (VGS, VDS, VSB) already located in `at`. */
 function atLength(lk: DeviceLookup, li: number, out: PointValues): void {
   const nG = lk.nG, nD = lk.nD, nB = lk.nB;
-  let j = 0, gmw = 0;
-  const b1 = bi + (nB > 1 ? 1 : 0);
-  const d1 = di + (nD > 1 ? 1 : 0);
-  for (let e = 0; e < 2; e++) {
-    const kd = e === 0 ? di : d1;
-    const wd = e === 0 ? 1 - dt : dt;
-    if (wd === 0 && e === 1) continue;
-    alongVgs(lk, ((li * nB + bi) * nD + kd) * nG + gi, gt, 0);
-    alongVgs(lk, ((li * nB + b1) * nD + kd) * nG + gi, gt, 5);
-    const y0 = sc[0]!, y1 = sc[5]!;
-    let jd: number, gmd: number;
-    if (y0 > Number.NEGATIVE_INFINITY && y1 > Number.NEGATIVE_INFINITY) {
-      jd = Math.exp(y0 + bt * (y1 - y0));
-      gmd = jd * (sc[1]! + bt * (sc[6]! - sc[1]!));
-    } else {
-      let ja: number, ga: number, jb: number, gb: number;
-      if (sc[4] === 1) {
-        ja = Math.exp(y0);
-        ga = ja * sc[1]!;
-      } else {
-        ja = sc[2]!;
-        ga = sc[3]!;
-      }
-      if (sc[9] === 1) {
-        jb = Math.exp(y1);
-        gb = jb * sc[6]!;
-      } else {
-        jb = sc[7]!;
-        gb = sc[8]!;
-      }
-      jd = ja + bt * (jb - ja);
-      gmd = ga + bt * (gb - ga);
-    }
-    j += wd * jd;
-    gmw += wd * gmd;
+  const gi = at[0]!, gt = at[1]!, di = at[2]!, dt = at[3]!, bi = at[4]!, bt = at[5]!;
+  const bStep = nB > 1 ? nD * nG : 0;
+  const dStep = nD > 1 ? nG : 0;
+  const k00 = ((li * nB + bi) * nD + di) * nG + gi;
+  acrossVsb(lk, k00, bStep, gt, bt, line);
+  let j = line.idw, gmw = line.gmw;
+  if (dt > 0) {
+    acrossVsb(lk, k00 + dStep, bStep, gt, bt, line);
+    j += dt * (line.idw - j);
+    gmw += dt * (line.gmw - gmw);
   }
   out.idw = j;
   out.gmId = j > noCurrent ? gmw / j : 0;
-  // Trilinear for the rest, from the interleaved array.
+  // Trilinear for the rest, from the interleaved array: corners (VDS, VSB) at k00, +dStep, +bStep, +both, each a VGS pair.
   const r = lk.rest;
-  let gds = 0, gmb = 0, vth = 0, vds = 0, cgg = 0, cgs = 0, cgd = 0;
-  for (let eb = 0; eb < 2; eb++) {
-    const wb = eb === 0 ? 1 - bt : bt;
-    if (wb === 0) continue;
-    const kb = eb === 0 ? bi : b1;
-    for (let ed = 0; ed < 2; ed++) {
-      const wdd = ed === 0 ? 1 - dt : dt;
-      if (wdd === 0) continue;
-      const kd = ed === 0 ? di : d1;
-      const k = (((li * nB + kb) * nD + kd) * nG + gi) * stride;
-      const w0 = wb * wdd * (1 - gt), w1 = wb * wdd * gt;
-      gds += w0 * r[k]! + w1 * r[k + stride]!;
-      gmb += w0 * r[k + 1]! + w1 * r[k + stride + 1]!;
-      vth += w0 * r[k + 2]! + w1 * r[k + stride + 2]!;
-      vds += w0 * r[k + 3]! + w1 * r[k + stride + 3]!;
-      cgg += w0 * r[k + 4]! + w1 * r[k + stride + 4]!;
-      cgs += w0 * r[k + 5]! + w1 * r[k + stride + 5]!;
-      cgd += w0 * r[k + 6]! + w1 * r[k + stride + 6]!;
-    }
-  }
-  out.gdsw = gds;
-  out.gmbw = gmb;
-  out.vth = vth;
-  out.vdsat = vds;
-  out.cggw = cgg;
-  out.cgsw = cgs;
-  out.cgdw = cgd;
+  const w00 = (1 - dt) * (1 - bt), w10 = dt * (1 - bt), w01 = (1 - dt) * bt, w11 = dt * bt;
+  const a = k00 * stride, b = (k00 + dStep) * stride, c = (k00 + bStep) * stride, e = (k00 + dStep + bStep) * stride;
+  const u = 1 - gt;
+  const gs = lk.nG > 1 ? stride : 0;
+  // Per corner, the VGS pair's weights; unrolled over the seven figures.
+  const a0 = w00 * u, a1 = w00 * gt, b0 = w10 * u, b1 = w10 * gt, c0 = w01 * u, c1 = w01 * gt, e0 = w11 * u, e1 = w11 * gt;
+  const ag = a + gs, bg = b + gs, cg = c + gs, eg = e + gs;
+  out.gdsw = a0 * r[a]! + a1 * r[ag]! + b0 * r[b]! + b1 * r[bg]! + c0 * r[c]! + c1 * r[cg]! + e0 * r[e]! + e1 * r[eg]!;
+  out.gmbw = a0 * r[a + 1]! + a1 * r[ag + 1]! + b0 * r[b + 1]! + b1 * r[bg + 1]! + c0 * r[c + 1]! + c1 * r[cg + 1]! + e0 * r[e + 1]! + e1 * r[eg + 1]!;
+  out.vth = a0 * r[a + 2]! + a1 * r[ag + 2]! + b0 * r[b + 2]! + b1 * r[bg + 2]! + c0 * r[c + 2]! + c1 * r[cg + 2]! + e0 * r[e + 2]! + e1 * r[eg + 2]!;
+  out.vdsat = a0 * r[a + 3]! + a1 * r[ag + 3]! + b0 * r[b + 3]! + b1 * r[bg + 3]! + c0 * r[c + 3]! + c1 * r[cg + 3]! + e0 * r[e + 3]! + e1 * r[eg + 3]!;
+  out.cggw = a0 * r[a + 4]! + a1 * r[ag + 4]! + b0 * r[b + 4]! + b1 * r[bg + 4]! + c0 * r[c + 4]! + c1 * r[cg + 4]! + e0 * r[e + 4]! + e1 * r[eg + 4]!;
+  out.cgsw = a0 * r[a + 5]! + a1 * r[ag + 5]! + b0 * r[b + 5]! + b1 * r[bg + 5]! + c0 * r[c + 5]! + c1 * r[cg + 5]! + e0 * r[e + 5]! + e1 * r[eg + 5]!;
+  out.cgdw = a0 * r[a + 6]! + a1 * r[ag + 6]! + b0 * r[b + 6]! + b1 * r[bg + 6]! + c0 * r[c + 6]! + c1 * r[cg + 6]! + e0 * r[e + 6]! + e1 * r[eg + 6]!;
 }
 
 function locateAll(lk: DeviceLookup, vgs: number, vds: number, vsb: number): void {
   const g = lk.table.grid;
-  gi = locate(g.vgs, lk.g0, lk.gh, lk.nG, vgs, "VGS");
-  gt = cellT;
-  di = locate(g.vds, lk.d0, lk.dh, lk.nD, vds, "VDS");
-  dt = cellT;
-  bi = locate(g.vsb, lk.b0, lk.bh, lk.nB, vsb, "VSB");
-  bt = cellT;
+  locate(g.vgs, lk.g0, lk.gh, lk.nG, vgs, "VGS", 0);
+  locate(g.vds, lk.d0, lk.dh, lk.nD, vds, "VDS", 2);
+  locate(g.vsb, lk.b0, lk.bh, lk.nB, vsb, "VSB", 4);
 }
 
 /** Which characterised lengths bracket L, and where between them (in 1/L, the coordinate a binned model's parameters are linear in). */
