@@ -27,11 +27,12 @@ export const command = {
     out: { kind: "value", placeholder: "DIR", help: "write <process>-<device>-<section>.json and .csv here" },
     cache: { kind: "value", placeholder: "DIR", help: "cache folder (default $PINCHOFF_CACHE, $XDG_CACHE_HOME/pinchoff\nor ~/.cache/pinchoff)" },
     "no-cache": { kind: "flag", help: "neither read nor write the cache" },
-    jobs: { kind: "value", placeholder: "N", help: "decks run at once (default the number of cores)" },
+    jobs: { kind: "value", placeholder: "N", help: "decks per device, each with a share of the lengths\n(default the number of cores)" },
   },
   description: `Characterises the process's transistors with its model library in ngspice:
 each device is swept over |VGS|, |VDS| and |VSB| at every length at the
-reference width, one deck per length, decks in parallel. The table holds ID/W,
+reference width: one deck per core, each one ngspice run over a share of the
+lengths (an instance per length and VSB on shared sources). The table holds ID/W,
 gm/ID, gds/ID, gm/gds, threshold, VDsat, Cgg, Cgs and Cgd per width and fT, and
 is cached by a fingerprint of the library files, section, device, width,
 temperature and grid, so a second run with the same inputs reads the cache.
