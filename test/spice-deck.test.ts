@@ -6,7 +6,7 @@
  * ngspice 39 (Debian package) in batch mode; device values are invented.
  */
 import { existsSync, mkdtempSync, readdirSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { availableParallelism, tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { spiceDeck, stageCircuit } from "../lib/bias/analyze.js";
@@ -109,6 +109,18 @@ describe("ngspice runner", () => {
     expect(id).toBeCloseTo(7.79086e-5, 10);
     expect(String(id).replace(/^0\.0*|e.*$|\./g, "").length).toBeGreaterThan(8);
     expect(column(plot, "v(d)")[0]).toBe(1.5);
+  });
+
+  it("runs ngspice with one OpenMP thread, and queues calls beyond one process per core without losing any", async () => {
+    const echo = writeDeck({ title: "threads", lines: ["R1 a 0 1k"], control: ["echo threads=$num_threads", "quit 0"] });
+    expect(runDeckSync({ deck: echo }).log).toMatch(/threads=1\b/);
+    const n = 3 * availableParallelism() + 1;
+    const runs = await Promise.all(
+      Array.from({ length: n }, (_, k) =>
+        runDeck({ deck: writeDeck({ title: `queue ${k}`, lines: [element("V1", ["a", "0"], k + 1), element("R1", ["a", "0"], 1000)], control: ["set filetype=binary", "op", "write op.raw", "quit 0"] }), outputs: ["op.raw"] }),
+      ),
+    );
+    runs.forEach((r, k) => expect(column(r.raw["op.raw"]![0]!, "v(a)")[0]).toBe(k + 1));
   });
 
   it("names a missing library file, section and device", () => {
