@@ -319,7 +319,7 @@ export async function sizeByEfficiencyForProcess(process: ProcessDescription, po
   }
   opts.rec?.note(
     "Table at the device's own width",
-    `The reference table (W = ${ref.w} m, ${ref.fingerprint.slice(0, 12)}) gives W under ${narrow} m, where the current per width does not scale; the device is sized from a table characterised at W = ${table.w} m, L = ${d.l} m, |VDS| = ${d.vds} V, |VSB| = ${d.vsb} V (fingerprint ${table.fingerprint}).`,
+    `The reference table (W = ${ref.w} m, ${ref.fingerprint.slice(0, 12)}) gives W under ${narrow} m, where the current per width does not scale; the device is sized from a table characterised at W = ${table.w} m, L = ${d.l} m, |VDS| = ${d.vds} V, |VSB| = ${d.vsb} V (fingerprint ${table.fingerprint}), for I_D = ${d.id} A and gm/ID = ${d.gmId} S/A as the specification set them.`,
   );
   return opts.rec ? sizeByEfficiency(table, fixed, process, opts.rec) : d;
 }
@@ -331,10 +331,10 @@ export async function sizeByEfficiencyForProcess(process: ProcessDescription, po
  * carried within the supply by a sensible layout.
  */
 function multiplierFor(p: ProcessDescription, t: DeviceTable, w: number, maxMultiplier: number | undefined, at: { id: number; gmId: number; l: number; jd: number; vgs: number }): number {
-  const wMax = p.devices[t.polarity].w.max;
-  if (w <= wMax * (1 + 1e-9)) return 1;
   const mMax = maxMultiplier ?? 1000;
   if (!(Number.isInteger(mMax) && mMax >= 1)) throw new InputError(mMax, "a whole number of parallel devices ≥ 1", "maxMultiplier");
+  const wMax = p.devices[t.polarity].w.max;
+  if (w <= wMax * (1 + 1e-9)) return 1;
   const m = Math.ceil(w / wMax - 1e-9);
   if (m > mMax)
     throw new InfeasibleError(
