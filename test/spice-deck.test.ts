@@ -139,13 +139,21 @@ describe("ngspice runner", () => {
   });
 
   it("stops a run that exceeds its time limit and leaves no temporary folder", async () => {
-    const before = readdirSync(tmpdir()).filter((f) => f.startsWith("pinchoff-spice-")).length;
-    // A long transient with a tiny step: far beyond 300 ms.
-    const deck = writeDeck({ title: "slow", lines: ["V1 a 0 SIN(0 1 1e6)", "R1 a 0 1k"], control: ["tran 1e-12 1e-3", "quit 0"] });
-    await expect(runDeck({ deck, timeoutMs: 300 })).rejects.toThrow(/did not finish within 0.3 s/);
-    expect(() => runDeckSync({ deck, timeoutMs: 300 })).toThrow(/did not finish/);
-    const after = readdirSync(tmpdir()).filter((f) => f.startsWith("pinchoff-spice-")).length;
-    expect(after).toBeLessThanOrEqual(before);
+    // A private temporary root: other processes' runs in the shared /tmp cannot disturb the count.
+    const saved = process.env.TMPDIR;
+    const root = mkdtempSync(join(tmpdir(), "pinchoff-timeout-test-"));
+    process.env.TMPDIR = root;
+    try {
+      // A long transient with a tiny step: far beyond 300 ms.
+      const deck = writeDeck({ title: "slow", lines: ["V1 a 0 SIN(0 1 1e6)", "R1 a 0 1k"], control: ["tran 1e-12 1e-3", "quit 0"] });
+      await expect(runDeck({ deck, timeoutMs: 300 })).rejects.toThrow(/did not finish within 0.3 s/);
+      expect(() => runDeckSync({ deck, timeoutMs: 300 })).toThrow(/did not finish/);
+      expect(readdirSync(root)).toEqual([]);
+    } finally {
+      if (saved === undefined) delete process.env.TMPDIR;
+      else process.env.TMPDIR = saved;
+      rmSync(root, { recursive: true, force: true });
+    }
   });
 
   it("turns a failed operating point into a ConvergenceError with the log", () => {
