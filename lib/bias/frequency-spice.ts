@@ -43,12 +43,17 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   const gateIn = `${p}gin`;
   const rsig = fa.source.resistance;
   const cap = (role: "input" | "output" | "bypass") => fa.low?.capacitors.find((c) => c.role === role)?.value;
-  if (fa.view === "differential-pair") {
+  if (fa.view === "differential-pair" || fa.view === "two-stage") {
     // Differential drive: 1 V between the inputs, half on each in opposite phase; the response is v(out).
     const nn = dc.nodes as Record<string, string>;
     const devs = stage.devices as Record<string, Stage["device"]> | undefined;
-    if (!stage.device.card.capacitance || !devs?.load?.card.capacitance)
-      throw new InputError(stage.device.card.name, "Level 1 capacitance blocks on the pair and load cards for the AC export (datasheet capacitances are not placed in a pair's deck)", `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    const roles = fa.view === "two-stage" ? (["load", "second", "sink"] as const) : (["load"] as const);
+    if (!stage.device.card.capacitance || roles.some((r) => !devs?.[r]?.card.capacitance))
+      throw new InputError(stage.device.card.name, `Level 1 capacitance blocks on the pair and ${roles.join(", ")} cards for the AC export (datasheet capacitances are not placed in a pair's deck)`, `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    const t = fa.twoStage;
+    // The Miller capacitor from the first stage's output o1 to the output, behind its nulling resistor.
+    if (t && t.rz > 0) lines.push(`R${p}Z ${nn.o1} ${p}cz ${spiceNumber(t.rz)}`, `C${p}C ${p}cz ${nn.out} ${spiceNumber(t.cc)}`);
+    else if (t) lines.push(`C${p}C ${nn.o1} ${nn.out} ${spiceNumber(t.cc)}`);
     for (const [node, ac] of [[nn.in1!, "AC 0.5"], [nn.in2!, "AC 0.5 180"]] as const) {
       const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === node && l.split(" ")[2] === "0");
       if (i < 0) throw new Error(`internal: no input source at node ${node}`);

@@ -24,7 +24,6 @@ import { ConvergenceError, InputError } from "../../errors.js";
 import * as pf from "../../formulas/pair.formulas.js";
 import * as tf from "../../formulas/two-stage.formulas.js";
 import type { Amperes, Farads, Ohms, Ratio, Volts, VoltsPerSecond, Watts } from "../../quantity.js";
-import type { Derivation } from "../../record/derivation.js";
 import type { NetMosfet, Netlist } from "../circuit.js";
 import type { AmplifierMetrics, ComponentField, Stage, StageAnalysis, StageCheck } from "../topology.js";
 import { mirrorLoadPairSpec, type MirrorLoadPairComponents } from "./diff-pair.js";
