@@ -156,7 +156,7 @@ function model(n: Nodes, cc: number, rz: number): Model {
     gbw: ff.gainBandwidth.fn(n.gm1 as never, cce as never),
     fp2: tf.millerSecondPole.fn(n.gm6 as never, cce as never, n.c1 as never, n.c2 as never),
     fzc: tf.millerZero.fn(cce as never, n.gm6 as never, rz as never),
-    fp4: rz > 0 ? tf.nullingPole.fn(rz as never, n.c1 as never) : Infinity,
+    fp4: rz > 0 ? tf.nullingPole.fn(n.c1 as never, (cc + n.cgd6) as never, rz as never) : Infinity,
     fm: n.fm,
     fmz: n.fmz,
   };
@@ -268,7 +268,7 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
   const gbw = evaluateFormula(ff.gainBandwidth, { gm1, CO: cce }, rec, "the first stage's current charges the Miller capacitor: Cc' takes the place of the output capacitance");
   const fp2 = evaluateFormula(tf.millerSecondPole, { gm6, CcE: cce, C1: c1, C2: c2 }, rec);
   const fzc = evaluateFormula(tf.millerZero, { CcE: cce, gm6, Rz: rz }, rec, rz === 0 ? "no nulling resistor: the zero gm6/Cc' lies in the right half plane" : undefined);
-  const fp4 = rz > 0 ? evaluateFormula(tf.nullingPole, { Rz: rz, C1: c1 }, rec) : Infinity;
+  const fp4 = rz > 0 ? evaluateFormula(tf.nullingPole, { C1: c1, CcE: cce, Rz: rz }, rec) : Infinity;
   const mod: Model = { a0, fp1, gbw, fp2, fzc, fp4, fm, fmz };
   const fu = unityGainOf(mod);
   const checks: StageCheck[] = [];

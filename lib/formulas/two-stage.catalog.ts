@@ -101,7 +101,7 @@ export const formulas = defineFormulas({
   millerDominantPole: { title: "Dominant pole: node 1 loaded by the Miller-multiplied Cc", result: "fp1", expr: "1 / (2 * pi * gm6 * R1 * R2 * CcE)", source: poleSplit },
   millerSecondPole: { title: "Second pole after pole splitting (with the loading of Cc)", result: "fp2", expr: "gm6 * CcE / (2 * pi * (C1 * C2 + CcE * (C1 + C2)))", source: poleSplit },
   millerZero: { title: "Zero of the Miller branch: gm6/Cc in the right half plane, moved by the nulling resistor", result: "fzc", expr: "1 / (2 * pi * CcE * (1 / gm6 - Rz))", source: nulling },
-  nullingPole: { title: "Pole of the nulling resistor with the capacitance at node 1", result: "fp4", expr: "1 / (2 * pi * Rz * C1)", source: nulling },
+  nullingPole: { title: "Pole of the nulling resistor with node 1's capacitance in series with the Miller branch (the output held by C2)", result: "fp4", expr: "(C1 + CcE) / (2 * pi * Rz * C1 * CcE)", source: nulling },
   millerPhaseMargin: {
     title: "Phase margin at the unity-gain frequency: dominant, second, mirror and nulling poles, the mirror zero and the Miller zero",
     result: "PM",

@@ -199,18 +199,18 @@ export const millerZero = {
   fn: (CcE: Farads, gm6: Siemens, Rz: Ohms): Hertz => (1 / ((((2 * Math.PI) * CcE) * (((1 / gm6) - Rz))))) as Hertz,
 } as const satisfies Formula;
 
-/** Pole of the nulling resistor with the capacitance at node 1: fp4 = 1 / (2 * pi * Rz * C1) */
+/** Pole of the nulling resistor with node 1's capacitance in series with the Miller branch (the output held by C2): fp4 = (C1 + CcE) / (2 * pi * Rz * C1 * CcE) */
 export const nullingPole = {
   id: "nullingPole",
-  title: "Pole of the nulling resistor with the capacitance at node 1",
-  expr: "1 / (2 * pi * Rz * C1)",
-  tex: "f_{p4} = \\frac{1}{2\\cdot\\pi\\cdot{R_{z}}\\cdot{C_{1}}}",
+  title: "Pole of the nulling resistor with node 1's capacitance in series with the Miller branch (the output held by C2)",
+  expr: "(C1 + CcE) / (2 * pi * Rz * C1 * CcE)",
+  tex: "f_{p4} = \\frac{{C_{1}}+{C_{c}'}}{2\\cdot\\pi\\cdot{R_{z}}\\cdot{C_{1}}\\cdot{C_{c}'}}",
   result: "fp4",
   resultDim: "frequency",
-  vars: ["Rz","C1"],
-  dims: ["resistance","capacitance"],
+  vars: ["C1","CcE","Rz"],
+  dims: ["capacitance","capacitance","resistance"],
   source: "nulling resistor in series with the Miller capacitor (common practice; Allen & Holberg, CMOS Analog Circuit Design, 2nd ed., §6.2, from memory)",
-  fn: (Rz: Ohms, C1: Farads): Hertz => (1 / ((((2 * Math.PI) * Rz) * C1))) as Hertz,
+  fn: (C1: Farads, CcE: Farads, Rz: Ohms): Hertz => (((C1 + CcE)) / (((((2 * Math.PI) * Rz) * C1) * CcE))) as Hertz,
 } as const satisfies Formula;
 
 /** Phase margin at the unity-gain frequency: dominant, second, mirror and nulling poles, the mirror zero and the Miller zero: PM = 180 - (atan(fu / fp1) + atan(fu / fp2) + atan(fu / fm) - atan(fu / fmz) + atan(fu / fzc) + atan(fu / fp4)) * 180 / pi */
