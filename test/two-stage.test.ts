@@ -21,6 +21,7 @@ import * as pf from "../lib/formulas/pair.formulas.js";
 import * as tf from "../lib/formulas/two-stage.formulas.js";
 import { main as op } from "../lib/cli/op.js";
 import { bodePlot } from "../lib/plot/bode.js";
+import { pairTransferPlot } from "../lib/plot/pair.js";
 import { amperes, amperesPerVoltSquared, farads, meters, ohms, perVolt, siemens, voltMeters, volts } from "../lib/quantity.js";
 import { Derivation } from "../lib/record/derivation.js";
 import { captureCli } from "./support/cli.js";
@@ -133,6 +134,19 @@ describe("two-stage-miller analysis", () => {
     expect(c.analysis.nodes.out!).toBeCloseTo(0.5, 3);
     expect(Math.abs(c.vid)).toBeLessThan(1e-3);
     expect(() => inputForOutput(example(), 3)).toThrow(InputError);
+  });
+
+  it("the DC transfer plot sweeps about the centring input: the output crosses its range, the first stage's output moves gently", () => {
+    const st = example();
+    const c = inputForOutput(st);
+    const centred = { ...st, components: { ...st.components, vid: c.vid } };
+    const plot = pairTransferPlot(centred, c.analysis, { points: 41 });
+    const out = plot.figure.data.find((d) => d.meta?.role === "curve" && d.meta.node === "out")!.y as number[];
+    const o1 = plot.figure.data.find((d) => d.meta?.role === "curve" && d.meta.node === "o1")!.y as number[];
+    const scale = plot.axes.y.divisor;
+    expect(out[0]! * scale).toBeGreaterThan(2);
+    expect(out[out.length - 1]! * scale).toBeLessThan(-2);
+    expect(Math.abs(o1[0]! - o1[o1.length - 1]!) * scale).toBeLessThan(0.5);
   });
 
   it("bad input: typed errors naming the value and where it came from", () => {
