@@ -22,7 +22,7 @@ import { inputForOutput, type TwoStageAnalysis, type TwoStageStage } from "../li
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { amperes, farads, meters, volts } from "../lib/quantity.js";
 import { mulberry32 } from "../lib/random.js";
-import { runAc } from "./support/ac.js";
+import { fallsThrough, runAc } from "./support/ac.js";
 
 const rand = mulberry32(20261211);
 const span = (lo: number, hi: number) => lo + rand() * (hi - lo);
@@ -99,16 +99,6 @@ for (let i = 0; cases.length < 100 && i < 5000; i++) {
 }
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
-
-/** First frequency where the magnitude falls through `level` (log interpolation). */
-function fallsThrough(freq: readonly number[], mag: readonly number[], level: number): number | undefined {
-  for (let j = 1; j < freq.length; j++)
-    if (mag[j - 1]! >= level && mag[j]! < level) {
-      const t = Math.log(mag[j - 1]! / level) / Math.log(mag[j - 1]! / mag[j]!);
-      return Math.exp(Math.log(freq[j - 1]!) + t * Math.log(freq[j]! / freq[j - 1]!));
-    }
-  return undefined;
-}
 
 describe("two-stage Miller amplifier against ngspice 39 Level 1 .ac", () => {
   it("unity-gain frequency within 10 % and phase margin within 3° on seeded random amplifiers where the conditions hold", () => {

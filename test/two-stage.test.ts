@@ -13,6 +13,7 @@ import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { analyzeFrequency } from "../lib/bias/frequency.js";
+import { simulateFrequency } from "../lib/bias/frequency-sim.js";
 import { mismatchMonteCarlo, pairOffset } from "../lib/bias/mismatch.js";
 import { inputForOutput, type TwoStageAnalysis, type TwoStageStage } from "../lib/bias/topologies/two-stage.js";
 import type { DeviceCard } from "../lib/device/card.js";
@@ -188,7 +189,7 @@ describe("two-stage-miller analysis", () => {
     expect(() => analyzeFrequency(centred, c.analysis, { compensation: { rz: ohms(1e3), nulling: "cancel-zero" } })).toThrow(/not both/);
   });
 
-  it("the Bode plot draws the hand response from the DC gain, and marks the second pole", () => {
+  it("the Bode plot draws the hand response from the DC gain, marks the second pole and overlays ngspice", () => {
     const st = example();
     const c = inputForOutput(st);
     const fa = analyzeFrequency({ ...st, components: { ...st.components, vid: c.vid } }, c.analysis, {});
@@ -196,7 +197,12 @@ describe("two-stage-miller analysis", () => {
     const mag = plot.figure.data.find((d) => d.meta?.role === "magnitude")!;
     expect(10 ** ((mag.y as number[])[0]! / 20)).toBeCloseTo(Math.abs(c.analysis.twoStage.gain), -1);
     expect(plot.figure.data.some((d) => String(d.name).startsWith("f<sub>p2</sub>"))).toBe(true);
-  });
+    // The overlay: ngspice 39 Level 1 .ac on the exported deck, its DC gain the nodal one.
+    const sim = simulateFrequency({ ...st, components: { ...st.components, vid: c.vid } }, c.analysis, fa, { pointsPerDecade: 20, start: 1e-2, stop: 1e9 });
+    const withSim = bodePlot(fa, { from: 1e-2, to: 1e9, simulated: sim });
+    expect(withSim.figure.data.filter((d) => d.meta?.source === sim.source)).toHaveLength(2);
+    expect(sim.magnitude[0]! / Math.abs(c.analysis.twoStage.gain)).toBeCloseTo(1, 3);
+  }, 30_000);
 });
 
 describe("mismatch of the two-stage amplifier (Pelgrom; invented AVt on the example's cards)", () => {
