@@ -164,7 +164,7 @@ function model(n: Nodes, cc: number, rz: number): Model {
 
 function phaseMarginOf(m: Model): number | undefined {
   const fu = unityGainOf(m);
-  return fu === undefined ? undefined : 180 - factors(m, fu).lag;
+  return fu === undefined ? undefined : tf.millerPhaseMargin.fn(fu as never, m.fp1 as never, m.fp2 as never, m.fm as never, m.fmz as never, m.fzc as never, m.fp4 as never);
 }
 
 /** Cc for a target phase margin by bisection in log Cc on the hand model; InfeasibleError when no Cc reaches it. */
@@ -257,7 +257,7 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
     cc = designCc(nodes, rule, rzGiven, target, o);
     rec?.note(
       "Miller capacitor for the target phase margin",
-      `Cc = ${fmt(cc)} F gives ${target}° on the hand model below (bisection in Cc: the margin grows with Cc as GBW falls and the second pole rises); the rule of thumb 0.22·CL gives ${fmt(ccRule)} F for about 60° when the zero is ≥ 10·GBW.`,
+      `Cc = ${fmt(cc * 1e12)} pF gives ${fmt(target)}° on the hand model below (bisection in Cc: the margin grows with Cc as GBW falls and the second pole rises); the rule of thumb 0.22·CL gives ${fmt(ccRule * 1e12)} pF for about 60° when the zero is ≥ 10·GBW.`,
     );
   } else if (!(cc > 0)) throw new InputError(cc, "a Miller capacitor Cc > 0 F", `${o}: frequency.compensation.cc`);
   const cce = evaluateFormula(tf.millerBranchCapacitance, { Cc: cc, Cgd6: c6d.cgd }, rec);
@@ -282,10 +282,10 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
   const holds = fp2 / gbw >= k.secondPoleOverGbw && fm / gbw >= k.mirrorPoleOverGbw && fp2 / fp1 >= k.poleSeparation;
   let pm: number | undefined;
   if (fu !== undefined) {
-    rec?.note("Unity-gain frequency", `|H(fu)| = 1 at fu = ${fmt(fu)} Hz (bisection on the hand transfer function from the DC gain ${fmt(a0)}; GBW = ${fmt(gbw)} Hz).`);
+    rec?.note("Unity-gain frequency", `|H(fu)| = 1 at fu = ${fmt(fu / 1e6)} MHz (bisection on the hand transfer function from the DC gain ${fmt(a0)}; GBW = ${fmt(gbw / 1e6)} MHz).`);
     pm = evaluateFormula(tf.millerPhaseMargin, { fu, fp1, fp2, fm, fmz, fzc, fp4 }, rec);
     const want = comp.targetPhaseMargin ?? 60;
-    checks.push(stageCheck(`Phase margin in unity-gain feedback ≥ ${fmt(want)}°`, pm, "dimensionless", { min: want - 1e-6 }, rec, comp.targetPhaseMargin !== undefined ? "the target" : "common practice for a settled step response"));
+    checks.push(stageCheck(`Phase margin in unity-gain feedback ≥ ${fmt(want)}°`, pm, "dimensionless", { min: want }, rec, comp.targetPhaseMargin !== undefined ? "the target" : "common practice for a settled step response"));
     if (pm < want) findings.push(`The phase margin in unity-gain feedback is ${fmt(pm)}° (< ${fmt(want)}°): enlarge Cc (about ${fmt(ccRule)} F is the rule of thumb for 60°), add a nulling resistor, or raise gm6.`);
   } else findings.push("The open-loop gain is below 1: there is no unity-gain frequency.");
   if (!holds) findings.push("The two-stage analysis's conditions do not all hold (see the checks): the phase margin is a rough estimate.");
