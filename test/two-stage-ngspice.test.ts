@@ -8,10 +8,12 @@
  * `inputForOutput`; Cc given, or designed for a target phase margin, with
  * Rz = 0, Rz = 1/gm6, or Rz placing the zero on the second pole.
  *
- * Asserted where the analysis's own conditions hold (fp2 ≥ 2·GBW, fm ≥
- * 10·GBW, fp2 ≥ 10·fp1, as the record checks): the DC gain within 2 %, the
- * unity-gain frequency within 10 % and the phase margin within 3°; a designed
- * Cc meets its target phase margin in ngspice within 3°.
+ * Asserted: the DC gain within 2 % everywhere; where the analysis's own
+ * conditions hold (fp2 ≥ 2·GBW, fm ≥ 10·GBW, fp2 ≥ 10·fp1, as the record
+ * checks) the unity-gain frequency within 10 % and the phase margin within 3°,
+ * and a designed Cc meets its target phase margin in ngspice within 3°; where
+ * they do not, the looser 10 % and 5° (the hand model is still close, but
+ * nothing states how close).
  */
 import { describe, expect, it } from "vitest";
 import "../lib/bias/analyze.js";
@@ -113,39 +115,42 @@ describe("two-stage Miller amplifier against ngspice 39 Level 1 .ac", () => {
     const sweep = { pointsPerDecade: 100, start: 1e-2, stop: 1e11 };
     const mag = runAc(lines.join("\n"), outs, sweep);
     const ph = runAc(lines.join("\n"), outs, sweep, "vp");
-    const stats = { amplifiers: cases.length, compared: 0, flagged: 0, designed: 0, worstGain: 0, worstFu: 0, worstPm: 0, worstTarget: 0, pmMin: 180, pmMax: 0 };
+    const stats = { amplifiers: cases.length, compared: 0, flagged: 0, designed: 0, worstGain: 0, worstFu: 0, worstPm: 0, worstTarget: 0, pmMin: 180, pmMax: 0, flaggedWorstFu: 0, flaggedWorstPm: 0 };
     const fails: string[] = [];
+    const wrap = (x: number) => Math.atan2(Math.sin(x), Math.cos(x));
+    /** ngspice's phase margin at its own unity-gain frequency: the lag from DC, unwrapped (the sweep starts where the phase has already left the DC gain's 0 or 180°). */
+    const simulatedMargin = (k: Case, i: number, fu: number) => {
+      const p = ph.mag[i]!;
+      let lag = wrap((k.fa.midbandGain < 0 ? Math.PI : 0) - p[0]!);
+      for (let j = 1; j < mag.freq.length && mag.freq[j]! <= fu; j++) lag -= wrap(p[j]! - p[j - 1]!);
+      return 180 - (lag * 180) / Math.PI;
+    };
     cases.forEach((k, i) => {
       const t = k.fa.twoStage!;
       const m = mag.mag[i]!;
       const eg = rel(m[0]!, t.dcGain);
       stats.worstGain = Math.max(stats.worstGain, eg);
       if (!(eg <= 0.02)) fails.push(`${k.id}: DC gain ${t.dcGain} vs ngspice ${m[0]}`);
-      if (!t.conditionsHold || t.unityGain === undefined) {
+      if (t.unityGain === undefined) return;
+      const fu = fallsThrough(mag.freq, m, 1)!;
+      const eu = rel(t.unityGain, fu);
+      const pmSim = simulatedMargin(k, i, fu);
+      const dp = Math.abs(t.phaseMargin! - pmSim);
+      if (!t.conditionsHold) {
+        // Outside the stated conditions the estimates are reported, and held to a looser 10 % and 5°.
         stats.flagged++;
+        stats.flaggedWorstFu = Math.max(stats.flaggedWorstFu, eu);
+        stats.flaggedWorstPm = Math.max(stats.flaggedWorstPm, dp);
+        if (!(eu <= 0.1 && dp <= 5)) fails.push(`${k.id} (conditions not holding): unity gain ${t.unityGain} vs ${fu}, phase margin ${t.phaseMargin} vs ${pmSim}`);
         return;
       }
       stats.compared++;
-      const fu = fallsThrough(mag.freq, m, 1)!;
-      const eu = rel(t.unityGain, fu);
       stats.worstFu = Math.max(stats.worstFu, eu);
       if (!(eu <= 0.1)) fails.push(`${k.id}: unity gain ${t.unityGain} vs ngspice ${fu}`);
-      // Phase lag from DC to fu, unwrapped; the sweep starts where the phase has already left the DC gain's (0 or 180°).
-      const p = ph.mag[i]!;
-      const wrap = (x: number) => Math.atan2(Math.sin(x), Math.cos(x));
-      let lag = wrap((k.fa.midbandGain < 0 ? Math.PI : 0) - p[0]!);
-      for (let j = 1; j < mag.freq.length && mag.freq[j]! <= fu; j++) {
-        let d = p[j]! - p[j - 1]!;
-        if (d > Math.PI) d -= 2 * Math.PI;
-        if (d < -Math.PI) d += 2 * Math.PI;
-        lag -= d;
-      }
-      const pmSim = 180 - (lag * 180) / Math.PI;
       stats.pmMin = Math.min(stats.pmMin, pmSim);
       stats.pmMax = Math.max(stats.pmMax, pmSim);
-      const dp = Math.abs(t.phaseMargin! - pmSim);
       stats.worstPm = Math.max(stats.worstPm, dp);
-      if (!(dp <= 3)) fails.push(`${k.id}: phase margin ${t.phaseMargin} vs ngspice ${pmSim} ${JSON.stringify({ fu, t: { ...t } })}`);
+      if (!(dp <= 3)) fails.push(`${k.id}: phase margin ${t.phaseMargin} vs ngspice ${pmSim}`);
       if (k.target !== undefined) {
         stats.designed++;
         const dt = Math.abs(pmSim - k.target);
