@@ -18,7 +18,6 @@
  * input that puts the output where a feedback loop would hold it (the
  * systematic offset, by bisection on the solved circuit).
  */
-import type { Device } from "../../device/card.js";
 import { evaluateFormula } from "../../device/capacitance.js";
 import { ConvergenceError, InputError } from "../../errors.js";
 import * as pf from "../../formulas/pair.formulas.js";
@@ -83,7 +82,7 @@ const fields: ComponentField[] = [
   { name: "cload", dim: "capacitance", required: false, meaning: "load capacitance at the output, for the slew rate" },
 ];
 
-const aspect = (d: Device) => d.w / d.l;
+const aspect = (d: { readonly w: number; readonly l: number }) => d.w / d.l;
 
 export const twoStageSpec: CircuitTopologySpec<"two-stage-miller", TwoStageComponents, { twoStage: TwoStageFigures }> = {
   id: "two-stage-miller",
@@ -174,7 +173,9 @@ export const twoStageSpec: CircuitTopologySpec<"two-stage-miller", TwoStageCompo
       stageCheck("Output below its highest value with M6 saturated (device polarity)", omax - vout, "voltage", { min: m }, rec),
       stageCheck("Output above its lowest value with M7 saturated (device polarity)", vout - omin, "voltage", { min: m }, rec),
     );
-    const kBal = evaluateFormula(tf.systematicBalance, { S6: aspect(s.stage.devices!.second! as Device), S5: aspect(s.stage.devices!.tail! as Device), S4: aspect(s.stage.devices!.load! as Device), S7: aspect(s.stage.devices!.sink! as Device) }, rec);
+    const roles = s.stage.devices!;
+    const [s4, s5, s6, s7] = [aspect(roles.load!), aspect(roles.tail!), aspect(roles.second!), aspect(roles.sink!)];
+    const kBal = evaluateFormula(tf.systematicBalance, { S6: s6, S5: s5, S4: s4, S7: s7 }, rec);
     checks.push(stageCheck("Systematic balance (W/L)6/(W/L)4 = 2·(W/L)7/(W/L)5, as a ratio", kBal, "dimensionless", { min: 1 - balanceTolerance, max: 1 + balanceTolerance }, rec, "no systematic offset when 1"));
     let sr: number | undefined;
     if (c.cc !== undefined) {
@@ -196,7 +197,7 @@ export const twoStageSpec: CircuitTopologySpec<"two-stage-miller", TwoStageCompo
     const findings: string[] = [];
     if (Math.abs(kBal - 1) > balanceTolerance)
       findings.push(
-        `Systematic offset: (W/L)6/(W/L)4 = ${fmt(aspect(s.stage.devices!.second! as Device) / aspect(s.stage.devices!.load! as Device))} but 2·(W/L)7/(W/L)5 = ${fmt((2 * aspect(s.stage.devices!.sink! as Device)) / aspect(s.stage.devices!.tail! as Device))} (ratio ${fmt(kBal)}): M6's current at VGS6 = VGS4 differs from what M7 sinks, so the output rails without an input offset. Size M6 or M7 so the ratio is 1.`,
+        `Systematic offset: (W/L)6/(W/L)4 = ${fmt(s6 / s4)} but 2·(W/L)7/(W/L)5 = ${fmt((2 * s7) / s5)} (ratio ${fmt(kBal)}): M6's current at VGS6 = VGS4 differs from what M7 sinks, so the output rails without an input offset. Size M6 or M7 so the ratio is 1.`,
       );
     for (const n of ["M1", "M2", "M3", "M4", "M5", "M6", "M7", "M8"] as const)
       if (d[n]!.region !== "saturation") findings.push(`${n} is in ${d[n]!.region}: the small-signal figures hold only at this point.`);
