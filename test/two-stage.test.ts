@@ -11,7 +11,8 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
-import { analyzeStage } from "../lib/bias/analyze.js";
+import { analyzeStage, stageCircuit } from "../lib/bias/analyze.js";
+import { acCircuit } from "../lib/bias/frequency-spice.js";
 import { analyzeFrequency } from "../lib/bias/frequency.js";
 import { simulateFrequency } from "../lib/bias/frequency-sim.js";
 import { mismatchMonteCarlo, pairOffset } from "../lib/bias/mismatch.js";
@@ -128,6 +129,22 @@ describe("two-stage-miller analysis", () => {
     expect(a.findings.find((f) => f.startsWith("Systematic offset"))).toMatch(/ratio 0\.50/);
     expect(a.metrics.checks.find((c) => c.name.startsWith("Systematic balance"))!.passed).toBe(false);
     expect(a.devices!.M7!.region).toBe("triode");
+  });
+
+  it("the deck carries Cc (behind Rz) and CL from the components; the AC deck carries the ones the analysis used, once", () => {
+    const st = example({ rz: ohms(1e3) });
+    const dc = stageCircuit(st, "a_").lines;
+    expect(dc).toEqual(expect.arrayContaining(["Ra_Z a_o1 a_cz 1000", "Ca_C a_cz a_out 3e-12", "Ca_L a_out 0 1e-11"]));
+    const c = inputForOutput(st);
+    const centred = { ...st, components: { ...st.components, vid: c.vid, cc: undefined, rz: undefined } };
+    const fa = analyzeFrequency(centred, c.analysis, { compensation: { targetPhaseMargin: 60 } });
+    const ac = acCircuit(centred as never, c.analysis, fa, "a_").lines;
+    const cc = ac.filter((l) => /^Ca_C /.test(l));
+    expect(cc).toHaveLength(1);
+    expect(cc[0]).toMatch(/^Ca_C a_o1 a_out /);
+    expect(Number(cc[0]!.split(" ")[3]) / fa.twoStage!.cc).toBeCloseTo(1, 9);
+    expect(ac.filter((l) => /^Ra_Z /.test(l))).toEqual([]);
+    expect(ac.filter((l) => /^Ca_L /.test(l))).toHaveLength(1);
   });
 
   it("inputForOutput finds the input that centres the open-loop output", () => {

@@ -10,6 +10,7 @@ import { InputError } from "../errors.js";
 import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
 import { spiceNumber } from "./spice.js";
 import { writeDeck } from "../spice/deck.js";
+import { compensationLines } from "./topologies/two-stage.js";
 import type { FrequencyAnalysis } from "./frequency.js";
 
 export interface AcSweep {
@@ -51,9 +52,12 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     if (!stage.device.card.capacitance || roles.some((r) => !devs?.[r]?.card.capacitance))
       throw new InputError(stage.device.card.name, `Level 1 capacitance blocks on the pair and ${roles.join(", ")} cards for the AC export (datasheet capacitances are not placed in a pair's deck)`, `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
     const t = fa.twoStage;
-    // The Miller capacitor from the first stage's output o1 to the output, behind its nulling resistor.
-    if (t && t.rz > 0) lines.push(`R${p}Z ${nn.o1} ${p}cz ${spiceNumber(t.rz)}`, `C${p}C ${p}cz ${nn.out} ${spiceNumber(t.cc)}`);
-    else if (t) lines.push(`C${p}C ${nn.o1} ${nn.out} ${spiceNumber(t.cc)}`);
+    if (t) {
+      // The compensation the analysis used (given or designed) replaces the one the DC deck carries from the components.
+      const ours = [`C${p}C `, `R${p}Z `, `C${p}L `];
+      for (let i = lines.length - 1; i >= 0; i--) if (ours.some((x) => lines[i]!.startsWith(x))) lines.splice(i, 1);
+      lines.push(...compensationLines({ cc: t.cc, rz: t.rz }, nn, p));
+    }
     for (const [node, ac] of [[nn.in1!, "AC 0.5"], [nn.in2!, "AC 0.5 180"]] as const) {
       const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === node && l.split(" ")[2] === "0");
       if (i < 0) throw new Error(`internal: no input source at node ${node}`);

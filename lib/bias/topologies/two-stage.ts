@@ -28,6 +28,7 @@ import type { AmplifierMetrics, ComponentField, Stage, StageAnalysis, StageCheck
 import { mirrorLoadPairSpec, type MirrorLoadPairComponents } from "./diff-pair.js";
 import { circuitTopology, requireWithinRails, type CircuitBuild, type CircuitTopologySpec, type Solved } from "./multi-transistor.js";
 import { fmt, stageCheck, swingInVolts } from "./two-transistor.js";
+import { spiceNumber } from "../spice.js";
 
 export interface TwoStageComponents {
   /** Reference current into the diode-connected M8. */
@@ -231,7 +232,28 @@ export const twoStageSpec: CircuitTopologySpec<"two-stage-miller", TwoStageCompo
   },
 };
 
-export const twoStageMiller = circuitTopology(twoStageSpec);
+/** The lines of the compensation network and load the components give: Cc (behind Rz) from o1 to out, CL at out. */
+export function compensationLines(c: { readonly cc?: number; readonly rz?: number; readonly cload?: number }, nodes: Readonly<Record<string, string>>, prefix = ""): string[] {
+  const lines: string[] = [];
+  const p = prefix;
+  if (c.cc !== undefined) {
+    if (c.rz !== undefined && c.rz > 0) lines.push(`R${p}Z ${nodes.o1} ${p}cz ${spiceNumber(c.rz)}`, `C${p}C ${p}cz ${nodes.out} ${spiceNumber(c.cc)}`);
+    else lines.push(`C${p}C ${nodes.o1} ${nodes.out} ${spiceNumber(c.cc)}`);
+  }
+  if (c.cload !== undefined) lines.push(`C${p}L ${nodes.out} 0 ${spiceNumber(c.cload)}`);
+  return lines;
+}
+
+const circuit = circuitTopology(twoStageSpec);
+
+/** The topology; its deck carries the compensation network and load when the components give them (no DC current flows in them). */
+export const twoStageMiller: typeof circuit = {
+  ...circuit,
+  spice(stage, prefix = "") {
+    const dc = circuit.spice(stage, prefix);
+    return { ...dc, lines: [...dc.lines, ...compensationLines(stage.components, dc.nodes, prefix)] };
+  },
+};
 
 export type TwoStageStage = Stage<"two-stage-miller", TwoStageComponents>;
 export type TwoStageAnalysis = StageAnalysis & { readonly twoStage: TwoStageFigures };
