@@ -200,8 +200,7 @@ export const twoStageSpec: CircuitTopologySpec<"two-stage-miller", TwoStageCompo
       findings.push(
         `Systematic offset: (W/L)6/(W/L)4 = ${fmt(s6 / s4)} but 2·(W/L)7/(W/L)5 = ${fmt((2 * s7) / s5)} (ratio ${fmt(kBal)}): M6's current at VGS6 = VGS4 differs from what M7 sinks, so the output rails without an input offset. Size M6 or M7 so the ratio is 1.`,
       );
-    for (const n of ["M1", "M2", "M3", "M4", "M5", "M6", "M7", "M8"] as const)
-      if (d[n]!.region !== "saturation") findings.push(`${n} is in ${d[n]!.region}: the small-signal figures hold only at this point.`);
+    // Each device out of saturation is already a finding of the common path; the tail's meaning is said here.
     if (m5.region !== "saturation") findings.push(`The tail M5 cannot supply the pair (${m5.region}): the common source sits too close to its rail; raise the common mode or lower M5's overdrive.`);
     findings.push("The open-loop output of a two-stage amplifier moves with any offset: in use a feedback loop holds it (inputForOutput finds the input that centres it).");
     return {
