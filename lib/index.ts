@@ -101,3 +101,7 @@ export * from "./bias/frequency.js";
 export { acCircuit, acDeckText, defaultSweep, type AcCircuit, type AcSweep } from "./bias/frequency-spice.js";
 export * as capacitanceFormulas from "./formulas/capacitance.formulas.js";
 export * as frequencyFormulas from "./formulas/frequency.formulas.js";
+// Two-stage Miller-compensated amplifier: topology, frequency response and compensation design.
+export { twoStageMiller, twoStageSpec, inputForOutput, balanceTolerance, type TwoStageComponents, type TwoStageFigures, type TwoStageStage, type TwoStageAnalysis } from "./bias/topologies/two-stage.js";
+export { analyzeTwoStageFrequency, checkCompensation, twoStageConditions, twoStageResponse, type CompensationSpec, type NullingRule, type TwoStageFrequency } from "./bias/frequency-two-stage.js";
+export * as twoStageFormulas from "./formulas/two-stage.formulas.js";

@@ -261,7 +261,7 @@ describe("public API (issue 7 item 22)", () => {
   it("the package entry exports every built-in topology and the mirror's and diode load's own analyses", async () => {
     const api = await import("../lib/index.js");
     expect(Object.values(api.builtinTopologies).map((t) => t.id).sort()).toEqual([...api.topologyIds()].sort());
-    expect(Object.keys(api.builtinTopologies)).toHaveLength(11); // seven single- and two-transistor stages, two pairs, two cascodes
+    expect(Object.keys(api.builtinTopologies)).toHaveLength(12); // seven single- and two-transistor stages, two pairs, two cascodes, the two-stage amplifier
     expect(typeof api.analyzeMirror).toBe("function");
     expect(typeof api.analyzeDiodeLoad).toBe("function");
     expect(typeof api.mirrorOutputCurve).toBe("function");

@@ -24,7 +24,7 @@ import { acCircuit } from "../lib/bias/frequency-spice.js";
 import type { Stage, StageAnalysis } from "../lib/bias/topology.js";
 import type { DeviceCard, Polarity } from "../lib/device/card.js";
 import { farads, hertz, meters, ohms, volts } from "../lib/quantity.js";
-import { cornersAround, runAc } from "./support/ac.js";
+import { cornersAround, fallsThrough, runAc } from "./support/ac.js";
 import { mulberry32 } from "../lib/random.js";
 
 const rand = mulberry32(20261202);
@@ -346,16 +346,6 @@ for (let i = 0; pairs.length < 60 && i < 20000; i++) {
   if (k) pairs.push(k);
 }
 
-/** First frequency where the magnitude crosses `level` downwards (log interpolation). */
-function crossing(freq: number[], mag: number[], level: number): number | undefined {
-  for (let j = 1; j < freq.length; j++)
-    if (mag[j - 1]! >= level && mag[j]! < level) {
-      const t = Math.log(mag[j - 1]! / level) / Math.log(mag[j - 1]! / mag[j]!);
-      return Math.exp(Math.log(freq[j - 1]!) + t * Math.log(freq[j]! / freq[j - 1]!));
-    }
-  return undefined;
-}
-
 describe("differential pair with a mirror load against ngspice 39 Level 1 .ac", () => {
   it("output pole, unity-gain frequency and phase margin on seeded random five-transistor amplifiers", () => {
     expect(pairs.length).toBeGreaterThanOrEqual(40);
@@ -385,12 +375,12 @@ describe("differential pair with a mirror load against ngspice 39 Level 1 .ac", 
         return;
       }
       stats.dom++;
-      const f3 = crossing(res.freq, mag, a0 / Math.SQRT2)!;
+      const f3 = fallsThrough(res.freq, mag, a0 / Math.SQRT2)!;
       const e = rel(p.outputPole, f3);
       stats.worstPole = Math.max(stats.worstPole, e);
       if (!(e <= 0.1)) fails.push(`${id}: output pole ${p.outputPole} vs ngspice ${f3}`);
       if (p.unityGain === undefined) return;
-      const fu = crossing(res.freq, mag, 1)!;
+      const fu = fallsThrough(res.freq, mag, 1)!;
       const eu = rel(p.unityGain, fu);
       stats.worstFu = Math.max(stats.worstFu, eu);
       if (!(eu <= 0.1)) fails.push(`${id}: unity-gain ${p.unityGain} vs ngspice ${fu} (GBW ${p.gainBandwidth}, fm ${p.mirrorPole})`);

@@ -14,6 +14,7 @@ import { drainFeedback } from "./topologies/drain-feedback.js";
 import { fixedGate } from "./topologies/fixed-gate.js";
 import { fourResistor } from "./topologies/four-resistor.js";
 import { sourceFollower } from "./topologies/source-follower.js";
+import { twoStageMiller } from "./topologies/two-stage.js";
 
 /** Every built-in topology, keyed by a camel-case name (the registry holds them by id). */
 export const builtinTopologies = {
@@ -28,6 +29,7 @@ export const builtinTopologies = {
   mirrorLoadPair,
   cascodeStage,
   cascodeMirror,
+  twoStageMiller,
 } as const;
 // One list: what is built in is what is registered.
 for (const t of Object.values(builtinTopologies)) registerTopology(t as Topology<string, unknown>);

@@ -94,8 +94,8 @@ function quantities(raw: unknown, fields: Record<string, Dimension>, f: string, 
 
 /** A design file's `frequency` section: signal source, load, coupling and bypass capacitors, target corners. */
 function parseFrequency(raw: unknown, at: (p: string) => string): FrequencySpec {
-  const f = object(raw, at("frequency"), "a frequency section { source?, load?, capacitors?, targets?, series? }");
-  onlyKeys(f, ["source", "load", "capacitors", "targets", "series"], at("frequency"));
+  const f = object(raw, at("frequency"), "a frequency section { source?, load?, capacitors?, targets?, series?, compensation? }");
+  onlyKeys(f, ["source", "load", "capacitors", "targets", "series", "compensation"], at("frequency"));
   const spec: Record<string, unknown> = {};
   if (f.source !== undefined) {
     const src = object(f.source, at("frequency.source"), "a signal source { resistance }");
@@ -109,6 +109,13 @@ function parseFrequency(raw: unknown, at: (p: string) => string): FrequencySpec 
   if (f.series !== undefined) {
     if (f.series !== "E6" && f.series !== "E12") throw new InputError(f.series, `"E6" or "E12" (IEC 60063 capacitor series)`, at("frequency.series"), "invalid-design");
     spec.series = f.series;
+  }
+  if (f.compensation !== undefined) {
+    // Two-stage Miller amplifier: Cc (or a target phase margin in degrees, a plain number) and Rz (or the rule choosing it).
+    const what = "a compensation section { cc?, rz?, targetPhaseMargin?, nulling? }";
+    const c = object(f.compensation, at("frequency.compensation"), what);
+    const { nulling, ...rest } = c;
+    spec.compensation = { ...quantities(rest, { cc: "capacitance", rz: "resistance", targetPhaseMargin: "dimensionless" }, "frequency.compensation", at, what), ...(nulling !== undefined ? { nulling } : {}) };
   }
   return checkFrequencySpec(spec as FrequencySpec, at("frequency"));
 }

@@ -10,6 +10,7 @@ import { InputError } from "../errors.js";
 import { topologyFor, type Stage, type StageAnalysis } from "./topology.js";
 import { spiceNumber } from "./spice.js";
 import { writeDeck } from "../spice/deck.js";
+import { compensationLines } from "./topologies/two-stage.js";
 import type { FrequencyAnalysis } from "./frequency.js";
 
 export interface AcSweep {
@@ -43,12 +44,20 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   const gateIn = `${p}gin`;
   const rsig = fa.source.resistance;
   const cap = (role: "input" | "output" | "bypass") => fa.low?.capacitors.find((c) => c.role === role)?.value;
-  if (fa.view === "differential-pair") {
+  if (fa.view === "differential-pair" || fa.view === "two-stage") {
     // Differential drive: 1 V between the inputs, half on each in opposite phase; the response is v(out).
     const nn = dc.nodes as Record<string, string>;
     const devs = stage.devices as Record<string, Stage["device"]> | undefined;
-    if (!stage.device.card.capacitance || !devs?.load?.card.capacitance)
-      throw new InputError(stage.device.card.name, "Level 1 capacitance blocks on the pair and load cards for the AC export (datasheet capacitances are not placed in a pair's deck)", `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    const roles = fa.view === "two-stage" ? (["load", "second", "sink"] as const) : (["load"] as const);
+    if (!stage.device.card.capacitance || roles.some((r) => !devs?.[r]?.card.capacitance))
+      throw new InputError(stage.device.card.name, `Level 1 capacitance blocks on the pair and ${roles.join(", ")} cards for the AC export (datasheet capacitances are not placed in a pair's deck)`, `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    const t = fa.twoStage;
+    if (t) {
+      // The compensation the analysis used (given or designed) replaces the one the DC deck carries from the components.
+      const ours = [`C${p}C `, `R${p}Z `, `C${p}L `];
+      for (let i = lines.length - 1; i >= 0; i--) if (ours.some((x) => lines[i]!.startsWith(x))) lines.splice(i, 1);
+      lines.push(...compensationLines({ cc: t.cc, rz: t.rz }, nn, p));
+    }
     for (const [node, ac] of [[nn.in1!, "AC 0.5"], [nn.in2!, "AC 0.5 180"]] as const) {
       const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === node && l.split(" ")[2] === "0");
       if (i < 0) throw new Error(`internal: no input source at node ${node}`);

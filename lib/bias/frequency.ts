@@ -34,6 +34,7 @@ import type { Derivation } from "../record/derivation.js";
 import { nearestStandard, standardValuesAround, type SeriesName } from "./eseries.js";
 import { analyzeCascodeFrequency, type CascodeFrequencyNodes } from "./frequency-cascode.js";
 import { analyzeMirrorPairFrequency, type MirrorPairFrequency } from "./frequency-pair.js";
+import { analyzeTwoStageFrequency, checkCompensation, twoStageResponse, type CompensationSpec, type TwoStageFrequency } from "./frequency-two-stage.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -48,9 +49,11 @@ export interface FrequencySpec {
   readonly targets?: { readonly lowCorner?: Hertz; readonly highCorner?: Hertz };
   /** Series the designed capacitors are chosen from; E12 when omitted. */
   readonly series?: "E6" | "E12";
+  /** Two-stage Miller amplifier only: the Miller capacitor (or a target phase margin) and the nulling resistor (or its rule). */
+  readonly compensation?: CompensationSpec;
 }
 
-export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair";
+export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage";
 export type CapacitorRole = "input" | "output" | "bypass";
 
 export interface CouplingCapacitor {
@@ -131,6 +134,8 @@ export interface FrequencyAnalysis {
   readonly cascode?: CascodeFrequencyNodes;
   /** Differential pair with a mirror load only: GBW, mirror pole, phase margin (lib/bias/frequency-pair.ts). */
   readonly pair?: MirrorPairFrequency;
+  /** Two-stage Miller amplifier only: compensation, poles, zeros, GBW, phase margin (lib/bias/frequency-two-stage.ts). */
+  readonly twoStage?: TwoStageFrequency;
 }
 
 /** The pole-dominance ratio the OCTC and Miller estimates assume (common practice: a decade). */
@@ -142,7 +147,7 @@ export const dominanceRatio = 10;
  */
 export const nonDominantShare = 0.05;
 
-const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage", "diff-pair-mirror-load"] as const;
+const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage", "diff-pair-mirror-load", "two-stage-miller"] as const;
 
 const origin = (stage: Stage) => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -182,6 +187,7 @@ export function checkFrequencySpec(spec: FrequencySpec, o = "frequency"): Freque
   if (t?.highCorner !== undefined && (typeof t.highCorner !== "number" || !Number.isFinite(t.highCorner) || t.highCorner <= 0))
     throw new InputError(t.highCorner, "an upper corner > 0 Hz", `${o}.targets.highCorner`);
   if (spec.series !== undefined && spec.series !== "E6" && spec.series !== "E12") throw new InputError(spec.series, `"E6" or "E12"`, `${o}.series`);
+  if (spec.compensation !== undefined) checkCompensation(spec.compensation, `${o}.compensation`);
   return spec;
 }
 
@@ -206,6 +212,9 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
   if (!hasCapacitanceData(stage.device.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: device.card "${stage.device.card.name}"`, "invalid-design");
   if (analysis.region !== "saturation")
     throw new InfeasibleError(`the device is in ${analysis.region}, not saturation: there is no amplifier to analyse; fix the bias first`, o);
+  if (spec.compensation !== undefined && stage.topology !== "two-stage-miller")
+    throw new InputError(spec.compensation, "no compensation section: only the two-stage-miller topology has a Miller capacitor", `${o}: frequency.compensation`, "invalid-design");
+  if (stage.topology === "two-stage-miller") return analyzeTwoStageFrequency(stage, analysis, spec, o, rec);
   if (stage.topology === "diff-pair-mirror-load") {
     const ld = (stage.devices as Record<string, Stage["device"]> | undefined)?.load;
     if (ld && !hasCapacitanceData(ld.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.load.card "${ld.card.name}"`, "invalid-design");
@@ -653,6 +662,7 @@ const fmt = (x: number) => (Number.isFinite(x) ? String(+x.toPrecision(4)) : Str
  * Magnitude as |vout/vsig|, phase in degrees (an inverting stage starts at ±180°).
  */
 export function handResponse(fa: FrequencyAnalysis, freqs: readonly number[]): { magnitude: number[]; phaseDeg: number[] } {
+  if (fa.twoStage) return twoStageResponse(fa, freqs);
   const magnitude: number[] = [];
   const phaseDeg: number[] = [];
   const { b1, b2 } = fa.high;

@@ -59,8 +59,8 @@ type PairStage = { readonly topology: string; readonly device: StageDevice; read
 
 /** σ of the input-referred offset of an analysed pair (with the load mirror's share for the five-transistor amplifier). */
 export function pairOffset(stage: PairStage, a: StageAnalysis, rec?: Derivation): OffsetEstimate {
-  if (stage.topology !== "diff-pair" && stage.topology !== "diff-pair-mirror-load")
-    throw new InputError(stage.topology, `"diff-pair" or "diff-pair-mirror-load"`, "pairOffset: stage.topology");
+  if (stage.topology !== "diff-pair" && stage.topology !== "diff-pair-mirror-load" && stage.topology !== "two-stage-miller")
+    throw new InputError(stage.topology, `"diff-pair", "diff-pair-mirror-load" or "two-stage-miller"`, "pairOffset: stage.topology");
   const inp = pelgrom(stage.device, "device", rec);
   const m1 = a.op;
   const gm1 = a.smallSignal.gm;
@@ -200,11 +200,13 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
   const vsr = sign > 0 ? vss : -vdd;
   const dev = stage.device;
   const d = a.devices ?? {};
-  if (stage.topology === "diff-pair" || stage.topology === "diff-pair-mirror-load") {
+  // The two-stage amplifier's offset is its first stage's (five-transistor amplifier): the second stage's
+  // mismatch reaches the input divided by the first stage's gain and is left out.
+  if (stage.topology === "diff-pair" || stage.topology === "diff-pair-mirror-load" || stage.topology === "two-stage-miller") {
     const inSig = pelgrom(dev, "device");
     const devices: PlanDevice[] = [planDevice("M1", a.op, dev.card, inSig), planDevice("M2", d.M2!.op, dev.card, inSig)];
     const tail = stage.devices?.tail;
-    const mirror = stage.topology === "diff-pair-mirror-load";
+    const mirror = stage.topology !== "diff-pair";
     if (mirror) {
       const ld = stage.devices!.load!;
       const ls = pelgrom(ld, "devices.load");
@@ -262,7 +264,7 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
       p,
     };
   }
-  throw new InputError(stage.topology, `a stage with matched devices: "diff-pair", "diff-pair-mirror-load", "current-mirror" or "cascode-mirror"`, "mismatchMonteCarlo: stage.topology");
+  throw new InputError(stage.topology, `a stage with matched devices: "diff-pair", "diff-pair-mirror-load", "two-stage-miller", "current-mirror" or "cascode-mirror"`, "mismatchMonteCarlo: stage.topology");
 }
 
 /** A seeded xoshiro128** generator with Box–Muller normals; state in plain numbers. */

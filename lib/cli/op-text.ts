@@ -7,7 +7,7 @@
  */
 import type { ToleranceChecks } from "../bias/check-yield.js";
 import type { SynthesisResult } from "../bias/synthesis/common.js";
-import type { Stage, StageAnalysis, StageCheck, StageDevice } from "../bias/topology.js";
+import { topologyFor, type Stage, type StageAnalysis, type StageCheck, type StageDevice } from "../bias/topology.js";
 import { partModel } from "../device/discrete-part.js";
 import { dimensions, type Dimension } from "../quantity.js";
 import { cautions } from "../record/cautions.js";
@@ -43,7 +43,16 @@ export function checkLine(c: StageCheck): string {
   return `${c.passed ? "pass" : "FAIL"}  ${c.name}: ${formatChecked(c.value, c.unit)}${bound ? ` (needs ${bound}; margin ${formatChecked(c.margin, c.unit, 4, true)})` : ""}`;
 }
 
-const componentDim = (name: string, stage: Stage): Dimension => (name === "vg" || name === "vout" ? "voltage" : name === "iss" ? "current" : stage && name.startsWith("r") ? "resistance" : "dimensionless");
+// The topology's own field dimension where it declares one (every registered topology does).
+const componentDim = (name: string, stage: Stage): Dimension =>
+  topologyFields(stage.topology)?.find((f) => f.name === name)?.dim ?? (name === "vg" || name === "vout" ? "voltage" : name === "iss" ? "current" : stage && name.startsWith("r") ? "resistance" : "dimensionless");
+function topologyFields(id: string) {
+  try {
+    return topologyFor(id).components;
+  } catch {
+    return undefined;
+  }
+}
 
 export function opText(o: OpOutcome): string {
   const a = o.analysis;

@@ -225,6 +225,12 @@ export function frequencyText(fa: FrequencyAnalysis): string {
   const h = fa.high;
   lines.push(`  upper corner ${hz(h.corner)} (open-circuit estimate ${hz(h.octcCorner)}); poles ${h.complexPair ? `complex pair at ${hz(h.complexPair.naturalFrequency)}, Q = ${+h.complexPair.q.toPrecision(3)}` : `${hz(h.dominantPole ?? NaN)} and ${hz(h.nonDominantPole ?? Infinity)}`}; zero ${hz(h.zero.frequency)}${h.zero.rightHalfPlane ? " (right half plane)" : ""}`);
   if (h.miller) lines.push(`  Miller: input capacitance ${formatQuantity(h.miller.capacitance, "capacitance")}, input pole ${hz(h.miller.inputPole)}, output pole ${hz(h.miller.outputPole)}`);
+  const t = fa.twoStage;
+  if (t) {
+    const cap = (x: number) => formatQuantity(x, "capacitance");
+    lines.push(`  compensation: Cc ${cap(t.cc)}${t.ccDesigned ? " (designed for the target phase margin)" : ""} (rule of thumb 0.22·CL = ${cap(t.ccRuleOfThumb)}), Rz ${formatQuantity(t.rz, "resistance")}${t.rzDesigned ? " (designed)" : ""}`);
+    lines.push(`  GBW ${hz(t.gainBandwidth)}, unity gain ${hz(t.unityGain ?? NaN)}, phase margin ${t.phaseMargin === undefined ? "none" : `${+t.phaseMargin.toPrecision(3)}°`}; second pole ${hz(t.secondPole)}, Miller zero ${hz(Math.abs(t.zero))}${t.zero > 0 ? " (right half plane)" : t.zero < 0 ? " (left half plane)" : ""}, mirror pole ${hz(t.mirrorPole)}`);
+  }
   lines.push(`  one dominant pole: ${h.dominantPoleHolds ? "yes" : "no — the estimates are rough"}`);
   for (const f of fa.findings) lines.push(`  caution: ${f}`);
   return lines.join("\n");
@@ -265,7 +271,7 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   const failures = [...failedChecks(analysis, design, tolerance, extraChecks), ...(verification && !verification.passed ? [verificationFailure(verification)] : [])];
   // Target corners are checks of the design; the methods' own assumptions are cautions, not failures.
   for (const c of frequency?.checks ?? [])
-    if (!c.passed && (c.name.startsWith("Low-frequency corner") || c.name.startsWith("Upper corner"))) failures.push(`FAIL  frequency, ${c.name}: ${+c.value.toPrecision(4)} ${c.unit}`);
+    if (!c.passed && (c.name.startsWith("Low-frequency corner") || c.name.startsWith("Upper corner") || (frequency?.view === "two-stage" && c.name.startsWith("Phase margin")))) failures.push(`FAIL  frequency, ${c.name}: ${+c.value.toPrecision(4)} ${c.unit}`);
   const asText = values.text === true || (values.json !== true && process.stdout.isTTY === true);
   if (asText) {
     console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }) + (verification ? `\n${verificationText(verification)}` : ""));

@@ -17,25 +17,32 @@ export interface PairTransferOptions {
   readonly points?: number;
 }
 
-/** Output voltage(s) against vid for a `diff-pair` (both drains) or `diff-pair-mirror-load` (the output). */
+/**
+ * Output voltage(s) against vid for a `diff-pair` (both drains), `diff-pair-mirror-load` (the output) or
+ * `two-stage-miller` (both stages' outputs; the sweep centred on the stage's vid and, by default, wide enough
+ * for the output to cross its range four times over at the open-loop gain).
+ */
 export function pairTransferPlot(stage: Stage, analysis: StageAnalysis, opts: PairTransferOptions = {}): PlotSpec {
   const origin = "pairTransferPlot";
-  if (stage.topology !== "diff-pair" && stage.topology !== "diff-pair-mirror-load") throw new InputError(stage.topology, `"diff-pair" or "diff-pair-mirror-load"`, `${origin}: stage.topology`);
+  const twoStage = stage.topology === "two-stage-miller";
+  if (stage.topology !== "diff-pair" && stage.topology !== "diff-pair-mirror-load" && !twoStage) throw new InputError(stage.topology, `"diff-pair", "diff-pair-mirror-load" or "two-stage-miller"`, `${origin}: stage.topology`);
   const c = stage.components as Readonly<Record<string, number>>;
   const vcm = c.vcm!;
   const vdd = stage.supplies.vdd;
   const vss = stage.supplies.vss ?? 0;
   const room = 2 * Math.min(vdd - vcm, vcm - vss);
-  const range = Math.min(opts.range ?? 1, room);
+  const gain = twoStage ? Math.abs((analysis as StageAnalysis & { twoStage?: { gain: number } }).twoStage?.gain ?? 0) : 0;
+  const centre = twoStage ? (c.vid ?? 0) : 0;
+  const range = Math.min(opts.range ?? (gain > 1 ? (4 * (vdd - vss)) / gain : 1), room - Math.abs(centre));
   if (!(range > 0)) throw new InputError(opts.range, "a sweep half-width > 0 V that keeps both inputs within the rails", `${origin}: range`);
-  const vids = sweep(-range, range, opts.points ?? 121, origin);
-  const nodes = stage.topology === "diff-pair" ? ["d1", "d2"] : ["out"];
+  const vids = sweep(centre - range, centre + range, opts.points ?? 121, origin);
+  const nodes = stage.topology === "diff-pair" ? ["d1", "d2"] : twoStage ? ["o1", "out"] : ["out"];
   const ys = nodes.map(() => [] as number[]);
   for (const vid of vids) {
     const a = analyzeStage({ ...stage, components: { ...c, vid } });
     nodes.forEach((n, i) => ys[i]!.push(a.nodes[n]!));
   }
-  const xs = scaleFor([range], "voltage");
+  const xs = scaleFor([Math.abs(centre) + range], "voltage");
   const yv = scaleFor([vdd, vss], "voltage");
   const data: Trace[] = nodes.map((n, i) => ({
     type: "scatter",
@@ -51,7 +58,7 @@ export function pairTransferPlot(stage: Stage, analysis: StageAnalysis, opts: Pa
   for (const n of nodes) data.push(pointTrace(`bias point V(${n})`, vid0 / xs.divisor, analysis.nodes[n]! / yv.divisor, { role: "operating-point", vid: vid0, node: n, v: analysis.nodes[n]! }));
   const name = stage.name ?? stage.topology;
   const title = `DC transfer against the differential input, ${name}`;
-  const summary = `Output node voltage${nodes.length > 1 ? "s" : ""} ${nodes.map((n) => `V(${n})`).join(" and ")} against the differential input vid = vin1 − vin2 from ${formatQuantity(-range, "voltage")} to ${formatQuantity(range, "voltage")} at the common mode ${formatQuantity(vcm, "voltage")}, each point solved by nodal analysis (square law); the bias point at vid = ${formatQuantity(vid0, "voltage")} is marked.`;
+  const summary = `Output node voltage${nodes.length > 1 ? "s" : ""} ${nodes.map((n) => `V(${n})`).join(" and ")} against the differential input vid = vin1 − vin2 from ${formatQuantity(centre - range, "voltage")} to ${formatQuantity(centre + range, "voltage")} at the common mode ${formatQuantity(vcm, "voltage")}, each point solved by nodal analysis (square law); the bias point at vid = ${formatQuantity(vid0, "voltage")} is marked.`;
   return {
     schema: plotSchema,
     kind: "transfer-characteristic",

@@ -68,3 +68,9 @@ export function cornersAround(freq: number[], mag: number[], fMid: number): { lo
     }
   return { mid, ...(low !== undefined ? { low } : {}), ...(high !== undefined ? { high } : {}) };
 }
+
+/** The first frequency where |H| falls through `level` (log-log interpolation); undefined when it never does. */
+export function fallsThrough(freq: readonly number[], mag: readonly number[], level: number): number | undefined {
+  for (let i = 0; i < freq.length - 1; i++) if (mag[i]! >= level && mag[i + 1]! < level) return interp(freq as number[], mag as number[], i, level);
+  return undefined;
+}

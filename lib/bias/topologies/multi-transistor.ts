@@ -199,7 +199,8 @@ export function analyzeCircuit<Id extends string, C, X>(spec: CircuitTopologySpe
   const m = net.mosfets.find((x) => x.name === build.main)!;
   const md = devices[`M${m.name}`]!;
   const supply = heldSourceCurrent(sol.compiled, sol, "vdd");
-  const currents: Record<string, number> = { drain: Math.abs(sol.drain[m.name]!), supply: Math.abs(supply) };
+  // drainMagnitude is the name every reader of StageAnalysis.currents uses (summary, tolerance, checks).
+  const currents: Record<string, number> = { drain: Math.abs(sol.drain[m.name]!), drainMagnitude: Math.abs(sol.drain[m.name]!), supply: Math.abs(supply) };
   for (const r of net.resistors) currents[`R${r.name}`] = Math.abs(sol.branch[r.name]!);
   for (const x of net.mosfets) currents[`M${x.name}`] = Math.abs(sol.drain[x.name]!);
   const total = Object.values(power).reduce((a, b) => a + b, 0);
