@@ -64,7 +64,7 @@ export function fitModelOf(model: DeviceModel): FitModel {
     start(_s, est) {
       const p = Float64Array.from(heldValue);
       model.parameters.forEach((q, j) => {
-        if (needs[q.name] === undefined || q.name === "lambda" || q.name === "gamma") p[j] = Number.isFinite(q.initial) ? q.initial : heldValue[j]!;
+        p[j] = Number.isFinite(q.initial) ? q.initial : heldValue[j]!;
       });
       p[iVt] = est.vt;
       p[iKp] = est.kp;

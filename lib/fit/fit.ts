@@ -109,22 +109,26 @@ export function windowPoints(s: Sweep, w: FitWindow, est: StartEstimate, minCurr
   return Int32Array.from(idx);
 }
 
-function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string) {
+/** One bounded least-squares fit over the points idx; `fixed` names parameters held at their start value (a stage of a staged fit). */
+function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string, fixed?: readonly string[]) {
   const free = model.free(s, idx);
   const full = opts.start ? Float64Array.from(opts.start) : model.start(s, est);
-  const active = free.flatMap((f, j) => (f ? [j] : []));
+  const fixedAt = fixed ? model.parameters.map((q) => fixed.includes(q.name)) : undefined;
+  const active = free.flatMap((f, j) => (f && !fixedAt?.[j] ? [j] : []));
   const n = active.length;
   if (idx.length < Math.max(3 * n, 8))
     throw new InputError(idx.length, `at least ${Math.max(3 * n, 8)} points above ${(opts.minCurrent ?? 1e-8).toExponential(0)} A in the fit window (${n} parameters)`, origin);
   const p = Float64Array.from(full, (v, j) => (free[j] ? v : model.held[j]!));
+  // a fixed parameter keeps its start, clamped inside its bounds (the next stage starts from it)
+  if (fixedAt) for (let j = 0; j < p.length; j++) if (fixedAt[j] && free[j]) p[j] = clampStart(j);
   const out = new Float64Array(idx.length);
   const meas = Float64Array.from(idx, (i) => s.id[i]!);
-  const params = model.parameters;
-  const clampStart = (j: number) => {
-    const { lower, upper } = params[j]!;
+  function clampStart(j: number) {
+    const { lower, upper } = model.parameters[j]!;
     const span = upper - lower;
     return Math.min(Math.max(full[j]!, lower + 1e-6 * span), upper - 1e-6 * span);
-  };
+  }
+  const params = model.parameters;
   const res = leastSquares(
     {
       m: idx.length,
@@ -168,12 +172,14 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     try {
       fit = fitIn(model, s, idx, est, opts, origin);
       if (!user && !opts.start && model.id === "ekv") {
-        // Second start, kept when better: the low-VDS transfer curves alone first (threshold,
-        // current factor, body effect, mobility), then every point from there.
+        // Staged start, kept when better: threshold, current factor, body effect and mobility from
+        // the low-VDS transfer curves (velocity saturation held), then velocity saturation, channel-length
+        // modulation and DIBL from every point with those held, then everything together.
         const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
         try {
-          const first = fitIn(model, s, low, est, opts, origin);
-          const staged = fitIn(model, s, idx, est, { ...opts, start: first.p }, origin);
+          const a = fitIn(model, s, low, est, opts, origin, ["ecrit"]);
+          const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB"]);
+          const staged = fitIn(model, s, idx, est, { ...opts, start: b.p }, origin);
           if (summarise(staged.errors).rms! < summarise(fit.errors).rms!) fit = staged;
         } catch (e) {
           if (!(e instanceof InputError) && !(e instanceof ConvergenceError)) throw e;
@@ -187,7 +193,7 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     const rms = summarise(fit.errors).rms!;
     // A rung whose points cannot tell the free parameters apart (one gate voltage, say) is no window.
     // (a standard error as large as the value itself counts as not determined).
-    if (!user && fit.free.some((f, j) => f && !(fit.stdErr[j]! < Math.abs(fit.p[j]!)) && !atBound(model, fit.p, j))) continue;
+    if (!user && ladder.length > 1 && fit.free.some((f, j) => f && !(fit.stdErr[j]! < Math.abs(fit.p[j]!)) && !atBound(model, fit.p, j))) continue;
     chosen = { w, idx, fit, rms };
     if (rms <= target) break;
   }

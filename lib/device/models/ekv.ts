@@ -79,8 +79,8 @@ export function ekvInversionCoefficient(vt0: number, gamma: number, phi: number,
 export const ekvParameters: readonly ModelParameter[] = [
   ...mobilityParameters.filter((q) => q.name !== "ecrit"),
   { name: "ecrit", dim: "electricField", meaning: "critical field for velocity saturation (EKV UCRIT)", min: 1e5, max: 1e9, initial: 5e6, absent: defaultEkvCriticalField, geometryScaled: false },
-  { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0, absent: 0, geometryScaled: false },
-  { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0, absent: 0, geometryScaled: false },
+  { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0.05, absent: 0, geometryScaled: false },
+  { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0.01, absent: 0, geometryScaled: false },
 ];
 
 const forward = (p: Float64Array, vgs: number, vds: number, vsb: number): number =>
