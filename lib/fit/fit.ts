@@ -155,6 +155,34 @@ function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, o
   return { p, res, free, stdErr, errors: res.residuals };
 }
 
+/**
+ * The all-region model over every point, staged as a modeller would: threshold, current factor,
+ * body effect, mobility and the subthreshold ideality from the low-VDS transfer curves (velocity
+ * saturation held); then velocity saturation, channel-length modulation and DIBL from every point
+ * with the body and mobility terms held; then everything together. When a stage fails or the
+ * result misses the target, a fit from the data's start estimate is tried too and the lower RMS kept.
+ */
+function allRegionFit(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string, minCurrent: number, target: number) {
+  let staged: ReturnType<typeof fitIn> | undefined;
+  try {
+    const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
+    const a = fitIn(model, s, low, est, opts, origin, ["ecrit"]);
+    const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB", "ideality"]);
+    staged = fitIn(model, s, idx, est, { ...opts, start: b.p }, origin);
+    if (summarise(staged.errors).rms! <= target) return staged;
+  } catch (e) {
+    if (!(e instanceof InputError) && !(e instanceof ConvergenceError)) throw e;
+  }
+  let direct: ReturnType<typeof fitIn>;
+  try {
+    direct = fitIn(model, s, idx, est, opts, origin);
+  } catch (e) {
+    if (staged && (e instanceof ConvergenceError || e instanceof InputError)) return staged;
+    throw e;
+  }
+  return staged && summarise(staged.errors).rms! <= summarise(direct.errors).rms! ? staged : direct;
+}
+
 export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitResult {
   const origin = `${s.origin}: ${model.id} fit, ${s.polarity} W=${+(s.w * 1e6).toPrecision(4)} µm L=${+(s.l * 1e6).toPrecision(4)} µm ${(s.temp - 273.15).toFixed(0)} °C`;
   const minCurrent = opts.minCurrent ?? 1e-8;
@@ -170,21 +198,7 @@ export function fitSweep(model: FitModel, s: Sweep, opts: FitOptions = {}): FitR
     const idx = windowPoints(s, w, est, minCurrent);
     let fit: ReturnType<typeof fitIn>;
     try {
-      fit = fitIn(model, s, idx, est, opts, origin);
-      if (!user && !opts.start && model.id === "ekv") {
-        // Staged start, kept when better: threshold, current factor, body effect and mobility from
-        // the low-VDS transfer curves (velocity saturation held), then velocity saturation, channel-length
-        // modulation and DIBL from every point with those held, then everything together.
-        const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
-        try {
-          const a = fitIn(model, s, low, est, opts, origin, ["ecrit"]);
-          const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB"]);
-          const staged = fitIn(model, s, idx, est, { ...opts, start: b.p }, origin);
-          if (summarise(staged.errors).rms! < summarise(fit.errors).rms!) fit = staged;
-        } catch (e) {
-          if (!(e instanceof InputError) && !(e instanceof ConvergenceError)) throw e;
-        }
-      }
+      fit = !user && !opts.start && model.id === "ekv" ? allRegionFit(model, s, idx, est, opts, origin, minCurrent, target) : fitIn(model, s, idx, est, opts, origin);
     } catch (e) {
       if (user || !(e instanceof InputError)) throw e;
       lastError = e; // too few points in this rung: try the next
