@@ -110,7 +110,7 @@ export function windowPoints(s: Sweep, w: FitWindow, est: StartEstimate, minCurr
 }
 
 /** One bounded least-squares fit over the points idx; `fixed` names parameters held at their start value (a stage of a staged fit). */
-function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string, fixed?: readonly string[]) {
+function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, opts: FitOptions, origin: string, fixed?: readonly string[], ftol?: number) {
   const free = model.free(s, idx);
   const full = opts.start ? Float64Array.from(opts.start) : model.start(s, est);
   const fixedAt = fixed ? model.parameters.map((q) => fixed.includes(q.name)) : undefined;
@@ -145,6 +145,7 @@ function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, o
       upper: active.map((j) => params[j]!.upper),
       scale: active.map((j) => params[j]!.scale),
       maxIterations: opts.maxIterations ?? 200,
+      ftol,
       onIteration: opts.onIteration,
       origin,
     },
@@ -166,8 +167,9 @@ function allRegionFit(model: FitModel, s: Sweep, idx: Int32Array, est: StartEsti
   let staged: ReturnType<typeof fitIn> | undefined;
   try {
     const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
-    const a = fitIn(model, s, low, est, opts, origin, ["ecrit"]);
-    const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB", "ideality"]);
+    // the first two stages only place the start of the third: a relative decrease of 10⁻⁵ per step ends them
+    const a = fitIn(model, s, low, est, opts, origin, ["ecrit"], 1e-5);
+    const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB", "ideality"], 1e-5);
     staged = fitIn(model, s, idx, est, { ...opts, start: b.p }, origin);
     if (summarise(staged.errors).rms! <= target) return staged;
   } catch (e) {
