@@ -14,7 +14,13 @@
  * - mobility degradation acts on the source-end inversion charge 2·n·UT·qf (≈ VOV in strong
  *   inversion) and on VSB (θB, the depletion charge raising the vertical field) rather than on VP:
  *   with θ·VP a scratch fit to the measured 180 nm NMOS (L = 1 µm) stayed at 7.5 % RMS, the
- *   transfer curves under reverse body bias off by up to 18 %; with θ and θB it reached 4.7 %.
+ *   transfer curves under reverse body bias off by up to 18 %; with θ and θB it reached 4.7 %;
+ * - a subthreshold ideality factor m (pinchoff's empirical extension, m = 1 is EKV proper): the
+ *   normalising voltage of the charges and currents is m·UT, which makes the weak-inversion slope
+ *   n·m·UT·ln10 per decade and leaves the threshold, the strong-inversion current and VDSS' as they
+ *   were. With n tied to γ and 2φF, one (γ, 2φF) pair could not give both the 180 nm devices' body
+ *   effect and their subthreshold slope (weak-inversion RMS error 13–33 %); with m fitted (1.07–1.19)
+ *   it fell to 6–15 % and the overall RMS at L = 0.28–10 µm to 1.7–5.5 %.
  * Terminal voltages are source-referenced here (VGB = VGS + VSB, VS = VSB, VD = VDS + VSB).
  */
 import { defineCompositions, defineFormulas, defineSymbols } from "./define.js";
