@@ -11,9 +11,10 @@
  * (5 % unless set); when none does, the narrowest is kept and `meetsTarget` is
  * false. The mobility/velocity-saturation form walks the same ladder after a
  * first rung of every overdrive from 0.2 to 3 V. EKV, which holds in every
- * region, uses every point above the floor,
- * fitted from two starts (the data's start estimate; and the fit to the
- * low-VDS transfer curves alone), keeping the lower RMS.
+ * region, uses every point above the floor, fitted in stages (`allRegionFit`);
+ * a fit from the data's start estimate is added only when the staged one
+ * misses the target, and the lower RMS kept. Failure: a ConvergenceError of a
+ * stage is passed on only when no fit converged.
  * Overdrive is measured from the start estimate of the threshold, so the
  * window does not move while the fit runs.
  */
