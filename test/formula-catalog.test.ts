@@ -48,21 +48,21 @@ describe("compositions: a model's hot path generated from its catalog", () => {
     let seed = 7;
     const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
     for (let k = 0; k < 2000; k++) {
-      const [kp, W, L, Vt0, gamma, phi, lambda, theta, thetaB, Ecrit, sigma, m] = [1e-4 * (0.5 + rand()), 10e-6, (0.2 + 10 * rand()) * 1e-6, 0.3 + 0.6 * rand(), rand(), 0.5 + 0.6 * rand(), 0.1 * rand(), 0.5 * rand(), 0.2 * rand(), 1e6 + 3e7 * rand(), 0.05 * rand(), 1 + 0.3 * rand()];
+      const [kp, W, L, Vt0, gamma, phi, lambda, theta, thetaB, Ecrit, sigma, cit] = [1e-4 * (0.5 + rand()), 10e-6, (0.2 + 10 * rand()) * 1e-6, 0.3 + 0.6 * rand(), rand(), 0.5 + 0.6 * rand(), 0.1 * rand(), 0.5 * rand(), 0.2 * rand(), 1e6 + 3e7 * rand(), 0.05 * rand(), 0.4 * rand()];
       const [UT, VGS, VDS, VSB] = [0.02 + 0.015 * rand(), -0.3 + 3.6 * rand(), 3.3 * rand(), 2 * rand()];
       const f = e as unknown as Record<string, { fn: (...a: number[]) => number }>;
-      const Um = f.ekvNormalisingVoltage!.fn(m, UT);
       const VGp = f.ekvEffectiveGate!.fn(VGS, VSB, Vt0, sigma, VDS, phi, gamma);
       const VP = VGp > 0 ? f.ekvPinchOffVoltage!.fn(VGp, phi, gamma) : f.ekvPinchOffFloor!.fn(phi);
+      const n = f.ekvSlopeFactor!.fn(gamma, VP, phi, UT);
+      const Um = f.ekvNormalisingVoltage!.fn(UT, cit, n);
       const IC = f.ekvForwardCurrent!.fn(VP, VSB, Um);
       const VDSS = f.ekvSaturationVoltage!.fn(f.ekvLongChannelSaturationVoltage!.fn(Um, IC), Ecrit, L, Um);
       const Vip = f.ekvLimitedDrainVoltage!.fn(VDSS, Um, VDS);
       const IRn = f.ekvReverseCurrent!.fn(VP, VSB, VDS, Vip, Um);
-      const n = f.ekvSlopeFactor!.fn(gamma, VP, phi, UT);
       const beta = f.ekvGainFactor!.fn(kp, W, f.ekvEquivalentLength!.fn(L, VDS, Vip, Ecrit), theta, n, Um, f.ekvForwardCharge!.fn(IC), thetaB, VSB);
       const id = IC === 0 ? 0 : f.ekvDrainCurrent!.fn(f.ekvSpecificCurrent!.fn(n, beta, Um), IC, IRn, lambda, VDS);
-      expect(e.ekvChannelCurrent(kp, W, L, Vt0, gamma, phi, lambda, theta, thetaB, Ecrit, sigma, m, UT, VGS, VDS, VSB)).toBe(id);
-      expect(e.ekvInversionCoefficient(Vt0, gamma, phi, sigma, m, UT, VGS, VDS, VSB)).toBe(IC);
+      expect(e.ekvChannelCurrent(kp, W, L, Vt0, gamma, phi, lambda, theta, thetaB, Ecrit, sigma, cit, UT, VGS, VDS, VSB)).toBe(id);
+      expect(e.ekvInversionCoefficient(Vt0, gamma, phi, sigma, cit, UT, VGS, VDS, VSB)).toBe(IC);
     }
   });
 });

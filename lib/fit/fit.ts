@@ -159,7 +159,7 @@ function fitIn(model: FitModel, s: Sweep, idx: Int32Array, est: StartEstimate, o
 
 /**
  * The all-region model over every point, staged as a modeller would: threshold, current factor,
- * body effect, mobility and the subthreshold ideality from the low-VDS transfer curves (velocity
+ * body effect, mobility and the interface-trap slope term Cit/Cox from the low-VDS transfer curves (velocity
  * saturation held); then velocity saturation, channel-length modulation and DIBL from every point
  * with the body and mobility terms held; then everything together. When a stage fails or the
  * result misses the target, a fit from the data's start estimate is tried too and the lower RMS kept.
@@ -170,7 +170,7 @@ function allRegionFit(model: FitModel, s: Sweep, idx: Int32Array, est: StartEsti
     const low = windowPoints(s, { vds: [0, 0.1] }, est, minCurrent);
     // the first two stages only place the start of the third: a relative decrease of 10⁻⁵ per step ends them
     const a = fitIn(model, s, low, est, opts, origin, ["ecrit"], 1e-5);
-    const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB", "ideality"], 1e-5);
+    const b = fitIn(model, s, idx, est, { ...opts, start: a.p }, origin, ["gamma", "phi", "theta", "thetaB", "cit"], 1e-5);
     staged = fitIn(model, s, idx, est, { ...opts, start: b.p }, origin);
     if (summarise(staged.errors).rms! <= target) return staged;
   } catch (e) {

@@ -15,12 +15,13 @@
  *   inversion) and on VSB (θB, the depletion charge raising the vertical field) rather than on VP:
  *   with θ·VP a scratch fit to the measured 180 nm NMOS (L = 1 µm) stayed at 7.5 % RMS, the
  *   transfer curves under reverse body bias off by up to 18 %; with θ and θB it reached 4.7 %;
- * - a subthreshold ideality factor m (pinchoff's empirical extension, m = 1 is EKV proper): the
- *   normalising voltage of the charges and currents is m·UT, which makes the weak-inversion slope
- *   n·m·UT·ln10 per decade and leaves the threshold, the strong-inversion current and VDSS' as they
- *   were. With n tied to γ and 2φF, one (γ, 2φF) pair could not give both the 180 nm devices' body
- *   effect and their subthreshold slope (weak-inversion RMS error 13–33 %); with m fitted (1.07–1.19)
- *   it fell to 6–15 % and the overall RMS at L = 0.28–10 µm to 1.7–5.5 %.
+ * - interface traps add Cit/Cox to the slope factor in weak inversion only (pinchoff's choice): the
+ *   normalising voltage of the charges and currents is UT·(1 + Cit/Cox / n), which makes the
+ *   weak-inversion slope (n + Cit/Cox)·UT·ln10 per decade and leaves the threshold, its body effect,
+ *   the strong-inversion current and VDSS' as they were (a Cit/Cox inside VP would also steepen the
+ *   threshold's rise with VSB, which the 180 nm data refuse). With n tied to γ and 2φF, one (γ, 2φF)
+ *   pair could not give both the 180 nm devices' body effect and their subthreshold slope
+ *   (weak-inversion RMS error 13–33 %); with Cit/Cox fitted it fell to 6–15 %.
  * Terminal voltages are source-referenced here (VGB = VGS + VSB, VS = VSB, VD = VDS + VSB).
  */
 import { defineCompositions, defineFormulas, defineSymbols } from "./define.js";
@@ -43,8 +44,8 @@ export const symbols = defineSymbols({
   thetaB: { tex: "\\theta_{B}", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage" },
   Ecrit: { tex: "E_{sat}", dim: "electricField", meaning: "critical field for velocity saturation" },
   sigma: { tex: "\\sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering coefficient" },
-  m: { tex: "m", dim: "dimensionless", meaning: "subthreshold ideality factor (1 in EKV proper)" },
-  Um: { tex: "m\\,U_{T}", dim: "voltage", meaning: "normalising voltage of the EKV charges and currents, m·kT/q" },
+  cit: { tex: "C_{it}/C_{ox}", dim: "dimensionless", meaning: "interface-trap capacitance over oxide capacitance (adds to the weak-inversion slope factor)" },
+  Um: { tex: "U_{T}^{*}", dim: "voltage", meaning: "normalising voltage of the EKV charges and currents, UT·(1 + Cit/Cox / n)" },
   UT: { tex: "U_{T}", dim: "voltage", meaning: "thermal voltage kT/q" },
   n: { tex: "n", dim: "dimensionless", meaning: "subthreshold slope factor" },
   IC: { tex: "IC", dim: "dimensionless", meaning: "inversion coefficient IF/IS (forward over specific current)" },
@@ -66,11 +67,11 @@ export const symbols = defineSymbols({
 export const formulas = defineFormulas({
   ekvNormalisingVoltage: {
     title: "Normalising voltage of the charges and currents",
-    // m = 1 is EKV proper. m > 1 makes the weak-inversion slope n·m·UT·ln10 per decade while the
+    // Cit/Cox = 0 is EKV proper. Otherwise the weak-inversion slope is (n + Cit/Cox)·UT·ln10 per decade, while the
     // threshold, the strong-inversion current 2·n·β·Um²·((VP − VS)/(2·Um))² and VDSS' do not move (Um cancels there).
     result: "Um",
-    expr: "m * UT",
-    source: "subthreshold ideality factor m, an empirical extension of the EKV normalisation (pinchoff's choice, not in EKV 2.6)",
+    expr: "UT * (1 + cit / n)",
+    source: "slope factor n + Cit/Cox with interface traps (Tsividis & McAndrew, Operation and Modeling of the MOS Transistor, 3rd ed., 2011, from memory), applied through the EKV normalisation only (pinchoff's choice, not in EKV 2.6)",
   },
   ekvThreshold: {
     title: "Threshold (VP = VS), with body effect and drain-induced lowering",
@@ -182,22 +183,22 @@ export const formulas = defineFormulas({
 const pinchOff = [
   "ekvEffectiveGate",
   { when: "VGp > 0", then: "ekvPinchOffVoltage", otherwise: "ekvPinchOffFloor" },
+  "ekvSlopeFactor",
+  "ekvNormalisingVoltage",
   "ekvForwardCurrent",
 ] as const;
 
 export const compositions = defineCompositions({
   ekvChannelCurrent: {
     title: "EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows)",
-    inputs: ["kp", "W", "L", "Vt0", "gamma", "phi", "lambda", "theta", "thetaB", "Ecrit", "sigma", "m", "UT", "VGS", "VDS", "VSB"],
+    inputs: ["kp", "W", "L", "Vt0", "gamma", "phi", "lambda", "theta", "thetaB", "Ecrit", "sigma", "cit", "UT", "VGS", "VDS", "VSB"],
     steps: [
-      "ekvNormalisingVoltage",
       ...pinchOff,
       { returnWhen: "IC == 0", value: 0, why: "a source tens of volts above the pinch-off voltage: the channel carries nothing" },
       "ekvLongChannelSaturationVoltage",
       "ekvSaturationVoltage",
       "ekvLimitedDrainVoltage",
       "ekvReverseCurrent",
-      "ekvSlopeFactor",
       "ekvEquivalentLength",
       "ekvForwardCharge",
       "ekvGainFactor",
@@ -207,7 +208,7 @@ export const compositions = defineCompositions({
   },
   ekvInversionCoefficient: {
     title: "EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity",
-    inputs: ["Vt0", "gamma", "phi", "sigma", "m", "UT", "VGS", "VDS", "VSB"],
-    steps: ["ekvNormalisingVoltage", ...pinchOff],
+    inputs: ["Vt0", "gamma", "phi", "sigma", "cit", "UT", "VGS", "VDS", "VSB"],
+    steps: pinchOff,
   },
 });

@@ -3,18 +3,18 @@ import type { Formula } from "./define.js";
 import { sq } from "./define.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerMeter } from "../quantity.js";
 
-/** Normalising voltage of the charges and currents: Um = m * UT */
+/** Normalising voltage of the charges and currents: Um = UT * (1 + cit / n) */
 export const ekvNormalisingVoltage = {
   id: "ekvNormalisingVoltage",
   title: "Normalising voltage of the charges and currents",
-  expr: "m * UT",
-  tex: "m\\,U_{T} = {m}\\cdot{U_{T}}",
+  expr: "UT * (1 + cit / n)",
+  tex: "U_{T}^{*} = {U_{T}}\\cdot\\left(1+\\frac{{C_{it}/C_{ox}}}{{n}}\\right)",
   result: "Um",
   resultDim: "voltage",
-  vars: ["m","UT"],
-  dims: ["dimensionless","voltage"],
-  source: "subthreshold ideality factor m, an empirical extension of the EKV normalisation (pinchoff's choice, not in EKV 2.6)",
-  fn: (m: Ratio, UT: Volts): Volts => (m * UT) as Volts,
+  vars: ["UT","cit","n"],
+  dims: ["voltage","dimensionless","dimensionless"],
+  source: "slope factor n + Cit/Cox with interface traps (Tsividis & McAndrew, Operation and Modeling of the MOS Transistor, 3rd ed., 2011, from memory), applied through the EKV normalisation only (pinchoff's choice, not in EKV 2.6)",
+  fn: (UT: Volts, cit: Ratio, n: Ratio): Volts => (UT * ((1 + (cit / n)))) as Volts,
 } as const satisfies Formula;
 
 /** Threshold (VP = VS), with body effect and drain-induced lowering: Vt = Vt0 + gamma * (sqrt(phi + VSB) - sqrt(phi)) - sigma * VDS */
@@ -36,7 +36,7 @@ export const ekvDrainSaturationVoltage = {
   id: "ekvDrainSaturationVoltage",
   title: "Drain-source saturation voltage, all regions",
   expr: "2 * Um * sqrt(IC) / (sqrt(1 / 4 + Um * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * Um",
-  tex: "V_{D,sat} = \\frac{2\\cdot{m\\,U_{T}}\\cdot\\sqrt{{IC}}}{\\sqrt{\\frac{1}{4}+\\frac{{m\\,U_{T}}\\cdot\\sqrt{{IC}}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+4\\cdot{m\\,U_{T}}",
+  tex: "V_{D,sat} = \\frac{2\\cdot{U_{T}^{*}}\\cdot\\sqrt{{IC}}}{\\sqrt{\\frac{1}{4}+\\frac{{U_{T}^{*}}\\cdot\\sqrt{{IC}}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+4\\cdot{U_{T}^{*}}",
   result: "VDsat",
   resultDim: "voltage",
   vars: ["Um","IC","Ecrit","L"],
@@ -106,7 +106,7 @@ export const ekvForwardCurrent = {
   id: "ekvForwardCurrent",
   title: "Forward normalised current (inversion coefficient)",
   expr: "log1p(exp((VP - VSB) / (2 * Um)))^2",
-  tex: "IC = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}}{2\\cdot{m\\,U_{T}}}\\right)+1\\right)}^{2}",
+  tex: "IC = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}}{2\\cdot{U_{T}^{*}}}\\right)+1\\right)}^{2}",
   result: "IC",
   resultDim: "dimensionless",
   vars: ["VP","VSB","Um"],
@@ -120,7 +120,7 @@ export const ekvLongChannelSaturationVoltage = {
   id: "ekvLongChannelSaturationVoltage",
   title: "Saturation voltage for the reverse current, long channel",
   expr: "Um * (sqrt(IC) - 3 / 4 * log(IC))",
-  tex: "V_{DSS,\\infty}' = {m\\,U_{T}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)",
+  tex: "V_{DSS,\\infty}' = {U_{T}^{*}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)",
   result: "VDSSL",
   resultDim: "voltage",
   vars: ["Um","IC"],
@@ -134,7 +134,7 @@ export const ekvSaturationVoltage = {
   id: "ekvSaturationVoltage",
   title: "Saturation voltage for the reverse current, with velocity saturation",
   expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + Um * (log(Ecrit * L / (2 * Um)) - 0.6)",
-  tex: "V_{DSS}' = \\frac{{V_{DSS,\\infty}'}}{\\sqrt{\\frac{1}{4}+\\frac{{V_{DSS,\\infty}'}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+{m\\,U_{T}}\\cdot\\left(\\ln\\left(\\frac{{E_{sat}}\\cdot{L}}{2\\cdot{m\\,U_{T}}}\\right)-0.6\\right)",
+  tex: "V_{DSS}' = \\frac{{V_{DSS,\\infty}'}}{\\sqrt{\\frac{1}{4}+\\frac{{V_{DSS,\\infty}'}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+{U_{T}^{*}}\\cdot\\left(\\ln\\left(\\frac{{E_{sat}}\\cdot{L}}{2\\cdot{U_{T}^{*}}}\\right)-0.6\\right)",
   result: "VDSS",
   resultDim: "voltage",
   vars: ["VDSSL","Ecrit","L","Um"],
@@ -148,7 +148,7 @@ export const ekvLimitedDrainVoltage = {
   id: "ekvLimitedDrainVoltage",
   title: "Half drain-source voltage limited at VDSS'",
   expr: "sqrt(VDSS^2 + Um^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + Um^2 / 4)",
-  tex: "V_{ip} = \\sqrt{{{V_{DSS}'}}^{2}+\\frac{{{m\\,U_{T}}}^{2}}{4}}-\\sqrt{{\\left(\\frac{{V_{DS}}}{2}-{V_{DSS}'}\\right)}^{2}+\\frac{{{m\\,U_{T}}}^{2}}{4}}",
+  tex: "V_{ip} = \\sqrt{{{V_{DSS}'}}^{2}+\\frac{{{U_{T}^{*}}}^{2}}{4}}-\\sqrt{{\\left(\\frac{{V_{DS}}}{2}-{V_{DSS}'}\\right)}^{2}+\\frac{{{U_{T}^{*}}}^{2}}{4}}",
   result: "Vip",
   resultDim: "voltage",
   vars: ["VDSS","Um","VDS"],
@@ -162,7 +162,7 @@ export const ekvReverseCurrent = {
   id: "ekvReverseCurrent",
   title: "Reverse normalised current, saturating at VDSS'",
   expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * Um)))^2",
-  tex: "i_{r} = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}-\\frac{{V_{DS}}}{2}-{V_{ip}}}{2\\cdot{m\\,U_{T}}}\\right)+1\\right)}^{2}",
+  tex: "i_{r} = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}-\\frac{{V_{DS}}}{2}-{V_{ip}}}{2\\cdot{U_{T}^{*}}}\\right)+1\\right)}^{2}",
   result: "IRn",
   resultDim: "dimensionless",
   vars: ["VP","VSB","VDS","Vip","Um"],
@@ -204,7 +204,7 @@ export const ekvGainFactor = {
   id: "ekvGainFactor",
   title: "Gain factor with mobility degradation",
   expr: "kp * W / Leq / (1 + theta * 2 * n * Um * qF + thetaB * VSB)",
-  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{m\\,U_{T}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
+  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{U_{T}^{*}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
   result: "beta",
   resultDim: "transconductanceParameter",
   vars: ["kp","W","Leq","theta","n","Um","qF","thetaB","VSB"],
@@ -218,7 +218,7 @@ export const ekvSpecificCurrent = {
   id: "ekvSpecificCurrent",
   title: "Specific current",
   expr: "2 * n * beta * Um^2",
-  tex: "I_{S} = 2\\cdot{n}\\cdot{\\beta}\\cdot{{m\\,U_{T}}}^{2}",
+  tex: "I_{S} = 2\\cdot{n}\\cdot{\\beta}\\cdot{{U_{T}^{*}}}^{2}",
   result: "IS",
   resultDim: "current",
   vars: ["n","beta","Um"],
@@ -241,18 +241,18 @@ export const ekvDrainCurrent = {
   fn: (IS: Amperes, IC: Ratio, IRn: Ratio, lambda: PerVolt, VDS: Volts): Amperes => ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))) as Amperes,
 } as const satisfies Formula;
 
-/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvNormalisingVoltage, ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCurrent, ekvSlopeFactor, ekvEquivalentLength, ekvForwardCharge, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
-export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, m: number, UT: number, VGS: number, VDS: number, VSB: number): number {
-  const Um = (m * UT); // ekvNormalisingVoltage
+/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCurrent, ekvEquivalentLength, ekvForwardCharge, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
+export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
   const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
+  const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
+  const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
   const IC = sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * Um)))))); // ekvForwardCurrent
   if (IC === 0) return 0; // a source tens of volts above the pinch-off voltage: the channel carries nothing
   const VDSSL = (Um * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))); // ekvLongChannelSaturationVoltage
   const VDSS = ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (Um * ((Math.log(((Ecrit * L) / ((2 * Um)))) - 0.6)))); // ekvSaturationVoltage
   const Vip = (Math.sqrt((sq(VDSS) + (sq(Um) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(Um) / 4)))); // ekvLimitedDrainVoltage
   const IRn = sq(Math.log1p(Math.exp((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * Um)))))); // ekvReverseCurrent
-  const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
   const Leq = (L + ((((VDS / 2) + Vip)) / Ecrit)); // ekvEquivalentLength
   const qF = (Math.sqrt(((1 / 4) + IC)) - (1 / 2)); // ekvForwardCharge
   const beta = (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * Um) * qF)) + (thetaB * VSB)))); // ekvGainFactor
@@ -261,11 +261,12 @@ export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number,
   return ID;
 }
 
-/** EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity, composed from ekvNormalisingVoltage, ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvForwardCurrent (inlined; plain numbers, no allocation). */
-export function ekvInversionCoefficient(Vt0: number, gamma: number, phi: number, sigma: number, m: number, UT: number, VGS: number, VDS: number, VSB: number): number {
-  const Um = (m * UT); // ekvNormalisingVoltage
+/** EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity, composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent (inlined; plain numbers, no allocation). */
+export function ekvInversionCoefficient(Vt0: number, gamma: number, phi: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
   const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
+  const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
+  const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
   const IC = sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * Um)))))); // ekvForwardCurrent
   return IC;
 }

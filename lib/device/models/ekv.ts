@@ -58,10 +58,10 @@ export const ekvParameters: readonly ModelParameter[] = [
   { name: "ecrit", dim: "electricField", meaning: "critical field for velocity saturation (EKV UCRIT)", min: 1e5, max: 1e9, initial: 5e6, absent: defaultEkvCriticalField, geometryScaled: false },
   { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0.05, absent: 0, geometryScaled: false },
   { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0.01, absent: 0, geometryScaled: false },
-  { name: "ideality", dim: "dimensionless", meaning: "subthreshold ideality factor m (EKV's UT taken as m·kT/q; weak-inversion slope n·m·UT·ln10 per decade)", min: 1, max: 2.5, initial: 1.1, absent: 1, geometryScaled: false },
+  { name: "cit", dim: "dimensionless", meaning: "interface-trap capacitance over oxide capacitance Cit/Cox (weak-inversion slope (n + Cit/Cox)·UT·ln10 per decade)", min: 0, max: 3, initial: 0.1, absent: 0, geometryScaled: false },
 ];
 
-// Vector layout: vt0 kp gamma phi lambda theta ecrit thetaB sigma ideality, then W L T.
+// Vector layout: vt0 kp gamma phi lambda theta ecrit thetaB sigma cit, then W L T.
 const forward = (p: Float64Array, vgs: number, vds: number, vsb: number): number =>
   ekvChannelCurrent(p[1]!, p[10]!, p[11]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, p[9]!, thermalVoltage(p[12]! as Kelvin), vgs, vds, vsb);
 
@@ -89,7 +89,7 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   const gamma = (c.gamma ?? 0) as SqrtVolts;
   const phi = (c.phi ?? defaultPhi) as Volts;
   const sigma = (c.sigma ?? 0) as Ratio;
-  const m = (c.ideality ?? 1) as Ratio;
+  const cit = (c.cit ?? 0) as Ratio;
   const theta = (c.theta ?? 0) as PerVolt;
   const thetaB = (c.thetaB ?? 0) as PerVolt;
   const lambda = (c.lambda ?? 0) as PerVolt;
@@ -100,16 +100,15 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   const vds = d as Volts;
   const vsb = b as Volts;
   if (!rec) {
-    const um = ekvNormalisingVoltage.fn(m, u);
     const vt = b > -phi ? ekvThreshold.fn(vt0, gamma, phi, vsb, sigma, vds) : NaN;
     const vp = ekvPinchOffAt(vt0, gamma, phi, sigma, g, d, b);
+    const um = ekvNormalisingVoltage.fn(u, cit, ekvSlopeFactor.fn(gamma, vp, phi, u));
     const ic = ekvForwardCurrent.fn(vp, vsb, um);
     const vdsat = ekvDrainSaturationVoltage.fn(um, ic, e, l);
-    const id = ekvChannelCurrent(c.kp, w, l, vt0, gamma, phi, lambda, theta, thetaB, e, sigma, m, u, g, d, b);
+    const id = ekvChannelCurrent(c.kp, w, l, vt0, gamma, phi, lambda, theta, thetaB, e, sigma, cit, u, g, d, b);
     return { region: d < vdsat ? "triode" : "saturation", id, vt, vov: g - vt, vdsat, ic };
   }
   rec.assume(`UT = kT/q = ${+(u * 1e3).toPrecision(4)} mV at the card's temperature ${+(T - 273.15).toFixed(2)} °C.`);
-  const um = c.ideality === undefined ? ekvNormalisingVoltage.fn(m, u) : rec.calc(ekvNormalisingVoltage, [m, u], "the card's subthreshold ideality factor");
   if (c.ecrit === undefined) rec.assume(`Critical field Esat = ${defaultEkvCriticalField / 1e6} V/µm, the EPFL-EKV 2.6 default (from memory): the card gives none.`);
   let vt = NaN as Volts;
   if (b > -phi) {
@@ -118,6 +117,8 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   } else rec.note("Threshold", `Forward body bias VSB = ${+b.toPrecision(4)} V beyond −2φF: the threshold is not defined there; the EKV current below is.`);
   const vgp = rec.calc(ekvEffectiveGate, [vgs, vsb, vt0, sigma, vds, phi, gamma]);
   const vp = vgp > 0 ? rec.calc(ekvPinchOffVoltage, [vgp, phi, gamma]) : rec.calc(ekvPinchOffFloor, [phi], "VG' ≤ 0: no channel charge");
+  const n = rec.calc(ekvSlopeFactor, [gamma, vp, phi, u]);
+  const um = c.cit === undefined ? ekvNormalisingVoltage.fn(u, cit, n) : rec.calc(ekvNormalisingVoltage, [u, cit, n], "interface traps steepen nothing above threshold: Um cancels there");
   const ic = rec.calc(ekvForwardCurrent, [vp, vsb, um], "the inversion coefficient");
   const vdsat = rec.calc(ekvDrainSaturationVoltage, [um, ic, e, l]);
   const region = d < vdsat ? "triode" : "saturation";
@@ -130,7 +131,6 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   const vip = rec.calc(ekvLimitedDrainVoltage, [vdss, um, vds]);
   const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, um]);
   const leq = rec.calc(ekvEquivalentLength, [l, vds, vip, e]);
-  const n = rec.calc(ekvSlopeFactor, [gamma, vp, phi, u]);
   const qf = rec.calc(ekvForwardCharge, [ic]);
   const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, um, qf, thetaB, vsb]);
   const is = rec.calc(ekvSpecificCurrent, [n, beta, um]);
