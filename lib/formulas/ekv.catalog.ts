@@ -21,7 +21,7 @@
  *   the strong-inversion current and VDSS' as they were (a Cit/Cox inside VP would also steepen the
  *   threshold's rise with VSB, which the 180 nm data refuse). With n tied to γ and 2φF, one (γ, 2φF)
  *   pair could not give both the 180 nm devices' body effect and their subthreshold slope
- *   (weak-inversion RMS error 13–33 %); with Cit/Cox fitted it fell to 6–15 %.
+ *   (weak-inversion RMS error 13–33 %); with Cit/Cox fitted (0.10–0.23) it fell to 6–14 %.
  * Terminal voltages are source-referenced here (VGB = VGS + VSB, VS = VSB, VD = VDS + VSB).
  */
 import { defineCompositions, defineFormulas, defineSymbols } from "./define.js";
