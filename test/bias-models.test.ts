@@ -17,7 +17,7 @@ import { expectReevaluates } from "./support/reevaluate.js";
 const base = { name: "invented-n", polarity: "nmos", kp: 150e-6, vt0: 0.6, lambda: 0.04, gamma: 0.45, phi: 0.7 };
 const cards = {
   "square-law-mobility": { ...base, model: "square-law-mobility", theta: 0.2, ecrit: 4e6 },
-  ekv: { ...base, model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 4e6, sigma: 0.01 },
+  ekv: { ...base, model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 4e6, sigma: 0.01, cit: 0.15 },
 } as unknown as Record<string, DeviceCard>;
 const mirror = (c: DeviceCard): DeviceCard => ({ ...c, name: "invented-p", polarity: "pmos", vt0: -c.vt0 as never });
 const dev = (card: DeviceCard) => ({ card, w: 20e-6 as Stage["device"]["w"], l: 1e-6 as Stage["device"]["l"] });

@@ -31,7 +31,7 @@ const base = { name: "invented-n", polarity: "nmos", kp: 180e-6, vt0: 0.55, gamm
 const cards: Record<ModelId, DeviceCard> = {
   "square-law": base as unknown as DeviceCard,
   "square-law-mobility": { ...base, model: "square-law-mobility", theta: 0.25, ecrit: 3e6 } as unknown as DeviceCard,
-  ekv: { ...base, model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 3e6, sigma: 0.02 } as unknown as DeviceCard,
+  ekv: { ...base, model: "ekv", theta: 0.2, thetaB: 0.05, ecrit: 3e6, sigma: 0.02, cit: 0.15 } as unknown as DeviceCard,
 };
 const mirror = (c: DeviceCard): DeviceCard => ({ ...c, name: "invented-p", polarity: "pmos", vt0: -c.vt0 as never });
 const at = (c: DeviceCard, w = 10e-6, l = 0.5e-6) => device(c, meters(w), meters(l));
@@ -79,6 +79,8 @@ describe("model registry and parameter vectors", () => {
     expect(() => at({ ...base, model: "square-law-mobility", sigma: 0.1 } as unknown as DeviceCard)).toThrow(/\.sigma/);
     expect(() => at({ ...base, model: "ekv", ecrit: -1 } as unknown as DeviceCard)).toThrow(/\.ecrit/);
     expect(() => at({ ...base, model: "ekv", thetaB: 1.5 } as unknown as DeviceCard)).toThrow(/\.thetaB/);
+    expect(() => at({ ...base, model: "ekv", cit: -0.1 } as unknown as DeviceCard)).toThrow(/\.cit/);
+    expect(() => at({ ...base, model: "square-law-mobility", cit: 0.1 } as unknown as DeviceCard)).toThrow(/\.cit/);
   });
 });
 
@@ -173,6 +175,20 @@ describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995)"
       const decade = ekv.current(p, vgs + n * ut * Math.LN10, 1, 0) / id;
       expect(Math.abs(Math.log10(decade) - 1)).toBeLessThan(0.03);
     }
+  });
+  it("with interface traps, gm/ID → 1/((n + Cit/Cox)·UT) in weak inversion while the strong-inversion current stays as without them (within 0.1 %)", () => {
+    const cit = 0.25;
+    const card = { name: "invented-ekv-cit", polarity: "nmos", model: "ekv", kp: 100e-6, vt0: 0.5, gamma: 0.6, phi: 0.7, lambda: 0, theta: 0, ecrit: 1e12, sigma: 0, cit } as unknown as DeviceCard;
+    const p = parameterVector(at(card, 10e-6, 10e-6));
+    const p1 = parameterVector(longEkv(0.6));
+    for (const vgs of [0.0, 0.1]) {
+      const vp = ekvFormulas.ekvPinchOffVoltage.fn(ekvFormulas.ekvEffectiveGate.fn(vgs as never, 0 as never, 0.5 as never, 0 as never, 0 as never, 0.7 as never, 0.6 as never), 0.7 as never, 0.6 as never);
+      const n = 1 + 0.6 / (2 * Math.sqrt(vp + 0.7));
+      conductances(ekv, p, vgs, 1, 0, g);
+      expect(Math.abs((g[0]! / ekv.current(p, vgs, 1, 0)) * (n + cit) * ut - 1)).toBeLessThan(0.03);
+    }
+    // far above threshold the traps' term cancels: the same current as without it
+    for (const vov of [1, 2]) expect(Math.abs(ekv.current(p, 0.5 + vov, 3.3, 0) / ekv.current(p1, 0.5 + vov, 3.3, 0) - 1)).toBeLessThan(1e-3);
   });
   it("gm/ID levels off at 1/(n·UT) in weak inversion and never rises past it", () => {
     const p = parameterVector(longEkv(0.6));

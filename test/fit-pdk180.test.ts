@@ -8,8 +8,9 @@
  * Targets (issue 8): EKV per L RMS ≤ 5 % and 95th percentile ≤ 10 % for
  * L ≥ 0.5 µm, RMS ≤ 10 % at L = 0.28 µm; temperature predictions RMS ≤ 8 %
  * for L ≥ 1 µm. Where the target is met the test asserts it; where it is not
- * yet met (named below) it asserts the figure reached, so a regression still
- * fails, and the README says so.
+ * yet met (named below: NMOS L = 0.5 µm and one temperature case, by tenths of a
+ * percent) it asserts the
+ * figure reached, so a regression still fails, and the README says so.
  */
 import { describe, expect, it } from "vitest";
 import type { ErrorSummary } from "../lib/fit/accuracy.js";
@@ -27,13 +28,14 @@ const sweep = (pol: "nmos" | "pmos", l: number, tempC = 25) =>
   select(sets[pol], { w: 10e-6, l: l * 1e-6, temp: tempC + 273.15, currentSign: pol === "pmos" ? "magnitude" : "spice" });
 const pct = (e: ErrorSummary) => `${(100 * e.rms!).toFixed(1)} % / ${(100 * e.p95!).toFixed(1)} % / ${(100 * e.max!).toFixed(1)} %`;
 
-/** Targets not yet met, with the figure reached (RMS, 95th percentile) as the bound that guards against regression. */
+/**
+ * Targets not yet met, with the figure reached (RMS, 95th percentile) as the bound that guards against
+ * regression: NMOS L = 0.5 µm, whose low-VDS transfer curves keep a bump of +10 to +17 % a few hundred
+ * millivolts above threshold (more under reverse body bias) that no parameter set of the model removes;
+ * RMS 4.99 % (met) and 95th percentile 10.4 % reached.
+ */
 const shortfalls: Record<string, { rms: number; p95: number }> = {
-  "nmos 0.5": { rms: 0.07, p95: 0.13 },
-  // after the EKV model's θ moved onto the source-end charge and gained θB (i8-models), both starts
-  // of these two land in a poor minimum; before that change they reached 6.2 % / 12.5 % and 4.0 % / 8.5 %
-  "pmos 0.5": { rms: 0.45, p95: 0.65 },
-  "pmos 1": { rms: 0.55, p95: 0.55 },
+  "nmos 0.5": { rms: 0.05, p95: 0.105 },
 };
 
 describe("EKV fitted per L to the open 180 nm measurements (GF180MCU 3.3 V, W = 10 µm, 25 °C, |ID| ≥ 10 nA)", { timeout: 120_000 }, () => {
@@ -71,8 +73,9 @@ describe("temperature: card at 25 °C plus fitted drift predicts −40 °C and 1
           expect(tf.alphaVt).toBeLessThan(0);
           expect(tf.muExp).toBeGreaterThan(0.5);
           expect(tf.muExp).toBeLessThan(2.5);
-          // target 8 % not yet met by EKV: PMOS L = 1 µm (its 25 °C fit misses, above), NMOS L = 1 µm (8.5 % at −40 °C)
-          const bound = model.id === "ekv" && l === 1 ? (pol === "pmos" ? 0.6 : 0.09) : 0.08;
+          // the target, 8 %, for both models at every L ≥ 1 µm but one named shortfall: EKV NMOS L = 1 µm at 125 °C
+          // reaches 8.06 % (7.8 % at −40 °C), asserted as ≤ 8.1 % against regression
+          const bound = model.id === "ekv" && pol === "nmos" && l === 1 ? 0.081 : 0.08;
           for (const p of tf.predictions) expect(p.inWindow.rms!).toBeLessThanOrEqual(bound);
         }
       });

@@ -66,6 +66,7 @@ const cardFields: Record<string, Dimension | "string"> = {
   thetaB: "inverseVoltage",
   ecrit: "electricField",
   sigma: "dimensionless",
+  cit: "dimensionless",
 };
 const temperatureFields: Record<string, Dimension> = { t0: "temperature", alphaVt: "voltagePerKelvin", muExp: "dimensionless" };
 const capacitanceFields: Record<string, Dimension> = {

@@ -184,6 +184,7 @@ function analyzeSingle<Id extends string, C>(spec: SingleTransistorSpec<Id, C>, 
       if (card.ecrit !== undefined) rec.input("ESAT", card.ecrit, "electricField", `card ${card.name}`);
       if (card.thetaB !== undefined) rec.input("THETAB", card.thetaB, "inverseVoltage", `card ${card.name}`);
       if (card.sigma !== undefined) rec.input("SIGMA", card.sigma, "dimensionless", `card ${card.name}`);
+      if (card.cit !== undefined) rec.input("CIT/COX", card.cit, "dimensionless", `card ${card.name}`);
     }
     rec.assume(bodyToRail ? `Body tied to the ${pmos ? "upper (VDD)" : "lower (VSS)"} rail: the body effect applies when the source is off that rail.` : "Body tied to the source: VSB = 0, no body effect.");
     if (pmos)

@@ -26,6 +26,7 @@ export const modelOnlyFields = {
   ecrit: ["square-law-mobility", "ekv"],
   thetaB: ["ekv"],
   sigma: ["ekv"],
+  cit: ["ekv"],
 } as const satisfies Record<string, readonly ModelId[]>;
 
 /** The model a card names; the square law when it names none. */
@@ -66,6 +67,8 @@ export interface DeviceCard {
   readonly thetaB?: PerVolt;
   /** ekv only: drain-induced threshold lowering, VP shifts by σ·VDS; ≥ 0, 0 when omitted. */
   readonly sigma?: Ratio;
+  /** ekv only: interface-trap capacitance over oxide capacitance Cit/Cox ≥ 0, added to the slope factor in weak inversion only (slope (n + Cit/Cox)·UT·ln10 per decade; threshold and strong-inversion current unchanged); 0 when omitted. */
+  readonly cit?: Ratio;
   readonly temperature?: TemperatureCoefficients;
   /** SPICE Level 1 capacitance parameters (TOX, overlaps, junctions), for frequency analysis. */
   readonly capacitance?: ProcessCapacitances;
@@ -140,6 +143,7 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   if (card.thetaB !== undefined && card.thetaB >= 1) throw new InputError(card.thetaB, "θB < 1 1/V (so that 1 + θB·VSB > 0 down to VSB = −1 V)", at("thetaB"));
   if (card.ecrit !== undefined) requirePositive(card.ecrit, at("ecrit"), "a critical field Esat > 0 in V/m (typically 10⁶ to 10⁷)");
   if (card.sigma !== undefined) requireNonNegative(card.sigma, at("sigma"), "a threshold lowering σ ≥ 0 (volts of VP per volt of VDS)");
+  if (card.cit !== undefined) requireNonNegative(card.cit, at("cit"), "an interface-trap capacitance ratio Cit/Cox ≥ 0 (0: EKV proper)");
   if (card.temperature) {
     requirePositive(card.temperature.t0, at("temperature.t0"), "a reference temperature > 0 K");
     requireFinite(card.temperature.alphaVt, at("temperature.alphaVt"), "a threshold drift in V/K");

@@ -71,7 +71,7 @@ export function deviceCurrent(dev: Device, g: number, d: number, b: number, clm:
   const s = c.polarity === "nmos" ? 1 : -1;
   const model = c.model;
   if (model === "ekv")
-    return ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.thetaB ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, thermalVoltage(cardTemperature(c)), g, d, b);
+    return ekvChannelCurrent(c.kp, dev.w, dev.l, s * c.vt0, c.gamma ?? 0, c.phi ?? defaultPhi, c.lambda ?? 0, c.theta ?? 0, c.thetaB ?? 0, c.ecrit ?? defaultEkvCriticalField, c.sigma ?? 0, c.cit ?? 0, thermalVoltage(cardTemperature(c)), g, d, b);
   const vt = thresholdMagnitude((s * c.vt0) as Volts, (c.gamma ?? 0) as SqrtVolts, (c.phi ?? defaultPhi) as Volts, b as Volts);
   if (model === "square-law-mobility") return mobilityChannelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, c.theta ?? 0, c.ecrit ?? Infinity, dev.l);
   return channelCurrent((c.kp * dev.w) / dev.l, g - vt, d, c.lambda ?? 0, clm);

@@ -156,7 +156,8 @@ function modelSmallSignal(dev: Device, op: OperatingPoint, rec?: Derivation): Sm
     // The slope factor the model uses at this bias (EKV 2.6 form).
     const vp = vpOf(op, dev);
     const n = ekvSlopeFactor.fn((c.gamma ?? 0) as SqrtVolts, vp as Volts, (c.phi ?? defaultPhi) as Volts, ut);
-    inv = { ic: op.ic, level: inversionLevelOf(op.ic), slopeFactor: n, ut };
+    // with interface traps the weak-inversion limit of gm/ID is 1/((n + Cit/Cox)·UT): report n + Cit/Cox
+    inv = { ic: op.ic, level: inversionLevelOf(op.ic), slopeFactor: (n + (c.cit ?? 0)) as Ratio, ut };
   } else if (op.region !== "cutoff") inv = inversion(((op.k / 2) * op.vov * op.vov) as Amperes, op.k);
   if (op.region === "cutoff") return { op, gm: 0 as Siemens, gmb: 0 as Siemens, gds: 0 as Siemens, ro: Infinity as Ohms, intrinsicGain: 0 as Ratio, gmOverId: undefined, ron: Infinity as Ohms, inversion: undefined };
   return { op, gm, gmb, gds, ro, intrinsicGain: a0, gmOverId, ron, inversion: inv };

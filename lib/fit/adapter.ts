@@ -25,7 +25,7 @@ const needs: Record<string, "body" | "saturation" | undefined> = { gamma: "body"
 export function fitModelOf(model: DeviceModel): FitModel {
   const names = model.parameters.map((q) => q.name);
   const at = (n: string) => names.indexOf(n);
-  const [iVt, iKp, iGamma, iPhi] = [at("vt0"), at("kp"), at("gamma"), at("phi")];
+  const [iVt, iKp, iGamma, iPhi, iCit] = [at("vt0"), at("kp"), at("gamma"), at("phi"), at("cit")];
   const heldValue = model.parameters.map((q) => (Number.isFinite(q.absent) ? q.absent : q.initial));
   const parameters: FitParameter[] = model.parameters.map((q) => ({
     name: q.name,
@@ -64,7 +64,7 @@ export function fitModelOf(model: DeviceModel): FitModel {
     start(_s, est) {
       const p = Float64Array.from(heldValue);
       model.parameters.forEach((q, j) => {
-        if (needs[q.name] === undefined || q.name === "lambda" || q.name === "gamma") p[j] = Number.isFinite(q.initial) ? q.initial : heldValue[j]!;
+        p[j] = Number.isFinite(q.initial) ? q.initial : heldValue[j]!;
       });
       p[iVt] = est.vt;
       p[iKp] = est.kp;
@@ -86,8 +86,9 @@ export function fitModelOf(model: DeviceModel): FitModel {
     },
     slope(p) {
       // n = 1 + γ/(2√(2φF + VSB)) at VSB = 0 (EKV 1995); 1.3 without a body-effect term (common practice)
+      // plus Cit/Cox where the model has it (the weak-inversion slope is (n + Cit/Cox)·UT)
       const g = iGamma >= 0 ? p[iGamma]! : 0;
-      return g > 0 && iPhi >= 0 ? 1 + g / (2 * Math.sqrt(p[iPhi]!)) : 1.3;
+      return (g > 0 && iPhi >= 0 ? 1 + g / (2 * Math.sqrt(p[iPhi]!)) : 1.3) + (iCit >= 0 ? p[iCit]! : 0);
     },
     atTemperature(p, t0, t, alphaVt, muExp, out) {
       out.set(p);

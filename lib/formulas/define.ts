@@ -41,9 +41,33 @@ export interface Formula<Args extends readonly number[] = any[], R extends numbe
   readonly fn: (...args: Args) => R;
 }
 
+/**
+ * One step of a composition: a formula id of the same catalog; or a choice between two formulas
+ * with the same result by a condition (a mathjs comparison over symbols known at that point);
+ * or an early return of a constant when a condition holds.
+ */
+export type CompositionStep =
+  | string
+  | { readonly when: string; readonly then: string; readonly otherwise: string }
+  | { readonly returnWhen: string; readonly value: number; readonly why: string };
+
+/**
+ * A model quantity computed by chaining the catalog's formulas in order: the generator inlines
+ * every step's expression into one plain-number function over `inputs` (in that order), with
+ * no branded types and no per-call objects, for the hot path. Each step's result is a symbol
+ * the later steps read; the function returns the last step's result.
+ */
+export interface CompositionSpec {
+  readonly title: string;
+  /** The function's parameters, symbol names, in order. */
+  readonly inputs: readonly string[];
+  readonly steps: readonly CompositionStep[];
+}
+
 /** Identity helpers that keep literal types for the generator and the checker. */
 export const defineSymbols = <const S extends Record<string, SymbolSpec>>(s: S) => s;
 export const defineFormulas = <const F extends Record<string, FormulaSpec>>(f: F) => f;
+export const defineCompositions = <const C extends Record<string, CompositionSpec>>(c: C) => c;
 
 /** x², used by generated code for `^2`. */
 export const sq = (x: number): number => x * x;

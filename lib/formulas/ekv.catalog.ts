@@ -14,10 +14,17 @@
  * - mobility degradation acts on the source-end inversion charge 2·n·UT·qf (≈ VOV in strong
  *   inversion) and on VSB (θB, the depletion charge raising the vertical field) rather than on VP:
  *   with θ·VP a scratch fit to the measured 180 nm NMOS (L = 1 µm) stayed at 7.5 % RMS, the
- *   transfer curves under reverse body bias off by up to 18 %; with θ and θB it reached 4.7 %.
+ *   transfer curves under reverse body bias off by up to 18 %; with θ and θB it reached 4.7 %;
+ * - interface traps add Cit/Cox to the slope factor in weak inversion only (pinchoff's choice): the
+ *   normalising voltage of the charges and currents is UT·(1 + Cit/Cox / n), which makes the
+ *   weak-inversion slope (n + Cit/Cox)·UT·ln10 per decade and leaves the threshold, its body effect,
+ *   the strong-inversion current and VDSS' as they were (a Cit/Cox inside VP would also steepen the
+ *   threshold's rise with VSB, which the 180 nm data refuse). With n tied to γ and 2φF, one (γ, 2φF)
+ *   pair could not give both the 180 nm devices' body effect and their subthreshold slope
+ *   (weak-inversion RMS error 13–33 %); with Cit/Cox fitted (0.10–0.23) it fell to 6–14 %.
  * Terminal voltages are source-referenced here (VGB = VGS + VSB, VS = VSB, VD = VDS + VSB).
  */
-import { defineFormulas, defineSymbols } from "./define.js";
+import { defineCompositions, defineFormulas, defineSymbols } from "./define.js";
 
 const ekv95 = "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995";
 const ekv26 = "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)";
@@ -37,6 +44,8 @@ export const symbols = defineSymbols({
   thetaB: { tex: "\\theta_{B}", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage" },
   Ecrit: { tex: "E_{sat}", dim: "electricField", meaning: "critical field for velocity saturation" },
   sigma: { tex: "\\sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering coefficient" },
+  cit: { tex: "C_{it}/C_{ox}", dim: "dimensionless", meaning: "interface-trap capacitance over oxide capacitance (adds to the weak-inversion slope factor)" },
+  Um: { tex: "U_{T}^{*}", dim: "voltage", meaning: "normalising voltage of the EKV charges and currents, UT·(1 + Cit/Cox / n)" },
   UT: { tex: "U_{T}", dim: "voltage", meaning: "thermal voltage kT/q" },
   n: { tex: "n", dim: "dimensionless", meaning: "subthreshold slope factor" },
   IC: { tex: "IC", dim: "dimensionless", meaning: "inversion coefficient IF/IS (forward over specific current)" },
@@ -56,6 +65,14 @@ export const symbols = defineSymbols({
 });
 
 export const formulas = defineFormulas({
+  ekvNormalisingVoltage: {
+    title: "Normalising voltage of the charges and currents",
+    // Cit/Cox = 0 is EKV proper. Otherwise the weak-inversion slope is (n + Cit/Cox)·UT·ln10 per decade, while the
+    // threshold, the strong-inversion current 2·n·β·Um²·((VP − VS)/(2·Um))² and VDSS' do not move (Um cancels there).
+    result: "Um",
+    expr: "UT * (1 + cit / n)",
+    source: "slope factor n + Cit/Cox with interface traps (Tsividis & McAndrew, Operation and Modeling of the MOS Transistor, 3rd ed., 2011, from memory), applied through the EKV normalisation only (pinchoff's choice, not in EKV 2.6)",
+  },
   ekvThreshold: {
     title: "Threshold (VP = VS), with body effect and drain-induced lowering",
     // Solving VP(VG) = VS with the pinch-off voltage below gives this exactly.
@@ -68,7 +85,7 @@ export const formulas = defineFormulas({
     // 2·VDSS of EKV 2.6 (→ VP − VS in strong inversion, lowered by velocity saturation) plus the
     // 4·UT a weakly inverted channel needs to saturate (common practice).
     result: "VDsat",
-    expr: "2 * UT * sqrt(IC) / (sqrt(1 / 4 + UT * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * UT",
+    expr: "2 * Um * sqrt(IC) / (sqrt(1 / 4 + Um * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * Um",
     source: ekv26,
   },
   ekvEffectiveGate: {
@@ -99,34 +116,34 @@ export const formulas = defineFormulas({
   ekvForwardCurrent: {
     title: "Forward normalised current (inversion coefficient)",
     result: "IC",
-    expr: "log1p(exp((VP - VSB) / (2 * UT)))^2",
+    expr: "log1p(exp((VP - VSB) / (2 * Um)))^2",
     source: ekv95,
   },
   ekvLongChannelSaturationVoltage: {
     title: "Saturation voltage for the reverse current, long channel",
     // Stated apart so the velocity-saturated form below takes √IC and ln IC once.
     result: "VDSSL",
-    expr: "UT * (sqrt(IC) - 3 / 4 * log(IC))",
+    expr: "Um * (sqrt(IC) - 3 / 4 * log(IC))",
     source: ekv26,
   },
   ekvSaturationVoltage: {
     title: "Saturation voltage for the reverse current, with velocity saturation",
     // VC·(√(1/4 + x/VC) − 1/2) rationalised to x/(√(1/4 + x/VC) + 1/2), VC = Esat·L: exact and free of cancellation for long channels.
     result: "VDSS",
-    expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
+    expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + Um * (log(Ecrit * L / (2 * Um)) - 0.6)",
     source: ekv26,
   },
   ekvLimitedDrainVoltage: {
     title: "Half drain-source voltage limited at VDSS'",
     // ≈ VDS/2 well below VDSS', → 2·VDSS' − VDS/2 well above it, smooth over ΔV = UT/2 between.
     result: "Vip",
-    expr: "sqrt(VDSS^2 + UT^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + UT^2 / 4)",
+    expr: "sqrt(VDSS^2 + Um^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + Um^2 / 4)",
     source: ekv26,
   },
   ekvReverseCurrent: {
     title: "Reverse normalised current, saturating at VDSS'",
     result: "IRn",
-    expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * UT)))^2",
+    expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * Um)))^2",
     source: ekv26,
   },
   ekvEquivalentLength: {
@@ -145,13 +162,13 @@ export const formulas = defineFormulas({
     title: "Gain factor with mobility degradation",
     // 2·n·UT·qf is the source-end inversion charge as a voltage, ≈ VOV in strong inversion and → 0 in weak inversion.
     result: "beta",
-    expr: "kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB)",
+    expr: "kp * W / Leq / (1 + theta * 2 * n * Um * qF + thetaB * VSB)",
     source: "mobility degradation µ0/(1 + θ·VOV + θB·VSB) (Tsividis & McAndrew, 3rd ed., 2011, from memory) with VOV as the EKV source-end charge 2·n·UT·qf; EKV 2.6 uses θ·VP instead",
   },
   ekvSpecificCurrent: {
     title: "Specific current",
     result: "IS",
-    expr: "2 * n * beta * UT^2",
+    expr: "2 * n * beta * Um^2",
     source: ekv95,
   },
   ekvDrainCurrent: {
@@ -159,5 +176,39 @@ export const formulas = defineFormulas({
     result: "ID",
     expr: "IS * (IC - IRn) * (1 + lambda * VDS)",
     source: ekv95,
+  },
+});
+
+/** The hot path, generated from the formulas above (lib/formulas/generate.ts); terminal voltages in device polarity, VDS ≥ 0. */
+const pinchOff = [
+  "ekvEffectiveGate",
+  { when: "VGp > 0", then: "ekvPinchOffVoltage", otherwise: "ekvPinchOffFloor" },
+  "ekvSlopeFactor",
+  "ekvNormalisingVoltage",
+  "ekvForwardCurrent",
+] as const;
+
+export const compositions = defineCompositions({
+  ekvChannelCurrent: {
+    title: "EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows)",
+    inputs: ["kp", "W", "L", "Vt0", "gamma", "phi", "lambda", "theta", "thetaB", "Ecrit", "sigma", "cit", "UT", "VGS", "VDS", "VSB"],
+    steps: [
+      ...pinchOff,
+      { returnWhen: "IC == 0", value: 0, why: "a source tens of volts above the pinch-off voltage: the channel carries nothing" },
+      "ekvLongChannelSaturationVoltage",
+      "ekvSaturationVoltage",
+      "ekvLimitedDrainVoltage",
+      "ekvReverseCurrent",
+      "ekvEquivalentLength",
+      "ekvForwardCharge",
+      "ekvGainFactor",
+      "ekvSpecificCurrent",
+      "ekvDrainCurrent",
+    ],
+  },
+  ekvInversionCoefficient: {
+    title: "EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity",
+    inputs: ["Vt0", "gamma", "phi", "sigma", "cit", "UT", "VGS", "VDS", "VSB"],
+    steps: pinchOff,
   },
 });

@@ -3,6 +3,20 @@ import type { Formula } from "./define.js";
 import { sq } from "./define.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerMeter } from "../quantity.js";
 
+/** Normalising voltage of the charges and currents: Um = UT * (1 + cit / n) */
+export const ekvNormalisingVoltage = {
+  id: "ekvNormalisingVoltage",
+  title: "Normalising voltage of the charges and currents",
+  expr: "UT * (1 + cit / n)",
+  tex: "U_{T}^{*} = {U_{T}}\\cdot\\left(1+\\frac{{C_{it}/C_{ox}}}{{n}}\\right)",
+  result: "Um",
+  resultDim: "voltage",
+  vars: ["UT","cit","n"],
+  dims: ["voltage","dimensionless","dimensionless"],
+  source: "slope factor n + Cit/Cox with interface traps (Tsividis & McAndrew, Operation and Modeling of the MOS Transistor, 3rd ed., 2011, from memory), applied through the EKV normalisation only (pinchoff's choice, not in EKV 2.6)",
+  fn: (UT: Volts, cit: Ratio, n: Ratio): Volts => (UT * ((1 + (cit / n)))) as Volts,
+} as const satisfies Formula;
+
 /** Threshold (VP = VS), with body effect and drain-induced lowering: Vt = Vt0 + gamma * (sqrt(phi + VSB) - sqrt(phi)) - sigma * VDS */
 export const ekvThreshold = {
   id: "ekvThreshold",
@@ -17,18 +31,18 @@ export const ekvThreshold = {
   fn: (Vt0: Volts, gamma: SqrtVolts, phi: Volts, VSB: Volts, sigma: Ratio, VDS: Volts): Volts => ((Vt0 + (gamma * ((Math.sqrt((phi + VSB)) - Math.sqrt(phi))))) - (sigma * VDS)) as Volts,
 } as const satisfies Formula;
 
-/** Drain-source saturation voltage, all regions: VDsat = 2 * UT * sqrt(IC) / (sqrt(1 / 4 + UT * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * UT */
+/** Drain-source saturation voltage, all regions: VDsat = 2 * Um * sqrt(IC) / (sqrt(1 / 4 + Um * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * Um */
 export const ekvDrainSaturationVoltage = {
   id: "ekvDrainSaturationVoltage",
   title: "Drain-source saturation voltage, all regions",
-  expr: "2 * UT * sqrt(IC) / (sqrt(1 / 4 + UT * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * UT",
-  tex: "V_{D,sat} = \\frac{2\\cdot{U_{T}}\\cdot\\sqrt{{IC}}}{\\sqrt{\\frac{1}{4}+\\frac{{U_{T}}\\cdot\\sqrt{{IC}}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+4\\cdot{U_{T}}",
+  expr: "2 * Um * sqrt(IC) / (sqrt(1 / 4 + Um * sqrt(IC) / (Ecrit * L)) + 1 / 2) + 4 * Um",
+  tex: "V_{D,sat} = \\frac{2\\cdot{U_{T}^{*}}\\cdot\\sqrt{{IC}}}{\\sqrt{\\frac{1}{4}+\\frac{{U_{T}^{*}}\\cdot\\sqrt{{IC}}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+4\\cdot{U_{T}^{*}}",
   result: "VDsat",
   resultDim: "voltage",
-  vars: ["UT","IC","Ecrit","L"],
+  vars: ["Um","IC","Ecrit","L"],
   dims: ["voltage","dimensionless","electricField","length"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (UT: Volts, IC: Ratio, Ecrit: VoltsPerMeter, L: Meters): Volts => ((((2 * UT) * Math.sqrt(IC)) / ((Math.sqrt(((1 / 4) + ((UT * Math.sqrt(IC)) / ((Ecrit * L))))) + (1 / 2)))) + (4 * UT)) as Volts,
+  fn: (Um: Volts, IC: Ratio, Ecrit: VoltsPerMeter, L: Meters): Volts => ((((2 * Um) * Math.sqrt(IC)) / ((Math.sqrt(((1 / 4) + ((Um * Math.sqrt(IC)) / ((Ecrit * L))))) + (1 / 2)))) + (4 * Um)) as Volts,
 } as const satisfies Formula;
 
 /** Effective gate voltage: VGp = VGS + VSB - Vt0 + sigma * VDS + phi + gamma * sqrt(phi) */
@@ -87,74 +101,74 @@ export const ekvSlopeFactor = {
   fn: (gamma: SqrtVolts, VP: Volts, phi: Volts, UT: Volts): Ratio => (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))) as Ratio,
 } as const satisfies Formula;
 
-/** Forward normalised current (inversion coefficient): IC = log1p(exp((VP - VSB) / (2 * UT)))^2 */
+/** Forward normalised current (inversion coefficient): IC = log1p(exp((VP - VSB) / (2 * Um)))^2 */
 export const ekvForwardCurrent = {
   id: "ekvForwardCurrent",
   title: "Forward normalised current (inversion coefficient)",
-  expr: "log1p(exp((VP - VSB) / (2 * UT)))^2",
-  tex: "IC = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}}{2\\cdot{U_{T}}}\\right)+1\\right)}^{2}",
+  expr: "log1p(exp((VP - VSB) / (2 * Um)))^2",
+  tex: "IC = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}}{2\\cdot{U_{T}^{*}}}\\right)+1\\right)}^{2}",
   result: "IC",
   resultDim: "dimensionless",
-  vars: ["VP","VSB","UT"],
+  vars: ["VP","VSB","Um"],
   dims: ["voltage","voltage","voltage"],
   source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
-  fn: (VP: Volts, VSB: Volts, UT: Volts): Ratio => sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * UT)))))) as Ratio,
+  fn: (VP: Volts, VSB: Volts, Um: Volts): Ratio => sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * Um)))))) as Ratio,
 } as const satisfies Formula;
 
-/** Saturation voltage for the reverse current, long channel: VDSSL = UT * (sqrt(IC) - 3 / 4 * log(IC)) */
+/** Saturation voltage for the reverse current, long channel: VDSSL = Um * (sqrt(IC) - 3 / 4 * log(IC)) */
 export const ekvLongChannelSaturationVoltage = {
   id: "ekvLongChannelSaturationVoltage",
   title: "Saturation voltage for the reverse current, long channel",
-  expr: "UT * (sqrt(IC) - 3 / 4 * log(IC))",
-  tex: "V_{DSS,\\infty}' = {U_{T}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)",
+  expr: "Um * (sqrt(IC) - 3 / 4 * log(IC))",
+  tex: "V_{DSS,\\infty}' = {U_{T}^{*}}\\cdot\\left(\\sqrt{{IC}}-\\frac{3}{4}\\cdot\\ln\\left({IC}\\right)\\right)",
   result: "VDSSL",
   resultDim: "voltage",
-  vars: ["UT","IC"],
+  vars: ["Um","IC"],
   dims: ["voltage","dimensionless"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (UT: Volts, IC: Ratio): Volts => (UT * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))) as Volts,
+  fn: (Um: Volts, IC: Ratio): Volts => (Um * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))) as Volts,
 } as const satisfies Formula;
 
-/** Saturation voltage for the reverse current, with velocity saturation: VDSS = VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6) */
+/** Saturation voltage for the reverse current, with velocity saturation: VDSS = VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + Um * (log(Ecrit * L / (2 * Um)) - 0.6) */
 export const ekvSaturationVoltage = {
   id: "ekvSaturationVoltage",
   title: "Saturation voltage for the reverse current, with velocity saturation",
-  expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + UT * (log(Ecrit * L / (2 * UT)) - 0.6)",
-  tex: "V_{DSS}' = \\frac{{V_{DSS,\\infty}'}}{\\sqrt{\\frac{1}{4}+\\frac{{V_{DSS,\\infty}'}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+{U_{T}}\\cdot\\left(\\ln\\left(\\frac{{E_{sat}}\\cdot{L}}{2\\cdot{U_{T}}}\\right)-0.6\\right)",
+  expr: "VDSSL / (sqrt(1 / 4 + VDSSL / (Ecrit * L)) + 1 / 2) + Um * (log(Ecrit * L / (2 * Um)) - 0.6)",
+  tex: "V_{DSS}' = \\frac{{V_{DSS,\\infty}'}}{\\sqrt{\\frac{1}{4}+\\frac{{V_{DSS,\\infty}'}}{{E_{sat}}\\cdot{L}}}+\\frac{1}{2}}+{U_{T}^{*}}\\cdot\\left(\\ln\\left(\\frac{{E_{sat}}\\cdot{L}}{2\\cdot{U_{T}^{*}}}\\right)-0.6\\right)",
   result: "VDSS",
   resultDim: "voltage",
-  vars: ["VDSSL","Ecrit","L","UT"],
+  vars: ["VDSSL","Ecrit","L","Um"],
   dims: ["voltage","electricField","length","voltage"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (VDSSL: Volts, Ecrit: VoltsPerMeter, L: Meters, UT: Volts): Volts => ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (UT * ((Math.log(((Ecrit * L) / ((2 * UT)))) - 0.6)))) as Volts,
+  fn: (VDSSL: Volts, Ecrit: VoltsPerMeter, L: Meters, Um: Volts): Volts => ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (Um * ((Math.log(((Ecrit * L) / ((2 * Um)))) - 0.6)))) as Volts,
 } as const satisfies Formula;
 
-/** Half drain-source voltage limited at VDSS': Vip = sqrt(VDSS^2 + UT^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + UT^2 / 4) */
+/** Half drain-source voltage limited at VDSS': Vip = sqrt(VDSS^2 + Um^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + Um^2 / 4) */
 export const ekvLimitedDrainVoltage = {
   id: "ekvLimitedDrainVoltage",
   title: "Half drain-source voltage limited at VDSS'",
-  expr: "sqrt(VDSS^2 + UT^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + UT^2 / 4)",
-  tex: "V_{ip} = \\sqrt{{{V_{DSS}'}}^{2}+\\frac{{{U_{T}}}^{2}}{4}}-\\sqrt{{\\left(\\frac{{V_{DS}}}{2}-{V_{DSS}'}\\right)}^{2}+\\frac{{{U_{T}}}^{2}}{4}}",
+  expr: "sqrt(VDSS^2 + Um^2 / 4) - sqrt((VDS / 2 - VDSS)^2 + Um^2 / 4)",
+  tex: "V_{ip} = \\sqrt{{{V_{DSS}'}}^{2}+\\frac{{{U_{T}^{*}}}^{2}}{4}}-\\sqrt{{\\left(\\frac{{V_{DS}}}{2}-{V_{DSS}'}\\right)}^{2}+\\frac{{{U_{T}^{*}}}^{2}}{4}}",
   result: "Vip",
   resultDim: "voltage",
-  vars: ["VDSS","UT","VDS"],
+  vars: ["VDSS","Um","VDS"],
   dims: ["voltage","voltage","voltage"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (VDSS: Volts, UT: Volts, VDS: Volts): Volts => (Math.sqrt((sq(VDSS) + (sq(UT) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(UT) / 4)))) as Volts,
+  fn: (VDSS: Volts, Um: Volts, VDS: Volts): Volts => (Math.sqrt((sq(VDSS) + (sq(Um) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(Um) / 4)))) as Volts,
 } as const satisfies Formula;
 
-/** Reverse normalised current, saturating at VDSS': IRn = log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * UT)))^2 */
+/** Reverse normalised current, saturating at VDSS': IRn = log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * Um)))^2 */
 export const ekvReverseCurrent = {
   id: "ekvReverseCurrent",
   title: "Reverse normalised current, saturating at VDSS'",
-  expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * UT)))^2",
-  tex: "i_{r} = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}-\\frac{{V_{DS}}}{2}-{V_{ip}}}{2\\cdot{U_{T}}}\\right)+1\\right)}^{2}",
+  expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * Um)))^2",
+  tex: "i_{r} = {\\ln\\left(\\exp\\left(\\frac{{V_{P}}-{V_{SB}}-\\frac{{V_{DS}}}{2}-{V_{ip}}}{2\\cdot{U_{T}^{*}}}\\right)+1\\right)}^{2}",
   result: "IRn",
   resultDim: "dimensionless",
-  vars: ["VP","VSB","VDS","Vip","UT"],
+  vars: ["VP","VSB","VDS","Vip","Um"],
   dims: ["voltage","voltage","voltage","voltage","voltage"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (VP: Volts, VSB: Volts, VDS: Volts, Vip: Volts, UT: Volts): Ratio => sq(Math.log1p(Math.exp((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * UT)))))) as Ratio,
+  fn: (VP: Volts, VSB: Volts, VDS: Volts, Vip: Volts, Um: Volts): Ratio => sq(Math.log1p(Math.exp((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * Um)))))) as Ratio,
 } as const satisfies Formula;
 
 /** Equivalent channel length with velocity saturation: Leq = L + (VDS / 2 + Vip) / Ecrit */
@@ -185,32 +199,32 @@ export const ekvForwardCharge = {
   fn: (IC: Ratio): Ratio => (Math.sqrt(((1 / 4) + IC)) - (1 / 2)) as Ratio,
 } as const satisfies Formula;
 
-/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB) */
+/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * 2 * n * Um * qF + thetaB * VSB) */
 export const ekvGainFactor = {
   id: "ekvGainFactor",
   title: "Gain factor with mobility degradation",
-  expr: "kp * W / Leq / (1 + theta * 2 * n * UT * qF + thetaB * VSB)",
-  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{U_{T}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
+  expr: "kp * W / Leq / (1 + theta * 2 * n * Um * qF + thetaB * VSB)",
+  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{U_{T}^{*}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
   result: "beta",
   resultDim: "transconductanceParameter",
-  vars: ["kp","W","Leq","theta","n","UT","qF","thetaB","VSB"],
+  vars: ["kp","W","Leq","theta","n","Um","qF","thetaB","VSB"],
   dims: ["transconductanceParameter","length","length","inverseVoltage","dimensionless","voltage","dimensionless","inverseVoltage","voltage"],
   source: "mobility degradation µ0/(1 + θ·VOV + θB·VSB) (Tsividis & McAndrew, 3rd ed., 2011, from memory) with VOV as the EKV source-end charge 2·n·UT·qf; EKV 2.6 uses θ·VP instead",
-  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, n: Ratio, UT: Volts, qF: Ratio, thetaB: PerVolt, VSB: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * UT) * qF)) + (thetaB * VSB)))) as AmperesPerVoltSquared,
+  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, n: Ratio, Um: Volts, qF: Ratio, thetaB: PerVolt, VSB: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * Um) * qF)) + (thetaB * VSB)))) as AmperesPerVoltSquared,
 } as const satisfies Formula;
 
-/** Specific current: IS = 2 * n * beta * UT^2 */
+/** Specific current: IS = 2 * n * beta * Um^2 */
 export const ekvSpecificCurrent = {
   id: "ekvSpecificCurrent",
   title: "Specific current",
-  expr: "2 * n * beta * UT^2",
-  tex: "I_{S} = 2\\cdot{n}\\cdot{\\beta}\\cdot{{U_{T}}}^{2}",
+  expr: "2 * n * beta * Um^2",
+  tex: "I_{S} = 2\\cdot{n}\\cdot{\\beta}\\cdot{{U_{T}^{*}}}^{2}",
   result: "IS",
   resultDim: "current",
-  vars: ["n","beta","UT"],
+  vars: ["n","beta","Um"],
   dims: ["dimensionless","transconductanceParameter","voltage"],
   source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
-  fn: (n: Ratio, beta: AmperesPerVoltSquared, UT: Volts): Amperes => (((2 * n) * beta) * sq(UT)) as Amperes,
+  fn: (n: Ratio, beta: AmperesPerVoltSquared, Um: Volts): Amperes => (((2 * n) * beta) * sq(Um)) as Amperes,
 } as const satisfies Formula;
 
 /** Drain current, all regions: ID = IS * (IC - IRn) * (1 + lambda * VDS) */
@@ -226,3 +240,33 @@ export const ekvDrainCurrent = {
   source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
   fn: (IS: Amperes, IC: Ratio, IRn: Ratio, lambda: PerVolt, VDS: Volts): Amperes => ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))) as Amperes,
 } as const satisfies Formula;
+
+/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCurrent, ekvEquivalentLength, ekvForwardCharge, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
+export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
+  const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
+  const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
+  const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
+  const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
+  const IC = sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * Um)))))); // ekvForwardCurrent
+  if (IC === 0) return 0; // a source tens of volts above the pinch-off voltage: the channel carries nothing
+  const VDSSL = (Um * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))); // ekvLongChannelSaturationVoltage
+  const VDSS = ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (Um * ((Math.log(((Ecrit * L) / ((2 * Um)))) - 0.6)))); // ekvSaturationVoltage
+  const Vip = (Math.sqrt((sq(VDSS) + (sq(Um) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(Um) / 4)))); // ekvLimitedDrainVoltage
+  const IRn = sq(Math.log1p(Math.exp((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * Um)))))); // ekvReverseCurrent
+  const Leq = (L + ((((VDS / 2) + Vip)) / Ecrit)); // ekvEquivalentLength
+  const qF = (Math.sqrt(((1 / 4) + IC)) - (1 / 2)); // ekvForwardCharge
+  const beta = (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * Um) * qF)) + (thetaB * VSB)))); // ekvGainFactor
+  const IS = (((2 * n) * beta) * sq(Um)); // ekvSpecificCurrent
+  const ID = ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))); // ekvDrainCurrent
+  return ID;
+}
+
+/** EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity, composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent (inlined; plain numbers, no allocation). */
+export function ekvInversionCoefficient(Vt0: number, gamma: number, phi: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
+  const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
+  const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
+  const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
+  const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
+  const IC = sq(Math.log1p(Math.exp((((VP - VSB)) / ((2 * Um)))))); // ekvForwardCurrent
+  return IC;
+}

@@ -4,13 +4,20 @@
  * its metadata. Run `npm run gen`; `npm run gen -- --check` fails when a
  * generated file is stale (the test suite runs that check).
  *
+ * A catalog may also export `compositions` (`CompositionSpec`, define.ts): a model
+ * quantity as a chain of its formulas. Each becomes one exported function whose body
+ * is the steps' expressions inlined in order (`const <result> = <expression>;`), plain
+ * numbers in and out, so the hot path is the catalog's equations with no hand-written
+ * copy, no branded-type wrappers and no allocation. A step that reads a symbol no
+ * input or earlier step provides, or a result defined twice, is refused.
+ *
  * mathjs is used here, at build time, so the generated code needs none.
  */
 import { readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import { parse, type MathNode } from "mathjs";
-import type { FormulaSpec, SymbolSpec } from "./define.js";
+import type { CompositionSpec, CompositionStep, FormulaSpec, SymbolSpec } from "./define.js";
 import { dimensions, type Dimension } from "../quantity.js";
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -52,6 +59,7 @@ interface Catalog {
   file: string;
   symbols: Record<string, SymbolSpec>;
   formulas: Record<string, FormulaSpec>;
+  compositions?: Record<string, CompositionSpec>;
 }
 
 export async function loadCatalogs(): Promise<Catalog[]> {
@@ -59,7 +67,7 @@ export async function loadCatalogs(): Promise<Catalog[]> {
   const out: Catalog[] = [];
   for (const file of files) {
     const mod = (await import(pathToFileURL(join(here, file)).href)) as Omit<Catalog, "file">;
-    out.push({ file, symbols: mod.symbols ?? {}, formulas: mod.formulas ?? {} });
+    out.push({ file, symbols: mod.symbols ?? {}, formulas: mod.formulas ?? {}, compositions: mod.compositions ?? {} });
   }
   return out;
 }
@@ -90,8 +98,16 @@ export function refuseRestatements(catalogs: Catalog[]): void {
     }
 }
 
-function toJs(node: MathNode, where: string): string {
+const comparisons: Record<string, string> = { ">": ">", "<": "<", ">=": ">=", "<=": "<=", "==": "===", "!=": "!==" };
+
+function toJs(node: MathNode, where: string, condition = false): string {
   const n = node as MathNode & Record<string, any>;
+  if (condition) {
+    // a composition's condition: one comparison of two expressions
+    const op = n.type === "OperatorNode" ? comparisons[n.op as string] : undefined;
+    if (!op) throw new Error(`${where}: a condition must be one comparison (> < >= <= == !=), got ${node.toString()}`);
+    return `${toJs(n.args[0], where)} ${op} ${toJs(n.args[1], where)}`;
+  }
   switch (n.type) {
     case "ConstantNode":
       return String(n.value);
@@ -143,6 +159,67 @@ export function texOf(expr: string, symbols: Record<string, SymbolSpec>): string
   } as never);
 }
 
+/** One composition as a function: every step inlined, in order (see the header). */
+export function composition(c: Catalog, id: string, spec: CompositionSpec): string {
+  const where = `${c.file}: composition ${id}`;
+  const known = new Set<string>(spec.inputs);
+  if (known.size !== spec.inputs.length) throw new Error(`${where}: an input is listed twice`);
+  const unused = new Set<string>(spec.inputs);
+  const read = (node: MathNode, at: string) => {
+    for (const v of freeSymbols(node)) {
+      if (!known.has(v)) throw new Error(`${at}: ${v} is neither an input nor the result of an earlier step`);
+      unused.delete(v);
+    }
+  };
+  const formula = (fid: string) => {
+    const f = c.formulas[fid];
+    if (!f) throw new Error(`${where}: step ${fid} is not a formula of ${c.file}`);
+    const node = parse(f.expr);
+    read(node, `${where}, step ${fid}`);
+    return { f, js: toJs(node, `${where}, step ${fid}`) };
+  };
+  const define = (result: string, at: string) => {
+    if (known.has(result)) throw new Error(`${at}: ${result} is already defined (an input or an earlier step)`);
+    known.add(result);
+  };
+  const lines: string[] = [];
+  const used: string[] = [];
+  let last: string | undefined;
+  for (const step of spec.steps as readonly CompositionStep[]) {
+    if (typeof step === "string") {
+      const { f, js } = formula(step);
+      define(f.result, `${where}, step ${step}`);
+      lines.push(`  const ${f.result} = ${js}; // ${step}`);
+      used.push(step);
+      last = f.result;
+    } else if ("when" in step) {
+      const cond = parse(step.when);
+      read(cond, `${where}, condition ${step.when}`);
+      const a = formula(step.then);
+      const b = formula(step.otherwise);
+      if (a.f.result !== b.f.result) throw new Error(`${where}: ${step.then} and ${step.otherwise} define different symbols (${a.f.result}, ${b.f.result})`);
+      define(a.f.result, `${where}, step ${step.then}`);
+      lines.push(`  const ${a.f.result} = ${toJs(cond, where, true)} ? ${a.js} : ${b.js}; // ${step.then} / ${step.otherwise}`);
+      used.push(step.then, step.otherwise);
+      last = a.f.result;
+    } else {
+      const cond = parse(step.returnWhen);
+      read(cond, `${where}, condition ${step.returnWhen}`);
+      if (!Number.isFinite(step.value)) throw new Error(`${where}: the early return value must be a finite number`);
+      lines.push(`  if (${toJs(cond, where, true)}) return ${step.value}; // ${step.why}`);
+    }
+  }
+  if (!last) throw new Error(`${where}: no steps`);
+  if (unused.size) throw new Error(`${where}: inputs ${[...unused].join(", ")} are never read`);
+  return [
+    `/** ${spec.title}, composed from ${used.join(", ")} (inlined; plain numbers, no allocation). */`,
+    `export function ${id}(${spec.inputs.map((v) => `${v}: number`).join(", ")}): number {`,
+    ...lines,
+    `  return ${last};`,
+    `}`,
+  ].join("\n");
+}
+
 export function generate(c: Catalog, symbols: Record<string, SymbolSpec>): string {
   const used = new Set<string>();
   const blocks: string[] = [];
@@ -175,6 +252,7 @@ export function generate(c: Catalog, symbols: Record<string, SymbolSpec>): strin
       ].join("\n"),
     );
   }
+  for (const [id, spec] of Object.entries(c.compositions ?? {})) blocks.push(composition(c, id, spec));
   const names = [...used].sort();
   return [
     `// Generated by lib/formulas/generate.ts from ${c.file}. Do not edit; run \`npm run gen\`.`,

@@ -5,6 +5,8 @@
  * Closed form, no allocation; the card's temperature sets UT = kT/q.
  */
 import {
+  ekvChannelCurrent,
+  ekvInversionCoefficient,
   ekvDrainCurrent,
   ekvDrainSaturationVoltage,
   ekvThreshold,
@@ -19,10 +21,11 @@ import {
   ekvReverseCurrent,
   ekvSaturationVoltage,
   ekvLongChannelSaturationVoltage,
+  ekvNormalisingVoltage,
   ekvSlopeFactor,
   ekvSpecificCurrent,
 } from "../../formulas/ekv.formulas.js";
-import { thermalVoltage, type AmperesPerVoltSquared, type Kelvin, type Meters, type PerVolt, type Ratio, type SqrtVolts, type Volts, type VoltsPerMeter } from "../../quantity.js";
+import { thermalVoltage, type Kelvin, type PerVolt, type Ratio, type SqrtVolts, type Volts, type VoltsPerMeter } from "../../quantity.js";
 import { reversible, type DeviceModel, type ModelBias, type ModelParameter } from "../model.js";
 import type { Derivation } from "../../record/derivation.js";
 import { cardTemperature, defaultPhi, type Device } from "../card.js";
@@ -43,48 +46,24 @@ export function ekvPinchOffAt(vt0: number, gamma: number, phi: number, sigma: nu
 }
 
 /**
- * Channel current for VDS ≥ 0 in device polarity (VGS, VDS, VSB source-referenced).
- * Where the forward current underflows (a source tens of volts above the pinch-off
- * voltage) the channel carries nothing and 0 is returned.
+ * Channel current for VDS ≥ 0 in device polarity (VGS, VDS, VSB source-referenced), and the
+ * inversion coefficient IF/IS: generated from the catalog's compositions (one inlined body of
+ * its formulas, plain numbers, no allocation). Where the forward current underflows (a source
+ * tens of volts above the pinch-off voltage) the channel carries nothing and 0 is returned.
  */
-export function ekvChannelCurrent(
-  kp: number, w: number, l: number, vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, ecrit: number, sigma: number, ut: number,
-  vgs: number, vds: number, vsb: number,
-): number {
-  const u = ut as Volts;
-  const g = gamma as SqrtVolts;
-  const ph = phi as Volts;
-  const e = ecrit as VoltsPerMeter;
-  const len = l as Meters;
-  const vp = ekvPinchOffAt(vt0, g, ph, sigma, vgs, vds, vsb);
-  const ic = ekvForwardCurrent.fn(vp, vsb as Volts, u);
-  if (ic === 0) return 0;
-  const vdss = ekvSaturationVoltage.fn(ekvLongChannelSaturationVoltage.fn(u, ic), e, len, u);
-  const vip = ekvLimitedDrainVoltage.fn(vdss, u, vds as Volts);
-  const ir = ekvReverseCurrent.fn(vp, vsb as Volts, vds as Volts, vip, u);
-  const n = ekvSlopeFactor.fn(g, vp, ph, u);
-  const beta = ekvGainFactor.fn(kp as AmperesPerVoltSquared, w as Meters, ekvEquivalentLength.fn(len, vds as Volts, vip, e), theta as PerVolt, n, u, ekvForwardCharge.fn(ic), thetaB as PerVolt, vsb as Volts);
-  const is = ekvSpecificCurrent.fn(n, beta, u);
-  return ekvDrainCurrent.fn(is, ic, ir, lambda as PerVolt, vds as Volts);
-}
-
-/** The forward normalised current IF/IS, the inversion coefficient, for VDS ≥ 0 in device polarity. */
-export function ekvInversionCoefficient(vt0: number, gamma: number, phi: number, sigma: number, ut: number, vgs: number, vds: number, vsb: number): number {
-  const ph = phi as Volts;
-  const g = gamma as SqrtVolts;
-  const vp = ekvPinchOffAt(vt0, g, ph, sigma, vgs, vds, vsb);
-  return ekvForwardCurrent.fn(vp, vsb as Volts, ut as Volts);
-}
+export { ekvChannelCurrent, ekvInversionCoefficient };
 
 export const ekvParameters: readonly ModelParameter[] = [
   ...mobilityParameters.filter((q) => q.name !== "ecrit"),
   { name: "ecrit", dim: "electricField", meaning: "critical field for velocity saturation (EKV UCRIT)", min: 1e5, max: 1e9, initial: 5e6, absent: defaultEkvCriticalField, geometryScaled: false },
-  { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0, absent: 0, geometryScaled: false },
-  { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0, absent: 0, geometryScaled: false },
+  { name: "thetaB", dim: "inverseVoltage", meaning: "mobility degradation with source-body voltage θB", min: 0, max: 1, initial: 0.05, absent: 0, geometryScaled: false },
+  { name: "sigma", dim: "dimensionless", meaning: "drain-induced threshold lowering σ", min: 0, max: 0.3, initial: 0.01, absent: 0, geometryScaled: false },
+  { name: "cit", dim: "dimensionless", meaning: "interface-trap capacitance over oxide capacitance Cit/Cox (weak-inversion slope (n + Cit/Cox)·UT·ln10 per decade)", min: 0, max: 3, initial: 0.1, absent: 0, geometryScaled: false },
 ];
 
+// Vector layout: vt0 kp gamma phi lambda theta ecrit thetaB sigma cit, then W L T.
 const forward = (p: Float64Array, vgs: number, vds: number, vsb: number): number =>
-  ekvChannelCurrent(p[1]!, p[9]!, p[10]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, thermalVoltage(p[11]! as Kelvin), vgs, vds, vsb);
+  ekvChannelCurrent(p[1]!, p[10]!, p[11]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, p[9]!, thermalVoltage(p[12]! as Kelvin), vgs, vds, vsb);
 
 export const ekv: DeviceModel = {
   id: "ekv",
@@ -110,6 +89,7 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   const gamma = (c.gamma ?? 0) as SqrtVolts;
   const phi = (c.phi ?? defaultPhi) as Volts;
   const sigma = (c.sigma ?? 0) as Ratio;
+  const cit = (c.cit ?? 0) as Ratio;
   const theta = (c.theta ?? 0) as PerVolt;
   const thetaB = (c.thetaB ?? 0) as PerVolt;
   const lambda = (c.lambda ?? 0) as PerVolt;
@@ -122,9 +102,10 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   if (!rec) {
     const vt = b > -phi ? ekvThreshold.fn(vt0, gamma, phi, vsb, sigma, vds) : NaN;
     const vp = ekvPinchOffAt(vt0, gamma, phi, sigma, g, d, b);
-    const ic = ekvForwardCurrent.fn(vp, vsb, u);
-    const vdsat = ekvDrainSaturationVoltage.fn(u, ic, e, l);
-    const id = ekvChannelCurrent(c.kp, w, l, vt0, gamma, phi, lambda, theta, thetaB, e, sigma, u, g, d, b);
+    const um = ekvNormalisingVoltage.fn(u, cit, ekvSlopeFactor.fn(gamma, vp, phi, u));
+    const ic = ekvForwardCurrent.fn(vp, vsb, um);
+    const vdsat = ekvDrainSaturationVoltage.fn(um, ic, e, l);
+    const id = ekvChannelCurrent(c.kp, w, l, vt0, gamma, phi, lambda, theta, thetaB, e, sigma, cit, u, g, d, b);
     return { region: d < vdsat ? "triode" : "saturation", id, vt, vov: g - vt, vdsat, ic };
   }
   rec.assume(`UT = kT/q = ${+(u * 1e3).toPrecision(4)} mV at the card's temperature ${+(T - 273.15).toFixed(2)} °C.`);
@@ -136,22 +117,23 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   } else rec.note("Threshold", `Forward body bias VSB = ${+b.toPrecision(4)} V beyond −2φF: the threshold is not defined there; the EKV current below is.`);
   const vgp = rec.calc(ekvEffectiveGate, [vgs, vsb, vt0, sigma, vds, phi, gamma]);
   const vp = vgp > 0 ? rec.calc(ekvPinchOffVoltage, [vgp, phi, gamma]) : rec.calc(ekvPinchOffFloor, [phi], "VG' ≤ 0: no channel charge");
-  const ic = rec.calc(ekvForwardCurrent, [vp, vsb, u], "the inversion coefficient");
-  const vdsat = rec.calc(ekvDrainSaturationVoltage, [u, ic, e, l]);
+  const n = rec.calc(ekvSlopeFactor, [gamma, vp, phi, u]);
+  const um = c.cit === undefined ? ekvNormalisingVoltage.fn(u, cit, n) : rec.calc(ekvNormalisingVoltage, [u, cit, n], "interface traps steepen nothing above threshold: Um cancels there");
+  const ic = rec.calc(ekvForwardCurrent, [vp, vsb, um], "the inversion coefficient");
+  const vdsat = rec.calc(ekvDrainSaturationVoltage, [um, ic, e, l]);
   const region = d < vdsat ? "triode" : "saturation";
   rec.note(`Region: ${region}`, `${s < 0 ? "VSD" : "VDS"} = ${+d.toPrecision(4)} V ${d < vdsat ? "<" : "≥"} VDsat = ${+vdsat.toPrecision(4)} V; ${ic < 0.1 ? "weak" : ic > 10 ? "strong" : "moderate"} inversion (IC = ${+ic.toPrecision(3)}).`);
   if (ic === 0) {
     rec.note("Drain current", "The forward current underflows: the source is far above the pinch-off voltage and the channel carries nothing.");
     return { region, id: 0, vt, vov: g - vt, vdsat, ic };
   }
-  const vdss = rec.calc(ekvSaturationVoltage, [rec.calc(ekvLongChannelSaturationVoltage, [u, ic]), e, l, u]);
-  const vip = rec.calc(ekvLimitedDrainVoltage, [vdss, u, vds]);
-  const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, u]);
+  const vdss = rec.calc(ekvSaturationVoltage, [rec.calc(ekvLongChannelSaturationVoltage, [um, ic]), e, l, um]);
+  const vip = rec.calc(ekvLimitedDrainVoltage, [vdss, um, vds]);
+  const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, um]);
   const leq = rec.calc(ekvEquivalentLength, [l, vds, vip, e]);
-  const n = rec.calc(ekvSlopeFactor, [gamma, vp, phi, u]);
   const qf = rec.calc(ekvForwardCharge, [ic]);
-  const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, u, qf, thetaB, vsb]);
-  const is = rec.calc(ekvSpecificCurrent, [n, beta, u]);
+  const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, um, qf, thetaB, vsb]);
+  const is = rec.calc(ekvSpecificCurrent, [n, beta, um]);
   const id = rec.calc(ekvDrainCurrent, [is, ic, ir, lambda, vds]);
   return { region, id, vt, vov: g - vt, vdsat, ic };
 }
