@@ -32,6 +32,8 @@ import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
 /** Largest Miller factor 1 + gm1·RX the "small Miller effect" statement allows (common practice). */
 export const cascodeMillerLimit = 3;
+/** Largest CDS2/CO for which the open-circuit estimate may ignore the zero of the capacitance across the cascode. */
+export const cascodeAcrossLimit = 1;
 
 /** The node between the devices and the three node poles of the cascode stage. */
 export interface CascodeFrequencyNodes {
@@ -127,7 +129,15 @@ export function analyzeCascodeFrequency(stage: Stage, analysis: StageAnalysis, s
   }
   const sep = fp1 !== undefined && fp2 !== undefined ? evaluateFormula(ff.poleSeparation, { fp2, fp1 }, rec) : complexPair ? 1 : Infinity;
   const zRatio = fz / (fp1 ?? complexPair!.naturalFrequency);
-  const holds = sep >= dominanceRatio && zRatio >= dominanceRatio;
+  // The capacitance across the cascode device feeds the output forward around the channel (a left-half-plane zero
+  // near the output pole); the open-circuit sum counts it as a pole, so the estimate errs low unless CO outweighs it.
+  const acrossShare = evaluateFormula(ff.cascodeAcrossShare, { CDS2, CO }, rec);
+  const holds = sep >= dominanceRatio && zRatio >= dominanceRatio && acrossShare <= cascodeAcrossLimit;
+  checks.push(
+    stageCheck(`Capacitance across the cascode device ≤ ${cascodeAcrossLimit} × the output capacitance`, acrossShare, "dimensionless", { max: cascodeAcrossLimit }, rec, "the open-circuit estimate takes CDS2 as a pole; its zero is left out"),
+  );
+  if (acrossShare > cascodeAcrossLimit)
+    findings.push(`The capacitance across the cascode device (${fmt(CDS2)} F) is not small beside the output capacitance (${fmt(CO)} F): the zero it makes lies near the output pole, so the open-circuit estimate is low; add the load capacitance or verify by simulation.`);
   checks.push(stageCheck("Upper poles: one dominates (fp2/fp1 ≥ 10)", Number.isFinite(sep) ? sep : 1e12, "dimensionless", { min: dominanceRatio }, rec, "the open-circuit time-constant and Miller estimates' own assumption"));
   checks.push(stageCheck("Zero well above the dominant pole (fz/fp1 ≥ 10)", Number.isFinite(zRatio) ? zRatio : 1e12, "dimensionless", { min: dominanceRatio }, rec));
   if (!holds && !complexPair) findings.push(`The upper poles are not widely separated (fp2/fp1 = ${fmt(sep)}, fz/fp1 = ${fmt(zRatio)}): the estimates are rough; verify by simulation.`);
@@ -161,6 +171,7 @@ export function analyzeCascodeFrequency(stage: Stage, analysis: StageAnalysis, s
     cascode: { rX: RX as Ohms, cX: CX as Farads, gainToX: AvX as Ratio, millerCapacitance: CM as Farads, timeConstantX: tau as Seconds, inputPole: f1 as Hertz, nodePole: f2 as Hertz, outputPole: f3 as Hertz, cascodeCapacitances: c2 },
     checks,
     findings,
+    drive: "voltage",
     circuit: { gateCoupled: false, rs: 0, bypassToIdealSource: false },
   };
 }

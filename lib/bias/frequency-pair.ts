@@ -124,6 +124,7 @@ export function analyzeMirrorPairFrequency(stage: Stage, analysis: StageAnalysis
     pair: { gainBandwidth: gbw as Hertz, outputPole: fp1 as Hertz, mirrorPole: fm as Hertz, mirrorZero: fz as Hertz, mirrorCapacitance: CMIR as Farads, ...(fu !== undefined ? { unityGain: fu as Hertz, phaseMargin: pm! } : {}) },
     checks,
     findings,
+    drive: "voltage",
     circuit: { gateCoupled: false, rs: 0, bypassToIdealSource: false },
   };
 }
