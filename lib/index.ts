@@ -98,6 +98,8 @@ export * as gmIdFormulas from "./formulas/gm-id.formulas.js";
 export * from "./device/capacitance-card.js";
 export { deviceCapacitances, diffusionGeometry, oxidePermittivity, hasCapacitanceData, type DeviceCapacitances } from "./device/capacitance.js";
 export * from "./bias/frequency.js";
+export { frequencyRows, type FrequencyRow } from "./bias/frequency-summary.js";
+export type { MirrorFrequencyNodes } from "./bias/frequency-two-transistor.js";
 export { acCircuit, acDeckText, defaultSweep, type AcCircuit, type AcSweep } from "./bias/frequency-spice.js";
 export * as capacitanceFormulas from "./formulas/capacitance.formulas.js";
 export * as frequencyFormulas from "./formulas/frequency.formulas.js";

@@ -26,7 +26,7 @@ import * as ff from "../formulas/frequency.formulas.js";
 import * as pf from "../formulas/pair.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec, type HighFrequencyResponse } from "./frequency.js";
+import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec, type HighFrequencyResponse, frequencyRecordNote } from "./frequency.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -71,7 +71,7 @@ export function analyzeCascodeFrequency(stage: Stage, analysis: StageAnalysis, s
   const gmb2 = tied ? 0 : m2.smallSignal.gmb;
   const RD = (stage.components as Record<string, number>).rd!;
   if (rec) {
-    rec.note("Frequency response", "Cascode common source: input at M1's gate (signal source in series with its bias), M2's gate at AC ground, output at M2's drain; small-signal values at the operating point.");
+    rec.note(frequencyRecordNote, "Cascode common source: input at M1's gate (signal source in series with its bias), M2's gate at AC ground, output at M2's drain; small-signal values at the operating point.");
     rec.input("Rsig", rsig, "resistance", spec.source ? `${o}: frequency.source.resistance` : `${o}: no source given (ideal voltage source)`);
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);
     rec.assume("The device capacitances are constant at the operating point (small signal).");

@@ -28,7 +28,7 @@ import * as bf from "../formulas/bias.formulas.js";
 import * as ff from "../formulas/frequency.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import { highFrequency, type FrequencyAnalysis, type FrequencyNodes, type FrequencySpec } from "./frequency.js";
+import { highFrequency, type FrequencyAnalysis, type FrequencyNodes, type FrequencySpec, frequencyRecordNote } from "./frequency.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
 /** The mirror's gate node: its resistance, capacitance and own pole. */
@@ -69,7 +69,7 @@ export function analyzeMirrorFrequency(stage: Stage, analysis: StageAnalysis, sp
   const findings: string[] = [];
   const checks: StageCheck[] = [];
   if (rec) {
-    rec.note("Frequency response", "Current mirror driven by a signal current into the reference node (the gates of both devices); output at the output device's drain, loaded by RLOAD. Sources and bodies sit at the rail, so there is no body effect. Small-signal values at the operating point.");
+    rec.note(frequencyRecordNote, "Current mirror driven by a signal current into the reference node (the gates of both devices); output at the output device's drain, loaded by RLOAD. Sources and bodies sit at the rail, so there is no body effect. Small-signal values at the operating point.");
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);
     rec.assume("The signal current source is ideal; the device capacitances are constant at the operating point (small signal).");
   }
@@ -115,7 +115,7 @@ export function analyzeDiodeLoadFrequency(stage: Stage, analysis: StageAnalysis,
   const checks: StageCheck[] = [];
   if (rec) {
     rec.note(
-      "Frequency response",
+      frequencyRecordNote,
       `Common source with a diode-connected ${sameType ? "same-type" : "complementary"} load: input at the driver's gate (signal source in series with its bias), output at the driver's drain; the load is a resistance 1/(gmL + gmbL + gdsL)${bodyRail ? " with its body effect (body at the rail)" : ""}. Small-signal values at the operating point.`,
     );
     rec.input("Rsig", rsig, "resistance", spec.source ? `${o}: frequency.source.resistance` : `${o}: no source given (ideal voltage source)`);

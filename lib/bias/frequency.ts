@@ -145,6 +145,14 @@ export interface FrequencyAnalysis {
   readonly mirror?: MirrorFrequencyNodes;
 }
 
+/** Title of the note that opens every frequency record: the run report files such a record under its own heading. */
+export const frequencyRecordNote = "Frequency response";
+
+/** Whether a record (its JSON form) is a frequency analysis's: its first note is `frequencyRecordNote`. */
+export function isFrequencyRecord(data: { readonly steps: ReadonlyArray<{ readonly kind: string; readonly title?: string }> }): boolean {
+  return data.steps.some((st) => st.kind === "note" && st.title === frequencyRecordNote);
+}
+
 /** The pole-dominance ratio the OCTC and Miller estimates assume (common practice: a decade). */
 export const dominanceRatio = 10;
 /**
@@ -260,7 +268,7 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
   const findings: string[] = [];
   const checks: StageCheck[] = [];
   if (rec) {
-    rec.note("Frequency response", `${follower ? "Source follower: input at the gate, output at the source, drain at AC ground" : "Common source: input at the gate, output at the drain, source at AC ground at signal frequencies"}; small-signal values at the operating point.`);
+    rec.note(frequencyRecordNote, `${follower ? "Source follower: input at the gate, output at the source, drain at AC ground" : "Common source: input at the gate, output at the drain, source at AC ground at signal frequencies"}; small-signal values at the operating point.`);
     rec.input("Rsig", rsig, "resistance", spec.source ? `${o}: frequency.source.resistance` : `${o}: no source given (ideal voltage source)`);
     if (rl !== undefined) rec.input("RL", rl, "resistance", `${o}: frequency.load.resistance`);
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);

@@ -19,6 +19,11 @@ export interface BodeOptions {
 
 const db = (x: number) => 20 * Math.log10(x);
 
+/** Whether a figure (its JSON form) is a Bode plot: a trace carries the magnitude role `bodePlot` gives it. */
+export function isBodeFigure(figure: { readonly data: readonly unknown[] }): boolean {
+  return figure.data.some((t) => (t as { meta?: { role?: unknown } } | null)?.meta?.role === "magnitude");
+}
+
 export function bodePlot(fa: FrequencyAnalysis, opts: BodeOptions = {}): PlotSpec {
   const hi = fa.high.corner;
   const top = Number.isFinite(hi) ? hi * 100 : fa.high.octcCorner * 100;
