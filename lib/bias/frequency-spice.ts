@@ -85,9 +85,12 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     lines.push(`R${p}L ${out} 0 ${spiceNumber(fa.load.resistance)}`);
   }
   if (fa.load.capacitance > 0) lines.push(`C${p}L ${out} 0 ${spiceNumber(fa.load.capacitance)}`);
-  if (!stage.device.card.capacitance && stage.device.card.datasheetCapacitances) {
+  if (!stage.device.card.capacitance && (stage.device.card.datasheetCapacitances || stage.device.card.tableCapacitances)) {
     const c = deviceCapacitances(stage.device, analysis.op);
-    lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`, `C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+    lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`);
+    if (c.cds > 0) lines.push(`C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+    // A table's Cgb (the rest of Cgg) goes to the body node.
+    if (c.cgb > 0) lines.push(`C${p}GB ${n.gate} ${(dc.nodes as Record<string, string>).body ?? n.source} ${spiceNumber(c.cgb)}`);
   }
   // The second device of a mirror or a diode-load stage, at its own nodes (gate, drain, source).
   const second =

@@ -510,9 +510,9 @@ function designCapacitors(
     "Capacitor design",
     `Target low corner ${fmt(target)} Hz. The ${dominant.role} capacitor sees the smallest resistance (${fmt(dominant.rx)} Ω), so it takes the dominant pole (a small resistance needs the largest capacitor, and making it dominant keeps the others small); the other capacitors each take a twentieth of the target, so the dominant pole keeps a margin over the rest after snapping. All are then scaled together so the hand transfer function's corner lands on the target, and chosen from the ${series} series as a set.`,
   );
-  // Drain feedback: the input capacitor's pole goes low enough that its impedance at the corner is a quarter of the
+  // Drain feedback: the input capacitor's pole goes low enough that its impedance at the corner is half the
   // limit beside Rsig + 1/gm (margin for snapping and the final scaling).
-  const inputShare = (rx: number) => (inputShortAgainst !== undefined ? Math.min(nonDominantShare, (feedbackInputShortLimit / 4) * (inputShortAgainst / rx)) : nonDominantShare);
+  const inputShare = (rx: number) => (inputShortAgainst !== undefined ? Math.min(nonDominantShare, (feedbackInputShortLimit / 2) * (inputShortAgainst / rx)) : nonDominantShare);
   const share = (r: { role: CapacitorRole; rx: number }) =>
     r.role === dominant.role ? 1 - missing.filter((m) => m.role !== dominant.role).reduce((a, m) => a + (m.role === "input" ? inputShare(m.rx) : nonDominantShare), 0) - givenSum / target : r.role === "input" ? inputShare(r.rx) : nonDominantShare;
   const ideal = new Map<CapacitorRole, number>();

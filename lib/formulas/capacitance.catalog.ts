@@ -13,6 +13,7 @@ import { defineFormulas, defineSymbols } from "./define.js";
 
 const meyer = "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1";
 const junction = "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1";
+const table = "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)";
 const datasheet = "datasheet capacitances of a discrete MOSFET: Ciss = Cgs + Cgd, Crss = Cgd, Coss = Cds + Cgd (common practice)";
 
 export const symbols = defineSymbols({
@@ -51,6 +52,10 @@ export const symbols = defineSymbols({
   Cdb: { tex: "C_{db}", dim: "capacitance", meaning: "drain-body junction capacitance" },
   Csb: { tex: "C_{sb}", dim: "capacitance", meaning: "source-body junction capacitance" },
   // datasheet
+  // characterisation table (foundry device), per width at the operating point
+  CgsW: { tex: "C_{gs}/W", dim: "capacitancePerWidth", meaning: "gate-source capacitance per width from the characterisation table" },
+  CgdW: { tex: "C_{gd}/W", dim: "capacitancePerWidth", meaning: "gate-drain capacitance per width from the characterisation table" },
+  CggW: { tex: "C_{gg}/W", dim: "capacitancePerWidth", meaning: "total gate capacitance per unit width (from the table)" },
   Ciss: { tex: "C_{iss}", dim: "capacitance", meaning: "input capacitance, drain shorted to source (datasheet)" },
   Crss: { tex: "C_{rss}", dim: "capacitance", meaning: "reverse transfer capacitance (datasheet)" },
   Coss: { tex: "C_{oss}", dim: "capacitance", meaning: "output capacitance, gate shorted to source (datasheet)" },
@@ -111,6 +116,9 @@ export const formulas = defineFormulas({
   drainPerimeterDefault: { title: "Drain perimeter from the diffusion length", result: "PerD", expr: "2 * (W + Ldif)", source: "rectangular diffusion W × Ldif, all four sides (common practice; SPICE Level 1 counts the whole perimeter)" },
   sourceAreaDefault: { title: "Source area from the diffusion length", result: "AS", expr: "W * Ldif", source: "rectangular diffusion W × Ldif (common practice)" },
   sourcePerimeterDefault: { title: "Source perimeter from the diffusion length", result: "PerS", expr: "2 * (W + Ldif)", source: "rectangular diffusion W × Ldif, all four sides (common practice; SPICE Level 1 counts the whole perimeter)" },
+  tableGateSource: { title: "Gate-source capacitance from the characterisation table", result: "Cgs", expr: "CgsW * W", source: table },
+  tableGateDrain: { title: "Gate-drain capacitance from the characterisation table", result: "Cgd", expr: "CgdW * W", source: table },
+  tableGateBody: { title: "Gate-body capacitance from the characterisation table (the rest of Cgg)", result: "Cgb", expr: "(CggW - CgsW - CgdW) * W", source: table },
   datasheetGateSource: { title: "Gate-source capacitance from the datasheet", result: "Cgs", expr: "Ciss - Crss", source: datasheet },
   datasheetGateDrain: { title: "Gate-drain capacitance from the datasheet", result: "Cgd", expr: "Crss", source: datasheet },
   datasheetDrainSource: { title: "Drain-source capacitance from the datasheet", result: "Cds", expr: "Coss - Crss", source: datasheet },

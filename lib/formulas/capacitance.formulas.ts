@@ -269,6 +269,48 @@ export const sourcePerimeterDefault = {
   fn: (W: Meters, Ldif: Meters): Meters => (2 * ((W + Ldif))) as Meters,
 } as const satisfies Formula;
 
+/** Gate-source capacitance from the characterisation table: Cgs = CgsW * W */
+export const tableGateSource = {
+  id: "tableGateSource",
+  title: "Gate-source capacitance from the characterisation table",
+  expr: "CgsW * W",
+  tex: "C_{gs} = {C_{gs}/W}\\cdot{W}",
+  result: "Cgs",
+  resultDim: "capacitance",
+  vars: ["CgsW","W"],
+  dims: ["capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CgsW: FaradsPerMeter, W: Meters): Farads => (CgsW * W) as Farads,
+} as const satisfies Formula;
+
+/** Gate-drain capacitance from the characterisation table: Cgd = CgdW * W */
+export const tableGateDrain = {
+  id: "tableGateDrain",
+  title: "Gate-drain capacitance from the characterisation table",
+  expr: "CgdW * W",
+  tex: "C_{gd} = {C_{gd}/W}\\cdot{W}",
+  result: "Cgd",
+  resultDim: "capacitance",
+  vars: ["CgdW","W"],
+  dims: ["capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CgdW: FaradsPerMeter, W: Meters): Farads => (CgdW * W) as Farads,
+} as const satisfies Formula;
+
+/** Gate-body capacitance from the characterisation table (the rest of Cgg): Cgb = (CggW - CgsW - CgdW) * W */
+export const tableGateBody = {
+  id: "tableGateBody",
+  title: "Gate-body capacitance from the characterisation table (the rest of Cgg)",
+  expr: "(CggW - CgsW - CgdW) * W",
+  tex: "C_{gb} = \\left({C_{gg}/W}-{C_{gs}/W}-{C_{gd}/W}\\right)\\cdot{W}",
+  result: "Cgb",
+  resultDim: "capacitance",
+  vars: ["CggW","CgsW","CgdW","W"],
+  dims: ["capacitancePerWidth","capacitancePerWidth","capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CggW: FaradsPerMeter, CgsW: FaradsPerMeter, CgdW: FaradsPerMeter, W: Meters): Farads => ((((CggW - CgsW) - CgdW)) * W) as Farads,
+} as const satisfies Formula;
+
 /** Gate-source capacitance from the datasheet: Cgs = Ciss - Crss */
 export const datasheetGateSource = {
   id: "datasheetGateSource",

@@ -25,6 +25,7 @@ import type { Amperes, AmperesPerMeter, AmperesPerVoltSquared, Farads, FaradsPer
 import type { Derivation } from "../record/derivation.js";
 import { checkGeometry, snapToGrid, type ProcessDescription } from "../process/description.js";
 import type { DeviceTable } from "../process/characterize.js";
+import type { TableCapacitances } from "../device/capacitance-card.js";
 import { deviceLookup, emptyPoint, lengthBracket, lookupAtLength, mixLengths, type DeviceLookup, type PointValues } from "../process/lookup.js";
 
 export interface EfficiencySpec {
@@ -264,6 +265,21 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
     cgd: r.p.cgdw * w,
     ft,
     squareLaw: sq,
+  };
+}
+
+/**
+ * The sized device's gate capacitances per width, as a card's `tableCapacitances` block: the frequency
+ * analysis then takes Cgs, Cgd and Cgb = Cgg − Cgs − Cgd from the table (interpolated at the operating point,
+ * scaled by the stage's W) instead of a Level 1 estimate, and records the table's fingerprint.
+ */
+export function tableCapacitances(d: EfficiencyDesign): TableCapacitances {
+  return {
+    cgsPerWidth: (d.cgs / d.w) as FaradsPerMeter,
+    cgdPerWidth: (d.cgd / d.w) as FaradsPerMeter,
+    cggPerWidth: (d.cgg / d.w) as FaradsPerMeter,
+    table: d.tableFingerprint,
+    at: `${d.model}, L = ${d.l} m, |VGS| = ${d.vgs.toFixed(4)} V, |VDS| = ${d.vds} V, |VSB| = ${d.vsb} V`,
   };
 }
 
