@@ -93,7 +93,7 @@ export { characterize, defaultGrid, defaultLengths, evenGrid, tableCsv, tableJso
 export { deviceLookup, lookupInto, emptyPoint, type DeviceLookup, type PointValues } from "./process/lookup.js";
 export { simulateDevices, type DeviceBias, type SimulatedDevice } from "./process/device-check.js";
 export { sizeByEfficiency, squareLawCard, tableCapacitances, vgsForEfficiency, type EfficiencySpec, type EfficiencyDesign, type SquareLawDesign } from "./sizing/gm-id.js";
-export type { TableCapacitances } from "./device/capacitance-card.js";
+export type { OverlapParameters, TableCapacitances } from "./device/capacitance-card.js";
 export { verifyStage, correctStage, processCircuit, type StageVerification, type DeviceVerification, type CorrectionOptions, type StageCorrection, type VerifyOptions } from "./bias/simulation-check.js";
 export * as gmIdFormulas from "./formulas/gm-id.formulas.js";
 export * from "./device/capacitance-card.js";

@@ -57,6 +57,26 @@ export interface TableCapacitances {
   readonly table: string;
   /** Where in the table: model, L, |VGS|, |VDS|, |VSB|. */
   readonly at: string;
+  /**
+   * The model card's overlap parameters and the bias they apply at. The simulator's reported Cgs, Cgd, Cgg
+   * (the table's) are the intrinsic ones; the overlaps come from the card (BSIM4 capMod 2).
+   */
+  readonly overlap?: OverlapParameters;
+}
+
+/** BSIM4 overlap parameters of one device (capMod 2), copied from the foundry's model card, with the bias. */
+export interface OverlapParameters {
+  readonly cgso: FaradsPerMeter;
+  readonly cgdo: FaradsPerMeter;
+  readonly cgsl?: FaradsPerMeter;
+  readonly cgdl?: FaradsPerMeter;
+  readonly ckappas?: Volts;
+  readonly ckappad?: Volts;
+  /** |VGS| and |VDS| at the operating point (device polarity). */
+  readonly vgs: Volts;
+  readonly vds: Volts;
+  /** Where the values come from (the library and model). */
+  readonly source: string;
 }
 
 /** Validate a table capacitance block: Cgs/W, Cgd/W ≥ 0, Cgg/W at least their sum, a fingerprint. */
@@ -68,6 +88,13 @@ export function checkTableCapacitances(c: TableCapacitances, at: (f: string) => 
   if (c.cggPerWidth < (c.cgsPerWidth + c.cgdPerWidth) * (1 - 1e-9))
     throw new InputError(c.cggPerWidth, `Cgg/W at least Cgs/W + Cgd/W = ${c.cgsPerWidth + c.cgdPerWidth} F/m (Cgg = Cgs + Cgd + Cgb)`, at("tableCapacitances.cggPerWidth"));
   if (typeof c.table !== "string" || c.table === "") throw new InputError(c.table, "the characterisation table's fingerprint", at("tableCapacitances.table"));
+  const o = c.overlap;
+  if (o !== undefined) {
+    for (const f of ["cgso", "cgdo", "cgsl", "cgdl"] as const) if (o[f] !== undefined || f === "cgso" || f === "cgdo") requireNonNegative(o[f]!, at(`tableCapacitances.overlap.${f}`), `${f.toUpperCase()} ≥ 0 in F/m (the foundry's model card)`);
+    for (const f of ["ckappas", "ckappad"] as const) if (o[f] !== undefined) requirePositive(o[f]!, at(`tableCapacitances.overlap.${f}`), `${f.toUpperCase()} > 0 in V (the foundry's model card; BSIM4 default 0.6)`);
+    requireFinite(o.vgs, at("tableCapacitances.overlap.vgs"), "|VGS| of the operating point in V");
+    requireFinite(o.vds, at("tableCapacitances.overlap.vds"), "|VDS| of the operating point in V");
+  }
   return c;
 }
 

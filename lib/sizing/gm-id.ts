@@ -25,7 +25,7 @@ import type { Amperes, AmperesPerMeter, AmperesPerVoltSquared, Farads, FaradsPer
 import type { Derivation } from "../record/derivation.js";
 import { checkGeometry, snapToGrid, type ProcessDescription } from "../process/description.js";
 import type { DeviceTable } from "../process/characterize.js";
-import type { TableCapacitances } from "../device/capacitance-card.js";
+import type { OverlapParameters, TableCapacitances } from "../device/capacitance-card.js";
 import { deviceLookup, emptyPoint, lengthBracket, lookupAtLength, mixLengths, type DeviceLookup, type PointValues } from "../process/lookup.js";
 
 export interface EfficiencySpec {
@@ -273,8 +273,9 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
  * analysis then takes Cgs, Cgd and Cgb = Cgg − Cgs − Cgd from the table (interpolated at the operating point,
  * scaled by the stage's W) instead of a Level 1 estimate, and records the table's fingerprint.
  */
-export function tableCapacitances(d: EfficiencyDesign): TableCapacitances {
+export function tableCapacitances(d: EfficiencyDesign, overlap?: Omit<OverlapParameters, "vgs" | "vds">): TableCapacitances {
   return {
+    ...(overlap ? { overlap: { ...overlap, vgs: d.vgs as Volts, vds: d.vds as Volts } } : {}),
     cgsPerWidth: (d.cgs / d.w) as FaradsPerMeter,
     cgdPerWidth: (d.cgd / d.w) as FaradsPerMeter,
     cggPerWidth: (d.cgg / d.w) as FaradsPerMeter,
