@@ -124,6 +124,33 @@ for (let i = 0; cases.length < 240 && i < 20000; i++) {
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
+/** A stage's DC and frequency analyses, or undefined where either refuses it or `usable` rejects the DC point; `spec` is drawn only then. */
+function caseOf(stage: Stage, usable: (dc: StageAnalysis) => boolean, spec: () => FrequencySpec): Case | undefined {
+  let dc: StageAnalysis;
+  try {
+    dc = analyzeStage(stage as never);
+  } catch {
+    return undefined;
+  }
+  if (!usable(dc) || dc.metrics.checks.some((c) => !c.passed)) return undefined;
+  const sp = spec();
+  try {
+    return { stage, dc, fa: analyzeFrequency(stage, dc, sp), spec: sp };
+  } catch {
+    return undefined;
+  }
+}
+
+/** Up to `n` cases from a seeded generator (at most 20000 tries). */
+function collectCases(n: number, make: (i: number) => Case | undefined): Case[] {
+  const out: Case[] = [];
+  for (let i = 0; out.length < n && i < 20000; i++) {
+    const k = make(i);
+    if (k) out.push(k);
+  }
+  return out;
+}
+
 /** All cases' AC circuits in one deck (each under its own prefix), swept once by ngspice. */
 function simulateAll(cs: readonly Case[], prefix: string, sweep: { pointsPerDecade: number; start: number; stop: number }, quantity: "vm" | "vp" = "vm") {
   const lines: string[] = [];
@@ -287,28 +314,17 @@ function randomCascode(i: number): Case | undefined {
     supplies: { vdd: volts(vdd) },
     body: pick(["source", "rail"] as const),
   } as never;
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  const m2 = dc.devices?.M2;
-  if (dc.region !== "saturation" || !m2 || m2.region !== "saturation" || dc.op.saturationMargin < 0.3 || m2.op.saturationMargin < 0.3) return undefined;
-  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
-  const spec: FrequencySpec = { source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    (dc) => {
+      const m2 = dc.devices?.M2;
+      return dc.region === "saturation" && m2 !== undefined && m2.region === "saturation" && dc.op.saturationMargin >= 0.3 && m2.op.saturationMargin >= 0.3;
+    },
+    () => ({ source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } }),
+  );
 }
 
-const cascodes: Case[] = [];
-for (let i = 0; cascodes.length < 80 && i < 20000; i++) {
-  const k = randomCascode(i);
-  if (k) cascodes.push(k);
-}
+const cascodes = collectCases(80, randomCascode);
 
 describe("cascode stage poles against ngspice 39 Level 1 .ac", () => {
   it("dominant pole within 10 % where one pole dominates, on seeded random cascode stages; the input device's Miller factor stays small", () => {
@@ -349,28 +365,17 @@ function randomMirrorPair(i: number): Case | undefined {
     supplies: { vdd: volts(vdd) },
     body: pick(["source", "rail"] as const),
   } as never;
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  const ds = dc.devices ?? {};
-  if (dc.region !== "saturation" || ["M2", "M3", "M4"].some((m) => ds[m]?.region !== "saturation" || ds[m]!.op.saturationMargin < 0.2) || dc.op.saturationMargin < 0.2) return undefined;
-  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
-  const spec: FrequencySpec = { load: { capacitance: farads(logu(0.2e-12, 20e-12)) } };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    (dc) => {
+      const ds = dc.devices ?? {};
+      return !((dc.region !== "saturation" || ["M2", "M3", "M4"].some((m) => ds[m]?.region !== "saturation" || ds[m]!.op.saturationMargin < 0.2) || dc.op.saturationMargin < 0.2) || (dc.metrics.checks.some((c) => !c.passed)));
+    },
+    () => ({ load: { capacitance: farads(logu(0.2e-12, 20e-12)) } }),
+  );
 }
 
-const pairs: Case[] = [];
-for (let i = 0; pairs.length < 60 && i < 20000; i++) {
-  const k = randomMirrorPair(i);
-  if (k) pairs.push(k);
-}
+const pairs = collectCases(60, randomMirrorPair);
 
 /** First frequency where the magnitude crosses `level` downwards (log interpolation). */
 function crossing(freq: number[], mag: number[], level: number): number | undefined {
@@ -460,19 +465,13 @@ function randomMirror(i: number): Case | undefined {
     supplies: { vdd: volts(vdd) },
     body: pick(["source", "rail"] as const),
   } as never;
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  if (dc.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1 || dc.metrics.checks.some((k) => !k.passed)) return undefined;
-  const spec: FrequencySpec = { load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 100e-12)) } };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    (dc) => {
+      return !((dc.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1 || dc.metrics.checks.some((k) => !k.passed)));
+    },
+    () => ({ load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 100e-12)) } }),
+  );
 }
 
 function randomDiodeLoad(i: number): Case | undefined {
@@ -493,32 +492,18 @@ function randomDiodeLoad(i: number): Case | undefined {
     supplies: { vdd: volts(vdd) },
     body: pick(["source", "rail"] as const),
   } as never;
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  const ld = dc.devices?.load;
-  if (dc.region !== "saturation" || !ld || ld.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1 || dc.metrics.checks.some((k) => !k.passed)) return undefined;
-  const spec: FrequencySpec = { source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    (dc) => {
+      const ld = dc.devices?.load;
+      return !((dc.region !== "saturation" || !ld || ld.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1 || dc.metrics.checks.some((k) => !k.passed)));
+    },
+    () => ({ source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } }),
+  );
 }
 
-const mirrors: Case[] = [];
-for (let i = 0; mirrors.length < 60 && i < 20000; i++) {
-  const k = randomMirror(i);
-  if (k) mirrors.push(k);
-}
-const diodeLoads: Case[] = [];
-for (let i = 0; diodeLoads.length < 60 && i < 20000; i++) {
-  const k = randomDiodeLoad(i);
-  if (k) diodeLoads.push(k);
-}
+const mirrors = collectCases(60, randomMirror);
+const diodeLoads = collectCases(60, randomDiodeLoad);
 
 describe("current mirror and diode-load stage poles against ngspice 39 Level 1 .ac", () => {
   it("mirror: transimpedance, upper corner and dominant pole on seeded random mirrors driven by a signal current", () => {
