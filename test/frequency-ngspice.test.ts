@@ -90,30 +90,22 @@ function randomCase(i: number): Case | undefined {
             ? { rf: r(100e3, 10e6), rd: r(500, 50e3), ...(rand() < 0.5 ? { rs: r(100, 5e3) } : {}) }
             : { rg1: r(50e3, 2e6), rg2: r(50e3, 2e6), rs: r(200, 20e3) };
   const stage: Stage = { topology, name: `s${i}`, device: { card: c, w, l }, components, supplies: { vdd: volts(vdd) }, body: pick(["source", "rail"] as const) };
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  if (dc.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1) return undefined;
-  // A source below its rail with the body at the rail forward-biases the junction ngspice models; the square law has none.
-  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
-  if (stage.body === "rail" && (pol === "nmos" ? dc.nodes.source < 0 : dc.nodes.source > vdd)) return undefined;
-  const rl = rand() < 0.7 ? r(1e3, 1e6) : undefined;
-  const design = rand() < 0.75;
-  const spec: FrequencySpec = {
-    source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) },
-    load: { ...(rl !== undefined ? { resistance: rl } : {}), capacitance: farads(rand() < 0.2 ? 0 : logu(1e-12, 200e-12)) },
-    ...(design
-      ? { targets: { lowCorner: hertz(logu(5, 500)) }, series: pick(["E6", "E12"] as const) }
-      : { capacitors: { input: farads(logu(10e-9, 10e-6)), output: farads(logu(100e-9, 10e-6)), bypass: farads(logu(1e-6, 1e-3)) } }),
-  };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    // A source below its rail with the body at the rail forward-biases the junction ngspice models; the square law has none.
+    (dc) => dc.region === "saturation" && dc.op.saturationMargin >= 0.3 && dc.op.vov >= 0.1 && !(stage.body === "rail" && (pol === "nmos" ? dc.nodes.source < 0 : dc.nodes.source > vdd)),
+    () => {
+      const rl = rand() < 0.7 ? r(1e3, 1e6) : undefined;
+      const design = rand() < 0.75;
+      return {
+        source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) },
+        load: { ...(rl !== undefined ? { resistance: rl } : {}), capacitance: farads(rand() < 0.2 ? 0 : logu(1e-12, 200e-12)) },
+        ...(design
+          ? { targets: { lowCorner: hertz(logu(5, 500)) }, series: pick(["E6", "E12"] as const) }
+          : { capacitors: { input: farads(logu(10e-9, 10e-6)), output: farads(logu(100e-9, 10e-6)), bypass: farads(logu(1e-6, 1e-3)) } }),
+      };
+    },
+  );
 }
 
 const cases: Case[] = [];
