@@ -92,12 +92,15 @@ export { readProcess, checkProcess, builtinProcessFile, cornerSection, checkGeom
 export { characterize, defaultGrid, defaultLengths, evenGrid, tableCsv, tableJson, tableFingerprint, cacheFolder, tableQuantities, type DeviceTable, type SweepGrid, type CharacterizeOptions } from "./process/characterize.js";
 export { deviceLookup, lookupInto, emptyPoint, type DeviceLookup, type PointValues } from "./process/lookup.js";
 export { simulateDevices, type DeviceBias, type SimulatedDevice } from "./process/device-check.js";
-export { sizeByEfficiency, sizeByEfficiencyForProcess, squareLawCard, vgsForEfficiency, type EfficiencySpec, type EfficiencyDesign, type ProcessSizingOptions, type SquareLawDesign } from "./sizing/gm-id.js";
+export { sizeByEfficiency, sizeByEfficiencyForProcess, squareLawCard, tableCapacitances, vgsForEfficiency, type EfficiencySpec, type EfficiencyDesign, type ProcessSizingOptions, type SquareLawDesign } from "./sizing/gm-id.js";
+export type { OverlapParameters, TableCapacitances } from "./device/capacitance-card.js";
 export { verifyStage, correctStage, processCircuit, type StageVerification, type DeviceVerification, type CorrectionOptions, type StageCorrection, type VerifyOptions } from "./bias/simulation-check.js";
 export * as gmIdFormulas from "./formulas/gm-id.formulas.js";
 export * from "./device/capacitance-card.js";
 export { deviceCapacitances, diffusionGeometry, oxidePermittivity, hasCapacitanceData, type DeviceCapacitances } from "./device/capacitance.js";
 export * from "./bias/frequency.js";
+export { frequencyRows, type FrequencyRow } from "./bias/frequency-summary.js";
+export type { MirrorFrequencyNodes } from "./bias/frequency-two-transistor.js";
 export { acCircuit, acDeckText, defaultSweep, type AcCircuit, type AcSweep } from "./bias/frequency-spice.js";
 export * as capacitanceFormulas from "./formulas/capacitance.formulas.js";
 export * as frequencyFormulas from "./formulas/frequency.formulas.js";

@@ -106,6 +106,7 @@ export const farads = (v: number) => v as Farads;
 export const seconds = (v: number) => v as Seconds;
 export const hertz = (v: number) => v as Hertz;
 export const faradsPerMeter = (v: number) => v as FaradsPerMeter;
+export const faradsPerSquareMeter = (v: number) => v as FaradsPerSquareMeter;
 export const squareMeters = (v: number) => v as SquareMeters;
 export const ratio = (v: number) => v as Ratio;
 

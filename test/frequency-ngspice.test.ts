@@ -1,8 +1,8 @@
 /**
  * Frequency response by hand analysis against ngspice 39 Level 1 `.ac` on the
  * decks pinchoff exports (lib/bias/frequency-spice.ts). Seeded random stages
- * (common source: four-resistor, fixed-gate, current-source-bias; source
- * follower; NMOS and PMOS; Level 1 capacitance cards and datasheet
+ * (common source: four-resistor, fixed-gate, current-source-bias; drain
+ * feedback with and without a bypassed RS; source follower; NMOS and PMOS; Level 1 capacitance cards and datasheet
  * capacitances; with and without a load resistor and load capacitance;
  * capacitors given or designed for a target corner from E6/E12) are analysed
  * here and swept by ngspice in one deck. The response is read off as
@@ -15,7 +15,14 @@
  * wherever the method's own assumption holds (fp2 ≥ 10·fp1, fz ≥ 10·fp1, as
  * the record checks); the upper corner of the two-pole hand transfer function
  * within 10 % everywhere (real or complex poles); designed capacitors meet their
- * target in ngspice within 15 %. Counts of flagged cases are printed.
+ * target in ngspice within 15 %. Counts of flagged cases are printed. A drain-feedback
+ * stage's low corner is compared where its record's condition holds (the input coupling
+ * capacitor a short at the corner beside Rsig + 1/gm: RF couples the loops otherwise);
+ * designed capacitors always meet it. Further sections: the cascode stage (its dominant
+ * pole where one pole dominates and the capacitance across the cascode device does not
+ * exceed the output capacitance, both checked in its record), the pair with a mirror
+ * load, the current mirror driven by a signal current and the diode-load stage, all
+ * through one comparison helper for the DC-coupled views (`compareUpper`).
  */
 import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
@@ -61,7 +68,7 @@ interface Case {
   spec: FrequencySpec;
 }
 
-const topologies = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower"] as const;
+const topologies = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "drain-feedback"] as const;
 
 function randomCase(i: number): Case | undefined {
   const topology = topologies[i % topologies.length]!;
@@ -79,32 +86,26 @@ function randomCase(i: number): Case | undefined {
         ? { vg: frac(), rd: r(500, 50e3), ...(rand() < 0.5 ? { rs: r(100, 5e3) } : {}) }
         : topology === "current-source-bias"
           ? { vg: frac(), iss: logu(50e-6, 2e-3), rd: r(500, 20e3) }
-          : { rg1: r(50e3, 2e6), rg2: r(50e3, 2e6), rs: r(200, 20e3) };
+          : topology === "drain-feedback"
+            ? { rf: r(100e3, 10e6), rd: r(500, 50e3), ...(rand() < 0.5 ? { rs: r(100, 5e3) } : {}) }
+            : { rg1: r(50e3, 2e6), rg2: r(50e3, 2e6), rs: r(200, 20e3) };
   const stage: Stage = { topology, name: `s${i}`, device: { card: c, w, l }, components, supplies: { vdd: volts(vdd) }, body: pick(["source", "rail"] as const) };
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  if (dc.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1) return undefined;
-  // A source below its rail with the body at the rail forward-biases the junction ngspice models; the square law has none.
-  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
-  if (stage.body === "rail" && (pol === "nmos" ? dc.nodes.source < 0 : dc.nodes.source > vdd)) return undefined;
-  const rl = rand() < 0.7 ? r(1e3, 1e6) : undefined;
-  const design = rand() < 0.75;
-  const spec: FrequencySpec = {
-    source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) },
-    load: { ...(rl !== undefined ? { resistance: rl } : {}), capacitance: farads(rand() < 0.2 ? 0 : logu(1e-12, 200e-12)) },
-    ...(design
-      ? { targets: { lowCorner: hertz(logu(5, 500)) }, series: pick(["E6", "E12"] as const) }
-      : { capacitors: { input: farads(logu(10e-9, 10e-6)), output: farads(logu(100e-9, 10e-6)), bypass: farads(logu(1e-6, 1e-3)) } }),
-  };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    // A source below its rail with the body at the rail forward-biases the junction ngspice models; the square law has none.
+    (dc) => dc.region === "saturation" && dc.op.saturationMargin >= 0.3 && dc.op.vov >= 0.1 && !(stage.body === "rail" && (pol === "nmos" ? dc.nodes.source < 0 : dc.nodes.source > vdd)),
+    () => {
+      const rl = rand() < 0.7 ? r(1e3, 1e6) : undefined;
+      const design = rand() < 0.75;
+      return {
+        source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) },
+        load: { ...(rl !== undefined ? { resistance: rl } : {}), capacitance: farads(rand() < 0.2 ? 0 : logu(1e-12, 200e-12)) },
+        ...(design
+          ? { targets: { lowCorner: hertz(logu(5, 500)) }, series: pick(["E6", "E12"] as const) }
+          : { capacitors: { input: farads(logu(10e-9, 10e-6)), output: farads(logu(100e-9, 10e-6)), bypass: farads(logu(1e-6, 1e-3)) } }),
+      };
+    },
+  );
 }
 
 const cases: Case[] = [];
@@ -115,22 +116,101 @@ for (let i = 0; cases.length < 240 && i < 20000; i++) {
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
+/** A stage's DC and frequency analyses, or undefined where either refuses it or `usable` rejects the DC point; `spec` is drawn only then. */
+function caseOf(stage: Stage, usable: (dc: StageAnalysis) => boolean, spec: () => FrequencySpec): Case | undefined {
+  let dc: StageAnalysis;
+  try {
+    dc = analyzeStage(stage as never);
+  } catch {
+    return undefined;
+  }
+  if (!usable(dc) || dc.metrics.checks.some((c) => !c.passed)) return undefined;
+  const sp = spec();
+  try {
+    return { stage, dc, fa: analyzeFrequency(stage, dc, sp), spec: sp };
+  } catch {
+    return undefined;
+  }
+}
+
+/** Up to `n` cases from a seeded generator (at most 20000 tries). */
+function collectCases(n: number, make: (i: number) => Case | undefined): Case[] {
+  const out: Case[] = [];
+  for (let i = 0; out.length < n && i < 20000; i++) {
+    const k = make(i);
+    if (k) out.push(k);
+  }
+  return out;
+}
+
+/** All cases' AC circuits in one deck (each under its own prefix), swept once by ngspice. */
+function simulateAll(cs: readonly Case[], prefix: string, sweep: { pointsPerDecade: number; start: number; stop: number }, quantity: "vm" | "vp" = "vm") {
+  const lines: string[] = [];
+  const outs: string[] = [];
+  cs.forEach((k, i) => {
+    const ac = acCircuit(k.stage, k.dc, k.fa, `${prefix}${i}_`);
+    lines.push(...ac.lines);
+    outs.push(ac.output);
+  });
+  return runAc(lines.join("\n"), outs, sweep, quantity);
+}
+
+interface UpperStats {
+  stages: number;
+  dom: number;
+  domFlagged: number;
+  complex: number;
+  octcWithin10: number;
+  noCorner: number;
+  worstDom: number;
+  worstTwo: number;
+  worstGain: number;
+}
+
+/**
+ * The upper-corner comparison every DC-coupled view shares: midband within 2 %, the two-pole hand corner within
+ * 10 % (`twoPole`: where the view's second-order coefficient is nodal, not the cascode's fitted one), and the
+ * dominant pole within 10 % wherever the record's own dominance condition holds. Returns the
+ * statistics; failures are appended to `fails`.
+ */
+function compareUpper(cs: readonly Case[], res: { freq: number[]; mag: number[][] }, label: (k: Case, i: number) => string, fails: string[], twoPole = true): UpperStats {
+  const stats: UpperStats = { stages: cs.length, dom: 0, domFlagged: 0, complex: 0, octcWithin10: 0, noCorner: 0, worstDom: 0, worstTwo: 0, worstGain: 0 };
+  cs.forEach((k, i) => {
+    const fa = k.fa;
+    const id = label(k, i);
+    const fh = fa.high.corner;
+    if (!Number.isFinite(fh) || fh > 1e11) {
+      stats.noCorner++;
+      return;
+    }
+    const ng = cornersAround(res.freq, res.mag[i]!, fh / 1e4);
+    const g = rel(ng.mid, Math.abs(fa.midbandGain));
+    stats.worstGain = Math.max(stats.worstGain, g);
+    if (g > 0.02) fails.push(`${id}: midband ${ng.mid} vs hand ${fa.midbandGain}`);
+    const t = rel(fh, ng.high!);
+    stats.worstTwo = Math.max(stats.worstTwo, t);
+    if (twoPole && !(t <= 0.1)) fails.push(`${id}: two-pole corner ${fh} vs ngspice ${ng.high}`);
+    if (fa.high.complexPair) stats.complex++;
+    if (fa.high.dominantPoleHolds) {
+      stats.dom++;
+      const d = rel(fa.high.dominantPole!, ng.high!);
+      stats.worstDom = Math.max(stats.worstDom, d);
+      if (!(d <= 0.1)) fails.push(`${id}: dominant pole ${fa.high.dominantPole} vs ngspice corner ${ng.high}`);
+      if (rel(fa.high.octcCorner, ng.high!) <= 0.1) stats.octcWithin10++;
+    } else stats.domFlagged++;
+  });
+  return stats;
+}
+
 describe("frequency response against ngspice 39 Level 1 .ac", () => {
   it("corners, poles and designed capacitors agree on ≥ 200 seeded random stages", () => {
     expect(cases.length).toBeGreaterThanOrEqual(200);
-    const lines: string[] = [];
-    const outs: string[] = [];
-    cases.forEach((k, i) => {
-      const ac = acCircuit(k.stage, k.dc, k.fa, `x${i}_`);
-      lines.push(...ac.lines);
-      outs.push(ac.output);
-    });
     if (process.env.FREQ_DEBUG) {
       const k = cases[Number(process.env.FREQ_DEBUG)]!;
       console.log(JSON.stringify({ stage: k.stage, ss: k.dc.smallSignal, nodes: k.dc.nodes, fa: { gain: k.fa.midbandGain, nodes: k.fa.nodes } }));
       console.log(acCircuit(k.stage, k.dc, k.fa, "").lines.join("\n"));
     }
-    const res = runAc(lines.join("\n"), outs, { pointsPerDecade: 60, start: 1e-5, stop: 1e12 });
+    const res = simulateAll(cases, "x", { pointsPerDecade: 60, start: 1e-5, stop: 1e12 });
     const stats = { dividerFlagged: 0, noCorner: 0, low: 0, lowFlagged: 0, dom: 0, domFlagged: 0, two: 0, complex: 0, designed: 0, sctcWithin25: 0, octcWithin10: 0, worstLow: 0, worstDom: 0, worstTwo: 0, worstDesign: 0, worstGain: 0 };
     const fails: string[] = [];
     cases.forEach((k, i) => {
@@ -153,11 +233,13 @@ describe("frequency response against ngspice 39 Level 1 .ac", () => {
       if (divider) stats.dividerFlagged++;
       const flat = (fl === 0 || fh >= 100 * fl) && !divider;
       if (flat && g > 0.02) fails.push(`${id}: midband ${ng.mid} vs hand ${fa.midbandGain} (fl ${fl}, fh ${fh}, sctc ${fa.low?.sctcCorner}, ng ${ng.low} ${ng.high}, ${JSON.stringify(fa.high.complexPair ?? fa.high.nonDominantPole)}, rsig ${fa.source.resistance} body ${k.stage.body})`);
-      if (fa.low && flat) {
+      // Drain feedback: the record's own condition for independent low-frequency poles (input capacitor a short at the corner).
+      const coupled = fa.checks.some((c) => c.name.startsWith("Input coupling capacitor a short") && !c.passed);
+      if (fa.low && flat && !coupled) {
         stats.low++;
         const e = rel(fa.low.corner, ng.low!);
         stats.worstLow = Math.max(stats.worstLow, e);
-        if (!(e <= 0.1)) fails.push(`${id}: low corner ${fa.low.corner} vs ngspice ${ng.low}`);
+        if (!(e <= 0.1)) fails.push(`${id}: low corner ${fa.low.corner} vs ngspice ${ng.low} (${JSON.stringify(fa.low.capacitors.map((c) => [c.role, +c.pole.toPrecision(3), +c.resistance.toPrecision(3)]))}, rs ${k.stage.components.rs}, rf ${k.stage.components.rf}, gm ${k.dc.smallSignal.gm.toPrecision(3)}, rsig ${fa.source.resistance.toPrecision(3)})`);
         if (rel(fa.low.sctcCorner, ng.low!) <= 0.25) stats.sctcWithin25++;
         if (k.spec.targets?.lowCorner) {
           stats.designed++;
@@ -224,84 +306,36 @@ function randomCascode(i: number): Case | undefined {
     supplies: { vdd: volts(vdd) },
     body: pick(["source", "rail"] as const),
   } as never;
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  const m2 = dc.devices?.M2;
-  if (dc.region !== "saturation" || !m2 || m2.region !== "saturation" || dc.op.saturationMargin < 0.3 || m2.op.saturationMargin < 0.3) return undefined;
-  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
-  const spec: FrequencySpec = { source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    (dc) => {
+      const m2 = dc.devices?.M2;
+      return dc.region === "saturation" && m2 !== undefined && m2.region === "saturation" && dc.op.saturationMargin >= 0.3 && m2.op.saturationMargin >= 0.3;
+    },
+    () => ({ source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } }),
+  );
 }
 
-const cascodes: Case[] = [];
-for (let i = 0; cascodes.length < 80 && i < 20000; i++) {
-  const k = randomCascode(i);
-  if (k) cascodes.push(k);
-}
+const cascodes = collectCases(80, randomCascode);
 
 describe("cascode stage poles against ngspice 39 Level 1 .ac", () => {
   it("dominant pole within 10 % where one pole dominates, on seeded random cascode stages; the input device's Miller factor stays small", () => {
     expect(cascodes.length).toBeGreaterThanOrEqual(60);
-    const lines: string[] = [];
-    const outs: string[] = [];
-    cascodes.forEach((k, i) => {
-      const ac = acCircuit(k.stage, k.dc, k.fa, `y${i}_`);
-      lines.push(...ac.lines);
-      outs.push(ac.output);
-    });
     if (process.env.CAS_DEBUG) {
       const k = cascodes[Number(process.env.CAS_DEBUG)]!;
       console.log(JSON.stringify({ stage: k.stage, fa: { gain: k.fa.midbandGain, nodes: k.fa.nodes, high: k.fa.high, cascode: k.fa.cascode } }));
       console.log(acCircuit(k.stage, k.dc, k.fa, "").lines.join("\n"));
     }
-    const res = runAc(lines.join("\n"), outs, { pointsPerDecade: 60, start: 1, stop: 1e13 });
-    const over10: string[] = [];
-    const stats = { stages: cascodes.length, dom: 0, domFlagged: 0, complex: 0, octcWithin10: 0, worstDom: 0, worstTwo: 0, worstGain: 0, millerMax: 0, millerFlagged: 0, noCorner: 0 };
+    const res = simulateAll(cascodes, "y", { pointsPerDecade: 60, start: 1, stop: 1e13 });
     const fails: string[] = [];
-    cascodes.forEach((k, i) => {
-      const fa = k.fa;
-      const id = `cascode ${k.stage.device.card.polarity} body ${k.stage.body} #${i}`;
-      const miller = 1 + fa.cascode!.gainToX;
-      stats.millerMax = Math.max(stats.millerMax, miller);
-      if (!fa.checks.find((c) => c.name.startsWith("Miller factor"))!.passed) stats.millerFlagged++;
-      const fh = fa.high.corner;
-      if (!Number.isFinite(fh) || fh > 1e11) {
-        stats.noCorner++;
-        return;
-      }
-      const ng = cornersAround(res.freq, res.mag[i]!, fh / 1e4);
-      const g = rel(ng.mid, Math.abs(fa.midbandGain));
-      stats.worstGain = Math.max(stats.worstGain, g);
-      if (g > 0.02) fails.push(`${id}: midband ${ng.mid} vs hand ${fa.midbandGain}`);
-      const t = rel(fh, ng.high!);
-      stats.worstTwo = Math.max(stats.worstTwo, t);
-      if (fa.high.complexPair) stats.complex++;
-      if (fa.high.dominantPoleHolds) {
-        stats.dom++;
-        const d = rel(fa.high.dominantPole!, ng.high!);
-        stats.worstDom = Math.max(stats.worstDom, d);
-        if (!(d <= 0.1)) over10.push(`${id}: dominant pole ${fa.high.dominantPole} vs ngspice corner ${ng.high} (${JSON.stringify(fa.cascode)})`);
-        if (rel(fa.high.octcCorner, ng.high!) <= 0.1) stats.octcWithin10++;
-      } else stats.domFlagged++;
-    });
-    console.log(`cascode oracle: ${JSON.stringify({ ...stats, domOver10: over10.length })}`);
-    if (over10.length) console.log(over10.join("\n"));
+    const stats = compareUpper(cascodes, res, (k, i) => `cascode ${k.stage.device.card.polarity} body ${k.stage.body} #${i} (${JSON.stringify({ ...k.fa.cascode, cascodeCapacitances: undefined })} m2 ${JSON.stringify(k.dc.devices!.M2!.smallSignal)} m1 ${JSON.stringify(k.dc.smallSignal)} rout ${k.fa.nodes.rOut} rd ${(k.stage.components as Record<string, number>).rd} CO ${k.fa.nodes.cOut})`, fails, false);
+    const miller = cascodes.map((k) => 1 + k.fa.cascode!.gainToX);
+    const millerFlagged = cascodes.filter((k) => !k.fa.checks.find((c) => c.name.startsWith("Miller factor"))!.passed).length;
+    console.log(`cascode oracle: ${JSON.stringify({ ...stats, millerMax: Math.max(...miller), millerFlagged })}`);
     expect(fails).toEqual([]);
     expect(stats.dom).toBeGreaterThanOrEqual(30);
-    // The open-circuit estimate ignores the zeros (Cdb2/Cds2 feed the output forward), so it errs low; with the
-    // seeded set, 1 of 56 dominant cases lands at 11 %: at most 2 % of the cases may exceed 10 %, none 15 %.
-    expect(over10.length).toBeLessThanOrEqual(Math.max(1, Math.floor(0.02 * stats.dom)));
-    expect(stats.worstDom).toBeLessThanOrEqual(0.15);
     // The cascode holds M1's drain low: the Miller factor stays at or below 3 in most stages (flagged where RD ≳ ro2).
-    expect(stats.millerFlagged).toBeLessThan(stats.stages / 2);
+    expect(millerFlagged).toBeLessThan(stats.stages / 2);
   }, 120_000);
 });
 
@@ -323,42 +357,24 @@ function randomMirrorPair(i: number): Case | undefined {
     supplies: { vdd: volts(vdd) },
     body: pick(["source", "rail"] as const),
   } as never;
-  let dc: StageAnalysis;
-  try {
-    dc = analyzeStage(stage as never);
-  } catch {
-    return undefined;
-  }
-  const ds = dc.devices ?? {};
-  if (dc.region !== "saturation" || ["M2", "M3", "M4"].some((m) => ds[m]?.region !== "saturation" || ds[m]!.op.saturationMargin < 0.2) || dc.op.saturationMargin < 0.2) return undefined;
-  if (dc.metrics.checks.some((c) => !c.passed)) return undefined;
-  const spec: FrequencySpec = { load: { capacitance: farads(logu(0.2e-12, 20e-12)) } };
-  try {
-    return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
-  } catch {
-    return undefined;
-  }
+  return caseOf(
+    stage,
+    (dc) => {
+      const ds = dc.devices ?? {};
+      return !((dc.region !== "saturation" || ["M2", "M3", "M4"].some((m) => ds[m]?.region !== "saturation" || ds[m]!.op.saturationMargin < 0.2) || dc.op.saturationMargin < 0.2) || (dc.metrics.checks.some((c) => !c.passed)));
+    },
+    () => ({ load: { capacitance: farads(logu(0.2e-12, 20e-12)) } }),
+  );
 }
 
-const pairs: Case[] = [];
-for (let i = 0; pairs.length < 60 && i < 20000; i++) {
-  const k = randomMirrorPair(i);
-  if (k) pairs.push(k);
-}
+const pairs = collectCases(60, randomMirrorPair);
 
 describe("differential pair with a mirror load against ngspice 39 Level 1 .ac", () => {
   it("output pole, unity-gain frequency and phase margin on seeded random five-transistor amplifiers", () => {
     expect(pairs.length).toBeGreaterThanOrEqual(40);
-    const lines: string[] = [];
-    const outs: string[] = [];
-    pairs.forEach((k, i) => {
-      const ac = acCircuit(k.stage, k.dc, k.fa, `z${i}_`);
-      lines.push(...ac.lines);
-      outs.push(ac.output);
-    });
     const sweep = { pointsPerDecade: 80, start: 1, stop: 1e13 };
-    const res = runAc(lines.join("\n"), outs, sweep);
-    const ph = runAc(lines.join("\n"), outs, sweep, "vp");
+    const res = simulateAll(pairs, "z", sweep);
+    const ph = simulateAll(pairs, "z", sweep, "vp");
     const stats = { stages: pairs.length, dom: 0, domFlagged: 0, worstGain: 0, worstPole: 0, worstFu: 0, worstPm: 0, pmMin: 180, pmMax: 0 };
     const fails: string[] = [];
     pairs.forEach((k, i) => {
@@ -408,5 +424,86 @@ describe("differential pair with a mirror load against ngspice 39 Level 1 .ac", 
     console.log(`mirror-load pair oracle: ${JSON.stringify(stats)}`);
     expect(fails).toEqual([]);
     expect(stats.dom).toBeGreaterThanOrEqual(30);
+  }, 120_000);
+});
+
+// ---- current mirror with a load resistor, driven by a signal current into its reference node, and the common
+// source with a diode-connected load (complementary or same type). Invented seeded cards and stages; DC-coupled,
+// so the upper corner and the dominant pole are compared (ngspice 39 Level 1 .ac).
+function randomMirror(i: number): Case | undefined {
+  const pol: Polarity = rand() < 0.5 ? "nmos" : "pmos";
+  const c = card(pol, 5000 + i);
+  const vdd = uni(3, 12);
+  const discrete = c.datasheetCapacitances !== undefined;
+  const l = meters(discrete ? 1e-6 : logu(0.5e-6, 4e-6));
+  const w2 = discrete ? logu(1e-3, 1e-2) : logu(2e-6, 200e-6);
+  const w1 = w2 / pick([1, 2, 4, 0.5]);
+  const stage: Stage = {
+    topology: "current-mirror",
+    name: `m${i}`,
+    device: { card: c, w: meters(w2), l },
+    devices: { reference: { card: c, w: meters(w1), l } },
+    components: { rref: ohms(logu(2e3, 500e3)), rload: ohms(logu(1e3, 200e3)) },
+    supplies: { vdd: volts(vdd) },
+    body: pick(["source", "rail"] as const),
+  } as never;
+  return caseOf(
+    stage,
+    (dc) => {
+      return !((dc.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1 || dc.metrics.checks.some((k) => !k.passed)));
+    },
+    () => ({ load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 100e-12)) } }),
+  );
+}
+
+function randomDiodeLoad(i: number): Case | undefined {
+  const pol: Polarity = rand() < 0.5 ? "nmos" : "pmos";
+  const cd = card(pol, 6000 + i);
+  const sameType = rand() < 0.5;
+  const cl = card(sameType ? pol : pol === "nmos" ? "pmos" : "nmos", 7000 + i);
+  if (cd.datasheetCapacitances || cl.datasheetCapacitances) return undefined;
+  const vdd = uni(3, 12);
+  const vt = Math.abs(cd.vt0);
+  const vgAbs = vt + uni(0.15, 1.2);
+  const stage: Stage = {
+    topology: "diode-load",
+    name: `d${i}`,
+    device: { card: cd, w: meters(logu(2e-6, 200e-6)), l: meters(logu(0.5e-6, 4e-6)) },
+    devices: { load: { card: cl, w: meters(logu(2e-6, 200e-6)), l: meters(logu(0.5e-6, 4e-6)) } },
+    components: { vg: volts(pol === "nmos" ? vgAbs : vdd - vgAbs) },
+    supplies: { vdd: volts(vdd) },
+    body: pick(["source", "rail"] as const),
+  } as never;
+  return caseOf(
+    stage,
+    (dc) => {
+      const ld = dc.devices?.load;
+      return !((dc.region !== "saturation" || !ld || ld.region !== "saturation" || dc.op.saturationMargin < 0.3 || dc.op.vov < 0.1 || dc.metrics.checks.some((k) => !k.passed)));
+    },
+    () => ({ source: { resistance: ohms(rand() < 0.1 ? 0 : logu(50, 200e3)) }, load: { capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } }),
+  );
+}
+
+const mirrors = collectCases(60, randomMirror);
+const diodeLoads = collectCases(60, randomDiodeLoad);
+
+describe("current mirror and diode-load stage poles against ngspice 39 Level 1 .ac", () => {
+  it("mirror: transimpedance, upper corner and dominant pole on seeded random mirrors driven by a signal current", () => {
+    expect(mirrors.length).toBeGreaterThanOrEqual(40);
+    const res = simulateAll(mirrors, "m", { pointsPerDecade: 60, start: 1, stop: 1e13 });
+    const fails: string[] = [];
+    const stats = compareUpper(mirrors, res, (k, i) => `mirror ${k.stage.device.card.polarity} #${i}`, fails);
+    console.log(`mirror oracle: ${JSON.stringify(stats)}`);
+    expect(fails).toEqual([]);
+    expect(stats.dom).toBeGreaterThanOrEqual(20);
+  }, 120_000);
+  it("diode load: midband gain, upper corner and dominant pole on seeded random stages", () => {
+    expect(diodeLoads.length).toBeGreaterThanOrEqual(40);
+    const res = simulateAll(diodeLoads, "d", { pointsPerDecade: 60, start: 1, stop: 1e13 });
+    const fails: string[] = [];
+    const stats = compareUpper(diodeLoads, res, (k, i) => `diode-load ${k.stage.device.card.polarity}/${k.stage.devices!.load!.card.polarity} body ${k.stage.body} #${i}`, fails);
+    console.log(`diode-load oracle: ${JSON.stringify(stats)}`);
+    expect(fails).toEqual([]);
+    expect(stats.dom).toBeGreaterThanOrEqual(20);
   }, 120_000);
 });

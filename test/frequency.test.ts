@@ -147,7 +147,8 @@ describe("bad input", () => {
   });
   it("refuses a topology it does not cover", () => {
     const fb: Stage = { topology: "drain-feedback", device: stage.device, components: { rf: ohms(1e6), rd: ohms(10e3) }, supplies: { vdd: volts(12) } };
-    expect(() => analyzeFrequency(fb, analyzeStage(fb as never), spec)).toThrow(/topology the frequency analysis covers/);
+    // A plain differential pair (resistor loads) has no frequency view yet.
+    expect(() => analyzeFrequency({ ...fb, topology: "diff-pair" }, analyzeStage(fb as never), spec)).toThrow(/topology the frequency analysis covers/);
   });
 });
 
@@ -219,5 +220,84 @@ describe("differential pair with a mirror load", () => {
   it("refuses a source resistance and a load resistor (ideal differential drive, DC-coupled output)", () => {
     expect(() => analyzeFrequency(amp, dc, { source: { resistance: ohms(1e3) } })).toThrow(InputError);
     expect(() => analyzeFrequency(amp, dc, { load: { resistance: ohms(1e3) } })).toThrow(InputError);
+  });
+});
+
+describe("drain-feedback stage", () => {
+  // Hand calculation of the two-node determinant with gm = 2 mS, Rsig' = 10 kΩ, RL' = 10 kΩ, RF = 1 MΩ:
+  //   RN = RF + RL' + Rsig' + gm·Rsig'·RL' = 1 MΩ + 10 kΩ + 10 kΩ + 200 kΩ = 1.22 MΩ;
+  //   Av = RL'·(1 − gm·RF)/RN = 10 kΩ · (1 − 2000)/1.22 MΩ = −16.385;
+  //   τ(Cgd = 20 fF) = CGO·RF·(Rsig' + RL' + gm·Rsig'·RL')/RN = 20 fF · 1 MΩ · 220 kΩ / 1.22 MΩ = 3.6066 ns
+  //   (4.4 ns without RF: the feedback resistor shunts the bridge).
+  it("the determinant, midband gain and the bridge time constant (hand calculation)", () => {
+    const RN = ff.feedbackDeterminant.fn(ohms(1e6), ohms(10e3), ohms(10e3), 2e-3 as never);
+    expect(RN).toBeCloseTo(1.22e6, 3);
+    expect(ff.feedbackMidband.fn(ohms(10e3), 2e-3 as never, ohms(1e6), RN)).toBeCloseTo(-16.385, 3);
+    expect(ff.feedbackBridgeTimeConstant.fn(farads(20e-15), ohms(1e6), ohms(10e3), ohms(10e3), 2e-3 as never, RN)).toBeCloseTo(3.6066e-9, 12);
+  });
+  it("reduces to the common source as RF grows, records re-evaluating steps, and designs an input capacitor that is a short at the corner", () => {
+    const fb: Stage = { topology: "drain-feedback", name: "feedback pre-stage (invented)", device: stage.device, components: { rf: ohms(2.2e6), rd: ohms(10e3), rs: ohms(470) }, supplies: { vdd: volts(12) } };
+    const dc = analyzeStage(fb as never);
+    const rec = new Derivation("drain feedback");
+    const fa = analyzeFrequency(fb, dc, spec, rec);
+    expect(fa.view).toBe("drain-feedback");
+    expect(fa.low!.capacitors.map((c) => c.role).sort()).toEqual(["bypass", "input", "output"]);
+    expect(fa.checks.find((c) => c.name.startsWith("Input coupling capacitor a short"))!.passed).toBe(true);
+    expect(fa.checks.find((c) => c.name.startsWith("Low-frequency corner within"))!.passed).toBe(true);
+    expectReevaluates(rec);
+    // RF → ∞: the same bias network seen as a common source with an ideal gate bias has the same upper poles.
+    const huge = analyzeFrequency({ ...fb, components: { ...fb.components, rf: ohms(1e15) } }, dc, { source: spec.source!, load: spec.load!, capacitors: { input: farads(1e-6), output: farads(1e-6), bypass: farads(1e-3) } });
+    const cs = analyzeFrequency({ ...fb, topology: "fixed-gate", components: { vg: dc.nodes.gate, rd: ohms(10e3), rs: ohms(470) } }, dc, { source: spec.source!, load: spec.load!, capacitors: { output: farads(1e-6), bypass: farads(1e-3) } });
+    expect(Math.abs(huge.high.b1 / cs.high.b1 - 1)).toBeLessThan(1e-6);
+    expect(Math.abs(huge.midbandGain / cs.midbandGain - 1)).toBeLessThan(1e-6);
+  });
+});
+
+describe("current mirror and diode-load stage", () => {
+  // Invented on-chip cards: the 20 nm oxide NMOS above and a PMOS of the same process.
+  const pcard: DeviceCard = { ...card, name: "test-p", polarity: "pmos", vt0: volts(-0.7), kp: amperesPerVoltSquared(40e-6) };
+  it("mirror: Rm = 1/(gm1 + gds1 + 1/RREF), the mirror pole 1/(2π·Rm·Cgate), transimpedance −gm2·Rm·RL'", () => {
+    const m: Stage = {
+      topology: "current-mirror",
+      name: "bias mirror (invented)",
+      device: { card, w: meters(40e-6), l: meters(2e-6) },
+      devices: { reference: { card, w: meters(10e-6), l: meters(2e-6) } },
+      components: { rref: ohms(100e3), rload: ohms(20e3) },
+      supplies: { vdd: volts(5) },
+    } as never;
+    const dc = analyzeStage(m as never);
+    const rec = new Derivation("mirror");
+    const fa = analyzeFrequency(m, dc, { load: { capacitance: farads(1e-12) } }, rec);
+    const r = dc.devices!.reference!.smallSignal;
+    const Rm = 1 / (r.gm + r.gds + 1 / 100e3);
+    expect(fa.drive).toBe("current");
+    expect(fa.mirror!.gateResistance / Rm - 1).toBeLessThan(1e-12);
+    expect(Math.abs(fa.mirror!.mirrorPole * 2 * Math.PI * Rm * fa.mirror!.gateCapacitance - 1)).toBeLessThan(1e-12);
+    const RLP = 1 / (1 / 20e3 + dc.smallSignal.gds);
+    expect(Math.abs(fa.midbandGain / (-dc.smallSignal.gm * Rm * RLP) - 1)).toBeLessThan(1e-12);
+    expectReevaluates(rec);
+    const deck = acCircuit(m, dc, fa).lines.join("\n");
+    expect(deck).toMatch(/^ISIG 0 g DC 0 AC 1$/m);
+    expect(deck).toMatch(/AD=.*AS=.*PD=.*PS=/);
+    // An output held by an ideal source has no output pole; a source resistance has no meaning for a current drive.
+    const held = { ...m, components: { rref: ohms(100e3), vout: volts(2) } } as Stage;
+    expect(() => analyzeFrequency(held, analyzeStage(held as never), {})).toThrow(/load resistor/);
+    expect(() => analyzeFrequency(m, dc, { source: { resistance: ohms(50) } })).toThrow(InputError);
+  });
+  it("diode load: the load's resistance and capacitances at the output, per load type and body tie", () => {
+    const base = { topology: "diode-load", name: "gain cell (invented)", device: { card, w: meters(20e-6), l: meters(1e-6) }, components: { vg: volts(1.2) }, supplies: { vdd: volts(5) } };
+    const comp = { ...base, devices: { load: { card: pcard, w: meters(10e-6), l: meters(1e-6) } } } as never as Stage;
+    const same = { ...base, devices: { load: { card, w: meters(4e-6), l: meters(1e-6) } }, body: "rail" } as never as Stage;
+    for (const s of [comp, same]) {
+      const dc = analyzeStage(s as never);
+      const rec = new Derivation("diode load");
+      const fa = analyzeFrequency(s, dc, { source: { resistance: ohms(1e3) }, load: { capacitance: farads(0.5e-12) } }, rec);
+      const l = dc.devices!.load!.smallSignal;
+      const rdl = 1 / (l.gm + (s === same ? l.gmb : 0) + l.gds);
+      expect(Math.abs(fa.nodes.rOut / (1 / (1 / rdl + dc.smallSignal.gds)) - 1)).toBeLessThan(1e-12);
+      expect(fa.nodes.cOut).toBeGreaterThan(0.5e-12);
+      expectReevaluates(rec);
+      expect(() => analyzeFrequency(s, dc, { load: { resistance: ohms(1e3) } })).toThrow(/DC-coupled/);
+    }
   });
 });

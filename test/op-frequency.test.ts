@@ -81,4 +81,24 @@ describe("pinchoff op with a frequency section", () => {
     const r = await captureCli(main, [write("bare.json", { ...design, device: { ...design.device, card } })]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
     expect(`${r.err}`).toMatch(/TOX/);
   });
+  it("analyses the drain-feedback stage, the current mirror and the diode-load stage from their design files", async () => {
+    const card = design.device.card;
+    const pcard = { ...card, name: "demo-p", polarity: "pmos", vt0: "-0.7 V", kp: "40 uA/V^2" };
+    const files = [
+      { view: "drain-feedback", d: { name: "feedback stage (invented)", topology: "drain-feedback", device: design.device, components: { rf: "2.2 Mohm", rd: "10 kohm", rs: "470 ohm" }, supplies: { vdd: "12 V" }, frequency: design.frequency }, low: 3 },
+      { view: "current-mirror", d: { name: "bias mirror (invented)", topology: "current-mirror", device: design.device, devices: { reference: { card, w: "10 um", l: "2 um" } }, components: { rref: "100 kohm", rload: "20 kohm" }, supplies: { vdd: "5 V" }, frequency: { load: { capacitance: "1 pF" } } } },
+      { view: "diode-load", d: { name: "gain cell (invented)", topology: "diode-load", device: { card, w: "20 um", l: "1 um" }, devices: { load: { card: pcard, w: "10 um", l: "1 um" } }, components: { vg: "1.2 V" }, supplies: { vdd: "5 V" }, frequency: { source: { resistance: "1 kohm" }, load: { capacitance: "0.5 pF" } } } },
+    ];
+    for (const f of files) {
+      const r = await captureCli(main, [write(`${f.view}.json`, f.d), "--json"]);
+      expect(r.err).toBe("");
+      expect(r.code).toBe(0);
+      const j = JSON.parse(r.out);
+      expect(j.frequency.view).toBe(f.view);
+      expect(j.frequency.high.corner).toBeGreaterThan(0);
+      expect(j.frequency.low?.capacitors?.length ?? 0).toBe(f.low ?? 0);
+      const t = await captureCli(main, [write(`${f.view}.json`, f.d), "--text"]);
+      expect(t.out).toMatch(new RegExp(`Frequency response \\(${f.view}`));
+    }
+  }, 60_000);
 });

@@ -4,6 +4,14 @@ import { buildReport, reportMarker, type ReportModel } from "../lib/report/html.
 import { cautionList as cautions } from "../lib/record/cautions.js";
 import { collect, plotMime } from "../lib/runner/collect.js";
 import type { Notebook } from "../lib/runner/notebook-file.js";
+import { analyzeStage } from "../lib/bias/analyze.js";
+import { analyzeFrequency, isFrequencyRecord } from "../lib/bias/frequency.js";
+import { frequencyRows } from "../lib/bias/frequency-summary.js";
+import type { Stage } from "../lib/bias/topology.js";
+import { bodePlot } from "../lib/plot/bode.js";
+import { Derivation } from "../lib/record/derivation.js";
+import { tableBundle, partMime } from "../lib/notebook/display.js";
+import { amperesPerVoltSquared, farads, hertz, meters, ohms, perVolt, volts } from "../lib/quantity.js";
 
 const hostile = '<script>alert("x")</script>&';
 const model = (over: Partial<ReportModel> = {}): ReportModel => ({
@@ -115,5 +123,52 @@ describe("report", () => {
     const html = buildReport(model({ failures: [{ cell: 4, status: "error", lines: ["Error: invented"], source: "throw 1" }], skipped: [5] }));
     expect(html).toContain("Incomplete: cell 5 failed, 1 later cell(s) not run");
     expect(html).toContain("Error: invented");
+  });
+
+  it("files the frequency analysis under its own heading: table, record and Bode plot, apart from the DC record and plots", () => {
+    // Invented card and stage for the test.
+    const stage: Stage = {
+      topology: "four-resistor",
+      name: "report stage (invented)",
+      device: { card: { name: "t", polarity: "nmos", kp: amperesPerVoltSquared(100e-6), vt0: volts(0.7), lambda: perVolt(0.02), capacitance: { tox: meters(20e-9), cgso: 2e-10 as never, cgdo: 2e-10 as never, cj: 5e-4 as never, cjsw: 2e-10 as never }, provenance: "invented for the tests" }, w: meters(40e-6), l: meters(2e-6) },
+      components: { rg1: ohms(680e3), rg2: ohms(220e3), rd: ohms(10e3), rs: ohms(1.5e3) },
+      supplies: { vdd: volts(12) },
+    };
+    const dc = analyzeStage(stage as never);
+    const rec = new Derivation("Frequency response: report stage");
+    const fa = analyzeFrequency(stage, dc, { source: { resistance: ohms(10e3) }, load: { resistance: ohms(100e3), capacitance: farads(10e-12) }, targets: { lowCorner: hertz(20) } }, rec);
+    expect(isFrequencyRecord(rec.toJSON())).toBe(true);
+    expect(isFrequencyRecord(new Derivation("DC").note("Bias", "x").toJSON())).toBe(false);
+    const rows = frequencyRows(fa);
+    expect(rows.map((r) => r.name)).toEqual(expect.arrayContaining(["midband gain", "C bypass", "low corner", "upper corner", "dominant pole"]));
+    expect(rows.some((r) => r.name.startsWith("condition: Upper poles"))).toBe(true);
+    // The table as a notebook marks it, read back by the runner.
+    const nb: Notebook = { nbformat: 4, nbformat_minor: 5, metadata: {}, cells: [{ cell_type: "code", id: "f", metadata: {}, source: "", outputs: [{ output_type: "display_data", data: { [partMime]: tableBundle(rows, "Frequency response at the chosen capacitors", { part: "frequency" })[partMime] } }] }] };
+    const parts = collect(nb, new Map([[0, "ok"]])).parts;
+    expect(parts).toHaveLength(1);
+    const bode = bodePlot(fa);
+    const html = buildReport(
+      model({
+        parts,
+        derivations: [
+          { title: "DC design", cell: 1, html: "<p>dc record</p>" },
+          { title: rec.title, cell: 4, html: "<p>frequency record</p>", section: "frequency" },
+        ],
+        plots: [model().plots[0]!, { cell: 4, title: "Bode", figure: { data: bode.figure.data as unknown[] } }],
+      }),
+    );
+    const at = (x: string) => html.indexOf(x);
+    const freq = html.slice(at("<h2>Frequency response</h2>"), at("<h2>Plots</h2>"));
+    expect(at("<h2>Frequency response</h2>")).toBeGreaterThan(at("<h2>Derivations</h2>"));
+    expect(freq).toContain("frequency record");
+    expect(freq).not.toContain("dc record");
+    expect(freq).toContain("Frequency response at the chosen capacitors");
+    expect(freq).toContain("low corner");
+    expect(freq).toContain("condition: Upper poles");
+    expect(freq).toMatch(/Bode/);
+    const rest = html.slice(at("<h2>Plots</h2>"));
+    expect(rest).not.toContain('"role":"magnitude"');
+    // The plotting library is placed once, before the first plot.
+    expect(html.split(/<script[^>]*>[^<]{20000,}/).length - 1).toBeLessThanOrEqual(1);
   });
 });

@@ -153,6 +153,12 @@ describe("templates run through the tslab kernel", () => {
     expect(roles.some((r) => r === "load-line" || r === "load-curve")).toBe(true);
     expect(libraryCarriers).toBe(1);
     // The report's results box, corner spread and deck come from these marked outputs.
-    expect(parts.sort()).toEqual(["corner-spread", "spice-deck", "summary"]);
+    expect(parts.filter((p) => p !== "frequency").sort()).toEqual(["corner-spread", "spice-deck", "summary"]);
+    // A template with a frequency section shows its record, marks its frequency table for the report and draws a Bode plot.
+    if (read(join(dir, file)).cells.some((c) => c.cell_type === "markdown" && /^## Frequency response/.test(src(c)))) {
+      expect(derivations.some((d) => d.title.startsWith("Frequency response"))).toBe(true);
+      expect(parts.filter((p) => p === "frequency")).toHaveLength(1);
+      expect(plots.some((p) => p.kind === "bode")).toBe(true);
+    }
   }, 600_000);
 });

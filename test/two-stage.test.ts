@@ -13,7 +13,8 @@ import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { analyzeStage, stageCircuit } from "../lib/bias/analyze.js";
 import { acCircuit } from "../lib/bias/frequency-spice.js";
-import { analyzeFrequency } from "../lib/bias/frequency.js";
+import { analyzeFrequency, isFrequencyRecord } from "../lib/bias/frequency.js";
+import { frequencyRows } from "../lib/bias/frequency-summary.js";
 import { simulateFrequency } from "../lib/bias/frequency-sim.js";
 import { mismatchMonteCarlo, pairOffset } from "../lib/bias/mismatch.js";
 import { inputForOutput, type TwoStageAnalysis, type TwoStageStage } from "../lib/bias/topologies/two-stage.js";
@@ -107,6 +108,12 @@ describe("Allen & Holberg, CMOS Analog Circuit Design, 2nd ed., Example 6.3-1 (f
     expect(design.twoStage!.ccDesigned).toBe(true);
     expect(design.twoStage!.phaseMargin).toBeCloseTo(60, 6);
     expect(Math.abs(design.twoStage!.cc / 2.2e-12 - 1)).toBeLessThan(0.2);
+    // the report's frequency table carries the compensation and its figures, and the record files under the frequency heading
+    const rows = frequencyRows(design);
+    expect(rows.find((r) => r.name === "Miller capacitor Cc")!.value).toBe(design.twoStage!.cc);
+    expect(rows.find((r) => r.name === "phase margin")!.value).toBe(design.twoStage!.phaseMargin);
+    expect(rows.find((r) => r.name === "gain-bandwidth product")!.value).toBe(design.twoStage!.gainBandwidth);
+    expect(isFrequencyRecord(rec.toJSON())).toBe(true);
   });
 });
 

@@ -23,9 +23,8 @@
  */
 import type { Device } from "../device/card.js";
 import { drainCurrent, type ClmMode } from "../device/drain-current.js";
-import { diffusionGeometry } from "../device/capacitance.js";
 import { ConvergenceError, InputError } from "../errors.js";
-import { spiceNumber } from "./spice.js";
+import { diffusionText, spiceNumber } from "./spice.js";
 import { modelLine } from "./topologies/two-transistor.js";
 
 export interface NetResistor {
@@ -460,11 +459,7 @@ export function smallSignalResponse(c: CompiledNetlist, drive: Readonly<Record<s
 
 /** SPICE lines of a netlist: one Level 1 .model per device card, held nodes as sources named V<node>, elements, MOSFETs M<name> with a 0 V ammeter VA<name> in the drain lead. */
 /** AD/AS/PD/PS on an instance line when the card has a Level 1 capacitance block (the junctions the hand analysis counts). */
-function junctionGeometry(dev: NetMosfet["device"]): string {
-  if (!dev.card.capacitance) return "";
-  const g = diffusionGeometry(dev);
-  return ` AD=${spiceNumber(g.ad)} AS=${spiceNumber(g.as)} PD=${spiceNumber(g.pd)} PS=${spiceNumber(g.ps)}`;
-}
+const junctionGeometry = (dev: NetMosfet["device"]): string => diffusionText(dev);
 
 export function netlistSpice(net: Netlist, prefix = ""): { lines: string[]; node: (name: string) => string; instance: (name: string) => string; ammeter: (name: string) => string } {
   const p = prefix;

@@ -26,12 +26,14 @@ import * as ff from "../formulas/frequency.formulas.js";
 import * as pf from "../formulas/pair.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec, type HighFrequencyResponse } from "./frequency.js";
+import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec, type HighFrequencyResponse, frequencyRecordNote } from "./frequency.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
 /** Largest Miller factor 1 + gm1·RX the "small Miller effect" statement allows (common practice). */
 export const cascodeMillerLimit = 3;
+/** Largest CDS2/CO for which the open-circuit estimate may ignore the zero of the capacitance across the cascode. */
+export const cascodeAcrossLimit = 1;
 
 /** The node between the devices and the three node poles of the cascode stage. */
 export interface CascodeFrequencyNodes {
@@ -69,7 +71,7 @@ export function analyzeCascodeFrequency(stage: Stage, analysis: StageAnalysis, s
   const gmb2 = tied ? 0 : m2.smallSignal.gmb;
   const RD = (stage.components as Record<string, number>).rd!;
   if (rec) {
-    rec.note("Frequency response", "Cascode common source: input at M1's gate (signal source in series with its bias), M2's gate at AC ground, output at M2's drain; small-signal values at the operating point.");
+    rec.note(frequencyRecordNote, "Cascode common source: input at M1's gate (signal source in series with its bias), M2's gate at AC ground, output at M2's drain; small-signal values at the operating point.");
     rec.input("Rsig", rsig, "resistance", spec.source ? `${o}: frequency.source.resistance` : `${o}: no source given (ideal voltage source)`);
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);
     rec.assume("The device capacitances are constant at the operating point (small signal).");
@@ -127,7 +129,15 @@ export function analyzeCascodeFrequency(stage: Stage, analysis: StageAnalysis, s
   }
   const sep = fp1 !== undefined && fp2 !== undefined ? evaluateFormula(ff.poleSeparation, { fp2, fp1 }, rec) : complexPair ? 1 : Infinity;
   const zRatio = fz / (fp1 ?? complexPair!.naturalFrequency);
-  const holds = sep >= dominanceRatio && zRatio >= dominanceRatio;
+  // The capacitance across the cascode device feeds the output forward around the channel (a left-half-plane zero
+  // near the output pole); the open-circuit sum counts it as a pole, so the estimate errs low unless CO outweighs it.
+  const acrossShare = evaluateFormula(ff.cascodeAcrossShare, { CDS2, CO }, rec);
+  const holds = sep >= dominanceRatio && zRatio >= dominanceRatio && acrossShare <= cascodeAcrossLimit;
+  checks.push(
+    stageCheck(`Capacitance across the cascode device ≤ ${cascodeAcrossLimit} × the output capacitance`, acrossShare, "dimensionless", { max: cascodeAcrossLimit }, rec, "the open-circuit estimate takes CDS2 as a pole; its zero is left out"),
+  );
+  if (acrossShare > cascodeAcrossLimit)
+    findings.push(`The capacitance across the cascode device (${fmt(CDS2)} F) is not small beside the output capacitance (${fmt(CO)} F): the zero it makes lies near the output pole, so the open-circuit estimate is low; add the load capacitance or verify by simulation.`);
   checks.push(stageCheck("Upper poles: one dominates (fp2/fp1 ≥ 10)", Number.isFinite(sep) ? sep : 1e12, "dimensionless", { min: dominanceRatio }, rec, "the open-circuit time-constant and Miller estimates' own assumption"));
   checks.push(stageCheck("Zero well above the dominant pole (fz/fp1 ≥ 10)", Number.isFinite(zRatio) ? zRatio : 1e12, "dimensionless", { min: dominanceRatio }, rec));
   if (!holds && !complexPair) findings.push(`The upper poles are not widely separated (fp2/fp1 = ${fmt(sep)}, fz/fp1 = ${fmt(zRatio)}): the estimates are rough; verify by simulation.`);
@@ -161,6 +171,7 @@ export function analyzeCascodeFrequency(stage: Stage, analysis: StageAnalysis, s
     cascode: { rX: RX as Ohms, cX: CX as Farads, gainToX: AvX as Ratio, millerCapacitance: CM as Farads, timeConstantX: tau as Seconds, inputPole: f1 as Hertz, nodePole: f2 as Hertz, outputPole: f3 as Hertz, cascodeCapacitances: c2 },
     checks,
     findings,
+    drive: "voltage",
     circuit: { gateCoupled: false, rs: 0, bypassToIdealSource: false },
   };
 }

@@ -20,7 +20,7 @@ import { InputError } from "../errors.js";
 import * as ff from "../formulas/frequency.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec } from "./frequency.js";
+import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec, frequencyRecordNote } from "./frequency.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -57,7 +57,7 @@ export function analyzeMirrorPairFrequency(stage: Stage, analysis: StageAnalysis
   if (rsig !== 0) throw new InputError(rsig, "0 Ω: the pair's frequency analysis takes ideal input sources (the input poles are not modelled)", `${o}: frequency.source.resistance`, "invalid-design");
   const cl = spec.load?.capacitance ?? 0;
   if (rec) {
-    rec.note("Frequency response", "Differential pair with a current-mirror load, driven differentially by ideal sources; the tail node is AC ground for the differential signal; output at M2/M4.");
+    rec.note(frequencyRecordNote, "Differential pair with a current-mirror load, driven differentially by ideal sources; the tail node is AC ground for the differential signal; output at M2/M4.");
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);
     rec.assume("The device capacitances are constant at the operating point (small signal).");
   }
@@ -124,6 +124,7 @@ export function analyzeMirrorPairFrequency(stage: Stage, analysis: StageAnalysis
     pair: { gainBandwidth: gbw as Hertz, outputPole: fp1 as Hertz, mirrorPole: fm as Hertz, mirrorZero: fz as Hertz, mirrorCapacitance: CMIR as Farads, ...(fu !== undefined ? { unityGain: fu as Hertz, phaseMargin: pm! } : {}) },
     checks,
     findings,
+    drive: "voltage",
     circuit: { gateCoupled: false, rs: 0, bypassToIdealSource: false },
   };
 }

@@ -66,7 +66,10 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     if (fa.load.capacitance > 0) lines.push(`C${p}L ${nn.out} 0 ${spiceNumber(fa.load.capacitance)}`);
     return { lines, output: nn.out!, sweep };
   }
-  if (fa.circuit.gateCoupled) {
+  if (fa.drive === "current") {
+    // Current mirror: an ideal AC current into the reference (gate) node; DC 0, so the bias is untouched.
+    lines.push(`I${p}SIG 0 ${n.gate} DC 0 AC 1`);
+  } else if (fa.circuit.gateCoupled) {
     lines.push(`V${p}SIG ${sig} 0 DC 0 AC 1`);
     lines.push(rsig > 0 ? `R${p}SIG ${sig} ${gateIn} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${gateIn} 0`);
     lines.push(`C${p}IN ${gateIn} ${n.gate} ${spiceNumber(cap("input")!)}`);
@@ -91,9 +94,20 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     lines.push(`R${p}L ${out} 0 ${spiceNumber(fa.load.resistance)}`);
   }
   if (fa.load.capacitance > 0) lines.push(`C${p}L ${out} 0 ${spiceNumber(fa.load.capacitance)}`);
-  if (!stage.device.card.capacitance && stage.device.card.datasheetCapacitances) {
+  if (!stage.device.card.capacitance && (stage.device.card.datasheetCapacitances || stage.device.card.tableCapacitances)) {
     const c = deviceCapacitances(stage.device, analysis.op);
-    lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`, `C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+    lines.push(`C${p}GS ${n.gate} ${n.source} ${spiceNumber(c.cgs)}`, `C${p}GD ${n.gate} ${n.drain} ${spiceNumber(c.cgd)}`);
+    if (c.cds > 0) lines.push(`C${p}DS ${n.drain} ${n.source} ${spiceNumber(c.cds)}`);
+    // A table's Cgb (the rest of Cgg) goes to the body node.
+    if (c.cgb > 0) lines.push(`C${p}GB ${n.gate} ${(dc.nodes as Record<string, string>).body ?? n.source} ${spiceNumber(c.cgb)}`);
+  }
+  // The second device of a mirror or a diode-load stage, at its own nodes (gate, drain, source).
+  const second =
+    fa.view === "current-mirror" ? { role: "reference", an: analysis.devices?.reference, g: n.gate, d: n.gate, s: n.source } : fa.view === "diode-load" ? { role: "load", an: analysis.devices?.load, ...loadNodes(dc.nodes as Record<string, string>) } : undefined;
+  const dev2 = second && (stage.devices as Record<string, Stage["device"]> | undefined)?.[second.role];
+  if (second && dev2 && second.an && !dev2.card.capacitance && dev2.card.datasheetCapacitances) {
+    const c = deviceCapacitances(dev2, second.an.op);
+    lines.push(`C${p}GS2 ${second.g} ${second.s} ${spiceNumber(c.cgs)}`, `C${p}GD2 ${second.g} ${second.d} ${spiceNumber(c.cgd)}`, `C${p}DS2 ${second.d} ${second.s} ${spiceNumber(c.cds)}`);
   }
   const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
   const m2 = analysis.devices?.M2;
@@ -107,6 +121,8 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   }
   return { lines, output: out, sweep };
 }
+
+const loadNodes = (nn: Record<string, string>) => ({ g: nn.loadGate!, d: nn.loadDrain!, s: nn.loadSource! });
 
 /** A whole deck: title, cautions, circuit, .ac and .end. */
 export function acDeckText(title: string, ac: AcCircuit): string {

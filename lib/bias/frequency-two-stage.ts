@@ -31,7 +31,7 @@ import * as ff from "../formulas/frequency.formulas.js";
 import * as tf from "../formulas/two-stage.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import type { FrequencyAnalysis, FrequencySpec } from "./frequency.js";
+import { frequencyRecordNote, type FrequencyAnalysis, type FrequencySpec } from "./frequency.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 import type { TwoStageFigures } from "./topologies/two-stage.js";
@@ -227,7 +227,7 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
       throw new InfeasibleError(`${n} is in ${m[n]!.region}, not saturation: there is no amplifier to analyse. Balance the open-loop output first (inputForOutput gives the input that centres it)`, `${o}: ${n}`);
   const ts = (analysis as StageAnalysis & { twoStage: TwoStageFigures }).twoStage;
   if (rec) {
-    rec.note("Frequency response", "Two-stage Miller amplifier driven differentially by ideal sources; the tail node is AC ground for the differential signal; node 1 is the first stage's output, bridged to the output by the Miller capacitor.");
+    rec.note(frequencyRecordNote, "Two-stage Miller amplifier driven differentially by ideal sources; the tail node is AC ground for the differential signal; node 1 is the first stage's output, bridged to the output by the Miller capacitor.");
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: components.cload`);
     rec.assume("The device capacitances are constant at the operating point (small signal); the poles are real and one dominates.");
   }
@@ -298,6 +298,7 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
   return {
     view: "two-stage",
     outputNode: "drain",
+    drive: "voltage",
     capacitances: c1d,
     midbandGain: ts.gain as Ratio,
     source: { resistance: 0 as Ohms },

@@ -21,7 +21,11 @@
  * Views: common source (four-resistor, fixed-gate, current-source-bias; gate
  * AC-coupled through a divider or DC-coupled in series with its bias source,
  * source bypassed when it has a resistor or current source) and source
- * follower (drain at its rail); the cascode stage in lib/bias/frequency-cascode.ts. Other topologies are refused with an InputError.
+ * follower (drain at its rail); drain feedback (the common source with RF from drain to gate, gate AC-coupled:
+ * the exact two-node determinant for the upper poles, and for the low corner the condition that the input
+ * coupling capacitor is a short at the corner beside Rsig + 1/gm, checked in the record and met by design);
+ * the cascode stage in lib/bias/frequency-cascode.ts; the current mirror and the diode-load stage in
+ * lib/bias/frequency-two-transistor.ts. Other topologies are refused with an InputError.
  * Small-signal values are the DC analysis's (square law); device capacitances
  * from lib/device/capacitance.ts. Not on a hot path; allocates its result.
  */
@@ -35,6 +39,7 @@ import { nearestStandard, standardValuesAround, type SeriesName } from "./eserie
 import { analyzeCascodeFrequency, type CascodeFrequencyNodes } from "./frequency-cascode.js";
 import { analyzeMirrorPairFrequency, type MirrorPairFrequency } from "./frequency-pair.js";
 import { analyzeTwoStageFrequency, checkCompensation, twoStageResponse, type CompensationSpec, type TwoStageFrequency } from "./frequency-two-stage.js";
+import { analyzeDiodeLoadFrequency, analyzeMirrorFrequency, type MirrorFrequencyNodes } from "./frequency-two-transistor.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -53,7 +58,7 @@ export interface FrequencySpec {
   readonly compensation?: CompensationSpec;
 }
 
-export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage";
+export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage" | "drain-feedback" | "current-mirror" | "diode-load";
 export type CapacitorRole = "input" | "output" | "bypass";
 
 export interface CouplingCapacitor {
@@ -118,8 +123,13 @@ export interface FrequencyAnalysis {
   readonly view: FrequencyView;
   readonly outputNode: "drain" | "source";
   readonly capacitances: DeviceCapacitances;
-  /** Midband gain from the signal source to the output, with source and load resistances. */
+  /**
+   * Midband gain from the signal source to the output, with source and load resistances. With `drive: "current"`
+   * (the current mirror, driven by a signal current into its reference node) it is the transimpedance in V/A.
+   */
   readonly midbandGain: Ratio;
+  /** What the signal source is: a voltage source with its resistance (every view but the mirror) or an ideal current. */
+  readonly drive: "voltage" | "current";
   readonly source: { readonly resistance: Ohms };
   readonly load: { readonly resistance?: Ohms; readonly capacitance: Farads };
   /** Undefined when the stage has no coupling or bypass capacitor (gate and output DC-coupled, no source resistor). */
@@ -136,6 +146,16 @@ export interface FrequencyAnalysis {
   readonly pair?: MirrorPairFrequency;
   /** Two-stage Miller amplifier only: compensation, poles, zeros, GBW, phase margin (lib/bias/frequency-two-stage.ts). */
   readonly twoStage?: TwoStageFrequency;
+  /** Current mirror only: the gate node and its pole (lib/bias/frequency-two-transistor.ts). */
+  readonly mirror?: MirrorFrequencyNodes;
+}
+
+/** Title of the note that opens every frequency record: the run report files such a record under its own heading. */
+export const frequencyRecordNote = "Frequency response";
+
+/** Whether a record (its JSON form) is a frequency analysis's: its first note is `frequencyRecordNote`. */
+export function isFrequencyRecord(data: { readonly steps: ReadonlyArray<{ readonly kind: string; readonly title?: string }> }): boolean {
+  return data.steps.some((st) => st.kind === "note" && st.title === frequencyRecordNote);
 }
 
 /** The pole-dominance ratio the OCTC and Miller estimates assume (common practice: a decade). */
@@ -146,8 +166,10 @@ export const dominanceRatio = 10;
  * E-series snapping pushes it under; a twentieth each leaves the dominant pole ≥ 9 × the rest before snapping.
  */
 export const nonDominantShare = 0.05;
+/** Drain feedback: the largest impedance of the input coupling capacitor at the low corner, over Rsig + 1/gm, for independent poles. */
+export const feedbackInputShortLimit = 0.1;
 
-const supported = ["four-resistor", "fixed-gate", "current-source-bias", "source-follower", "cascode-stage", "diff-pair-mirror-load", "two-stage-miller"] as const;
+const supported = ["four-resistor", "fixed-gate", "current-source-bias", "drain-feedback", "source-follower", "current-mirror", "diode-load", "cascode-stage", "diff-pair-mirror-load", "two-stage-miller"] as const;
 
 const origin = (stage: Stage) => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -191,7 +213,8 @@ export function checkFrequencySpec(spec: FrequencySpec, o = "frequency"): Freque
   return spec;
 }
 
-interface Ctx {
+/** Small-signal values the frequency steps share, and the record. */
+export interface FrequencyContext {
   rec?: Derivation;
   gm: number;
   gmb: number;
@@ -220,36 +243,41 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
     if (ld && !hasCapacitanceData(ld.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.load.card "${ld.card.name}"`, "invalid-design");
     return analyzeMirrorPairFrequency(stage, analysis, spec, o, rec);
   }
+  if (stage.topology === "current-mirror" || stage.topology === "diode-load") {
+    const role = stage.topology === "current-mirror" ? "reference" : "load";
+    const other = (stage.devices as Record<string, Stage["device"]> | undefined)?.[role];
+    if (other && !hasCapacitanceData(other.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.${role}.card "${other.card.name}"`, "invalid-design");
+    const fa = stage.topology === "current-mirror" ? analyzeMirrorFrequency(stage, analysis, spec, o, rec) : analyzeDiodeLoadFrequency(stage, analysis, spec, o, rec);
+    requireHighTarget(fa, spec, o);
+    return fa;
+  }
   if (stage.topology === "cascode-stage") {
     const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
     if (cas && !hasCapacitanceData(cas.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.cascode.card "${cas.card.name}"`, "invalid-design");
     const fa = analyzeCascodeFrequency(stage, analysis, spec, o, rec);
-    const t = spec.targets?.highCorner;
-    if (t !== undefined && fa.high.corner < t)
-      throw new InfeasibleError(
-        `the upper corner is ${fmt(fa.high.corner)} Hz (open-circuit time constants: ${fmt(fa.high.octcCorner)} Hz), below the target ${fmt(t)} Hz: lower the source resistance, the load capacitance or RD, or use smaller devices`,
-        `${o}: frequency.targets.highCorner`,
-      );
+    requireHighTarget(fa, spec, o);
     return fa;
   }
   const c = stage.components as Record<string, number | undefined>;
   const follower = stage.topology === "source-follower";
+  // Drain feedback: RF from drain to gate; the gate is AC-coupled (RF holds its DC) and sees Rsig alone.
+  const rf = stage.topology === "drain-feedback" ? c.rf! : undefined;
   if (follower && (c.rd ?? 0) > 0)
     throw new InputError(c.rd, "no drain resistor (rd = 0) for the follower's frequency analysis: a drain resistor needs its own bypass capacitor, which is not modelled", `${o}: components.rd`, "invalid-design");
   const rsig = spec.source?.resistance ?? 0;
   const rl = spec.load?.resistance;
   const cl = spec.load?.capacitance ?? 0;
-  const gateCoupled = c.rg1 !== undefined && c.rg2 !== undefined;
+  const gateCoupled = (c.rg1 !== undefined && c.rg2 !== undefined) || rf !== undefined;
   const rs = c.rs ?? 0;
   const idealSource = stage.topology === "current-source-bias";
   const hasBypass = !follower && (rs > 0 || idealSource);
   const { gm, gds } = analysis.smallSignal;
   const gmb = stage.body === "rail" ? analysis.smallSignal.gmb : 0;
-  const ctx: Ctx = { rec, gm, gmb, gds };
+  const ctx: FrequencyContext = { rec, gm, gmb, gds };
   const findings: string[] = [];
   const checks: StageCheck[] = [];
   if (rec) {
-    rec.note("Frequency response", `${follower ? "Source follower: input at the gate, output at the source, drain at AC ground" : "Common source: input at the gate, output at the drain, source at AC ground at signal frequencies"}; small-signal values at the operating point.`);
+    rec.note(frequencyRecordNote, `${follower ? "Source follower: input at the gate, output at the source, drain at AC ground" : "Common source: input at the gate, output at the drain, source at AC ground at signal frequencies"}; small-signal values at the operating point.`);
     rec.input("Rsig", rsig, "resistance", spec.source ? `${o}: frequency.source.resistance` : `${o}: no source given (ideal voltage source)`);
     if (rl !== undefined) rec.input("RL", rl, "resistance", `${o}: frequency.load.resistance`);
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);
@@ -257,9 +285,12 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
   }
   const caps = deviceCapacitances(stage.device, analysis.op, `${o}: device`, rec);
   // Gate bias resistance and the Thevenin source.
-  const RG = gateCoupled ? evaluateFormula(bf.dividerResistance, { RG1: c.rg1!, RG2: c.rg2! }, rec, "the gate divider loads the signal source") : Infinity;
-  const RSP = gateCoupled ? evaluateFormula(ff.sourceSeenByGate, { Rsig: rsig, RG }, rec) : rsig;
+  const divider = c.rg1 !== undefined && c.rg2 !== undefined;
+  const RG = divider ? evaluateFormula(bf.dividerResistance, { RG1: c.rg1!, RG2: c.rg2! }, rec, "the gate divider loads the signal source") : Infinity;
+  const RSP = divider ? evaluateFormula(ff.sourceSeenByGate, { Rsig: rsig, RG }, rec) : rsig;
   if (!gateCoupled) rec?.note("Gate drive", "The gate is DC-coupled: the signal source sits in series with the gate bias source, so the gate sees Rsig alone.");
+  if (rf !== undefined)
+    rec?.note("Gate drive", "The gate is AC-coupled and has no bias resistor to ground: RF from the drain holds its DC, so the signal source drives the gate alone and RF bridges the gate and the output at all frequencies.");
   const RS = rs;
   let RLP: number;
   let av: number;
@@ -267,17 +298,20 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
   if (!follower) {
     const RD = c.rd!;
     RLP = rl !== undefined ? evaluateFormula(ff.outputNodeResistance, { gds, RD, RL: rl }, rec) : evaluateFormula(bf.commonSourceOutput, { RD, gds }, rec, "no load resistor: the output node sees RD ∥ ro");
-    av = gateCoupled ? evaluateFormula(ff.commonSourceMidband, { gm, RLP, RG, Rsig: rsig }, rec) : evaluateFormula(ff.commonSourceMidbandDirect, { gm, RLP }, rec);
+    if (rf !== undefined) {
+      const RN = evaluateFormula(ff.feedbackDeterminant, { RF: rf, RLP, RSP, gm }, rec, "RF is left out of RL': it appears in the determinant");
+      av = evaluateFormula(ff.feedbackMidband, { RLP, gm, RF: rf, RN }, rec);
+    } else av = divider ? evaluateFormula(ff.commonSourceMidband, { gm, RLP, RG, Rsig: rsig }, rec) : evaluateFormula(ff.commonSourceMidbandDirect, { gm, RLP }, rec);
   } else {
     RSL = rl !== undefined ? evaluateFormula(ff.followerNodeResistance, { gds, gmb, RS, RL: rl }, rec) : evaluateFormula(ff.followerNodeResistanceUnloaded, { gds, gmb, RS }, rec);
     av = evaluateFormula(ff.followerMidband, { gm, RSL, RG, Rsig: rsig }, rec);
     RLP = RSL;
   }
   // ---- low frequencies
-  const low = lowFrequency(spec, { follower, gateCoupled, hasBypass, idealSource, rsig, rl, RG, RS, RLP, c }, ctx, o, checks, findings);
+  const low = lowFrequency(spec, { follower, gateCoupled, hasBypass, idealSource, rsig, rl, RG, RS, RLP, c, ...(rf !== undefined ? { rf } : {}) }, ctx, o, checks, findings);
   // ---- high frequencies
   const nodes = follower ? followerNodes(stage, caps, cl, RSP, RSL, ctx) : commonSourceNodes(caps, cl, RSP, RLP, ctx);
-  const high = highFrequency(nodes, follower, ctx, checks, findings, low?.corner);
+  const high = highFrequency(nodes, follower, ctx, checks, findings, low?.corner, rf);
   const cout = low?.capacitors.find((k) => k.role === "output")?.value;
   if (cout !== undefined && cl > 0) {
     // CL sits behind the output coupling capacitor: above the low corner they divide the signal by Cout/(Cout + CL).
@@ -297,10 +331,11 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
   }
   for (const f of findings) rec?.find("caution", f);
   return {
-    view: follower ? "source-follower" : "common-source",
+    view: follower ? "source-follower" : rf !== undefined ? "drain-feedback" : "common-source",
     outputNode: follower ? "source" : "drain",
     capacitances: caps,
     midbandGain: av as Ratio,
+    drive: "voltage",
     source: { resistance: rsig as Ohms },
     load: { ...(rl !== undefined ? { resistance: rl as Ohms } : {}), capacitance: cl as Farads },
     ...(low ? { low } : {}),
@@ -310,6 +345,16 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
     findings,
     circuit: { gateCoupled, rs: RS, bypassToIdealSource: idealSource },
   };
+}
+
+/** A target upper corner the stage misses is an InfeasibleError (the views that do not check it themselves). */
+function requireHighTarget(fa: FrequencyAnalysis, spec: FrequencySpec, o: string): void {
+  const t = spec.targets?.highCorner;
+  if (t !== undefined && fa.high.corner < t)
+    throw new InfeasibleError(
+      `the upper corner is ${fmt(fa.high.corner)} Hz (open-circuit time constants: ${fmt(fa.high.octcCorner)} Hz), below the target ${fmt(t)} Hz: lower the source resistance, the load capacitance or the gain, or use smaller devices`,
+      `${o}: frequency.targets.highCorner`,
+    );
 }
 
 function largest(t: HighFrequencyResponse["timeConstants"]): string {
@@ -328,17 +373,24 @@ interface LowInputs {
   RS: number;
   RLP: number;
   c: Record<string, number | undefined>;
+  /** Drain-feedback resistor, when the stage has one. */
+  rf?: number;
 }
 
-function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, checks: StageCheck[], findings: string[]): LowFrequencyResponse | undefined {
+function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: FrequencyContext, o: string, checks: StageCheck[], findings: string[]): LowFrequencyResponse | undefined {
   const { rec, gm, gmb, gds } = ctx;
   const roles: Array<{ role: CapacitorRole; rx: number; rsZero?: number }> = [];
   if (rec && (x.gateCoupled || x.rl !== undefined || x.hasBypass)) rec.note("Low-frequency corner", "Short-circuit time constants: each coupling or bypass capacitor with the others shorted.");
-  if (x.gateCoupled) roles.push({ role: "input", rx: evaluateFormula(ff.inputCouplingResistance, { Rsig: x.rsig, RG: x.RG }, rec, "input coupling capacitor: the gate draws no current") });
+  if (x.gateCoupled && x.rf !== undefined) {
+    const Rin = evaluateFormula(ff.feedbackInputResistance, { RF: x.rf, RLP: x.RLP, gm }, rec, "the output coupling and bypass capacitors shorted");
+    roles.push({ role: "input", rx: evaluateFormula(ff.feedbackInputCouplingResistance, { Rsig: x.rsig, Rin }, rec, "input coupling capacitor") });
+  } else if (x.gateCoupled) roles.push({ role: "input", rx: evaluateFormula(ff.inputCouplingResistance, { Rsig: x.rsig, RG: x.RG }, rec, "input coupling capacitor: the gate draws no current") });
   if (x.rl !== undefined) {
     const Rout = x.follower
       ? evaluateFormula(bf.followerOutput, { RS: x.RS, gm, gmb, gds }, rec, "output resistance of the follower, gate at AC ground")
-      : evaluateFormula(bf.commonSourceOutput, { RD: x.c.rd!, gds }, rec, "output resistance with the source bypassed");
+      : x.rf !== undefined
+        ? evaluateFormula(ff.feedbackOutputResistance, { RD: x.c.rd!, gds, gm, Rsig: x.rsig, RF: x.rf }, rec, "output resistance with the input coupling and bypass capacitors shorted")
+        : evaluateFormula(bf.commonSourceOutput, { RD: x.c.rd!, gds }, rec, "output resistance with the source bypassed");
     roles.push({ role: "output", rx: evaluateFormula(ff.outputCouplingResistance, { Rout, RL: x.rl }, rec, "output coupling capacitor") });
   }
   if (x.hasBypass) {
@@ -346,7 +398,9 @@ function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, ch
     const RDL = x.rl !== undefined ? evaluateFormula(ff.drainWithLoad, { RD, RL: x.rl }, rec, "the output coupling capacitor shorted") : RD;
     const rx = x.idealSource
       ? evaluateFormula(ff.bypassResistanceIdeal, { gds, RDL, gm, gmb }, rec, "bypass capacitor across the ideal current source")
-      : evaluateFormula(ff.bypassResistance, { RS: x.RS, gm, gmb, gds, RDL }, rec, "bypass capacitor across RS; the gate at AC ground");
+      : x.rf !== undefined
+        ? evaluateFormula(ff.feedbackBypassResistance, { RS: x.RS, gm, gmb, gds, RDL, RF: x.rf, Rsig: x.rsig }, rec, "bypass capacitor across RS; the input coupling capacitor shorted")
+        : evaluateFormula(ff.bypassResistance, { RS: x.RS, gm, gmb, gds, RDL }, rec, "bypass capacitor across RS; the gate at AC ground");
     roles.push({ role: "bypass", rx, ...(x.idealSource ? {} : { rsZero: x.RS }) });
   }
   if (roles.length === 0) {
@@ -361,7 +415,7 @@ function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, ch
   for (const r of roles) if (given[r.role] !== undefined) values.set(r.role, given[r.role]!);
   const ideals = new Map<CapacitorRole, number>();
   if (missing.length > 0 && target !== undefined) {
-    designCapacitors(roles, missing, values, ideals, target, series, ctx, o);
+    designCapacitors(roles, missing, values, ideals, target, series, ctx, o, x.rf !== undefined ? x.rsig + 1 / gm : undefined);
   } else if (missing.length > 0) {
     throw new InputError(
       undefined,
@@ -392,6 +446,14 @@ function lowFrequency(spec: FrequencySpec, x: LowInputs, ctx: Ctx, o: string, ch
   const rest = sorted.slice(1).reduce((a, b) => a + b, 0);
   const dominance = rest > 0 ? sorted[0]! / rest : Infinity;
   rec?.note("Low-frequency corner of the hand transfer function", `Taking the poles as independent (each capacitor's loop barely loads the others) and the bypass zero into account, |H| falls to 1/√2 of midband at ${fmt(corner)} Hz; the short-circuit sum ${fmt(sctc)} Hz is an upper estimate that is close only when one pole dominates.`);
+  const cin = caps.find((k) => k.role === "input");
+  if (x.rf !== undefined && cin && caps.length > 1) {
+    // Drain feedback: the output and bypass loops see the gate's impedance to ground through gm (RF closes the loop),
+    // so the capacitors' poles are independent only while the input coupling capacitor is a short at the corner.
+    const rho = evaluateFormula(ff.feedbackInputShort, { fL: corner, Cx: cin.value, Rsig: x.rsig, gm }, rec);
+    checks.push(stageCheck(`Input coupling capacitor a short at the low corner (≤ ${feedbackInputShortLimit} × (Rsig + 1/gm))`, rho, "dimensionless", { max: feedbackInputShortLimit }, rec, "drain feedback: the poles are independent only then"));
+    if (rho > feedbackInputShortLimit) findings.push(`The input coupling capacitor (${fmt(cin.value)} F) is not a short at the low corner beside Rsig + 1/gm: through RF its impedance enters the output and bypass loops, so the corner ${fmt(corner)} Hz is only approximate; enlarge it.`);
+  }
   checks.push(stageCheck("Low corner: one pole dominates (largest ≥ 4 × the sum of the others)", Number.isFinite(dominance) ? dominance : 1e12, "dimensionless", { min: 4 }, rec, "the short-circuit time-constant sum's own assumption"));
   if (dominance < 4) findings.push(`No single low-frequency pole dominates (ratio ${fmt(dominance)}): the short-circuit sum ${fmt(sctc)} Hz overstates the corner; the hand transfer function gives ${fmt(corner)} Hz.`);
   if (target !== undefined) {
@@ -432,8 +494,10 @@ function designCapacitors(
   ideals: Map<CapacitorRole, number>,
   target: number,
   series: SeriesName,
-  ctx: Ctx,
+  ctx: FrequencyContext,
   o: string,
+  /** Drain feedback: Rsig + 1/gm, beside which the input coupling capacitor must be a short at the corner. */
+  inputShortAgainst?: number,
 ): void {
   const { rec } = ctx;
   // Given capacitors use up part of the corner; the rest goes to the missing ones.
@@ -455,10 +519,14 @@ function designCapacitors(
     "Capacitor design",
     `Target low corner ${fmt(target)} Hz. The ${dominant.role} capacitor sees the smallest resistance (${fmt(dominant.rx)} Ω), so it takes the dominant pole (a small resistance needs the largest capacitor, and making it dominant keeps the others small); the other capacitors each take a twentieth of the target, so the dominant pole keeps a margin over the rest after snapping. All are then scaled together so the hand transfer function's corner lands on the target, and chosen from the ${series} series as a set.`,
   );
-  const share = (r: { role: CapacitorRole }) => (r.role === dominant.role ? 1 - nonDominantShare * (missing.length - 1) - givenSum / target : nonDominantShare);
+  // Drain feedback: the input capacitor's pole goes low enough that its impedance at the corner is half the
+  // limit beside Rsig + 1/gm (margin for snapping and the final scaling).
+  const inputShare = (rx: number) => (inputShortAgainst !== undefined ? Math.min(nonDominantShare, (feedbackInputShortLimit / 2) * (inputShortAgainst / rx)) : nonDominantShare);
+  const share = (r: { role: CapacitorRole; rx: number }) =>
+    r.role === dominant.role ? 1 - missing.filter((m) => m.role !== dominant.role).reduce((a, m) => a + (m.role === "input" ? inputShare(m.rx) : nonDominantShare), 0) - givenSum / target : r.role === "input" ? inputShare(r.rx) : nonDominantShare;
   const ideal = new Map<CapacitorRole, number>();
   for (const m of missing) {
-    const fx = evaluateFormula(ff.poleShare, { share: share(m), fL: target }, rec, `${m.role} capacitor${m.role === dominant.role ? " (dominant)" : " (a twentieth of the target)"}`);
+    const fx = evaluateFormula(ff.poleShare, { share: share(m), fL: target }, rec, `${m.role} capacitor${m.role === dominant.role ? " (dominant)" : m.role === "input" && inputShortAgainst !== undefined ? " (low enough to be a short at the corner beside Rsig + 1/gm)" : " (a twentieth of the target)"}`);
     ideal.set(m.role, evaluateFormula(ff.capacitorForPole, { Rx: m.rx, fx }, rec));
   }
   const bypass = roles.find((r) => r.role === "bypass");
@@ -525,7 +593,7 @@ export function parallelPairs(value: number, series: SeriesName): number[] {
   return out;
 }
 
-function commonSourceNodes(caps: DeviceCapacitances, cl: number, RSP: number, RLP: number, ctx: Ctx): FrequencyNodes {
+function commonSourceNodes(caps: DeviceCapacitances, cl: number, RSP: number, RLP: number, ctx: FrequencyContext): FrequencyNodes {
   const { rec, gm } = ctx;
   rec?.note("Upper corner", "Node capacitances of the common source: the source and body at AC ground, so Cgb joins Cgs and the drain junction joins the load.");
   const CGI = evaluateFormula(ff.gateToGround, { Cgs: caps.cgs, Cgb: caps.cgb }, rec);
@@ -534,7 +602,7 @@ function commonSourceNodes(caps: DeviceCapacitances, cl: number, RSP: number, RL
   return { rsigSeen: RSP as Ohms, rOut: RLP as Ohms, cGate: CGI as Farads, cBridge: CGO as Farads, cOut: CO as Farads, gm };
 }
 
-function followerNodes(stage: Stage, caps: DeviceCapacitances, cl: number, RSP: number, RSL: number, ctx: Ctx): FrequencyNodes {
+function followerNodes(stage: Stage, caps: DeviceCapacitances, cl: number, RSP: number, RSL: number, ctx: FrequencyContext): FrequencyNodes {
   const { rec, gm } = ctx;
   const rail = stage.body === "rail";
   rec?.note("Upper corner", `Node capacitances of the follower: the drain at AC ground; ${rail ? "the body at its rail, so Cgb goes to ground and the source junction loads the output" : "the body at the source, so Cgb bridges gate and source and the drain junction loads the output"}.`);
@@ -546,18 +614,30 @@ function followerNodes(stage: Stage, caps: DeviceCapacitances, cl: number, RSP: 
   return { rsigSeen: RSP as Ohms, rOut: RSL as Ohms, cGate: CGI as Farads, cBridge: CGO as Farads, cOut: CO as Farads, gm };
 }
 
-function highFrequency(n: FrequencyNodes, follower: boolean, ctx: Ctx, checks: StageCheck[], findings: string[], lowCorner?: number): HighFrequencyResponse {
+/**
+ * Upper corner of a common-source or follower node mapping: open-circuit time constants, the two-pole denominator,
+ * the zero, the Miller approximation (common source) and the dominance checks. `rf`: a resistor from the output
+ * back to the gate (drain feedback), handled exactly by the two-node determinant.
+ */
+export function highFrequency(n: FrequencyNodes, follower: boolean, ctx: FrequencyContext, checks: StageCheck[], findings: string[], lowCorner?: number, rf?: number): HighFrequencyResponse {
   const { rec, gm } = ctx;
   const RSP = n.rsigSeen;
   const CGI = n.cGate;
   const CGO = n.cBridge;
   const CO = n.cOut;
   rec?.note("Open-circuit time constants", "Each device and load capacitance with the others open.");
-  const tau1 = evaluateFormula(ff.gateTimeConstant, { CGI, RSP }, rec);
+  let tau1 = rf === undefined ? evaluateFormula(ff.gateTimeConstant, { CGI, RSP }, rec) : 0;
   let tau2: number;
   let tau3: number;
   let b2: number;
-  if (!follower) {
+  let RN = 0;
+  if (rf !== undefined) {
+    const RLP = n.rOut;
+    RN = evaluateFormula(ff.feedbackDeterminant, { RF: rf, RLP, RSP, gm }, rec);
+    tau1 = evaluateFormula(ff.feedbackGateTimeConstant, { CGI, RSP, RF: rf, RLP, RN }, rec, "RF carries part of the gate node's charge to the output: the gate capacitance sees Rsig' in parallel with the feedback path");
+    tau2 = evaluateFormula(ff.feedbackBridgeTimeConstant, { CGO, RF: rf, RSP, RLP, gm, RN }, rec);
+    tau3 = evaluateFormula(ff.feedbackOutputTimeConstant, { CO, RLP, RF: rf, RSP, RN }, rec);
+  } else if (!follower) {
     const RLP = n.rOut;
     tau2 = evaluateFormula(ff.bridgeTimeConstant, { CGO, RSP, gm, RLP }, rec);
     tau3 = evaluateFormula(ff.outputTimeConstant, { CO, RLP }, rec);
@@ -568,10 +648,16 @@ function highFrequency(n: FrequencyNodes, follower: boolean, ctx: Ctx, checks: S
   }
   const b1 = evaluateFormula(ff.timeConstantSum, { tau1, tau2, tau3 }, rec);
   const fOctc = evaluateFormula(ff.upperCorner, { b1 }, rec);
-  b2 = follower
-    ? evaluateFormula(ff.followerB2, { RSP, RSL: n.rOut, CGI, CGO, CO, gm }, rec)
-    : evaluateFormula(ff.commonSourceB2, { RSP, RLP: n.rOut, CGI, CGO, CO }, rec);
-  const fz = evaluateFormula(ff.bridgeZero, { gm, CGO }, rec, follower ? "left half plane: the gate-source capacitance feeds the signal forward in phase" : "right half plane: the gate-drain capacitance feeds the signal forward, inverted");
+  b2 =
+    rf !== undefined
+      ? evaluateFormula(ff.feedbackB2, { RSP, RLP: n.rOut, RF: rf, CGI, CGO, CO, RN }, rec)
+      : follower
+        ? evaluateFormula(ff.followerB2, { RSP, RSL: n.rOut, CGI, CGO, CO, gm }, rec)
+        : evaluateFormula(ff.commonSourceB2, { RSP, RLP: n.rOut, CGI, CGO, CO }, rec);
+  const fz =
+    rf !== undefined
+      ? evaluateFormula(ff.feedbackZero, { gm, RF: rf, CGO }, rec)
+      : evaluateFormula(ff.bridgeZero, { gm, CGO }, rec, follower ? "left half plane: the gate-source capacitance feeds the signal forward in phase" : "right half plane: the gate-drain capacitance feeds the signal forward, inverted");
   let fp1: number | undefined;
   let fp2: number | undefined;
   let complexPair: HighFrequencyResponse["complexPair"];
@@ -596,8 +682,12 @@ function highFrequency(n: FrequencyNodes, follower: boolean, ctx: Ctx, checks: S
   if (!follower) {
     rec?.note("Miller approximation", "Cgd reflected to the input by the midband gain across it, 1 + gm·RL'; it assumes the output pole lies well above the input pole.");
     const RLP = n.rOut;
-    const CM = evaluateFormula(ff.millerCapacitance, { CGI, CGO, gm, RLP }, rec);
-    const fin = RSP > 0 ? evaluateFormula(ff.millerInputPole, { RSP, CM }, rec) : Infinity;
+    const CM = evaluateFormula(ff.millerCapacitance, { CGI, CGO, gm, RLP }, rec, rf !== undefined ? "RF ≫ RL' assumed for the gain across Cgd" : undefined);
+    let fin = Infinity;
+    if (RSP > 0 && rf !== undefined) {
+      const Rin = evaluateFormula(ff.feedbackInputResistance, { RF: rf, RLP, gm }, rec);
+      fin = evaluateFormula(ff.feedbackMillerInputPole, { RSP, Rin, CM }, rec);
+    } else if (RSP > 0) fin = evaluateFormula(ff.millerInputPole, { RSP, CM }, rec);
     const fout = evaluateFormula(ff.millerOutputPole, { RLP, CO, CGO, gm }, rec);
     miller = { capacitance: CM as Farads, inputPole: fin as Hertz, outputPole: fout as Hertz };
   }

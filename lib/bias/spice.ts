@@ -46,6 +46,13 @@ export function diffusionParams(dev: StageDevice): Record<string, number> {
   return { AD: g.ad, AS: g.as, PD: g.pd, PS: g.ps };
 }
 
+/** The same as text for an instance line (" AD=… AS=… PD=… PS=…", or "" without a capacitance block). */
+export function diffusionText(dev: StageDevice): string {
+  return Object.entries(diffusionParams(dev))
+    .map(([k, v]) => ` ${k}=${spiceNumber(v)}`)
+    .join("");
+}
+
 /** Circuit lines of a single-transistor stage (no title, .op or .end). */
 export function stageSpice(stage: Stage, map: NetworkMapping, prefix = ""): SpiceCircuit {
   const p = spicePrefix(prefix, "SPICE name prefix");

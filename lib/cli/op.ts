@@ -217,7 +217,8 @@ function failedChecks(analysis: StageAnalysis, design: SynthesisResult | undefin
 /** The frequency block of the readable summary. */
 export function frequencyText(fa: FrequencyAnalysis): string {
   const hz = (x: number) => (Number.isFinite(x) ? formatQuantity(x, "frequency") : "none");
-  const lines = [`Frequency response (${fa.view}, hand analysis): midband gain ${+fa.midbandGain.toPrecision(4)}`];
+  const gain = fa.drive === "current" ? `midband transimpedance ${formatQuantity(fa.midbandGain, "resistance")} (V/A, signal current into the reference node)` : `midband gain ${+fa.midbandGain.toPrecision(4)}`;
+  const lines = [`Frequency response (${fa.view}, hand analysis): ${gain}`];
   if (fa.low) {
     for (const c of fa.low.capacitors) lines.push(`  ${c.role.padEnd(6)} capacitor ${formatQuantity(c.value, "capacitance")}${c.designed ? " (designed)" : ""}: sees ${formatQuantity(c.resistance, "resistance")}, pole ${hz(c.pole)}`);
     lines.push(`  low corner ${hz(fa.low.corner)} (short-circuit sum ${hz(fa.low.sctcCorner)})`);

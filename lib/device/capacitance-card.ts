@@ -44,6 +44,60 @@ export interface DatasheetCapacitances {
   readonly vds: Volts;
 }
 
+/**
+ * A foundry device's small-signal capacitances per width, read from a characterisation table at the
+ * operating point (`tableCapacitances` in lib/sizing/gm-id.ts): Cgs, Cgd and Cgg over W, with the table's
+ * fingerprint and the bias they were read at. Junction capacitances are not in the table.
+ */
+export interface TableCapacitances {
+  readonly cgsPerWidth: FaradsPerMeter;
+  readonly cgdPerWidth: FaradsPerMeter;
+  readonly cggPerWidth: FaradsPerMeter;
+  /** Fingerprint of the characterisation table. */
+  readonly table: string;
+  /** Where in the table: model, L, |VGS|, |VDS|, |VSB|. */
+  readonly at: string;
+  /**
+   * The model card's overlap parameters and the bias they apply at. The simulator's reported Cgs, Cgd, Cgg
+   * (the table's) are the intrinsic ones; the overlaps come from the card (BSIM4 capMod 2).
+   */
+  readonly overlap?: OverlapParameters;
+}
+
+/** BSIM4 overlap parameters of one device (capMod 2), copied from the foundry's model card, with the bias. */
+export interface OverlapParameters {
+  readonly cgso: FaradsPerMeter;
+  readonly cgdo: FaradsPerMeter;
+  readonly cgsl?: FaradsPerMeter;
+  readonly cgdl?: FaradsPerMeter;
+  readonly ckappas?: Volts;
+  readonly ckappad?: Volts;
+  /** |VGS| and |VDS| at the operating point (device polarity). */
+  readonly vgs: Volts;
+  readonly vds: Volts;
+  /** Where the values come from (the library and model). */
+  readonly source: string;
+}
+
+/** Validate a table capacitance block: Cgs/W, Cgd/W ≥ 0, Cgg/W at least their sum, a fingerprint. */
+export function checkTableCapacitances(c: TableCapacitances, at: (f: string) => string): TableCapacitances {
+  if (!c || typeof c !== "object") throw new InputError(c, "table capacitances { cgsPerWidth, cgdPerWidth, cggPerWidth, table, at }", at("tableCapacitances"));
+  requireNonNegative(c.cgsPerWidth, at("tableCapacitances.cgsPerWidth"), "Cgs/W ≥ 0 in F/m (characterisation table)");
+  requireNonNegative(c.cgdPerWidth, at("tableCapacitances.cgdPerWidth"), "Cgd/W ≥ 0 in F/m (characterisation table)");
+  requirePositive(c.cggPerWidth, at("tableCapacitances.cggPerWidth"), "Cgg/W > 0 in F/m (characterisation table)");
+  if (c.cggPerWidth < (c.cgsPerWidth + c.cgdPerWidth) * (1 - 1e-9))
+    throw new InputError(c.cggPerWidth, `Cgg/W at least Cgs/W + Cgd/W = ${c.cgsPerWidth + c.cgdPerWidth} F/m (Cgg = Cgs + Cgd + Cgb)`, at("tableCapacitances.cggPerWidth"));
+  if (typeof c.table !== "string" || c.table === "") throw new InputError(c.table, "the characterisation table's fingerprint", at("tableCapacitances.table"));
+  const o = c.overlap;
+  if (o !== undefined) {
+    for (const f of ["cgso", "cgdo", "cgsl", "cgdl"] as const) if (o[f] !== undefined || f === "cgso" || f === "cgdo") requireNonNegative(o[f]!, at(`tableCapacitances.overlap.${f}`), `${f.toUpperCase()} ≥ 0 in F/m (the foundry's model card)`);
+    for (const f of ["ckappas", "ckappad"] as const) if (o[f] !== undefined) requirePositive(o[f]!, at(`tableCapacitances.overlap.${f}`), `${f.toUpperCase()} > 0 in V (the foundry's model card; BSIM4 default 0.6)`);
+    requireFinite(o.vgs, at("tableCapacitances.overlap.vgs"), "|VGS| of the operating point in V");
+    requireFinite(o.vds, at("tableCapacitances.overlap.vds"), "|VDS| of the operating point in V");
+  }
+  return c;
+}
+
 /** Drain and source diffusion geometry of one device (SPICE AD, AS, PD, PS). */
 export interface DiffusionGeometry {
   readonly ad: SquareMeters;

@@ -23,7 +23,7 @@ import { InputError } from "../errors.js";
 import type { Farads, Meters } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 import { defaultPhi, type DeviceCard } from "./card.js";
-import { checkDiffusionGeometry, junctionDefaults, type DiffusionGeometry } from "./capacitance-card.js";
+import { checkDiffusionGeometry, checkTableCapacitances, junctionDefaults, type DiffusionGeometry } from "./capacitance-card.js";
 import type { OperatingPoint } from "./drain-current.js";
 
 /** Terminal capacitances of one device at its operating point (physical drain and source). */
@@ -35,7 +35,7 @@ export interface DeviceCapacitances {
   readonly csb: Farads;
   /** Drain-source capacitance: a discrete part's Coss − Crss; 0 for a Level 1 card. */
   readonly cds: Farads;
-  readonly from: "level1-meyer" | "datasheet";
+  readonly from: "level1-meyer" | "datasheet" | "characterisation-table";
   /** Diffusion geometry used for the junctions (Level 1 only). */
   readonly geometry?: DiffusionGeometry;
 }
@@ -56,10 +56,10 @@ export function evaluateFormula(f: Formula, args: Readonly<Record<string, number
 }
 
 export const missingCapacitanceHelp =
-  "capacitance data: a model card's `capacitance` block (TOX, and CGSO, CGDO, CGBO, CJ, MJ, PB, CJSW, MJSW from the foundry's or vendor's SPICE model card) or a discrete part's `datasheetCapacitances` (Ciss, Crss, Coss at the stated VDS, from the datasheet's capacitance table)";
+  "capacitance data: a model card's `capacitance` block (TOX, and CGSO, CGDO, CGBO, CJ, MJ, PB, CJSW, MJSW from the foundry's or vendor's SPICE model card) or a discrete part's `datasheetCapacitances` (Ciss, Crss, Coss at the stated VDS, from the datasheet's capacitance table), or a foundry device's `tableCapacitances` (Cgs, Cgd, Cgg per width from a characterisation table, `tableCapacitances(sized, table)`)";
 
 /** Whether a card carries any capacitance data. */
-export const hasCapacitanceData = (card: DeviceCard): boolean => card.capacitance !== undefined || card.datasheetCapacitances !== undefined;
+export const hasCapacitanceData = (card: DeviceCard): boolean => card.capacitance !== undefined || card.datasheetCapacitances !== undefined || card.tableCapacitances !== undefined;
 
 /**
  * Capacitances of one device at its operating point. `op` is the operating
@@ -74,7 +74,49 @@ export function deviceCapacitances(
   const card = dev.card;
   if (card.capacitance) return level1(dev, op, origin, rec);
   if (card.datasheetCapacitances) return fromDatasheet(card, op, rec);
+  if (card.tableCapacitances) return fromTable(dev, origin, rec);
   throw new InputError(undefined, missingCapacitanceHelp, `${origin}.card${card.name ? ` "${card.name}"` : ""}: capacitance`, "invalid-design");
+}
+
+function fromTable(dev: { readonly card: DeviceCard; readonly w: Meters }, origin: string, rec?: Derivation): DeviceCapacitances {
+  const t = checkTableCapacitances(dev.card.tableCapacitances!, (f) => `${origin}.card.${f}`);
+  const from = `card ${dev.card.name}: characterisation table ${t.table.slice(0, 12)}, ${t.at}`;
+  if (rec) {
+    rec.input("Cgs/W", t.cgsPerWidth, "capacitancePerWidth", from);
+    rec.input("Cgd/W", t.cgdPerWidth, "capacitancePerWidth", from);
+    rec.input("Cgg/W", t.cggPerWidth, "capacitancePerWidth", from);
+    rec.cite(`characterisation table ${t.table} (the simulator's BSIM4 capacitances of the foundry device)`);
+    rec.assume(
+      `Gate capacitances per width from the characterisation table at the operating point it was read at (${t.at}), scaled by W; the junction capacitances (Cdb, Csb) are not in the table and are taken as 0: add the drain junction to the load capacitance where it matters.`,
+    );
+  }
+  const W = dev.w;
+  let cgs: number;
+  let cgd: number;
+  const o = t.overlap;
+  if (o) {
+    rec?.note("Overlap capacitances", `The table holds the simulator's intrinsic capacitances; the overlaps come from the model card (${o.source}) at |VGS| = ${fmt(o.vgs)} V, |VGD| = ${fmt(o.vgs - o.vds)} V.`);
+    const side = (cgxo: number, cgxl: number, ck: number, vgx: number, name: string) => {
+      if (rec) {
+        rec.input(`${name}O`, cgxo, "capacitancePerWidth", o.source);
+        rec.input(`${name}L`, cgxl, "capacitancePerWidth", o.source);
+      }
+      return vgx >= 0 || cgxl === 0
+        ? evaluateFormula(cf.overlapAccumulated, { CGXO: cgxo, CGXL: cgxl }, rec, `${name}: the overlapped diffusion accumulated`)
+        : evaluateFormula(cf.overlapDepleted, { CGXO: cgxo, CGXL: cgxl, Vgx: vgx, CKAPPA: ck }, rec, `${name}: the overlapped diffusion depleted`);
+    };
+    const covS = side(o.cgso, o.cgsl ?? 0, o.ckappas ?? 0.6, o.vgs, "CGS");
+    const covD = side(o.cgdo, o.cgdl ?? 0, o.ckappad ?? 0.6, o.vgs - o.vds, "CGD");
+    cgs = evaluateFormula(cf.tableGateSourceOverlap, { CgsW: t.cgsPerWidth, CovW: covS, W }, rec);
+    cgd = evaluateFormula(cf.tableGateDrainOverlap, { CgdW: t.cgdPerWidth, CovW: covD, W }, rec);
+  } else {
+    rec?.find("caution", "The table's capacitances are the simulator's intrinsic ones, without the overlaps: give the model card's overlap parameters (tableCapacitances(sized, overlap)), or the gate-drain capacitance and the Miller effect are underestimated.");
+    cgs = evaluateFormula(cf.tableGateSource, { CgsW: t.cgsPerWidth, W }, rec);
+    cgd = evaluateFormula(cf.tableGateDrain, { CgdW: t.cgdPerWidth, W }, rec);
+  }
+  const cgb = evaluateFormula(cf.tableGateBody, { CggW: t.cggPerWidth, CgsW: t.cgsPerWidth, CgdW: t.cgdPerWidth, W }, rec);
+  const z = 0 as Farads;
+  return { cgs: cgs as Farads, cgd: cgd as Farads, cgb: cgb as Farads, cdb: z, csb: z, cds: z, from: "characterisation-table" };
 }
 
 function fromDatasheet(card: DeviceCard, op: OperatingPoint, rec?: Derivation): DeviceCapacitances {

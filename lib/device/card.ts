@@ -7,7 +7,7 @@
  */
 import { InputError, requireFinite, requireNonNegative, requirePositive } from "../errors.js";
 import { cardAt, checkCardSet, type CardSet } from "./card-set.js";
-import { checkDatasheetCapacitances, checkProcessCapacitances, type DatasheetCapacitances, type ProcessCapacitances } from "./capacitance-card.js";
+import { checkDatasheetCapacitances, checkProcessCapacitances, checkTableCapacitances, type DatasheetCapacitances, type ProcessCapacitances, type TableCapacitances } from "./capacitance-card.js";
 import type { AmperesPerVoltSquared, Kelvin, Meters, PerVolt, Ratio, SqrtVolts, VoltMeters, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 
 export const polarities = ["nmos", "pmos"] as const;
@@ -74,6 +74,8 @@ export interface DeviceCard {
   readonly capacitance?: ProcessCapacitances;
   /** A discrete part's datasheet Ciss, Crss, Coss, for frequency analysis. */
   readonly datasheetCapacitances?: DatasheetCapacitances;
+  /** A foundry device's Cgs, Cgd, Cgg per width from a characterisation table, for frequency analysis. */
+  readonly tableCapacitances?: TableCapacitances;
   /** Pelgrom threshold-mismatch coefficient: σ(ΔVt) = AVt/√(W·L) for a pair of these devices, in V·m (1 mV·µm = 1e-9 V·m). */
   readonly avt?: VoltMeters;
   /** Pelgrom current-factor mismatch coefficient: σ(Δβ/β) = Aβ/√(W·L), in m (1 %·µm = 1e-8 m). */
@@ -151,6 +153,7 @@ export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard 
   }
   if (card.capacitance !== undefined) checkProcessCapacitances(card.capacitance, at);
   if (card.datasheetCapacitances !== undefined) checkDatasheetCapacitances(card.datasheetCapacitances, at);
+  if (card.tableCapacitances !== undefined) checkTableCapacitances(card.tableCapacitances, at);
   return card;
 }
 

@@ -13,6 +13,8 @@ import { defineFormulas, defineSymbols } from "./define.js";
 
 const meyer = "J. E. Meyer, \"MOS models and circuit simulation\", RCA Review 32, 1971, pp. 42–63; region forms as in SPICE2 / ngspice Level 1";
 const junction = "depletion capacitance of a graded junction, with the linear extension above FC·PB used by SPICE2 / ngspice Level 1";
+const table = "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)";
+const bsim4Overlap = "BSIM4 capMod = 2 bias-dependent overlap capacitance, without the smoothing of Vgx near 0 (BSIM4.5.0 MOSFET Model User's Manual, UC Berkeley, 2005, chapter on capacitance modelling; from memory)";
 const datasheet = "datasheet capacitances of a discrete MOSFET: Ciss = Cgs + Cgd, Crss = Cgd, Coss = Cds + Cgd (common practice)";
 
 export const symbols = defineSymbols({
@@ -51,6 +53,15 @@ export const symbols = defineSymbols({
   Cdb: { tex: "C_{db}", dim: "capacitance", meaning: "drain-body junction capacitance" },
   Csb: { tex: "C_{sb}", dim: "capacitance", meaning: "source-body junction capacitance" },
   // datasheet
+  // characterisation table (foundry device), per width at the operating point
+  CGXO: { tex: "C_{GxO}", dim: "capacitancePerWidth", meaning: "bias-independent overlap capacitance per width of one side (BSIM4 CGSO or CGDO)" },
+  CGXL: { tex: "C_{GxL}", dim: "capacitancePerWidth", meaning: "bias-dependent overlap capacitance per width of one side (BSIM4 CGSL or CGDL)" },
+  CKAPPA: { tex: "C_{KAPPA}", dim: "voltage", meaning: "overlap-region coefficient of one side (BSIM4 CKAPPAS or CKAPPAD)" },
+  Vgx: { tex: "V_{gx}", dim: "voltage", meaning: "gate voltage over the overlapped diffusion (VGS or VGD, device polarity)" },
+  CovW: { tex: "C_{ov}/W", dim: "capacitancePerWidth", meaning: "small-signal overlap capacitance per width of one side" },
+  CgsW: { tex: "C_{gs}/W", dim: "capacitancePerWidth", meaning: "gate-source capacitance per width from the characterisation table" },
+  CgdW: { tex: "C_{gd}/W", dim: "capacitancePerWidth", meaning: "gate-drain capacitance per width from the characterisation table" },
+  CggW: { tex: "C_{gg}/W", dim: "capacitancePerWidth", meaning: "total gate capacitance per unit width (from the table)" },
   Ciss: { tex: "C_{iss}", dim: "capacitance", meaning: "input capacitance, drain shorted to source (datasheet)" },
   Crss: { tex: "C_{rss}", dim: "capacitance", meaning: "reverse transfer capacitance (datasheet)" },
   Coss: { tex: "C_{oss}", dim: "capacitance", meaning: "output capacitance, gate shorted to source (datasheet)" },
@@ -111,6 +122,13 @@ export const formulas = defineFormulas({
   drainPerimeterDefault: { title: "Drain perimeter from the diffusion length", result: "PerD", expr: "2 * (W + Ldif)", source: "rectangular diffusion W × Ldif, all four sides (common practice; SPICE Level 1 counts the whole perimeter)" },
   sourceAreaDefault: { title: "Source area from the diffusion length", result: "AS", expr: "W * Ldif", source: "rectangular diffusion W × Ldif (common practice)" },
   sourcePerimeterDefault: { title: "Source perimeter from the diffusion length", result: "PerS", expr: "2 * (W + Ldif)", source: "rectangular diffusion W × Ldif, all four sides (common practice; SPICE Level 1 counts the whole perimeter)" },
+  tableGateSource: { title: "Gate-source capacitance from the characterisation table", result: "Cgs", expr: "CgsW * W", source: table },
+  tableGateDrain: { title: "Gate-drain capacitance from the characterisation table", result: "Cgd", expr: "CgdW * W", source: table },
+  overlapAccumulated: { title: "Overlap capacitance per width, overlapped diffusion accumulated (Vgx ≥ 0)", result: "CovW", expr: "CGXO + CGXL", source: bsim4Overlap },
+  overlapDepleted: { title: "Overlap capacitance per width, overlapped diffusion depleted (Vgx < 0)", result: "CovW", expr: "CGXO + CGXL * (1 - 1 / sqrt(1 - 4 * Vgx / CKAPPA))", source: bsim4Overlap },
+  tableGateSourceOverlap: { title: "Gate-source capacitance: the table's intrinsic Cgs/W and the source-side overlap, times W", result: "Cgs", expr: "(CgsW + CovW) * W", source: table },
+  tableGateDrainOverlap: { title: "Gate-drain capacitance: the table's intrinsic Cgd/W and the drain-side overlap, times W", result: "Cgd", expr: "(CgdW + CovW) * W", source: table },
+  tableGateBody: { title: "Gate-body capacitance from the characterisation table (the rest of Cgg)", result: "Cgb", expr: "(CggW - CgsW - CgdW) * W", source: table },
   datasheetGateSource: { title: "Gate-source capacitance from the datasheet", result: "Cgs", expr: "Ciss - Crss", source: datasheet },
   datasheetGateDrain: { title: "Gate-drain capacitance from the datasheet", result: "Cgd", expr: "Crss", source: datasheet },
   datasheetDrainSource: { title: "Drain-source capacitance from the datasheet", result: "Cds", expr: "Coss - Crss", source: datasheet },

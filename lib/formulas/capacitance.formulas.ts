@@ -269,6 +269,104 @@ export const sourcePerimeterDefault = {
   fn: (W: Meters, Ldif: Meters): Meters => (2 * ((W + Ldif))) as Meters,
 } as const satisfies Formula;
 
+/** Gate-source capacitance from the characterisation table: Cgs = CgsW * W */
+export const tableGateSource = {
+  id: "tableGateSource",
+  title: "Gate-source capacitance from the characterisation table",
+  expr: "CgsW * W",
+  tex: "C_{gs} = {C_{gs}/W}\\cdot{W}",
+  result: "Cgs",
+  resultDim: "capacitance",
+  vars: ["CgsW","W"],
+  dims: ["capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CgsW: FaradsPerMeter, W: Meters): Farads => (CgsW * W) as Farads,
+} as const satisfies Formula;
+
+/** Gate-drain capacitance from the characterisation table: Cgd = CgdW * W */
+export const tableGateDrain = {
+  id: "tableGateDrain",
+  title: "Gate-drain capacitance from the characterisation table",
+  expr: "CgdW * W",
+  tex: "C_{gd} = {C_{gd}/W}\\cdot{W}",
+  result: "Cgd",
+  resultDim: "capacitance",
+  vars: ["CgdW","W"],
+  dims: ["capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CgdW: FaradsPerMeter, W: Meters): Farads => (CgdW * W) as Farads,
+} as const satisfies Formula;
+
+/** Overlap capacitance per width, overlapped diffusion accumulated (Vgx ≥ 0): CovW = CGXO + CGXL */
+export const overlapAccumulated = {
+  id: "overlapAccumulated",
+  title: "Overlap capacitance per width, overlapped diffusion accumulated (Vgx ≥ 0)",
+  expr: "CGXO + CGXL",
+  tex: "C_{ov}/W = {C_{GxO}}+{C_{GxL}}",
+  result: "CovW",
+  resultDim: "capacitancePerWidth",
+  vars: ["CGXO","CGXL"],
+  dims: ["capacitancePerWidth","capacitancePerWidth"],
+  source: "BSIM4 capMod = 2 bias-dependent overlap capacitance, without the smoothing of Vgx near 0 (BSIM4.5.0 MOSFET Model User's Manual, UC Berkeley, 2005, chapter on capacitance modelling; from memory)",
+  fn: (CGXO: FaradsPerMeter, CGXL: FaradsPerMeter): FaradsPerMeter => (CGXO + CGXL) as FaradsPerMeter,
+} as const satisfies Formula;
+
+/** Overlap capacitance per width, overlapped diffusion depleted (Vgx < 0): CovW = CGXO + CGXL * (1 - 1 / sqrt(1 - 4 * Vgx / CKAPPA)) */
+export const overlapDepleted = {
+  id: "overlapDepleted",
+  title: "Overlap capacitance per width, overlapped diffusion depleted (Vgx < 0)",
+  expr: "CGXO + CGXL * (1 - 1 / sqrt(1 - 4 * Vgx / CKAPPA))",
+  tex: "C_{ov}/W = {C_{GxO}}+{C_{GxL}}\\cdot\\left(1-\\frac{1}{\\sqrt{1-\\frac{4\\cdot{V_{gx}}}{{C_{KAPPA}}}}}\\right)",
+  result: "CovW",
+  resultDim: "capacitancePerWidth",
+  vars: ["CGXO","CGXL","Vgx","CKAPPA"],
+  dims: ["capacitancePerWidth","capacitancePerWidth","voltage","voltage"],
+  source: "BSIM4 capMod = 2 bias-dependent overlap capacitance, without the smoothing of Vgx near 0 (BSIM4.5.0 MOSFET Model User's Manual, UC Berkeley, 2005, chapter on capacitance modelling; from memory)",
+  fn: (CGXO: FaradsPerMeter, CGXL: FaradsPerMeter, Vgx: Volts, CKAPPA: Volts): FaradsPerMeter => (CGXO + (CGXL * ((1 - (1 / Math.sqrt((1 - ((4 * Vgx) / CKAPPA)))))))) as FaradsPerMeter,
+} as const satisfies Formula;
+
+/** Gate-source capacitance: the table's intrinsic Cgs/W and the source-side overlap, times W: Cgs = (CgsW + CovW) * W */
+export const tableGateSourceOverlap = {
+  id: "tableGateSourceOverlap",
+  title: "Gate-source capacitance: the table's intrinsic Cgs/W and the source-side overlap, times W",
+  expr: "(CgsW + CovW) * W",
+  tex: "C_{gs} = \\left({C_{gs}/W}+{C_{ov}/W}\\right)\\cdot{W}",
+  result: "Cgs",
+  resultDim: "capacitance",
+  vars: ["CgsW","CovW","W"],
+  dims: ["capacitancePerWidth","capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CgsW: FaradsPerMeter, CovW: FaradsPerMeter, W: Meters): Farads => (((CgsW + CovW)) * W) as Farads,
+} as const satisfies Formula;
+
+/** Gate-drain capacitance: the table's intrinsic Cgd/W and the drain-side overlap, times W: Cgd = (CgdW + CovW) * W */
+export const tableGateDrainOverlap = {
+  id: "tableGateDrainOverlap",
+  title: "Gate-drain capacitance: the table's intrinsic Cgd/W and the drain-side overlap, times W",
+  expr: "(CgdW + CovW) * W",
+  tex: "C_{gd} = \\left({C_{gd}/W}+{C_{ov}/W}\\right)\\cdot{W}",
+  result: "Cgd",
+  resultDim: "capacitance",
+  vars: ["CgdW","CovW","W"],
+  dims: ["capacitancePerWidth","capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CgdW: FaradsPerMeter, CovW: FaradsPerMeter, W: Meters): Farads => (((CgdW + CovW)) * W) as Farads,
+} as const satisfies Formula;
+
+/** Gate-body capacitance from the characterisation table (the rest of Cgg): Cgb = (CggW - CgsW - CgdW) * W */
+export const tableGateBody = {
+  id: "tableGateBody",
+  title: "Gate-body capacitance from the characterisation table (the rest of Cgg)",
+  expr: "(CggW - CgsW - CgdW) * W",
+  tex: "C_{gb} = \\left({C_{gg}/W}-{C_{gs}/W}-{C_{gd}/W}\\right)\\cdot{W}",
+  result: "Cgb",
+  resultDim: "capacitance",
+  vars: ["CggW","CgsW","CgdW","W"],
+  dims: ["capacitancePerWidth","capacitancePerWidth","capacitancePerWidth","length"],
+  source: "the simulator's small-signal capacitances of the foundry device (BSIM4 Cgg, Cgs, Cgd) per width, interpolated in the characterisation table (lib/process/lookup.ts)",
+  fn: (CggW: FaradsPerMeter, CgsW: FaradsPerMeter, CgdW: FaradsPerMeter, W: Meters): Farads => ((((CggW - CgsW) - CgdW)) * W) as Farads,
+} as const satisfies Formula;
+
 /** Gate-source capacitance from the datasheet: Cgs = Ciss - Crss */
 export const datasheetGateSource = {
   id: "datasheetGateSource",

@@ -104,7 +104,30 @@ export const symbols = defineSymbols({
   fm: { tex: "f_{m}", dim: "frequency", meaning: "mirror pole" },
   fu: { tex: "f_{u}", dim: "frequency", meaning: "unity-gain frequency" },
   PM: { tex: "\\varphi_{m}", dim: "dimensionless", meaning: "phase margin in degrees" },
+  rhoIn: { tex: "\\rho_{in}", dim: "dimensionless", meaning: "input coupling capacitor's impedance at the low corner over Rsig + 1/gm" },
+  kC: { tex: "C_{ds2}'/C_{o}", dim: "dimensionless", meaning: "capacitance across the cascode device over the output capacitance" },
   AvX: { tex: "A_{vX}", dim: "dimensionless", meaning: "magnitude of the gain from the input gate to the node between the devices" },
+  // drain-feedback stage (RF from drain to gate)
+  RF: { tex: "R_{F}", dim: "resistance", meaning: "drain-to-gate feedback resistor" },
+  Rin: { tex: "R_{in}", dim: "resistance", meaning: "small-signal input resistance" },
+  RN: { tex: "R_{N}", dim: "resistance", meaning: "resistance sum of the drain-feedback stage's two-node determinant, RF + RL' + Rsig' + gm·Rsig'·RL'" },
+  // current mirror driven by a signal current into its reference node
+  RREF: { tex: "R_{REF}", dim: "resistance", meaning: "reference resistor from the drain-side rail to the diode-connected transistor" },
+  gds3: { tex: "g_{ds3}", dim: "conductance", meaning: "output conductance of the mirror's diode-connected device" },
+  Cds3: { tex: "C_{ds3}", dim: "capacitance", meaning: "drain-source capacitance of the mirror's diode device" },
+  Rm: { tex: "R_{m}", dim: "resistance", meaning: "resistance at the mirror's gate node (1/gm of the diode device ∥ its ro ∥ RREF)" },
+  Zt: { tex: "Z_{t}", dim: "resistance", meaning: "transimpedance from the signal current into the reference node to the output voltage" },
+  // common source with a diode-connected load
+  gmL: { tex: "g_{mL}", dim: "conductance", meaning: "transconductance of the diode-connected load device" },
+  gmbL: { tex: "g_{mbL}", dim: "conductance", meaning: "body transconductance of the diode-connected load device (0 without body effect)" },
+  gdsL: { tex: "g_{dsL}", dim: "conductance", meaning: "output conductance of the diode-connected load device" },
+  RDL1: { tex: "R_{dl}", dim: "resistance", meaning: "small-signal resistance of the diode-connected load, 1/(gmL + gmbL + gdsL)" },
+  CgsL: { tex: "C_{gsL}", dim: "capacitance", meaning: "gate-source capacitance of the load device" },
+  CgbL: { tex: "C_{gbL}", dim: "capacitance", meaning: "gate-body capacitance of the load device" },
+  CdbL: { tex: "C_{dbL}", dim: "capacitance", meaning: "drain junction capacitance of the load device" },
+  CsbL: { tex: "C_{sbL}", dim: "capacitance", meaning: "source junction capacitance of the load device" },
+  CdsL: { tex: "C_{dsL}", dim: "capacitance", meaning: "drain-source capacitance of the load device" },
+  CLD: { tex: "C_{ld}", dim: "capacitance", meaning: "capacitance the diode-connected load device puts on the output node" },
 });
 
 export const formulas = defineFormulas({
@@ -193,6 +216,7 @@ export const formulas = defineFormulas({
     expr: "CDS2 * (1 + gds1 * RD) / (gm2 + gmb2 + gds1 + gds2 + gds1 * gds2 * RD)",
     source: octc,
   },
+  cascodeAcrossShare: { title: "Capacitance across the cascode device relative to the output capacitance", result: "kC", expr: "CDS2 / CO", source: octc },
   cascodeMidband: {
     title: "Midband gain of the cascode stage: M1's current less the share ro1 takes, into the output resistance",
     result: "Av",
@@ -226,6 +250,76 @@ export const formulas = defineFormulas({
   mirrorPole: { title: "Mirror pole", result: "fm", expr: "gm3 / (2 * pi * CMIR)", source: nodal },
   mirrorZero: { title: "Mirror zero (left half plane: half the signal bypasses the mirror)", result: "fz", expr: "2 * fm", source: nodal },
   phaseMargin: { title: "Phase margin at the unity-gain frequency (output pole, mirror pole and zero)", result: "PM", expr: "180 - (atan(fu / fp1) + atan(fu / fm) - atan(fu / fz)) * 180 / pi", source: nodal },
+  // drain-feedback stage: gate node (Rsig', CGI) and output node (RL', CO) joined by RF and CGO; exact two-node determinant
+  feedbackDeterminant: {
+    title: "Resistance sum of the drain-feedback stage's determinant (RF bridges the gate and the output)",
+    result: "RN",
+    expr: "RF + RLP + RSP + gm * RSP * RLP",
+    source: nodal,
+  },
+  feedbackMidband: { title: "Midband gain from the signal source, drain-feedback stage (RF feeds the output back to the gate)", result: "Av", expr: "RLP * (1 - gm * RF) / RN", source: nodal },
+  feedbackInputResistance: { title: "Resistance into the gate of the drain-feedback stage (RF divided by the gain across it)", result: "Rin", expr: "(RF + RLP) / (1 + gm * RLP)", source: nodal },
+  feedbackInputCouplingResistance: { title: "Resistance the input coupling capacitor of the drain-feedback stage sees (others shorted)", result: "Rx", expr: "Rsig + Rin", source: sctc },
+  feedbackOutputResistance: {
+    title: "Resistance at the drain of the drain-feedback stage, gate returned through RF and the signal source",
+    result: "Rout",
+    expr: "1 / (1 / RD + gds + (1 + gm * Rsig) / (RF + Rsig))",
+    source: nodal,
+  },
+  feedbackBypassResistance: {
+    title: "Resistance the source bypass capacitor of the drain-feedback stage sees (others shorted; the gate follows the drain through RF and Rsig)",
+    result: "Rx",
+    expr: "1 / (1 / RS + (gm + gmb + gds) * (1 / RDL + 1 / (RF + Rsig)) / (1 / RDL + 1 / (RF + Rsig) + gm * Rsig / (Rsig + RF) + gds))",
+    source: sctc,
+  },
+  feedbackGateTimeConstant: { title: "Open-circuit time constant of the gate capacitance, drain-feedback stage", result: "tau", expr: "CGI * RSP * (RF + RLP) / RN", source: octc },
+  feedbackBridgeTimeConstant: { title: "Open-circuit time constant of the gate-drain capacitance, drain-feedback stage", result: "tau", expr: "CGO * RF * (RSP + RLP + gm * RSP * RLP) / RN", source: octc },
+  feedbackOutputTimeConstant: { title: "Open-circuit time constant of the output capacitance, drain-feedback stage", result: "tau", expr: "CO * RLP * (RF + RSP) / RN", source: octc },
+  feedbackB2: {
+    title: "Second-order coefficient of the drain-feedback stage's denominator (as √b2)",
+    result: "b2",
+    expr: "sqrt(RSP * RLP * RF * (CGI * CGO + CGI * CO + CGO * CO) / RN)",
+    source: nodal,
+  },
+  feedbackZero: { title: "Zero of the drain-feedback stage (right half plane: RF and CGO feed the signal forward)", result: "fz", expr: "(gm - 1 / RF) / (2 * pi * CGO)", source: nodal },
+  feedbackInputShort: {
+    title: "Input coupling capacitor's impedance at the low corner beside Rsig + 1/gm (drain feedback: the gate's impedance to ground enters the output and bypass loops through gm)",
+    result: "rhoIn",
+    expr: "1 / (2 * pi * fL * Cx * (Rsig + 1 / gm))",
+    source: sctc,
+  },
+  feedbackMillerInputPole: { title: "Input pole with the Miller capacitance, drain-feedback stage (the gate node sees Rsig' in parallel with Rin)", result: "f1", expr: "(RSP + Rin) / (2 * pi * RSP * Rin * CM)", source: miller },
+  // current mirror: a signal current into the reference (gate) node, the output device drives RLOAD
+  mirrorNodeResistance: { title: "Resistance at the mirror's gate node", result: "Rm", expr: "1 / (gm3 + gds3 + 1 / RREF)", source: nodal },
+  mirrorGateCapacitance: {
+    title: "Capacitance from the mirror's gate node to AC ground (the diode device's gate-drain capacitance is shorted; sources and bodies at the rail)",
+    result: "CGI",
+    expr: "Cgs3 + Cgb3 + Cdb3 + Cds3 + Cgs4 + Cgb4",
+    source: nodal,
+  },
+  mirrorTransimpedance: { title: "Midband transimpedance of the mirror, signal current in to output voltage", result: "Zt", expr: "-gm * Rm * RLP", source: nodal },
+  mirrorGatePole: { title: "Mirror pole: the gate node's own RC (≈ gm/(2π·C) of the diode device)", result: "fm", expr: "1 / (2 * pi * Rm * CGI)", source: nodal },
+  // common source with a diode-connected load
+  diodeLoadResistance: { title: "Small-signal resistance of the diode-connected load", result: "RDL1", expr: "1 / (gmL + gmbL + gdsL)", source: nodal },
+  diodeLoadCapacitanceComplementary: {
+    title: "Capacitance of a complementary diode-connected load at the output (gate and drain at the output, source and body at the rail)",
+    result: "CLD",
+    expr: "CgsL + CgbL + CdbL + CdsL",
+    source: nodal,
+  },
+  diodeLoadCapacitanceSameRail: {
+    title: "Capacitance of a same-type diode-connected load at the output, body at the rail (gate and drain at the rail, source at the output)",
+    result: "CLD",
+    expr: "CgsL + CdsL + CsbL",
+    source: nodal,
+  },
+  diodeLoadCapacitanceSameTied: {
+    title: "Capacitance of a same-type diode-connected load at the output, body at its source (the output)",
+    result: "CLD",
+    expr: "CgsL + CdsL + CgbL + CdbL",
+    source: nodal,
+  },
+  diodeLoadOutputCapacitance: { title: "Capacitance from the output of the diode-load stage to AC ground", result: "CO", expr: "CL + Cdb + Cds + CLD", source: nodal },
   // source follower
   followerBridgeTimeConstant: {
     title: "Open-circuit time constant of the gate-source capacitance (follower)",

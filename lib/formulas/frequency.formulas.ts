@@ -717,6 +717,20 @@ export const cascodeAcrossTimeConstant = {
   fn: (CDS2: Farads, gds1: Siemens, RD: Ohms, gm2: Siemens, gmb2: Siemens, gds2: Siemens): Seconds => ((CDS2 * ((1 + (gds1 * RD)))) / (((((gm2 + gmb2) + gds1) + gds2) + ((gds1 * gds2) * RD)))) as Seconds,
 } as const satisfies Formula;
 
+/** Capacitance across the cascode device relative to the output capacitance: kC = CDS2 / CO */
+export const cascodeAcrossShare = {
+  id: "cascodeAcrossShare",
+  title: "Capacitance across the cascode device relative to the output capacitance",
+  expr: "CDS2 / CO",
+  tex: "C_{ds2}'/C_{o} = \\frac{{C_{ds2}'}}{{C_{o}}}",
+  result: "kC",
+  resultDim: "dimensionless",
+  vars: ["CDS2","CO"],
+  dims: ["capacitance","capacitance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CDS2: Farads, CO: Farads): Ratio => (CDS2 / CO) as Ratio,
+} as const satisfies Formula;
+
 /** Midband gain of the cascode stage: M1's current less the share ro1 takes, into the output resistance: Av = -gm1 * (gm2 + gmb2 + gds2) / (gm2 + gmb2 + gds2 + gds1) * RLP */
 export const cascodeMidband = {
   id: "cascodeMidband",
@@ -953,6 +967,314 @@ export const phaseMargin = {
   dims: ["frequency","frequency","frequency","frequency"],
   source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
   fn: (fu: Hertz, fp1: Hertz, fm: Hertz, fz: Hertz): Ratio => (180 - (((((Math.atan((fu / fp1)) + Math.atan((fu / fm))) - Math.atan((fu / fz)))) * 180) / Math.PI)) as Ratio,
+} as const satisfies Formula;
+
+/** Resistance sum of the drain-feedback stage's determinant (RF bridges the gate and the output): RN = RF + RLP + RSP + gm * RSP * RLP */
+export const feedbackDeterminant = {
+  id: "feedbackDeterminant",
+  title: "Resistance sum of the drain-feedback stage's determinant (RF bridges the gate and the output)",
+  expr: "RF + RLP + RSP + gm * RSP * RLP",
+  tex: "R_{N} = {R_{F}}+{R_{L}'}+{R_{sig}'}+{g_{m}}\\cdot{R_{sig}'}\\cdot{R_{L}'}",
+  result: "RN",
+  resultDim: "resistance",
+  vars: ["RF","RLP","RSP","gm"],
+  dims: ["resistance","resistance","resistance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RF: Ohms, RLP: Ohms, RSP: Ohms, gm: Siemens): Ohms => (((RF + RLP) + RSP) + ((gm * RSP) * RLP)) as Ohms,
+} as const satisfies Formula;
+
+/** Midband gain from the signal source, drain-feedback stage (RF feeds the output back to the gate): Av = RLP * (1 - gm * RF) / RN */
+export const feedbackMidband = {
+  id: "feedbackMidband",
+  title: "Midband gain from the signal source, drain-feedback stage (RF feeds the output back to the gate)",
+  expr: "RLP * (1 - gm * RF) / RN",
+  tex: "A_{v} = \\frac{{R_{L}'}\\cdot\\left(1-{g_{m}}\\cdot{R_{F}}\\right)}{{R_{N}}}",
+  result: "Av",
+  resultDim: "dimensionless",
+  vars: ["RLP","gm","RF","RN"],
+  dims: ["resistance","conductance","resistance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RLP: Ohms, gm: Siemens, RF: Ohms, RN: Ohms): Ratio => ((RLP * ((1 - (gm * RF)))) / RN) as Ratio,
+} as const satisfies Formula;
+
+/** Resistance into the gate of the drain-feedback stage (RF divided by the gain across it): Rin = (RF + RLP) / (1 + gm * RLP) */
+export const feedbackInputResistance = {
+  id: "feedbackInputResistance",
+  title: "Resistance into the gate of the drain-feedback stage (RF divided by the gain across it)",
+  expr: "(RF + RLP) / (1 + gm * RLP)",
+  tex: "R_{in} = \\frac{{R_{F}}+{R_{L}'}}{1+{g_{m}}\\cdot{R_{L}'}}",
+  result: "Rin",
+  resultDim: "resistance",
+  vars: ["RF","RLP","gm"],
+  dims: ["resistance","resistance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RF: Ohms, RLP: Ohms, gm: Siemens): Ohms => (((RF + RLP)) / ((1 + (gm * RLP)))) as Ohms,
+} as const satisfies Formula;
+
+/** Resistance the input coupling capacitor of the drain-feedback stage sees (others shorted): Rx = Rsig + Rin */
+export const feedbackInputCouplingResistance = {
+  id: "feedbackInputCouplingResistance",
+  title: "Resistance the input coupling capacitor of the drain-feedback stage sees (others shorted)",
+  expr: "Rsig + Rin",
+  tex: "R_{x} = {R_{sig}}+{R_{in}}",
+  result: "Rx",
+  resultDim: "resistance",
+  vars: ["Rsig","Rin"],
+  dims: ["resistance","resistance"],
+  source: "short-circuit time-constant method (P. E. Gray and C. L. Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (Rsig: Ohms, Rin: Ohms): Ohms => (Rsig + Rin) as Ohms,
+} as const satisfies Formula;
+
+/** Resistance at the drain of the drain-feedback stage, gate returned through RF and the signal source: Rout = 1 / (1 / RD + gds + (1 + gm * Rsig) / (RF + Rsig)) */
+export const feedbackOutputResistance = {
+  id: "feedbackOutputResistance",
+  title: "Resistance at the drain of the drain-feedback stage, gate returned through RF and the signal source",
+  expr: "1 / (1 / RD + gds + (1 + gm * Rsig) / (RF + Rsig))",
+  tex: "R_{out} = \\frac{1}{\\frac{1}{{R_{D}}}+{g_{ds}}+\\frac{1+{g_{m}}\\cdot{R_{sig}}}{{R_{F}}+{R_{sig}}}}",
+  result: "Rout",
+  resultDim: "resistance",
+  vars: ["RD","gds","gm","Rsig","RF"],
+  dims: ["resistance","conductance","conductance","resistance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RD: Ohms, gds: Siemens, gm: Siemens, Rsig: Ohms, RF: Ohms): Ohms => (1 / ((((1 / RD) + gds) + (((1 + (gm * Rsig))) / ((RF + Rsig)))))) as Ohms,
+} as const satisfies Formula;
+
+/** Resistance the source bypass capacitor of the drain-feedback stage sees (others shorted; the gate follows the drain through RF and Rsig): Rx = 1 / (1 / RS + (gm + gmb + gds) * (1 / RDL + 1 / (RF + Rsig)) / (1 / RDL + 1 / (RF + Rsig) + gm * Rsig / (Rsig + RF) + gds)) */
+export const feedbackBypassResistance = {
+  id: "feedbackBypassResistance",
+  title: "Resistance the source bypass capacitor of the drain-feedback stage sees (others shorted; the gate follows the drain through RF and Rsig)",
+  expr: "1 / (1 / RS + (gm + gmb + gds) * (1 / RDL + 1 / (RF + Rsig)) / (1 / RDL + 1 / (RF + Rsig) + gm * Rsig / (Rsig + RF) + gds))",
+  tex: "R_{x} = \\frac{1}{\\frac{1}{{R_{S}}}+\\frac{\\left({g_{m}}+{g_{mb}}+{g_{ds}}\\right)\\cdot\\left(\\frac{1}{{R_{D}\\parallel R_{L}}}+\\frac{1}{{R_{F}}+{R_{sig}}}\\right)}{\\frac{1}{{R_{D}\\parallel R_{L}}}+\\frac{1}{{R_{F}}+{R_{sig}}}+\\frac{{g_{m}}\\cdot{R_{sig}}}{{R_{sig}}+{R_{F}}}+{g_{ds}}}}",
+  result: "Rx",
+  resultDim: "resistance",
+  vars: ["RS","gm","gmb","gds","RDL","RF","Rsig"],
+  dims: ["resistance","conductance","conductance","conductance","resistance","resistance","resistance"],
+  source: "short-circuit time-constant method (P. E. Gray and C. L. Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (RS: Ohms, gm: Siemens, gmb: Siemens, gds: Siemens, RDL: Ohms, RF: Ohms, Rsig: Ohms): Ohms => (1 / (((1 / RS) + (((((gm + gmb) + gds)) * (((1 / RDL) + (1 / ((RF + Rsig)))))) / (((((1 / RDL) + (1 / ((RF + Rsig)))) + ((gm * Rsig) / ((Rsig + RF)))) + gds)))))) as Ohms,
+} as const satisfies Formula;
+
+/** Open-circuit time constant of the gate capacitance, drain-feedback stage: tau = CGI * RSP * (RF + RLP) / RN */
+export const feedbackGateTimeConstant = {
+  id: "feedbackGateTimeConstant",
+  title: "Open-circuit time constant of the gate capacitance, drain-feedback stage",
+  expr: "CGI * RSP * (RF + RLP) / RN",
+  tex: "\\tau = \\frac{{C_{gi}}\\cdot{R_{sig}'}\\cdot\\left({R_{F}}+{R_{L}'}\\right)}{{R_{N}}}",
+  result: "tau",
+  resultDim: "time",
+  vars: ["CGI","RSP","RF","RLP","RN"],
+  dims: ["capacitance","resistance","resistance","resistance","resistance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CGI: Farads, RSP: Ohms, RF: Ohms, RLP: Ohms, RN: Ohms): Seconds => (((CGI * RSP) * ((RF + RLP))) / RN) as Seconds,
+} as const satisfies Formula;
+
+/** Open-circuit time constant of the gate-drain capacitance, drain-feedback stage: tau = CGO * RF * (RSP + RLP + gm * RSP * RLP) / RN */
+export const feedbackBridgeTimeConstant = {
+  id: "feedbackBridgeTimeConstant",
+  title: "Open-circuit time constant of the gate-drain capacitance, drain-feedback stage",
+  expr: "CGO * RF * (RSP + RLP + gm * RSP * RLP) / RN",
+  tex: "\\tau = \\frac{{C_{go}}\\cdot{R_{F}}\\cdot\\left({R_{sig}'}+{R_{L}'}+{g_{m}}\\cdot{R_{sig}'}\\cdot{R_{L}'}\\right)}{{R_{N}}}",
+  result: "tau",
+  resultDim: "time",
+  vars: ["CGO","RF","RSP","RLP","gm","RN"],
+  dims: ["capacitance","resistance","resistance","resistance","conductance","resistance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CGO: Farads, RF: Ohms, RSP: Ohms, RLP: Ohms, gm: Siemens, RN: Ohms): Seconds => (((CGO * RF) * (((RSP + RLP) + ((gm * RSP) * RLP)))) / RN) as Seconds,
+} as const satisfies Formula;
+
+/** Open-circuit time constant of the output capacitance, drain-feedback stage: tau = CO * RLP * (RF + RSP) / RN */
+export const feedbackOutputTimeConstant = {
+  id: "feedbackOutputTimeConstant",
+  title: "Open-circuit time constant of the output capacitance, drain-feedback stage",
+  expr: "CO * RLP * (RF + RSP) / RN",
+  tex: "\\tau = \\frac{{C_{o}}\\cdot{R_{L}'}\\cdot\\left({R_{F}}+{R_{sig}'}\\right)}{{R_{N}}}",
+  result: "tau",
+  resultDim: "time",
+  vars: ["CO","RLP","RF","RSP","RN"],
+  dims: ["capacitance","resistance","resistance","resistance","resistance"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (CO: Farads, RLP: Ohms, RF: Ohms, RSP: Ohms, RN: Ohms): Seconds => (((CO * RLP) * ((RF + RSP))) / RN) as Seconds,
+} as const satisfies Formula;
+
+/** Second-order coefficient of the drain-feedback stage's denominator (as √b2): b2 = sqrt(RSP * RLP * RF * (CGI * CGO + CGI * CO + CGO * CO) / RN) */
+export const feedbackB2 = {
+  id: "feedbackB2",
+  title: "Second-order coefficient of the drain-feedback stage's denominator (as √b2)",
+  expr: "sqrt(RSP * RLP * RF * (CGI * CGO + CGI * CO + CGO * CO) / RN)",
+  tex: "b_{2} = \\sqrt{\\frac{{R_{sig}'}\\cdot{R_{L}'}\\cdot{R_{F}}\\cdot\\left({C_{gi}}\\cdot{C_{go}}+{C_{gi}}\\cdot{C_{o}}+{C_{go}}\\cdot{C_{o}}\\right)}{{R_{N}}}}",
+  result: "b2",
+  resultDim: "time",
+  vars: ["RSP","RLP","RF","CGI","CGO","CO","RN"],
+  dims: ["resistance","resistance","resistance","capacitance","capacitance","capacitance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RSP: Ohms, RLP: Ohms, RF: Ohms, CGI: Farads, CGO: Farads, CO: Farads, RN: Ohms): Seconds => Math.sqrt(((((RSP * RLP) * RF) * ((((CGI * CGO) + (CGI * CO)) + (CGO * CO)))) / RN)) as Seconds,
+} as const satisfies Formula;
+
+/** Zero of the drain-feedback stage (right half plane: RF and CGO feed the signal forward): fz = (gm - 1 / RF) / (2 * pi * CGO) */
+export const feedbackZero = {
+  id: "feedbackZero",
+  title: "Zero of the drain-feedback stage (right half plane: RF and CGO feed the signal forward)",
+  expr: "(gm - 1 / RF) / (2 * pi * CGO)",
+  tex: "f_{z} = \\frac{{g_{m}}-\\frac{1}{{R_{F}}}}{2\\cdot\\pi\\cdot{C_{go}}}",
+  result: "fz",
+  resultDim: "frequency",
+  vars: ["gm","RF","CGO"],
+  dims: ["conductance","resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm: Siemens, RF: Ohms, CGO: Farads): Hertz => (((gm - (1 / RF))) / (((2 * Math.PI) * CGO))) as Hertz,
+} as const satisfies Formula;
+
+/** Input coupling capacitor's impedance at the low corner beside Rsig + 1/gm (drain feedback: the gate's impedance to ground enters the output and bypass loops through gm): rhoIn = 1 / (2 * pi * fL * Cx * (Rsig + 1 / gm)) */
+export const feedbackInputShort = {
+  id: "feedbackInputShort",
+  title: "Input coupling capacitor's impedance at the low corner beside Rsig + 1/gm (drain feedback: the gate's impedance to ground enters the output and bypass loops through gm)",
+  expr: "1 / (2 * pi * fL * Cx * (Rsig + 1 / gm))",
+  tex: "\\rho_{in} = \\frac{1}{2\\cdot\\pi\\cdot{f_{L}}\\cdot{C_{x}}\\cdot\\left({R_{sig}}+\\frac{1}{{g_{m}}}\\right)}",
+  result: "rhoIn",
+  resultDim: "dimensionless",
+  vars: ["fL","Cx","Rsig","gm"],
+  dims: ["frequency","capacitance","resistance","conductance"],
+  source: "short-circuit time-constant method (P. E. Gray and C. L. Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (fL: Hertz, Cx: Farads, Rsig: Ohms, gm: Siemens): Ratio => (1 / (((((2 * Math.PI) * fL) * Cx) * ((Rsig + (1 / gm)))))) as Ratio,
+} as const satisfies Formula;
+
+/** Input pole with the Miller capacitance, drain-feedback stage (the gate node sees Rsig' in parallel with Rin): f1 = (RSP + Rin) / (2 * pi * RSP * Rin * CM) */
+export const feedbackMillerInputPole = {
+  id: "feedbackMillerInputPole",
+  title: "Input pole with the Miller capacitance, drain-feedback stage (the gate node sees Rsig' in parallel with Rin)",
+  expr: "(RSP + Rin) / (2 * pi * RSP * Rin * CM)",
+  tex: "f_{1} = \\frac{{R_{sig}'}+{R_{in}}}{2\\cdot\\pi\\cdot{R_{sig}'}\\cdot{R_{in}}\\cdot{C_{M}}}",
+  result: "f1",
+  resultDim: "frequency",
+  vars: ["RSP","Rin","CM"],
+  dims: ["resistance","resistance","capacitance"],
+  source: "Miller approximation (J. M. Miller, Scientific Papers of the Bureau of Standards 15(351), 1920)",
+  fn: (RSP: Ohms, Rin: Ohms, CM: Farads): Hertz => (((RSP + Rin)) / (((((2 * Math.PI) * RSP) * Rin) * CM))) as Hertz,
+} as const satisfies Formula;
+
+/** Resistance at the mirror's gate node: Rm = 1 / (gm3 + gds3 + 1 / RREF) */
+export const mirrorNodeResistance = {
+  id: "mirrorNodeResistance",
+  title: "Resistance at the mirror's gate node",
+  expr: "1 / (gm3 + gds3 + 1 / RREF)",
+  tex: "R_{m} = \\frac{1}{{g_{m3}}+{g_{ds3}}+\\frac{1}{{R_{REF}}}}",
+  result: "Rm",
+  resultDim: "resistance",
+  vars: ["gm3","gds3","RREF"],
+  dims: ["conductance","conductance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm3: Siemens, gds3: Siemens, RREF: Ohms): Ohms => (1 / (((gm3 + gds3) + (1 / RREF)))) as Ohms,
+} as const satisfies Formula;
+
+/** Capacitance from the mirror's gate node to AC ground (the diode device's gate-drain capacitance is shorted; sources and bodies at the rail): CGI = Cgs3 + Cgb3 + Cdb3 + Cds3 + Cgs4 + Cgb4 */
+export const mirrorGateCapacitance = {
+  id: "mirrorGateCapacitance",
+  title: "Capacitance from the mirror's gate node to AC ground (the diode device's gate-drain capacitance is shorted; sources and bodies at the rail)",
+  expr: "Cgs3 + Cgb3 + Cdb3 + Cds3 + Cgs4 + Cgb4",
+  tex: "C_{gi} = {C_{gs3}}+{C_{gb3}}+{C_{db3}}+{C_{ds3}}+{C_{gs4}}+{C_{gb4}}",
+  result: "CGI",
+  resultDim: "capacitance",
+  vars: ["Cgs3","Cgb3","Cdb3","Cds3","Cgs4","Cgb4"],
+  dims: ["capacitance","capacitance","capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Cgs3: Farads, Cgb3: Farads, Cdb3: Farads, Cds3: Farads, Cgs4: Farads, Cgb4: Farads): Farads => (((((Cgs3 + Cgb3) + Cdb3) + Cds3) + Cgs4) + Cgb4) as Farads,
+} as const satisfies Formula;
+
+/** Midband transimpedance of the mirror, signal current in to output voltage: Zt = -gm * Rm * RLP */
+export const mirrorTransimpedance = {
+  id: "mirrorTransimpedance",
+  title: "Midband transimpedance of the mirror, signal current in to output voltage",
+  expr: "-gm * Rm * RLP",
+  tex: "Z_{t} = -{g_{m}}\\cdot{R_{m}}\\cdot{R_{L}'}",
+  result: "Zt",
+  resultDim: "resistance",
+  vars: ["gm","Rm","RLP"],
+  dims: ["conductance","resistance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gm: Siemens, Rm: Ohms, RLP: Ohms): Ohms => (((-gm) * Rm) * RLP) as Ohms,
+} as const satisfies Formula;
+
+/** Mirror pole: the gate node's own RC (≈ gm/(2π·C) of the diode device): fm = 1 / (2 * pi * Rm * CGI) */
+export const mirrorGatePole = {
+  id: "mirrorGatePole",
+  title: "Mirror pole: the gate node's own RC (≈ gm/(2π·C) of the diode device)",
+  expr: "1 / (2 * pi * Rm * CGI)",
+  tex: "f_{m} = \\frac{1}{2\\cdot\\pi\\cdot{R_{m}}\\cdot{C_{gi}}}",
+  result: "fm",
+  resultDim: "frequency",
+  vars: ["Rm","CGI"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (Rm: Ohms, CGI: Farads): Hertz => (1 / ((((2 * Math.PI) * Rm) * CGI))) as Hertz,
+} as const satisfies Formula;
+
+/** Small-signal resistance of the diode-connected load: RDL1 = 1 / (gmL + gmbL + gdsL) */
+export const diodeLoadResistance = {
+  id: "diodeLoadResistance",
+  title: "Small-signal resistance of the diode-connected load",
+  expr: "1 / (gmL + gmbL + gdsL)",
+  tex: "R_{dl} = \\frac{1}{{g_{mL}}+{g_{mbL}}+{g_{dsL}}}",
+  result: "RDL1",
+  resultDim: "resistance",
+  vars: ["gmL","gmbL","gdsL"],
+  dims: ["conductance","conductance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gmL: Siemens, gmbL: Siemens, gdsL: Siemens): Ohms => (1 / (((gmL + gmbL) + gdsL))) as Ohms,
+} as const satisfies Formula;
+
+/** Capacitance of a complementary diode-connected load at the output (gate and drain at the output, source and body at the rail): CLD = CgsL + CgbL + CdbL + CdsL */
+export const diodeLoadCapacitanceComplementary = {
+  id: "diodeLoadCapacitanceComplementary",
+  title: "Capacitance of a complementary diode-connected load at the output (gate and drain at the output, source and body at the rail)",
+  expr: "CgsL + CgbL + CdbL + CdsL",
+  tex: "C_{ld} = {C_{gsL}}+{C_{gbL}}+{C_{dbL}}+{C_{dsL}}",
+  result: "CLD",
+  resultDim: "capacitance",
+  vars: ["CgsL","CgbL","CdbL","CdsL"],
+  dims: ["capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CgsL: Farads, CgbL: Farads, CdbL: Farads, CdsL: Farads): Farads => (((CgsL + CgbL) + CdbL) + CdsL) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance of a same-type diode-connected load at the output, body at the rail (gate and drain at the rail, source at the output): CLD = CgsL + CdsL + CsbL */
+export const diodeLoadCapacitanceSameRail = {
+  id: "diodeLoadCapacitanceSameRail",
+  title: "Capacitance of a same-type diode-connected load at the output, body at the rail (gate and drain at the rail, source at the output)",
+  expr: "CgsL + CdsL + CsbL",
+  tex: "C_{ld} = {C_{gsL}}+{C_{dsL}}+{C_{sbL}}",
+  result: "CLD",
+  resultDim: "capacitance",
+  vars: ["CgsL","CdsL","CsbL"],
+  dims: ["capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CgsL: Farads, CdsL: Farads, CsbL: Farads): Farads => ((CgsL + CdsL) + CsbL) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance of a same-type diode-connected load at the output, body at its source (the output): CLD = CgsL + CdsL + CgbL + CdbL */
+export const diodeLoadCapacitanceSameTied = {
+  id: "diodeLoadCapacitanceSameTied",
+  title: "Capacitance of a same-type diode-connected load at the output, body at its source (the output)",
+  expr: "CgsL + CdsL + CgbL + CdbL",
+  tex: "C_{ld} = {C_{gsL}}+{C_{dsL}}+{C_{gbL}}+{C_{dbL}}",
+  result: "CLD",
+  resultDim: "capacitance",
+  vars: ["CgsL","CdsL","CgbL","CdbL"],
+  dims: ["capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CgsL: Farads, CdsL: Farads, CgbL: Farads, CdbL: Farads): Farads => (((CgsL + CdsL) + CgbL) + CdbL) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance from the output of the diode-load stage to AC ground: CO = CL + Cdb + Cds + CLD */
+export const diodeLoadOutputCapacitance = {
+  id: "diodeLoadOutputCapacitance",
+  title: "Capacitance from the output of the diode-load stage to AC ground",
+  expr: "CL + Cdb + Cds + CLD",
+  tex: "C_{o} = {C_{L}}+{C_{db}}+{C_{ds}}+{C_{ld}}",
+  result: "CO",
+  resultDim: "capacitance",
+  vars: ["CL","Cdb","Cds","CLD"],
+  dims: ["capacitance","capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Cdb: Farads, Cds: Farads, CLD: Farads): Farads => (((CL + Cdb) + Cds) + CLD) as Farads,
 } as const satisfies Formula;
 
 /** Open-circuit time constant of the gate-source capacitance (follower): tau = CGO * (RSP + RSL) / (1 + gm * RSL) */

@@ -114,6 +114,7 @@ export const reportParts = {
   summary: "the summary table: chosen values, operating point, region and margin",
   "corner-spread": "the spread of the figures over the tolerance and temperature corners",
   "spice-deck": "the SPICE deck for the cross-check by simulation",
+  frequency: "the frequency response: gain, capacitors, corners, poles and the methods' conditions",
 } as const;
 export type ReportPart = keyof typeof reportParts;
 
@@ -203,7 +204,7 @@ export function showQuantity(value: number, dim: Dimension, name?: string, opts:
   send(quantityBundle(value, dim, name, opts));
 }
 
-/** Show a small table of named quantities; `{ part: "summary" }` (or "corner-spread") puts it in the run report too. */
+/** Show a small table of named quantities; `{ part: "summary" }` (or "corner-spread", "frequency") puts it in the run report too. */
 export function showTable(rows: readonly QuantityRow[], title?: string, opts: TableOptions = {}): void {
   send(tableBundle(rows, title, opts));
 }

@@ -19,6 +19,11 @@ export interface BodeOptions {
 
 const db = (x: number) => 20 * Math.log10(x);
 
+/** Whether a figure (its JSON form) is a Bode plot: a trace carries the magnitude role `bodePlot` gives it. */
+export function isBodeFigure(figure: { readonly data: readonly unknown[] }): boolean {
+  return figure.data.some((t) => (t as { meta?: { role?: unknown } } | null)?.meta?.role === "magnitude");
+}
+
 export function bodePlot(fa: FrequencyAnalysis, opts: BodeOptions = {}): PlotSpec {
   const hi = fa.high.corner;
   const top = Number.isFinite(hi) ? hi * 100 : fa.high.octcCorner * 100;
@@ -48,8 +53,10 @@ export function bodePlot(fa: FrequencyAnalysis, opts: BodeOptions = {}): PlotSpe
   for (const [name, x] of marks)
     data.push({ type: "scatter", mode: "markers", name, x: [trim(x)], y: [trim(name.startsWith("f<sub>p2") ? db(h.magnitude[nearest(f, x)]!) : mid - 3.0103)], marker: { color: palette.highlight, size: 11, symbol: "diamond", line: { color: "#ffffff", width: 1.5 } }, meta: { role: "corner", frequency: x } });
   const title = opts.title ?? `Frequency response, ${fa.view}`;
+  // A current-driven stage (the mirror) has a transimpedance: its magnitude is in dB relative to 1 V/A.
+  const unit = fa.drive === "current" ? "dBΩ" : "dB";
   const summary =
-    `${title}: midband gain ${trim(fa.midbandGain)} (${trim(mid)} dB)` +
+    `${title}: midband ${fa.drive === "current" ? "transimpedance" : "gain"} ${trim(fa.midbandGain)}${fa.drive === "current" ? " V/A" : ""} (${trim(mid)} ${unit})` +
     (fa.low && fa.low.corner > 0 ? `, low corner ${formatQuantity(fa.low.corner, "frequency")} (short-circuit sum ${formatQuantity(fa.low.sctcCorner, "frequency")})` : "") +
     (Number.isFinite(fa.high.corner) ? `, upper corner ${formatQuantity(fa.high.corner, "frequency")} (open-circuit estimate ${formatQuantity(fa.high.octcCorner, "frequency")})` : ", no upper −3 dB corner") +
     `. Hand-analysis transfer function${sim ? `; dotted: ${sim.source}` : ""}.`;
@@ -58,13 +65,13 @@ export function bodePlot(fa: FrequencyAnalysis, opts: BodeOptions = {}): PlotSpe
     kind: "bode",
     title,
     summary,
-    axes: { x: { quantity: "f", dim: "frequency", divisor: 1, unit: "Hz" }, y: { quantity: "|H|", dim: "dimensionless", divisor: 1, unit: "dB" }, y2: { quantity: "phase", dim: "dimensionless", divisor: 1, unit: "°" } },
+    axes: { x: { quantity: "f", dim: "frequency", divisor: 1, unit: "Hz" }, y: { quantity: "|H|", dim: "dimensionless", divisor: 1, unit }, y2: { quantity: "phase", dim: "dimensionless", divisor: 1, unit: "°" } },
     figure: {
       data,
       layout: baseLayout(
         title,
         { title: { text: axisTitle("f", "Hz") }, type: "log" },
-        { title: { text: axisTitle("|H|", "dB") } },
+        { title: { text: axisTitle("|H|", unit) } },
         { yaxis2: { title: { text: axisTitle("phase", "°") }, overlaying: "y", side: "right", showgrid: false, zeroline: false } },
       ),
       config: baseConfig("bode"),

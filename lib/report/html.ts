@@ -14,6 +14,7 @@ import { formatQuantity } from "../units/format.js";
 import type { CellFailure, CheckLine, CollectedPart, CollectedPlot } from "../runner/collect.js";
 import { plotHtml, plotLibraryHtml } from "../plot/html.js";
 import { cautionList } from "../record/cautions.js";
+import { isBodeFigure } from "../plot/bode.js";
 
 /** Marks a file as a pinchoff run report, so a later run may replace it. */
 export const reportMarker = '<meta name="generator" content="pinchoff run report">';
@@ -33,6 +34,8 @@ export interface ReportDerivation {
   readonly fingerprint?: string;
   /** Rendered HTML of the derivation (from "pinchoff/render"); trusted markup. */
   readonly html: string;
+  /** "frequency": a frequency analysis's record, shown under the frequency heading, apart from the DC record. */
+  readonly section?: "frequency";
 }
 
 export interface ReportModel {
@@ -111,7 +114,7 @@ export function buildReport(m: ReportModel): string {
     const notes = p.rows.some((r) => r.note);
     return `<table data-part="${esc(p.part)}"><thead><tr><th>Quantity</th><th>Value</th>${notes ? "<th>Note</th>" : ""}</tr></thead><tbody>${p.rows.map((r) => `<tr><td>${esc(r.name)}</td><td class="num">${esc(r.text)}</td>${notes ? `<td>${esc(r.note ?? "")}</td>` : ""}</tr>`).join("")}</tbody></table>`;
   };
-  const tablesOf = (kind: "summary" | "corner-spread") => parts.filter((p): p is Extract<CollectedPart, { rows: unknown }> => p.part === kind);
+  const tablesOf = (kind: "summary" | "corner-spread" | "frequency") => parts.filter((p): p is Extract<CollectedPart, { rows: unknown }> => p.part === kind);
 
   // The results box: what the reviewer signs, first.
   out.push(`<section class="results"><h2>Results</h2>`);
@@ -149,9 +152,31 @@ export function buildReport(m: ReportModel): string {
     if (m.skipped.length) out.push(`<p>Not run after the failure: cell${m.skipped.length > 1 ? "s" : ""} ${m.skipped.map((i) => i + 1).join(", ")}. Results below are incomplete.</p>`);
   }
 
+  const dcRecords = m.derivations.filter((d) => d.section !== "frequency");
+  const freqRecords = m.derivations.filter((d) => d.section === "frequency");
   out.push(`<h2>Derivations</h2>`);
-  if (!m.derivations.length) out.push(`<p>No derivation was displayed by the notebook.</p>`);
-  for (const d of m.derivations) out.push(`<section class="derivation" data-cell="${d.cell + 1}">${d.html}</section>`);
+  if (!dcRecords.length) out.push(`<p>No derivation${freqRecords.length ? " other than the frequency analysis" : ""} was displayed by the notebook.</p>`);
+  for (const d of dcRecords) out.push(`<section class="derivation" data-cell="${d.cell + 1}">${d.html}</section>`);
+
+  // The frequency response under its own heading: its table (corners, poles, conditions, capacitors), its record, its Bode plot.
+  const freqTables = tablesOf("frequency");
+  const bode = m.plots.filter((p) => isBodeFigure(p.figure));
+  const otherPlots = m.plots.filter((p) => !isBodeFigure(p.figure));
+  let libraryPlaced = false;
+  const library = () => {
+    if (libraryPlaced) return "";
+    libraryPlaced = true;
+    return plotLibraryHtml();
+  };
+  if (freqTables.length || freqRecords.length || bode.length) {
+    out.push(`<h2>Frequency response</h2><section class="frequency">`);
+    out.push(`<p>Hand analysis of the small-signal response: short-circuit time constants for the low corner, open-circuit time constants, the two-pole denominator and the Miller approximation for the upper corner, each with the condition it assumes. Approximate: verify by simulation (the Bode plot overlays ngspice's <code>.ac</code> response when ngspice was available).</p>`);
+    for (const p of freqTables) out.push(`<h3>${esc(p.title)} <small>(cell ${p.cell + 1})</small></h3>${table(p)}`);
+    for (const d of freqRecords) out.push(`<section class="derivation" data-cell="${d.cell + 1}">${d.html}</section>`);
+    if (bode.length) out.push(library());
+    for (const p of bode) out.push(plotHtml({ figure: p.figure, title: p.title ?? "Bode plot", ...(p.summary ? { summary: p.summary } : {}) }));
+    out.push(`</section>`);
+  }
 
   const spreads = tablesOf("corner-spread");
   if (spreads.length) {
@@ -159,10 +184,10 @@ export function buildReport(m: ReportModel): string {
     for (const p of spreads) out.push(`<h3>${esc(p.title)} <small>(cell ${p.cell + 1})</small></h3>${table(p)}`);
   }
 
-  if (m.plots.length) {
+  if (otherPlots.length) {
     out.push(`<h2>Plots</h2>`);
-    out.push(plotLibraryHtml());
-    for (const p of m.plots) out.push(plotHtml({ figure: p.figure, title: p.title ?? "plot", ...(p.summary ? { summary: p.summary } : {}) }));
+    out.push(library());
+    for (const p of otherPlots) out.push(plotHtml({ figure: p.figure, title: p.title ?? "plot", ...(p.summary ? { summary: p.summary } : {}) }));
   }
 
   const decks = parts.filter((p): p is Extract<CollectedPart, { text: string }> => p.part === "spice-deck");

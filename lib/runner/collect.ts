@@ -13,7 +13,7 @@ export const derivationMime = "application/vnd.pinchoff.derivation+json";
 export const plotMime = "application/vnd.pinchoff.plot+json";
 /** Marked parts (summary table, corner spread, SPICE deck): see `reportParts` in lib/notebook/display.ts. */
 export const partMime = "application/vnd.pinchoff.part+json";
-const partNames = ["summary", "corner-spread", "spice-deck"] as const;
+const partNames = ["summary", "corner-spread", "spice-deck", "frequency"] as const;
 
 export interface CollectedPartRow {
   readonly name: string;
@@ -22,7 +22,7 @@ export interface CollectedPartRow {
 }
 
 export type CollectedPart =
-  | { readonly cell: number; readonly part: "summary" | "corner-spread"; readonly title: string; readonly rows: readonly CollectedPartRow[] }
+  | { readonly cell: number; readonly part: "summary" | "corner-spread" | "frequency"; readonly title: string; readonly rows: readonly CollectedPartRow[] }
   | { readonly cell: number; readonly part: "spice-deck"; readonly title: string; readonly text: string };
 
 export interface CollectedDerivation {
@@ -110,7 +110,7 @@ function asPart(v: unknown, cell: number): CollectedPart | undefined {
     const x = r as { name?: unknown; text?: unknown; note?: unknown };
     return x && typeof x.name === "string" && typeof x.text === "string" ? [{ name: x.name, text: x.text, ...(typeof x.note === "string" && x.note ? { note: x.note } : {}) }] : [];
   });
-  return { cell, part: p.part as "summary" | "corner-spread", title, rows };
+  return { cell, part: p.part as "summary" | "corner-spread" | "frequency", title, rows };
 }
 
 /** The text a failed cell left: error outputs first, else its stderr. */

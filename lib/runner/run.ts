@@ -13,6 +13,7 @@ import { basename, dirname, extname, join, resolve } from "node:path";
 import { PinchoffError } from "../errors.js";
 import { fingerprint } from "../record/fingerprint.js";
 import { buildReport, reportMarker, type ReportModel } from "../report/html.js";
+import { isFrequencyRecord } from "../bias/frequency.js";
 import { checkReplaceable, prepareOutputDir, removeIfEmpty, writeAtomically, type FileSystemSeam } from "../io/atomic-write.js";
 import { lockFolder, type FolderLock } from "../io/folder-lock.js";
 import { buildRunRecord, isRunRecord, runFolderFiles } from "./run-record.js";
@@ -184,7 +185,13 @@ export async function runNotebook(opts: RunOptions): Promise<RunResult> {
       sourceFingerprint,
       inputsFingerprint,
       inputs: inputs.map((i) => ({ name: i.name, text: i.text, dim: i.dim, value: i.value, overridden: i.overridden, ...(i.original !== undefined ? { original: i.original } : {}) })),
-      derivations: collected.derivations.map((d) => ({ title: d.data.title, cell: d.cell, ...(d.fingerprint ? { fingerprint: d.fingerprint } : {}), html: renderDerivationHtml(d.data) })),
+      derivations: collected.derivations.map((d) => ({
+        title: d.data.title,
+        cell: d.cell,
+        ...(d.fingerprint ? { fingerprint: d.fingerprint } : {}),
+        ...(Array.isArray(d.data.steps) && isFrequencyRecord(d.data) ? { section: "frequency" as const } : {}),
+        html: renderDerivationHtml(d.data),
+      })),
       checks,
       plots: collected.plots,
       parts: collected.parts,

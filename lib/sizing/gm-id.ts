@@ -25,6 +25,7 @@ import type { Amperes, AmperesPerMeter, AmperesPerVoltSquared, Count, Farads, Fa
 import type { Derivation } from "../record/derivation.js";
 import { checkGeometry, snapToGrid, type ProcessDescription } from "../process/description.js";
 import { characterize, type CharacterizeOptions, type DeviceTable } from "../process/characterize.js";
+import type { OverlapParameters, TableCapacitances } from "../device/capacitance-card.js";
 import { deviceLookup, emptyPoint, lengthBracket, lookupAtLength, mixLengths, type DeviceLookup, type PointValues } from "../process/lookup.js";
 
 export interface EfficiencySpec {
@@ -343,6 +344,22 @@ function multiplierFor(p: ProcessDescription, t: DeviceTable, w: number, maxMult
       "id",
     );
   return m;
+}
+
+/**
+ * The sized device's gate capacitances per width, as a card's `tableCapacitances` block: the frequency
+ * analysis then takes Cgs, Cgd and Cgb = Cgg − Cgs − Cgd from the table (interpolated at the operating point,
+ * scaled by the stage's W) instead of a Level 1 estimate, and records the table's fingerprint.
+ */
+export function tableCapacitances(d: EfficiencyDesign, overlap?: Omit<OverlapParameters, "vgs" | "vds">): TableCapacitances {
+  return {
+    ...(overlap ? { overlap: { ...overlap, vgs: d.vgs as Volts, vds: d.vds as Volts } } : {}),
+    cgsPerWidth: (d.cgs / d.w) as FaradsPerMeter,
+    cgdPerWidth: (d.cgd / d.w) as FaradsPerMeter,
+    cggPerWidth: (d.cgg / d.w) as FaradsPerMeter,
+    table: d.tableFingerprint,
+    at: `${d.model}, L = ${d.l} m, |VGS| = ${d.vgs.toFixed(4)} V, |VDS| = ${d.vds} V, |VSB| = ${d.vsb} V`,
+  };
 }
 
 /** A square-law card (kp, Vt) read from the table at L: Vt is the table's threshold, kp from the current at VOV = 0.5 V. */

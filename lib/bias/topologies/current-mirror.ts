@@ -26,7 +26,7 @@ import { checkComponents, checkStage, pmosConvention } from "../stage.js";
 import { newSolution, solveNetwork, type BiasNetwork } from "../solve.js";
 import { kclTolerance, verifyCurrent } from "../verify.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
-import { spiceNumber } from "../spice.js";
+import { diffusionText, spiceNumber } from "../spice.js";
 import { spicePrefix } from "../../spice/deck.js";
 import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
@@ -403,8 +403,8 @@ export function mirrorSpice(stage: CurrentMirrorStage, prefix = ""): SpiceCircui
   const lines = [modelLine(mod1, ref.card), modelLine(mod2, out.card), `V${p}DD ${vdd} 0 ${spiceNumber(stage.supplies.vdd)}`, `V${p}SS ${vss} 0 ${spiceNumber(stage.supplies.vss ?? 0)}`];
   // RREF from the drain-side rail; a 0 V source between it and M1 reports IREF (into M1's drain).
   lines.push(`R${p}REF ${drail} ${n("y")} ${spiceNumber(c.rref)}`, `V${p}IR ${n("y")} ${g} 0`);
-  lines.push(`M${p}1 ${g} ${g} ${srail} ${srail} ${mod1} W=${spiceNumber(ref.w)} L=${spiceNumber(ref.l)}`);
-  lines.push(`M${p}2 ${d} ${g} ${srail} ${srail} ${mod2} W=${spiceNumber(out.w)} L=${spiceNumber(out.l)}`);
+  lines.push(`M${p}1 ${g} ${g} ${srail} ${srail} ${mod1} W=${spiceNumber(ref.w)} L=${spiceNumber(ref.l)}${diffusionText(ref)}`);
+  lines.push(`M${p}2 ${d} ${g} ${srail} ${srail} ${mod2} W=${spiceNumber(out.w)} L=${spiceNumber(out.l)}${diffusionText(out)}`);
   const ammeter = `V${p}ID`;
   if (c.vout !== undefined) lines.push(`V${p}OUT ${n("x")} 0 ${spiceNumber(c.vout)}`, `${ammeter} ${n("x")} ${d} 0`);
   else if (c.rload! > 0) lines.push(`R${p}LOAD ${drail} ${n("x")} ${spiceNumber(c.rload!)}`, `${ammeter} ${n("x")} ${d} 0`);

@@ -27,7 +27,7 @@ import * as mf from "../../formulas/mirror.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Ohms, Ratio, Siemens, SqrtVolts, Volts, Watts } from "../../quantity.js";
 import { solverCheckPrefix, type Derivation } from "../../record/derivation.js";
 import { checkComponents, checkStage, pmosConvention } from "../stage.js";
-import { spiceNumber } from "../spice.js";
+import { diffusionText, spiceNumber } from "../spice.js";
 import { spicePrefix } from "../../spice/deck.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
 import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
@@ -400,11 +400,11 @@ export function diodeLoadSpice(stage: DiodeLoadStage, prefix = ""): SpiceCircuit
   const lines = [modelLine(modD, drv.card), modelLine(modL, load.card), `V${p}DD ${vdd} 0 ${spiceNumber(stage.supplies.vdd)}`, `V${p}SS ${vss} 0 ${spiceNumber(stage.supplies.vss ?? 0)}`];
   lines.push(`V${p}G ${g} 0 ${spiceNumber(c.vg)}`);
   lines.push(`${ammeter} ${out} ${d} 0`);
-  lines.push(`M${p}1 ${d} ${g} ${srail} ${srail} ${modD} W=${spiceNumber(drv.w)} L=${spiceNumber(drv.l)}`);
+  lines.push(`M${p}1 ${d} ${g} ${srail} ${srail} ${modD} W=${spiceNumber(drv.w)} L=${spiceNumber(drv.l)}${diffusionText(drv)}`);
   let loadNodes: { gate: string; drain: string; source: string; body: string };
   if (pair.sameType) loadNodes = { drain: drail, gate: drail, source: out, body: stage.body === "rail" ? srail : out };
   else loadNodes = { drain: out, gate: out, source: drail, body: drail };
-  lines.push(`M${p}2 ${loadNodes.drain} ${loadNodes.gate} ${loadNodes.source} ${loadNodes.body} ${modL} W=${spiceNumber(load.w)} L=${spiceNumber(load.l)}`);
+  lines.push(`M${p}2 ${loadNodes.drain} ${loadNodes.gate} ${loadNodes.source} ${loadNodes.body} ${modL} W=${spiceNumber(load.w)} L=${spiceNumber(load.l)}${diffusionText(load)}`);
   return {
     lines,
     nodes: { gate: g, source: srail, drain: d, body: srail, output: out, vdd, vss, loadGate: loadNodes.gate, loadSource: loadNodes.source, loadDrain: loadNodes.drain, loadBody: loadNodes.body },
