@@ -148,6 +148,8 @@ export interface FigureStatistics {
 
 export interface CheckYield {
   readonly name: string;
+  /** The limit (of `MonteCarloOptions.limits`) the check counts against; without it every sample passes. */
+  readonly limit: keyof NonNullable<MonteCarloOptions["limits"]>;
   readonly passed: number;
   readonly yield: number;
 }
@@ -198,7 +200,7 @@ interface Plan {
   readonly kind: Kind;
   readonly devices: readonly PlanDevice[];
   readonly figures: readonly { name: string; unit: string }[];
-  readonly checks: readonly string[];
+  readonly checks: readonly { readonly name: string; readonly limit: CheckYield["limit"] }[];
   /** Numbers the evaluator needs (rails in device polarity, tail, resistor…). */
   readonly p: Float64Array;
 }
@@ -260,7 +262,11 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
         { name: "input common mode, lowest", unit: "V" },
         { name: "input common mode, highest", unit: "V" },
       ],
-      checks: ["|offset| within its limit", "lowest input common mode reached", "highest input common mode reached"],
+      checks: [
+        { name: "|offset| within its limit", limit: "maxOffset" },
+        { name: "lowest input common mode reached", limit: "commonModeMin" },
+        { name: "highest input common mode reached", limit: "commonModeMax" },
+      ],
       p,
     };
   }
@@ -286,7 +292,7 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
         { name: "output-current error", unit: "" },
         ...(cascode ? [{ name: "output compliance", unit: "V" }] : []),
       ],
-      checks: cascode ? ["|current error| within its limit", "output above compliance"] : ["|current error| within its limit"],
+      checks: [{ name: "|current error| within its limit", limit: "maxCurrentError" }, ...(cascode ? [{ name: "output above compliance", limit: "outputVoltage" } as const] : [])],
       p,
     };
   }
@@ -428,7 +434,7 @@ export function mismatchMonteCarlo(
       .sort((a, b) => b.share - a.share);
     return { name: f.name, unit: f.unit, mean, sigma: Math.sqrt(varY), min: lo[i]!, max: hi[i]!, sensitivity: sens };
   });
-  const checks = plan.checks.map((name, c) => ({ name, passed: ok[c]!, yield: ok[c]! / n }));
+  const checks = plan.checks.map(({ name, limit }, c) => ({ name, limit, passed: ok[c]!, yield: ok[c]! / n }));
   const result: MonteCarloResult = { samples: n, seed, figures, checks, rate: seconds > 0 ? (nd * n) / seconds : Infinity };
   if (kept) {
     const byName: Record<string, Float64Array> = {};
