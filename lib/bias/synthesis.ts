@@ -128,8 +128,9 @@ const designers = {
   "cascode-mirror": cascodeMirror,
 } as const;
 
-/** Designers of netlist stages: on-chip devices drawn to size, not discrete parts. */
-const onChip: readonly string[] = ["diff-pair", "cascode-stage", "cascode-mirror"];
+/** Designers of netlist stages (own specification shapes, tested in test/synthesis-pairs.test.ts): on-chip devices drawn to size, not discrete parts. */
+export const netlistSynthesisTopologies: readonly string[] = ["diff-pair", "cascode-stage", "cascode-mirror"];
+const onChip = netlistSynthesisTopologies;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];
 
