@@ -5,28 +5,16 @@
  * output, checked against the library calls they must equal, and the typed
  * errors naming the file and field. Cards and circuits are invented.
  */
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { parseDesign } from "../lib/bias/design-file.js";
 import { mismatchMonteCarlo, pairOffset } from "../lib/bias/mismatch.js";
 import { main } from "../lib/cli/op.js";
 import { meters, voltMeters } from "../lib/quantity.js";
-import { captureCli } from "./support/cli.js";
+import { captureCli, designFolder } from "./support/cli.js";
 
-let dir: string;
-const write = (name: string, value: unknown) => {
-  const p = join(dir, name);
-  writeFileSync(p, JSON.stringify(value));
-  return p;
-};
+const { write } = designFolder("pinchoff-op-pairs-");
 const run = (argv: string[]) => captureCli(main, argv);
-beforeAll(() => {
-  dir = mkdtempSync(join(tmpdir(), "pinchoff-op-pairs-"));
-});
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 // Invented cards for an invented 3.3 V process.
 const nCard = { name: "demo-n (invented)", polarity: "nmos", kp: "200 uA/V^2", vt0: "0.5 V", lambda: "0.05 1/V", gamma: 0.4, phi: "0.7 V" };

@@ -7,10 +7,7 @@
  * InfeasibleError naming the field; the same JSON through `pinchoff op`.
  * Cards, supplies and targets are invented.
  */
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { isStandard } from "../lib/bias/eseries.js";
 import { synthesize, type StageSpec } from "../lib/bias/synthesis.js";
@@ -21,7 +18,7 @@ import { InfeasibleError, InputError } from "../lib/errors.js";
 import { main } from "../lib/cli/op.js";
 import { amperesPerVoltSquared, perVolt, volts } from "../lib/quantity.js";
 import { Derivation } from "../lib/record/derivation.js";
-import { captureCli } from "./support/cli.js";
+import { captureCli, designFolder } from "./support/cli.js";
 
 const n: DeviceCard = { name: "demo-n (invented)", polarity: "nmos", kp: amperesPerVoltSquared(200e-6), vt0: volts(0.5), lambda: perVolt(0.05), gamma: 0.4 as DeviceCard["gamma"] & number, phi: volts(0.7) };
 const p: DeviceCard = { name: "demo-p (invented)", polarity: "pmos", kp: amperesPerVoltSquared(80e-6), vt0: volts(-0.55), lambda: perVolt(0.08) };
@@ -118,17 +115,11 @@ describe("wide-swing cascode mirror from a specification", () => {
 });
 
 describe("pinchoff op with a specification for the new designers", () => {
-  let dir: string;
-  beforeAll(() => {
-    dir = mkdtempSync(join(tmpdir(), "pinchoff-synth-pairs-"));
-  });
-  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  const folder = designFolder("pinchoff-synth-pairs-");
   const card = { name: "demo-p (invented)", polarity: "pmos", kp: "80 uA/V^2", vt0: "-0.55 V", lambda: "0.08 1/V" };
   it("a PMOS pair: the same design as the library call, the chosen RD and the deviation printed", async () => {
-    const file = join(dir, "pair.json");
     const d = { topology: "diff-pair", device: { card }, supplies: { vdd: "3.3 V" }, specification: { id: "100 uA", sizing: { vov: "0.2 V", l: "1 um" }, commonMode: { min: "1.5 V", max: "2.1 V" }, drain: { gain: 5 }, tail: { l: "1 um" } } };
-    writeFileSync(file, JSON.stringify(d));
-    const r = await captureCli(main, [file, "--json"]);
+    const r = await captureCli(main, [folder.write("pair.json", d), "--json"]);
     const j = JSON.parse(r.out);
     const lib = synthesize(spec("diff-pair", p, { id: 100e-6, sizing: { vov: 0.2, l: 1e-6 }, commonMode: { min: 1.5, max: 2.1 }, drain: { gain: 5 }, tail: { l: 1e-6 } }));
     expect(j.chosen.components.rd).toBe(lib.stage.components.rd);
@@ -138,8 +129,7 @@ describe("pinchoff op with a specification for the new designers", () => {
     expect(j.failedChecks).toEqual([]);
   });
   it("an infeasible compliance names the file and the specification field", async () => {
-    const file = join(dir, "mirror.json");
-    writeFileSync(file, JSON.stringify({ topology: "cascode-mirror", device: { card }, supplies: { vdd: "3.3 V" }, specification: { id: "50 uA", sizing: { vov: "0.3 V", l: "2 um" }, cascode: { l: "1 um" }, compliance: "2.9 V" } }));
+    const file = folder.write("mirror.json", { topology: "cascode-mirror", device: { card }, supplies: { vdd: "3.3 V" }, specification: { id: "50 uA", sizing: { vov: "0.3 V", l: "2 um" }, cascode: { l: "1 um" }, compliance: "2.9 V" } });
     await expect(captureCli(main, [file, "--json"])).rejects.toThrow(/mirror\.json: specification\.compliance/);
   });
 });
