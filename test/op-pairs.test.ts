@@ -4,6 +4,8 @@
  * closed form and the Monte Carlo yields and sensitivity ranking in the
  * output, checked against the library calls they must equal, and the typed
  * errors naming the file and field. Cards and circuits are invented.
+ * The first command in a file loads the whole command line: on a loaded
+ * machine that takes seconds, hence the longer time limit.
  */
 import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
@@ -39,7 +41,7 @@ function stageOf(topology: string, inp: typeof nCard | typeof pCard): Record<str
   }
 }
 
-describe("pinchoff op: pairs and cascodes from design files", () => {
+describe("pinchoff op: pairs and cascodes from design files", { timeout: 60_000 }, () => {
   for (const inp of [nCard, pCard])
     for (const topology of ["diff-pair", "diff-pair-mirror-load", "cascode-stage", "cascode-mirror"]) {
       it(`${topology}, ${inp.polarity} input: the JSON equals the library's analysis of the same file, every check passes`, async () => {
@@ -60,7 +62,7 @@ describe("pinchoff op: pairs and cascodes from design files", () => {
     }
 });
 
-describe("pinchoff op: mismatch section", () => {
+describe("pinchoff op: mismatch section", { timeout: 60_000 }, () => {
   for (const inp of [nCard, pCard])
     it(`five-transistor amplifier, ${inp.polarity} input: closed form, Monte Carlo statistics and yields equal the library calls`, async () => {
       const d = stageOf("diff-pair-mirror-load", inp);
@@ -110,7 +112,7 @@ describe("pinchoff op: mismatch section", () => {
   });
 });
 
-describe("pinchoff op: typed errors naming the file and the field", () => {
+describe("pinchoff op: typed errors naming the file and the field", { timeout: 60_000 }, () => {
   const expectError = async (d: unknown, name: string, pattern: RegExp) => {
     const file = write(name, d);
     await expect(run([file, "--json"])).rejects.toThrow(pattern);

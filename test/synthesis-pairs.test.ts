@@ -114,7 +114,7 @@ describe("wide-swing cascode mirror from a specification", () => {
   });
 });
 
-describe("pinchoff op with a specification for the new designers", () => {
+describe("pinchoff op with a specification for the new designers", { timeout: 60_000 }, () => {
   const folder = designFolder("pinchoff-synth-pairs-");
   const card = { name: "demo-p (invented)", polarity: "pmos", kp: "80 uA/V^2", vt0: "-0.55 V", lambda: "0.08 1/V" };
   it("a PMOS pair: the same design as the library call, the chosen RD and the deviation printed", async () => {
@@ -127,6 +127,17 @@ describe("pinchoff op with a specification for the new designers", () => {
     expect(j.series).toBe("E24");
     expect(j.deviation.gain.achieved).toBe(lib.deviation.gain!.achieved);
     expect(j.failedChecks).toEqual([]);
+  });
+  it("a designed cascode mirror with a mismatch section: the Monte Carlo runs on the chosen stage", async () => {
+    const ncard = { name: "demo-n (invented)", polarity: "nmos", kp: "200 uA/V^2", vt0: "0.7 V", lambda: "0.05 1/V" };
+    const d = { topology: "cascode-mirror", device: { card: ncard }, supplies: { vdd: "3.3 V" }, specification: { id: "50 uA", sizing: { vov: "0.2 V", l: "2 um" }, cascode: { l: "1 um" }, compliance: "0.65 V" }, mismatch: { nmos: { avt: "5 mV*um", abeta: "0.01 um" }, samples: 5000, limits: { currentError: "3 %", outputVoltage: "0.65 V" } } };
+    const r = await captureCli(main, [folder.write("mirror-mm.json", d), "--json"]);
+    const j = JSON.parse(r.out);
+    expect(j.chosen.components.vcas).toBeGreaterThan(0);
+    // σ(ΔI/I) of M1/M2 drawn W·L: the closed form and the Monte Carlo agree within 10 % at 5000 samples.
+    expect(Math.abs(j.mismatch.monteCarlo.figures[0].sigma / j.mismatch.closedForm.currentErrorSigma - 1)).toBeLessThan(0.1);
+    expect(j.mismatch.monteCarlo.checks.map((c: { yield: number }) => c.yield)).toEqual([1, 1]);
+    expect(r.code).toBe(0);
   });
   it("an infeasible compliance names the file and the specification field", async () => {
     const file = folder.write("mirror.json", { topology: "cascode-mirror", device: { card }, supplies: { vdd: "3.3 V" }, specification: { id: "50 uA", sizing: { vov: "0.3 V", l: "2 um" }, cascode: { l: "1 um" }, compliance: "2.9 V" } });
