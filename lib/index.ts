@@ -82,7 +82,7 @@ export { diffPair, mirrorLoadPair, type DiffPairComponents, type MirrorLoadPairC
 export { cascodeStage, cascodeMirror, type CascodeStageComponents, type CascodeMirrorComponents, type CascodeFigures, type CascodeStageFigures, type CascodeMirrorFigures } from "./bias/topologies/cascode.js";
 export * from "./bias/mismatch.js";
 export { designMirrorLoadPair, type MirrorLoadPairSpec, type MirrorLoadPairDesign } from "./bias/synthesis/mirror-load-pair.js";
-// Pairs and cascodes from a specification (design-file shape), and a design file's mismatch section.
+// Pairs and cascodes from a specification (design-file shape).
 export {
   synthesizeDiffPair,
   synthesizeCascodeStage,
@@ -92,7 +92,7 @@ export {
   type CascodeStageSpec,
   type CascodeMirrorSpec,
 } from "./bias/synthesis.js";
-export { parseMismatchSection, mismatchReport, mismatchText, withCoefficients, mismatchTopologies, defaultMismatchSamples, type MismatchSection, type MismatchReport } from "./bias/mismatch-file.js";
+// (The design file's mismatch section, lib/bias/mismatch-file.ts, reads text with units: it stays out of the numeric core.)
 export * as pairFormulas from "./formulas/pair.formulas.js";
 // Simulator in the loop: the SPICE home (deck writer, ngspice runner, raw files), process
 // descriptions, characterisation tables, gm/ID sizing, stage verification and correction.
