@@ -11,12 +11,13 @@ import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { isStandard } from "../lib/bias/eseries.js";
 import { synthesize, type StageSpec } from "../lib/bias/synthesis.js";
+import { designMirrorLoadPair } from "../lib/bias/synthesis/mirror-load-pair.js";
 import type { CascodeMirrorFigures, CascodeStageFigures } from "../lib/bias/topologies/cascode.js";
 import type { PairFigures } from "../lib/bias/topologies/diff-pair.js";
 import type { DeviceCard } from "../lib/device/card.js";
 import { InfeasibleError, InputError } from "../lib/errors.js";
 import { main } from "../lib/cli/op.js";
-import { amperesPerVoltSquared, perVolt, volts } from "../lib/quantity.js";
+import { amperes, amperesPerVoltSquared, meters, perVolt, ratio, volts } from "../lib/quantity.js";
 import { Derivation } from "../lib/record/derivation.js";
 import { captureCli, designFolder } from "./support/cli.js";
 
@@ -111,6 +112,21 @@ describe("wide-swing cascode mirror from a specification", () => {
   it("a discrete part is refused for an on-chip designer", () => {
     const s = { topology: "cascode-mirror", device: { part: {} }, supplies, specification: { id: 50e-6 } } as unknown as StageSpec;
     expect(() => synthesize(s)).toThrow(/not a discrete part/);
+  });
+});
+
+describe("five-transistor amplifier in the design file's shape", () => {
+  it("synthesize gives designMirrorLoadPair's stage, with the deviation of the gain and the tail current reported", () => {
+    const s = { topology: "diff-pair-mirror-load", device: { card: n }, supplies, specification: { id: 40e-6, gain: 40, commonMode: { min: 1.2, max: 2.0 }, l: 1e-6, load: { card: p, l: 1e-6 }, output: { max: 2.9 } } } as unknown as StageSpec;
+    const d = synthesize(s);
+    const direct = designMirrorLoadPair({ input: n, load: p, supplies, itail: amperes(40e-6), gain: ratio(40), commonModeMin: volts(1.2), commonModeMax: volts(2.0), outputMax: volts(2.9), lInput: meters(1e-6), lLoad: meters(1e-6) });
+    expect(d.stage.device.w).toBe(direct.stage.device.w);
+    expect(d.stage.devices!.load!.w).toBe(direct.stage.devices!.load!.w);
+    expect(d.stage.components.vtail).toBe(direct.stage.components.vtail);
+    expect(d.deviation.gain!.achieved).toBe(Math.abs(direct.analysis.pair.differentialGain));
+    expect(Math.abs(d.deviation.id.relative)).toBeLessThan(0.1);
+    // A range the supply cannot hold stays an InfeasibleError naming the field.
+    expect(() => synthesize({ ...s, specification: { ...(s.specification as object), commonMode: { min: 0.6, max: 2.0 } } } as unknown as StageSpec)).toThrow(/diff-pair-mirror-load spec\.commonMode\.min/);
   });
 });
 

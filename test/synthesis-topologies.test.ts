@@ -3,7 +3,7 @@ import fc from "fast-check";
 import { netlistSynthesisTopologies, synthesize, synthesisTopologies as allTopologies } from "../lib/bias/synthesis.js";
 
 // The single-transistor and mirror designers share one specification shape; the netlist designers (pairs, cascodes) are tested in synthesis-pairs.test.ts.
-const synthesisTopologies = allTopologies.filter((t): t is Exclude<typeof t, "diff-pair" | "cascode-stage" | "cascode-mirror"> => !netlistSynthesisTopologies.includes(t));
+const synthesisTopologies = allTopologies.filter((t): t is Exclude<typeof t, "diff-pair" | "diff-pair-mirror-load" | "cascode-stage" | "cascode-mirror"> => !netlistSynthesisTopologies.includes(t));
 import { toleranceAnalysis } from "../lib/bias/tolerance.js";
 import { thresholdMagnitude } from "../lib/device/threshold.js";
 import { InfeasibleError, InputError } from "../lib/errors.js";

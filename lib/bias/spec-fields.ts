@@ -239,6 +239,33 @@ export const specFields = {
     },
     margin,
   },
+  "diff-pair-mirror-load": {
+    id: { ...base.id, meaning: "tail current (both sides together)" },
+    gain: q("dimensionless", "positive", "differential gain magnitude (sets the input pair's overdrive through λ of both cards)", { required: true }),
+    commonMode: {
+      kind: "group",
+      meaning: "the input common-mode range the amplifier must cover (absolute); the stage is solved at its middle",
+      required: true,
+      fields: { min: q("voltage", "finite", "lowest input common mode", { required: true }), max: q("voltage", "finite", "highest input common mode", { required: true }) },
+    },
+    l: q("length", "positive", "channel length of the input pair and the tail (λ on the card belongs to it)", { required: true }),
+    load: {
+      kind: "group",
+      meaning: "the current-mirror load M3/M4 (the other polarity); its W is designed",
+      required: true,
+      fields: {
+        card: { kind: "card", meaning: "the load's device card, read like device.card", required: true },
+        l: q("length", "positive", "the load's channel length L", { required: true }),
+      },
+    },
+    output: {
+      kind: "group",
+      meaning: "the highest output the load must allow (absolute; lowest for a PMOS input)",
+      fallback: "what the highest common mode leaves",
+      fields: { max: q("voltage", "finite", "highest output voltage, absolute", { required: true }) },
+    },
+    margin,
+  },
   "cascode-stage": {
     id: base.id,
     sizing: { ...base.sizing, meaning: "the input device M1: the overdrive with L, or the drawn W with L" },

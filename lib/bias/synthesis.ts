@@ -31,6 +31,7 @@ import { synthesizeFixedGate as fixedGate, type FixedGateSpec as FixedGateFlat }
 import { synthesizeFourResistor as fourResistor, type FourResistorSpec as FourResistorFlat, type FourResistorResult } from "./synthesis/four-resistor.js";
 import { synthesizeSourceFollower as sourceFollower, type SourceFollowerSpec as SourceFollowerFlat } from "./synthesis/source-follower.js";
 import { synthesizeDiffPair as diffPair, type DiffPairSpec as DiffPairFlat } from "./synthesis/diff-pair.js";
+import { synthesizeMirrorLoadPair as mirrorLoadPair, type MirrorLoadPairSynthesisSpec as MirrorLoadPairFlat } from "./synthesis/mirror-load-pair.js";
 import { synthesizeCascodeMirror as cascodeMirror, synthesizeCascodeStage as cascodeStage, type CascodeMirrorSpec as CascodeMirrorFlat, type CascodeStageSpec as CascodeStageFlat } from "./synthesis/cascode.js";
 
 export * from "./synthesis/common.js";
@@ -38,7 +39,7 @@ export type { CorePlan, DividerTarget, DrainTarget, SourceBudget } from "./synth
 export type { FourResistorResult };
 
 /** The designers' flat form (card, sizing and targets side by side); internal: callers state a {@link SynthesisSpec}. */
-type FlatSpec = FourResistorFlat | FixedGateFlat | DrainFeedbackFlat | SourceFollowerFlat | CurrentSourceBiasFlat | CurrentMirrorFlat | DiodeLoadFlat | DiffPairFlat | CascodeStageFlat | CascodeMirrorFlat;
+type FlatSpec = FourResistorFlat | FixedGateFlat | DrainFeedbackFlat | SourceFollowerFlat | CurrentSourceBiasFlat | CurrentMirrorFlat | DiodeLoadFlat | DiffPairFlat | MirrorLoadPairFlat | CascodeStageFlat | CascodeMirrorFlat;
 
 /** The fields of one topology's specification section: everything its designer takes besides the common ones. */
 type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
@@ -76,6 +77,7 @@ export type CurrentSourceBiasSpec = SynthesisSpec<CurrentSourceBiasFlat>;
 export type CurrentMirrorSpec = SynthesisSpec<CurrentMirrorFlat>;
 export type DiodeLoadSpec = SynthesisSpec<DiodeLoadFlat>;
 export type DiffPairSpec = SynthesisSpec<DiffPairFlat>;
+export type MirrorLoadPairSynthesisSpec = SynthesisSpec<MirrorLoadPairFlat>;
 export type CascodeStageSpec = SynthesisSpec<CascodeStageFlat>;
 export type CascodeMirrorSpec = SynthesisSpec<CascodeMirrorFlat>;
 
@@ -124,12 +126,13 @@ const designers = {
   "current-mirror": currentMirror,
   "diode-load": diodeLoad,
   "diff-pair": diffPair,
+  "diff-pair-mirror-load": mirrorLoadPair,
   "cascode-stage": cascodeStage,
   "cascode-mirror": cascodeMirror,
 } as const;
 
 /** Designers of netlist stages (own specification shapes, tested in test/synthesis-pairs.test.ts): on-chip devices drawn to size, not discrete parts. */
-export const netlistSynthesisTopologies: readonly string[] = ["diff-pair", "cascode-stage", "cascode-mirror"];
+export const netlistSynthesisTopologies: readonly string[] = ["diff-pair", "diff-pair-mirror-load", "cascode-stage", "cascode-mirror"];
 const onChip = netlistSynthesisTopologies;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];
@@ -168,5 +171,7 @@ export const synthesizeCurrentSourceBias = one<CurrentSourceBiasSpec>();
 export const synthesizeCurrentMirror = one<CurrentMirrorSpec>();
 export const synthesizeDiodeLoad = one<DiodeLoadSpec>();
 export const synthesizeDiffPair = one<DiffPairSpec>();
+/** The five-transistor amplifier in the design file's shape (`designMirrorLoadPair` takes its own flat form). */
+export const synthesizeMirrorLoadPairSpec = one<MirrorLoadPairSynthesisSpec>();
 export const synthesizeCascodeStage = one<CascodeStageSpec>();
 export const synthesizeCascodeMirror = one<CascodeMirrorSpec>();
