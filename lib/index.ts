@@ -85,10 +85,12 @@ export { designMirrorLoadPair, type MirrorLoadPairSpec, type MirrorLoadPairDesig
 // Pairs and cascodes from a specification (design-file shape).
 export {
   synthesizeDiffPair,
+  synthesizeMirrorLoadPairSpec,
   synthesizeCascodeStage,
   synthesizeCascodeMirror,
   netlistSynthesisTopologies,
   type DiffPairSpec,
+  type MirrorLoadPairSynthesisSpec,
   type CascodeStageSpec,
   type CascodeMirrorSpec,
 } from "./bias/synthesis.js";

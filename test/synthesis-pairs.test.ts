@@ -155,6 +155,18 @@ describe("pinchoff op with a specification for the new designers", { timeout: 60
     expect(j.mismatch.monteCarlo.checks.map((c: { yield: number }) => c.yield)).toEqual([1, 1]);
     expect(r.code).toBe(0);
   });
+  it("a five-transistor amplifier from its specification: the load card read like device.card, the same design as the library", async () => {
+    const ncard = { name: "demo-n (invented)", polarity: "nmos", kp: "200 uA/V^2", vt0: "0.5 V", lambda: "0.05 1/V", gamma: 0.4, phi: "0.7 V" };
+    const d = { topology: "diff-pair-mirror-load", device: { card: ncard }, supplies: { vdd: "3.3 V" }, specification: { id: "40 uA", gain: 40, commonMode: { min: "1.2 V", max: "2 V" }, l: "1 um", load: { card, l: "1 um" }, output: { max: "2.9 V" } } };
+    const r = await captureCli(main, [folder.write("five.json", d), "--json"]);
+    const j = JSON.parse(r.out);
+    const lib = synthesize({ topology: "diff-pair-mirror-load", device: { card: n }, supplies, specification: { id: 40e-6, gain: 40, commonMode: { min: 1.2, max: 2.0 }, l: 1e-6, load: { card: p, l: 1e-6 }, output: { max: 2.9 } } } as unknown as StageSpec);
+    expect(j.chosen.devices.load.w).toBe(lib.stage.devices!.load!.w);
+    expect(j.chosen.components.vtail).toBe(lib.stage.components.vtail);
+    expect(j.series).toBeNull();
+    expect(j.failedChecks).toEqual([]);
+    await expect(captureCli(main, [folder.write("five-bad.json", { ...d, specification: { ...d.specification, commonMode: { min: "0.6 V", max: "2 V" } } }), "--json"])).rejects.toThrow(/five-bad\.json: specification\.commonMode\.min/);
+  });
   it("an infeasible compliance names the file and the specification field", async () => {
     const file = folder.write("mirror.json", { topology: "cascode-mirror", device: { card }, supplies: { vdd: "3.3 V" }, specification: { id: "50 uA", sizing: { vov: "0.3 V", l: "2 um" }, cascode: { l: "1 um" }, compliance: "2.9 V" } });
     await expect(captureCli(main, [file, "--json"])).rejects.toThrow(/mirror\.json: specification\.compliance/);

@@ -333,7 +333,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     // Passed to synthesis as parsed: the library takes this same shape (lib/bias/synthesis.ts converts it once).
     const { sizing, ...partOwn } = own;
-    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient } : { card }, specification: part ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
+    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient } : { card }, specification: part || sizing === undefined ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
     return { kind: "specification", origin, spec, ...(part ? { part } : {}), ...tolerance };
   }
 
