@@ -140,6 +140,19 @@ const gate: SpecField = {
 const bypassed: SpecField = { kind: "boolean", meaning: "whether RS is bypassed for signal (which gain a gain target means)", fallback: "true" };
 const midSwing = "mid-swing between the triode edge and the drain rail";
 const margin = q("voltage", "positive", "saturation margin kept at each device's limit", { fallback: "0.1 V (common practice)" });
+/** A load transistor the designer sizes: its card and length. */
+const loadDevice = (meaning: string, card: string, l: string): SpecField => ({
+  kind: "group",
+  meaning,
+  required: true,
+  fields: { card: { kind: "card", meaning: card, required: true }, l: q("length", "positive", l, { required: true }) },
+});
+const commonMode: SpecField = {
+  kind: "group",
+  meaning: "the input common-mode range the pair must cover (absolute); the stage is designed and solved at its middle",
+  required: true,
+  fields: { min: q("voltage", "finite", "lowest input common mode", { required: true }), max: q("voltage", "finite", "highest input common mode", { required: true }) },
+};
 const cascode: SpecField = {
   kind: "group",
   meaning: "the cascode device(s): length, and overdrive",
@@ -202,15 +215,7 @@ export const specFields = {
   },
   "diode-load": {
     ...base,
-    load: {
-      kind: "group",
-      meaning: "the diode-connected load transistor; its W is designed",
-      required: true,
-      fields: {
-        card: { kind: "card", meaning: "the load's device card (same or complementary type), read like device.card", required: true },
-        l: q("length", "positive", "the load's drawn channel length L", { required: true }),
-      },
-    },
+    load: loadDevice("the diode-connected load transistor; its W is designed", "the load's device card (same or complementary type), read like device.card", "the load's drawn channel length L"),
     output: {
       kind: "group",
       meaning: "an absolute output voltage, or a gain magnitude",
@@ -224,12 +229,7 @@ export const specFields = {
     sizing: { ...base.sizing, meaning: "the input pair M1/M2: the overdrive with L (W follows from half the tail current), or the drawn W with L" },
     series: base.series,
     candidates: base.candidates,
-    commonMode: {
-      kind: "group",
-      meaning: "the input common-mode range the pair must cover (absolute); the stage is designed at its middle",
-      required: true,
-      fields: { min: q("voltage", "finite", "lowest input common mode", { required: true }), max: q("voltage", "finite", "highest input common mode", { required: true }) },
-    },
+    commonMode,
     drain: { ...drain("mid-swing between the input pair's triode edge at the highest common mode and the drain rail"), meaning: "the drain nodes (output common mode, absolute), or the differential gain magnitude" },
     tail: {
       kind: "group",
@@ -242,22 +242,9 @@ export const specFields = {
   "diff-pair-mirror-load": {
     id: { ...base.id, meaning: "tail current (both sides together)" },
     gain: q("dimensionless", "positive", "differential gain magnitude (sets the input pair's overdrive through λ of both cards)", { required: true }),
-    commonMode: {
-      kind: "group",
-      meaning: "the input common-mode range the amplifier must cover (absolute); the stage is solved at its middle",
-      required: true,
-      fields: { min: q("voltage", "finite", "lowest input common mode", { required: true }), max: q("voltage", "finite", "highest input common mode", { required: true }) },
-    },
+    commonMode,
     l: q("length", "positive", "channel length of the input pair and the tail (λ on the card belongs to it)", { required: true }),
-    load: {
-      kind: "group",
-      meaning: "the current-mirror load M3/M4 (the other polarity); its W is designed",
-      required: true,
-      fields: {
-        card: { kind: "card", meaning: "the load's device card, read like device.card", required: true },
-        l: q("length", "positive", "the load's channel length L", { required: true }),
-      },
-    },
+    load: loadDevice("the current-mirror load M3/M4 (the other polarity); its W is designed", "the load's device card, read like device.card", "the load's channel length L"),
     output: {
       kind: "group",
       meaning: "the highest output the load must allow (absolute; lowest for a PMOS input)",
