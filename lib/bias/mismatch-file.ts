@@ -20,6 +20,7 @@
 import { InputError } from "../errors.js";
 import type { Dimension, Meters, Ratio, SiemensPerAmpere, VoltMeters, Volts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
+import { formatQuantity } from "../units/format.js";
 import { parseQuantity } from "../units/parse.js";
 import { maxSamples, mirrorError, mismatchMonteCarlo, pairOffset, type GlobalVariation, type MonteCarloOptions, type MonteCarloResult, type OffsetEstimate } from "./mismatch.js";
 import type { Stage, StageAnalysis, StageDevice } from "./topology.js";
@@ -170,7 +171,8 @@ export function mismatchText(r: MismatchReport): string {
   lines.push("offsetSigma" in cf ? `  closed form: offset σ ${+(cf.offsetSigma * 1e3).toPrecision(4)} mV` : `  closed form: current error σ ${+(cf.currentErrorSigma * 100).toPrecision(4)} %`);
   for (const f of r.monteCarlo.figures) {
     const top = f.sensitivity.slice(0, 3).map((s) => `${s.variable} ${Math.round(s.share * 100)} %`).join(", ");
-    lines.push(`  ${f.name}: mean ${+f.mean.toPrecision(4)} ${f.unit}, σ ${+f.sigma.toPrecision(4)} ${f.unit}${top ? `; moved most by ${top}` : ""}`.replace(/ ,/g, ","));
+    const q = (x: number) => (f.unit === "V" ? formatQuantity(x, "voltage", { digits: 4 }) : f.unit === "A" ? formatQuantity(x, "current", { digits: 4 }) : `${+(x * 100).toPrecision(4)} %`);
+    lines.push(`  ${f.name}: mean ${q(f.mean)}, σ ${q(f.sigma)}${top ? `; moved most by ${top}` : ""}`);
   }
   for (const c of r.monteCarlo.checks) lines.push(`  yield, ${c.name}: ${+(c.yield * 100).toPrecision(4)} %`);
   return lines.join("\n");
