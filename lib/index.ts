@@ -82,6 +82,19 @@ export { diffPair, mirrorLoadPair, type DiffPairComponents, type MirrorLoadPairC
 export { cascodeStage, cascodeMirror, type CascodeStageComponents, type CascodeMirrorComponents, type CascodeFigures, type CascodeStageFigures, type CascodeMirrorFigures } from "./bias/topologies/cascode.js";
 export * from "./bias/mismatch.js";
 export { designMirrorLoadPair, type MirrorLoadPairSpec, type MirrorLoadPairDesign } from "./bias/synthesis/mirror-load-pair.js";
+// Pairs and cascodes from a specification (design-file shape).
+export {
+  synthesizeDiffPair,
+  synthesizeMirrorLoadPairSpec,
+  synthesizeCascodeStage,
+  synthesizeCascodeMirror,
+  netlistSynthesisTopologies,
+  type DiffPairSpec,
+  type MirrorLoadPairSynthesisSpec,
+  type CascodeStageSpec,
+  type CascodeMirrorSpec,
+} from "./bias/synthesis.js";
+// (The design file's mismatch section, lib/bias/mismatch-file.ts, reads text with units: it stays out of the numeric core.)
 export * as pairFormulas from "./formulas/pair.formulas.js";
 // Simulator in the loop: the SPICE home (deck writer, ngspice runner, raw files), process
 // descriptions, characterisation tables, gm/ID sizing, stage verification and correction.

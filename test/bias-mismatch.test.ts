@@ -156,3 +156,40 @@ describe("Monte Carlo core", () => {
     expect(k.kept!["input-referred offset"]!.length).toBe(1000);
   });
 });
+
+describe("Monte Carlo through the device model layer", () => {
+  // Invented mobility and EKV cards: the sampler evaluates each device with its own model, so the
+  // offset σ must still match the closed form built on the solved gm/ID (a linearisation valid for any model).
+  const ekvN: DeviceCard = { ...n, model: "ekv", theta: perVolt(0.2) };
+  const ekvP: DeviceCard = { ...p, model: "ekv", theta: perVolt(0.3) };
+  const mobN: DeviceCard = { ...n, model: "square-law-mobility", theta: perVolt(0.3) };
+  const mobP: DeviceCard = { ...p, model: "square-law-mobility", theta: perVolt(0.4) };
+  for (const [label, inp, ld] of [
+    ["EKV", ekvN, ekvP],
+    ["mobility", mobN, mobP],
+    ["EKV, PMOS input", ekvP, ekvN],
+  ] as const)
+    it(`${label} cards: offset σ within 3 % of the closed form at 10⁵ samples, zero mismatch gives zero offset`, () => {
+      const st = fiveT(inp, ld);
+      const a = analyzeStage(st);
+      expect(a.op.model).toBe(inp.model);
+      const closed = pairOffset(st, a);
+      const mc = mismatchMonteCarlo(st as never, a, { samples: 100_000, seed: 21 });
+      expect(Math.abs(mc.figures[0]!.sigma / closed.sigma - 1)).toBeLessThan(0.03);
+      // Without any variation the sampler must return the solved point: offset 0, the solved tail current.
+      const quiet = (c: DeviceCard): DeviceCard => ({ ...c, avt: voltMeters(0), abeta: meters(0) });
+      const still: Stage = { ...st, device: { ...st.device, card: quiet(inp) }, devices: { load: { ...st.devices!.load!, card: quiet(ld) }, tail: { ...st.devices!.tail!, card: quiet(inp) } } };
+      const as = analyzeStage(still);
+      const z = mismatchMonteCarlo(still as never, as, { samples: 10, seed: 1 });
+      expect(Math.abs(z.figures[0]!.mean)).toBeLessThan(1e-9);
+      expect(z.figures[1]!.mean / Math.abs(as.devices!.M5!.op.channelCurrent)).toBeCloseTo(1, 9);
+    });
+
+  it("a global k′ shift on an EKV tail moves the tail current by that factor exactly (the current factor scales the model's current)", () => {
+    const st = fiveT(ekvN, ekvP);
+    const a = analyzeStage(st);
+    const base = mismatchMonteCarlo(st as never, a, { samples: 2000, seed: 4 });
+    const fast = mismatchMonteCarlo(st as never, a, { samples: 2000, seed: 4, nmos: { cornerK: 0.1 } });
+    expect(fast.figures[1]!.mean / base.figures[1]!.mean).toBeCloseTo(1.1, 9);
+  });
+});

@@ -28,6 +28,8 @@
  *                 "minOverdrive": …, "minSourceHeadroom": … },  optional
  *     "tolerance": { "resistors": "1 %", "process": { "vt0": "50 mV", "kp": "10 %" }, … },
  *                                                  optional: see ./tolerance-file.ts
+ *     "mismatch": { "nmos": { "avt": "5 mV*um" }, "samples": 100000, "limits": { "offset": "5 mV" }, … },
+ *                                                  optional, pairs and mirrors: see ./mismatch-file.ts
  *     "notes": "free text"                         optional, ignored
  *   }
  */
@@ -46,11 +48,12 @@ import { describeDimension, parseQuantity } from "../units/parse.js";
 import { acceptsText, inRange, rangeText, specFields, type SpecField, type SpecTopology } from "./spec-fields.js";
 import type { StageSpec } from "./synthesis.js";
 import { parseToleranceSection, type ToleranceSection } from "./tolerance-file.js";
+import { parseMismatchSection, type MismatchSection } from "./mismatch-file.js";
 import { topologyFor, type Stage, type StageDevice, type StageLimits } from "./topology.js";
 import { checkLimits } from "./stage.js";
 import "./analyze.js"; // registers the built-in topologies
 
-const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "frequency", "notes"] as const;
+const topKeys = ["name", "topology", "device", "devices", "components", "specification", "supplies", "body", "options", "limits", "tolerance", "frequency", "mismatch", "notes"] as const;
 const cardFields: Record<string, Dimension | "string"> = {
   name: "string",
   polarity: "string",
@@ -67,6 +70,9 @@ const cardFields: Record<string, Dimension | "string"> = {
   ecrit: "electricField",
   sigma: "dimensionless",
   cit: "dimensionless",
+  // Pelgrom matching coefficients (mismatch analysis).
+  avt: "voltageLength",
+  abeta: "length",
 };
 const temperatureFields: Record<string, Dimension> = { t0: "temperature", alphaVt: "voltagePerKelvin", muExp: "dimensionless" };
 const capacitanceFields: Record<string, Dimension> = {
@@ -281,8 +287,8 @@ function specGroup(v: unknown, fields: Readonly<Record<string, SpecField>>, path
 
 /** A design file read: a stage to analyse, or a specification to design. */
 export type DesignFile =
-  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection; readonly frequency?: FrequencySpec }
-  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection; readonly part?: PartInUse; readonly frequency?: FrequencySpec };
+  | { readonly kind: "analysis"; readonly origin: string; readonly stage: Stage; readonly tolerance?: ToleranceSection; readonly frequency?: FrequencySpec; readonly mismatch?: MismatchSection }
+  | { readonly kind: "specification"; readonly origin: string; readonly spec: StageSpec; readonly tolerance?: ToleranceSection; readonly part?: PartInUse; readonly frequency?: FrequencySpec; readonly mismatch?: MismatchSection };
 
 /** Validate and parse a design file (already JSON-parsed); `origin` names the file. */
 export function parseDesignFile(design: unknown, origin = "design"): DesignFile {
@@ -295,6 +301,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
   const tolerance = {
     ...(d.tolerance === undefined ? {} : { tolerance: parseToleranceSection(d.tolerance, at("tolerance")) }),
     ...(d.frequency === undefined ? {} : { frequency: parseFrequency(d.frequency, at) }),
+    ...(d.mismatch === undefined ? {} : { mismatch: parseMismatchSection(d.mismatch, topo.id, at("mismatch")) }),
   };
   const given = (["components", "specification"] as const).filter((k) => d[k] !== undefined);
   if (given.length !== 1)
@@ -334,7 +341,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     // Passed to synthesis as parsed: the library takes this same shape (lib/bias/synthesis.ts converts it once).
     const { sizing, ...partOwn } = own;
-    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient } : { card }, specification: part ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
+    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient } : { card }, specification: part || sizing === undefined ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
     return { kind: "specification", origin, spec, ...(part ? { part } : {}), ...tolerance };
   }
 

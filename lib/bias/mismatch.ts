@@ -10,10 +10,11 @@
  *
  * Monte Carlo: per-device mismatch on top of global (per-polarity, NMOS and
  * PMOS independent) threshold and k′ variation, about the solved operating
- * point. Method: each device keeps its solved |Vt| and its effective k
- * (2·I/VOV², which carries the solved (1 + λ·VDS)); a sample perturbs them and
- * re-solves the balance of the circuit in closed form with the square law
- * (λ frozen). Figures: the input-referred offset of a pair, the tail current,
+ * point. Method: each device is evaluated through its own model (square law,
+ * mobility or EKV card: `DeviceModel.current` on its parameter vector, set up
+ * once) at its solved VDS and VSB; a sample shifts its gate by ΔVt and scales
+ * its current by 1 + Δβ, then re-solves the balance of the circuit (a secant
+ * on the gate voltage, to 1e-10 of the current). Figures: the input-referred offset of a pair, the tail current,
  * the input common-mode range; the output-current error and the compliance of
  * a mirror. Statistics stream (mean, σ, extremes, the yield of every check,
  * and each random variable's share of every figure's variance, the
@@ -22,7 +23,10 @@
  * Failure modes: InputError for AVt missing, a bad sample count, or samples
  * kept beyond memory.
  */
-import { InputError } from "../errors.js";
+import { device } from "../device/card.js";
+import type { VectorCurrent } from "../device/model.js";
+import { modelFor, parameterVector } from "../device/models/index.js";
+import { ConvergenceError, InputError } from "../errors.js";
 import * as pf from "../formulas/pair.formulas.js";
 import type { Meters, Ratio, SiemensPerAmpere, SquareMeters, Volts, VoltMeters } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
@@ -144,6 +148,8 @@ export interface FigureStatistics {
 
 export interface CheckYield {
   readonly name: string;
+  /** The limit (of `MonteCarloOptions.limits`) the check counts against; without it every sample passes. */
+  readonly limit: keyof NonNullable<MonteCarloOptions["limits"]>;
   readonly passed: number;
   readonly yield: number;
 }
@@ -163,11 +169,25 @@ export interface MonteCarloResult {
 export const maxSamples = 100_000_000;
 export const maxKeptBytes = 256 * 1024 * 1024;
 
-/** A device in the sampling plan: nominal |Vt| and effective k, its own mismatch σ (per device), its polarity. */
+/**
+ * A device in the sampling plan: its model's current on its own parameter
+ * vector, the solved bias it is held at, the nominal current and gm there, its
+ * own mismatch σ (per device), its polarity. Set up once per run.
+ */
 interface PlanDevice {
   readonly name: string;
+  readonly current: VectorCurrent;
+  readonly p: Float64Array;
+  /** Solved VGS, VDS, VSB in device polarity; VDS follows VGS for a diode-connected device. */
+  readonly vgs: number;
+  readonly vds: number;
+  readonly vsb: number;
+  readonly diode: boolean;
+  /** Solved |Vt|, channel current magnitude, gm and saturation voltage. */
   readonly vt: number;
-  readonly k: number;
+  readonly i: number;
+  readonly gm: number;
+  readonly vdsat: number;
   readonly sVt: number;
   readonly sB: number;
   readonly nmos: boolean;
@@ -180,16 +200,35 @@ interface Plan {
   readonly kind: Kind;
   readonly devices: readonly PlanDevice[];
   readonly figures: readonly { name: string; unit: string }[];
-  readonly checks: readonly string[];
+  readonly checks: readonly { readonly name: string; readonly limit: CheckYield["limit"] }[];
   /** Numbers the evaluator needs (rails in device polarity, tail, resistor…). */
   readonly p: Float64Array;
 }
 
-function planDevice(name: string, a: StageAnalysis["op"], card: DeviceCard, sigmas: PairSigmas): PlanDevice {
+type DeviceState = { readonly op: StageAnalysis["op"]; readonly smallSignal: { readonly gm: number } };
+
+function planDevice(name: string, st: DeviceState, sd: StageDevice, sigmas: PairSigmas, diode = false): PlanDevice {
+  const a = st.op;
   const i = Math.abs(a.channelCurrent);
-  const vov = a.vov;
-  if (!(vov > 0) || !(i > 0)) throw new InputError(a.region, `a conducting device ${name} at the operating point (Monte Carlo perturbs about it)`, `mismatch: ${name}`);
-  return { name, vt: Math.abs(a.vt), k: (2 * i) / (vov * vov), sVt: sigmas.sigmaVt / Math.SQRT2, sB: sigmas.sigmaBeta / Math.SQRT2, nmos: card.polarity === "nmos" };
+  const gm = st.smallSignal.gm;
+  if (!(i > 0) || !(gm > 0)) throw new InputError(a.region, `a conducting device ${name} at the operating point (Monte Carlo perturbs about it)`, `mismatch: ${name}`);
+  const dev = device(sd.card, sd.w, sd.l, `mismatch: ${name}`);
+  return {
+    name,
+    current: modelFor(dev.card).current,
+    p: parameterVector(dev),
+    vgs: a.vgsDevice,
+    vds: a.vdsDevice,
+    vsb: a.vsbDevice,
+    diode,
+    vt: Math.abs(a.vt),
+    i,
+    gm,
+    vdsat: a.vdsat,
+    sVt: sigmas.sigmaVt / Math.SQRT2,
+    sB: sigmas.sigmaBeta / Math.SQRT2,
+    nmos: sd.card.polarity === "nmos",
+  };
 }
 
 function buildPlan(stage: PairStage & { readonly components: Readonly<Record<string, number>>; readonly supplies: { vdd: number; vss?: number } }, a: StageAnalysis): Plan {
@@ -200,26 +239,22 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
   const vsr = sign > 0 ? vss : -vdd;
   const dev = stage.device;
   const d = a.devices ?? {};
+  const none = { sigmaVt: 0 as Volts, sigmaBeta: 0 as Ratio };
   // The two-stage amplifier's offset is its first stage's (five-transistor amplifier): the second stage's
   // mismatch reaches the input divided by the first stage's gain and is left out.
   if (stage.topology === "diff-pair" || stage.topology === "diff-pair-mirror-load" || stage.topology === "two-stage-miller") {
     const inSig = pelgrom(dev, "device");
-    const devices: PlanDevice[] = [planDevice("M1", a.op, dev.card, inSig), planDevice("M2", d.M2!.op, dev.card, inSig)];
+    const devices: PlanDevice[] = [planDevice("M1", d.M1 ?? a, dev, inSig), planDevice("M2", d.M2!, dev, inSig)];
     const tail = stage.devices?.tail;
     const mirror = stage.topology !== "diff-pair";
     if (mirror) {
       const ld = stage.devices!.load!;
       const ls = pelgrom(ld, "devices.load");
-      devices.push(planDevice("M3", d.M3!.op, ld.card, ls), planDevice("M4", d.M4!.op, ld.card, ls));
+      devices.push(planDevice("M3", d.M3!, ld, ls, true), planDevice("M4", d.M4!, ld, ls));
     }
-    let vgsTail = 0;
-    if (tail) {
-      const ts = tail.card.avt !== undefined ? pelgrom(tail, "devices.tail") : { sigmaVt: 0 as Volts, sigmaBeta: 0 as Ratio };
-      devices.push(planDevice("M5", d.M5!.op, tail.card, ts));
-      vgsTail = d.M5!.op.vgsDevice;
-    }
+    if (tail) devices.push(planDevice("M5", d.M5!, tail, tail.card.avt !== undefined ? pelgrom(tail, "devices.tail") : none));
     const itail = tail ? 0 : stage.components.itail!;
-    const p = Float64Array.of(vdr, vsr, sign, itail, vgsTail, tail ? 1 : 0, stage.components.rd ?? 0, mirror ? 1 : 0);
+    const p = Float64Array.of(vdr, vsr, sign, itail, 0, tail ? 1 : 0, stage.components.rd ?? 0, mirror ? 1 : 0);
     return {
       kind: mirror ? "pair-mirror" : "pair-resistive",
       devices,
@@ -229,30 +264,29 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
         { name: "input common mode, lowest", unit: "V" },
         { name: "input common mode, highest", unit: "V" },
       ],
-      checks: ["|offset| within its limit", "lowest input common mode reached", "highest input common mode reached"],
+      checks: [
+        { name: "|offset| within its limit", limit: "maxOffset" },
+        { name: "lowest input common mode reached", limit: "commonModeMin" },
+        { name: "highest input common mode reached", limit: "commonModeMax" },
+      ],
       p,
     };
   }
   if (stage.topology === "current-mirror" || stage.topology === "cascode-mirror") {
     const sig = pelgrom(dev, "device");
     const cascode = stage.topology === "cascode-mirror";
-    const refOp = cascode ? d.M1!.op : d.reference!.op;
-    const outOp = cascode ? a.op : a.op;
-    const devices: PlanDevice[] = [planDevice("M1", refOp, dev.card, sig), planDevice("M2", outOp, dev.card, sig)];
-    let casVt = 0;
+    const wide = cascode && stage.components.vcas !== undefined;
+    const ref = cascode ? d.M1! : d.reference!;
+    // The reference is diode-connected except M1 of the wide-swing mirror (its gate sits on top of the stack).
+    const devices: PlanDevice[] = [planDevice("M1", ref, dev, sig, !wide), planDevice("M2", d.M2 ?? a, dev, sig)];
     let vgCas = 0;
-    let wide = 0;
     if (cascode) {
       const cd = stage.devices!.cascode!;
-      const cs = cd.card.avt !== undefined ? pelgrom(cd, "devices.cascode") : { sigmaVt: 0 as Volts, sigmaBeta: 0 as Ratio };
-      devices.push(planDevice("M3", d.M3!.op, cd.card, cs), planDevice("M4", d.M4!.op, cd.card, cs));
-      casVt = Math.abs(d.M4!.op.vt);
-      wide = stage.components.vcas !== undefined ? 1 : 0;
+      const cs = cd.card.avt !== undefined ? pelgrom(cd, "devices.cascode") : none;
+      devices.push(planDevice("M3", d.M3!, cd, cs, !wide), planDevice("M4", d.M4!, cd, cs));
       vgCas = wide ? sign * stage.components.vcas! : sign * a.nodes.a!;
     }
-    const iref = Math.abs(refOp.channelCurrent);
-    const iout = Math.abs(outOp.channelCurrent);
-    const p = Float64Array.of(vdr, vsr, sign, iref, iout, cascode ? 1 : 0, wide, vgCas, casVt);
+    const p = Float64Array.of(vdr, vsr, sign, devices[0]!.i, devices[1]!.i, cascode ? 1 : 0, wide ? 1 : 0, vgCas);
     return {
       kind: "mirror",
       devices,
@@ -260,7 +294,7 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
         { name: "output-current error", unit: "" },
         ...(cascode ? [{ name: "output compliance", unit: "V" }] : []),
       ],
-      checks: cascode ? ["|current error| within its limit", "output above compliance"] : ["|current error| within its limit"],
+      checks: [{ name: "|current error| within its limit", limit: "maxCurrentError" }, ...(cascode ? [{ name: "output above compliance", limit: "outputVoltage" } as const] : [])],
       p,
     };
   }
@@ -343,8 +377,8 @@ export function mismatchMonteCarlo(
   for (const d of devs) names.push(`${d.name} Vt`, `${d.name} β`);
   names.push("NMOS global Vt", "NMOS global k′", "PMOS global Vt", "PMOS global k′");
   const z = new Float64Array(nv);
-  const vt = new Float64Array(nd);
-  const k = new Float64Array(nd);
+  const dvt = new Float64Array(nd);
+  const beta = new Float64Array(nd);
   const fig = new Float64Array(nf);
   const sum = new Float64Array(nf);
   const sum2 = new Float64Array(nf);
@@ -371,10 +405,10 @@ export function mismatchMonteCarlo(
     const dkP = (gP.cornerK ?? 0) + skP * z[2 * nd + 3]!;
     for (let i = 0; i < nd; i++) {
       const d = devs[i]!;
-      vt[i] = d.vt + d.sVt * z[2 * i]! + (d.nmos ? dvtN : dvtP);
-      k[i] = d.k * (1 + d.sB * z[2 * i + 1]!) * (1 + (d.nmos ? dkN : dkP));
+      dvt[i] = d.sVt * z[2 * i]! + (d.nmos ? dvtN : dvtP);
+      beta[i] = (1 + d.sB * z[2 * i + 1]!) * (1 + (d.nmos ? dkN : dkP));
     }
-    evaluate(plan.kind, plan.p, vt, k, fig, pass, lim);
+    evaluate(plan.kind, plan.p, devs, dvt, beta, fig, pass, lim);
     for (let f = 0; f < nf; f++) {
       const y = fig[f]!;
       sum[f] = sum[f]! + y;
@@ -402,7 +436,7 @@ export function mismatchMonteCarlo(
       .sort((a, b) => b.share - a.share);
     return { name: f.name, unit: f.unit, mean, sigma: Math.sqrt(varY), min: lo[i]!, max: hi[i]!, sensitivity: sens };
   });
-  const checks = plan.checks.map((name, c) => ({ name, passed: ok[c]!, yield: ok[c]! / n }));
+  const checks = plan.checks.map(({ name, limit }, c) => ({ name, limit, passed: ok[c]!, yield: ok[c]! / n }));
   const result: MonteCarloResult = { samples: n, seed, figures, checks, rate: seconds > 0 ? (nd * n) / seconds : Infinity };
   if (kept) {
     const byName: Record<string, Float64Array> = {};
@@ -412,66 +446,102 @@ export function mismatchMonteCarlo(
   return result;
 }
 
+/** Channel current of a perturbed device at gate-source voltage `x` (device polarity): ΔVt enters as a gate shift (exact for every model, whose threshold is gate-referred), Δβ as a factor on the current. */
+function perturbed(d: PlanDevice, dvt: number, beta: number, x: number): number {
+  return beta * d.current(d.p, x - dvt, d.diode ? x : d.vds, d.vsb);
+}
+
 /**
- * One sample: square law, λ frozen at the operating point. Device order as in
- * buildPlan. Pairs: balance of the two sides (equal drain voltages for
- * resistive loads, the load mirror's copy for a mirror load), the offset as
- * the gate-voltage difference that holds it. Mirrors: the output current
- * against its nominal. Writes figures and check results; allocates nothing.
+ * The gate-source voltage (device polarity) at which device `a` (and, when
+ * given, `b` on the same gate and source) carries `target` in all: a secant
+ * iteration from the square-law estimate, the slope kept at its last good
+ * value where a device is off, steps limited to 0.5 V. Converged when the
+ * current is within 1e-10·target (a gate error of about 1e-10·VOV).
+ * Allocation-free. Failure mode: ConvergenceError after 60 steps.
  */
-function evaluate(kind: Kind, p: Float64Array, vt: Float64Array, k: Float64Array, fig: Float64Array, pass: Uint8Array, lim: NonNullable<MonteCarloOptions["limits"]>): void {
+function gateFor(a: PlanDevice, dvtA: number, betaA: number, b: PlanDevice | undefined, dvtB: number, betaB: number, target: number): number {
+  const nominal = betaA * a.i + (b ? betaB * b.i : 0);
+  const tol = 1e-10 * target + 1e-18;
+  const root = Math.sqrt(target / nominal);
+  let slope = (betaA * a.gm + (b ? betaB * b.gm : 0)) * root;
+  let x0 = a.vgs + (b ? (dvtA + dvtB) / 2 : dvtA) + ((2 * a.i) / a.gm) * (root - 1);
+  let f0 = perturbed(a, dvtA, betaA, x0) + (b ? perturbed(b, dvtB, betaB, x0) : 0) - target;
+  if (Math.abs(f0) <= tol) return x0;
+  let step = Math.max(-maxGateStep, Math.min(maxGateStep, -f0 / slope));
+  let x1 = x0 + step;
+  for (let it = 0; it < 60; it++) {
+    const f1 = perturbed(a, dvtA, betaA, x1) + (b ? perturbed(b, dvtB, betaB, x1) : 0) - target;
+    if (Math.abs(f1) <= tol) return x1;
+    const s = (f1 - f0) / (x1 - x0);
+    if (s > 0 && Number.isFinite(s)) slope = s;
+    step = Math.max(-maxGateStep, Math.min(maxGateStep, -f1 / slope));
+    x0 = x1;
+    f0 = f1;
+    x1 += step;
+    if (Math.abs(step) <= 1e-15 + 1e-13 * Math.abs(x1)) return x1;
+  }
+  throw new ConvergenceError(`the gate voltage of ${a.name}${b ? ` and ${b.name}` : ""} for ${target.toExponential(4)} A did not settle in 60 secant steps (last residual ${f0.toExponential(3)} A, expected within 1e-10 of the current)`, "mismatchMonteCarlo");
+}
+const maxGateStep = 0.5;
+
+/**
+ * One sample, each device through its own model at its solved VDS and VSB
+ * (the circuit held at its solved point: the offset is the differential
+ * input that returns the outputs there). Pairs: the tail current (ideal, or
+ * M5 at its solved VGS), the split between the sides (equal for resistive
+ * loads; for a mirror load the diode's VGS at which M3 and M4 together carry
+ * the tail), each input's VGS for its current, the offset as their
+ * difference. Mirrors: the reference VGS for IREF, the output current there
+ * against its nominal, and the cascode's compliance. Device order as in
+ * buildPlan. Writes figures and check results; allocates nothing.
+ */
+function evaluate(kind: Kind, p: Float64Array, devs: readonly PlanDevice[], dvt: Float64Array, beta: Float64Array, fig: Float64Array, pass: Uint8Array, lim: NonNullable<MonteCarloOptions["limits"]>): void {
   const vdr = p[0]!;
   const vsr = p[1]!;
   const sign = p[2]!;
+  const m1 = devs[0]!;
+  const m2 = devs[1]!;
   if (kind === "mirror") {
     const iref = p[3]!;
     const iout = p[4]!;
-    // The reference sets VGS; the output copies it: Iout = (k2/2)·(VGS − Vt2)², nominal ratio iout/iref.
-    const vgs = vt[0]! + Math.sqrt((2 * iref) / k[0]!);
-    const ov = vgs - vt[1]!;
-    const out = ov > 0 ? 0.5 * k[1]! * ov * ov : 0;
-    const err = out / iout - 1;
+    const vgs = gateFor(m1, dvt[0]!, beta[0]!, undefined, 0, 0, iref);
+    const err = perturbed(m2, dvt[1]!, beta[1]!, vgs) / iout - 1;
     fig[0] = err;
     pass[0] = lim.maxCurrentError === undefined || Math.abs(err) <= lim.maxCurrentError ? 1 : 0;
     if (p[5]! > 0) {
       // Cascode gate: held (wide swing) or the top of the reference stack, VSR + VGS1 + VGS3.
-      const vg = p[6]! > 0 ? p[7]! : vsr + vgs + vt[2]! + Math.sqrt((2 * iref) / k[2]!);
-      const cmp = vg - vt[3]!;
+      const vg = p[6]! > 0 ? p[7]! : vsr + vgs + gateFor(devs[2]!, dvt[2]!, beta[2]!, undefined, 0, 0, iref);
+      const cmp = vg - (devs[3]!.vt + dvt[3]!);
       fig[1] = sign * cmp;
       pass[1] = lim.outputVoltage === undefined || sign * lim.outputVoltage >= cmp ? 1 : 0;
     }
     return;
   }
   // Pairs. Tail current: ideal, or M5 (last device) at its solved VGS.
-  const tailDev = p[5]! > 0;
-  const last = k.length - 1;
+  const last = devs.length - 1;
   let itail = p[3]!;
-  let vovTail = 0;
-  if (tailDev) {
-    vovTail = p[4]! - vt[last]!;
-    itail = vovTail > 0 ? 0.5 * k[last]! * vovTail * vovTail : 0;
+  let vdsatTail = 0;
+  if (p[5]! > 0) {
+    const m5 = devs[last]!;
+    itail = perturbed(m5, dvt[last]!, beta[last]!, m5.vgs);
+    vdsatTail = m5.vdsat - dvt[last]!;
   }
   let i1 = itail / 2;
+  let vgsLoad = 0;
   if (p[7]! > 0) {
-    // Mirror load: I1 = I3, I4 = (k4/2)·(√(2·I1/k3) + Vt3 − Vt4)² = I2 = Itail − I1, a quadratic in u = √I1.
-    const a = Math.sqrt(2 / k[2]!);
-    const dv = vt[2]! - vt[3]!;
-    const A = 1 + 0.5 * k[3]! * a * a;
-    const B = k[3]! * a * dv;
-    const C = 0.5 * k[3]! * dv * dv - itail;
-    const u = (-B + Math.sqrt(Math.max(0, B * B - 4 * A * C))) / (2 * A);
-    i1 = u * u;
+    const m3 = devs[2]!;
+    vgsLoad = gateFor(m3, dvt[2]!, beta[2]!, devs[3]!, dvt[3]!, beta[3]!, itail);
+    i1 = perturbed(m3, dvt[2]!, beta[2]!, vgsLoad);
   }
-  const i2 = itail - i1;
-  const vgs1 = vt[0]! + Math.sqrt((2 * Math.max(i1, 0)) / k[0]!);
-  const vgs2 = vt[1]! + Math.sqrt((2 * Math.max(i2, 0)) / k[1]!);
+  const vgs1 = gateFor(m1, dvt[0]!, beta[0]!, undefined, 0, 0, i1);
+  const vgs2 = gateFor(m2, dvt[1]!, beta[1]!, undefined, 0, 0, itail - i1);
   const off = sign * (vgs1 - vgs2);
   fig[0] = off;
   fig[1] = itail;
-  // Input common-mode range at balance (device polarity), then absolute.
-  const vovIn = Math.sqrt(itail / k[0]!);
-  const low = vsr + vovTail + vt[0]! + vovIn;
-  const high = p[7]! > 0 ? vdr - vt[2]! - Math.sqrt(itail / k[2]!) + vt[0]! : vdr - (p[6]! * itail) / 2 + vt[0]!;
+  // Input common-mode range (device polarity): the common source needs the tail's saturation voltage; M1 stays saturated while its drain is above its gate less Vt1.
+  const low = vsr + vdsatTail + (vgs1 + vgs2) / 2;
+  const vt1 = m1.vt + dvt[0]!;
+  const high = p[7]! > 0 ? vdr - vgsLoad + vt1 : vdr - (p[6]! * itail) / 2 + vt1;
   fig[2] = sign > 0 ? low : -high;
   fig[3] = sign > 0 ? high : -low;
   pass[0] = lim.maxOffset === undefined || Math.abs(off) <= lim.maxOffset ? 1 : 0;

@@ -139,6 +139,27 @@ const gate: SpecField = {
 };
 const bypassed: SpecField = { kind: "boolean", meaning: "whether RS is bypassed for signal (which gain a gain target means)", fallback: "true" };
 const midSwing = "mid-swing between the triode edge and the drain rail";
+const margin = q("voltage", "positive", "saturation margin kept at each device's limit", { fallback: "0.1 V (common practice)" });
+/** A load transistor the designer sizes: its card and length. */
+const loadDevice = (meaning: string, card: string, l: string): SpecField => ({
+  kind: "group",
+  meaning,
+  required: true,
+  fields: { card: { kind: "card", meaning: card, required: true }, l: q("length", "positive", l, { required: true }) },
+});
+const commonMode: SpecField = {
+  kind: "group",
+  meaning: "the input common-mode range the pair must cover (absolute); the stage is designed and solved at its middle",
+  required: true,
+  fields: { min: q("voltage", "finite", "lowest input common mode", { required: true }), max: q("voltage", "finite", "highest input common mode", { required: true }) },
+};
+const cascode: SpecField = {
+  kind: "group",
+  meaning: "the cascode device(s): length, and overdrive",
+  required: true,
+  fallback: "overdrive: the lower device's",
+  fields: { l: q("length", "positive", "cascode channel length L", { required: true }), vov: q("voltage", "positive", "cascode overdrive VGS − Vt") },
+};
 
 /** Each topology's specification fields; the type makes every field of its Spec type appear, and nothing else. */
 export const specFields = {
@@ -194,15 +215,7 @@ export const specFields = {
   },
   "diode-load": {
     ...base,
-    load: {
-      kind: "group",
-      meaning: "the diode-connected load transistor; its W is designed",
-      required: true,
-      fields: {
-        card: { kind: "card", meaning: "the load's device card (same or complementary type), read like device.card", required: true },
-        l: q("length", "positive", "the load's drawn channel length L", { required: true }),
-      },
-    },
+    load: loadDevice("the diode-connected load transistor; its W is designed", "the load's device card (same or complementary type), read like device.card", "the load's drawn channel length L"),
     output: {
       kind: "group",
       meaning: "an absolute output voltage, or a gain magnitude",
@@ -210,6 +223,58 @@ export const specFields = {
       fallback: "halfway between the driver's triode edge and the load's conduction edge",
       fields: { vout: q("voltage", "finite", "output voltage, absolute"), gain: q("dimensionless", "positive", "gain magnitude |vout/vin|") },
     },
+  },
+  "diff-pair": {
+    id: { ...base.id, meaning: "tail current (both sides together)" },
+    sizing: { ...base.sizing, meaning: "the input pair M1/M2: the overdrive with L (W follows from half the tail current), or the drawn W with L" },
+    series: base.series,
+    candidates: base.candidates,
+    commonMode,
+    drain: { ...drain("mid-swing between the input pair's triode edge at the highest common mode and the drain rail"), meaning: "the drain nodes (output common mode, absolute), or the differential gain magnitude" },
+    tail: {
+      kind: "group",
+      meaning: "a tail transistor (same card) with this length, its overdrive what the lowest common mode leaves",
+      fallback: "an ideal tail current",
+      fields: { l: q("length", "positive", "tail channel length L", { required: true }) },
+    },
+    margin,
+  },
+  "diff-pair-mirror-load": {
+    id: { ...base.id, meaning: "tail current (both sides together)" },
+    gain: q("dimensionless", "positive", "differential gain magnitude (sets the input pair's overdrive through λ of both cards)", { required: true }),
+    commonMode,
+    l: q("length", "positive", "channel length of the input pair and the tail (λ on the card belongs to it)", { required: true }),
+    load: loadDevice("the current-mirror load M3/M4 (the other polarity); its W is designed", "the load's device card, read like device.card", "the load's channel length L"),
+    output: {
+      kind: "group",
+      meaning: "the highest output the load must allow (absolute; lowest for a PMOS input)",
+      fallback: "what the highest common mode leaves",
+      fields: { max: q("voltage", "finite", "highest output voltage, absolute", { required: true }) },
+    },
+    margin,
+  },
+  "cascode-stage": {
+    id: base.id,
+    sizing: { ...base.sizing, meaning: "the input device M1: the overdrive with L, or the drawn W with L" },
+    series: base.series,
+    candidates: base.candidates,
+    cascode,
+    drain: drain("mid-swing between the lowest output and the drain rail"),
+    outputResistance: q("resistance", "positive", "least output resistance looking into the cascode", { fallback: "not checked" }),
+    margin,
+  },
+  "cascode-mirror": {
+    id: { ...base.id, meaning: "output current (the reference current, 1:1)" },
+    sizing: { ...base.sizing, meaning: "the lower devices M1/M2: the overdrive with L, or the drawn W with L" },
+    cascode: { ...cascode, fallback: "overdrive: what the compliance target leaves (at most VOV1), else VOV1" },
+    output: {
+      kind: "group",
+      meaning: "the output node",
+      fallback: "halfway between compliance plus margin and the drain rail",
+      fields: { vout: q("voltage", "finite", "output voltage, absolute", { required: true }) },
+    },
+    compliance: q("voltage", "finite", "the output voltage (absolute) down to which (NMOS; up to which, PMOS) the mirror must hold its current", { fallback: "VSR + VOV1 + margin + VOV3, as designed" }),
+    margin,
   },
 } as const satisfies { [T in StageSpec["topology"]]: Record<keyof SpecificationOf<T>, SpecField> };
 
@@ -273,10 +338,16 @@ export function specificationMarkdown(): string {
   const shared = new Set(Object.keys(base));
   const topologies = Object.keys(specFields) as SpecTopology[];
   const sharedRows = specificationRows(topologies[0]!).filter((r) => shared.has(r.path.split(".")[0]!));
-  const parts = [`Every topology:\n\n${header}\n${sharedRows.map(line).join("\n")}`];
+  const parts = [`Every topology (unless its section says otherwise):\n\n${header}\n${sharedRows.map(line).join("\n")}`];
   for (const t of topologies) {
     const own = specificationRows(t).filter((r) => !shared.has(r.path.split(".")[0]!));
-    parts.push(`\`${t}\`:\n\n${header}\n${own.map(line).join("\n")}`);
+    const absent = [...shared].filter((k) => !(k in specFields[t]));
+    const redefined = [...shared].filter((k) => k in specFields[t] && (specFields[t] as Record<string, SpecField>)[k]!.meaning !== (base as Record<string, SpecField>)[k]!.meaning);
+    const notes = [
+      ...(redefined.length ? [`Here ${redefined.map((k) => `\`${k}\` is ${(specFields[t] as Record<string, SpecField>)[k]!.meaning}`).join("; ")}.`] : []),
+      ...(absent.length ? [`Not taken: ${absent.map((k) => `\`${k}\``).join(", ")}.`] : []),
+    ];
+    parts.push(`\`${t}\`:${notes.length ? ` ${notes.join(" ")}` : ""}\n\n${header}\n${own.map(line).join("\n")}`);
   }
   return parts.join("\n\n");
 }

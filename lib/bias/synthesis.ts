@@ -30,13 +30,16 @@ import { synthesizeDrainFeedback as drainFeedback, type DrainFeedbackSpec as Dra
 import { synthesizeFixedGate as fixedGate, type FixedGateSpec as FixedGateFlat } from "./synthesis/fixed-gate.js";
 import { synthesizeFourResistor as fourResistor, type FourResistorSpec as FourResistorFlat, type FourResistorResult } from "./synthesis/four-resistor.js";
 import { synthesizeSourceFollower as sourceFollower, type SourceFollowerSpec as SourceFollowerFlat } from "./synthesis/source-follower.js";
+import { synthesizeDiffPair as diffPair, type DiffPairSpec as DiffPairFlat } from "./synthesis/diff-pair.js";
+import { synthesizeMirrorLoadPair as mirrorLoadPair, type MirrorLoadPairSynthesisSpec as MirrorLoadPairFlat } from "./synthesis/mirror-load-pair.js";
+import { synthesizeCascodeMirror as cascodeMirror, synthesizeCascodeStage as cascodeStage, type CascodeMirrorSpec as CascodeMirrorFlat, type CascodeStageSpec as CascodeStageFlat } from "./synthesis/cascode.js";
 
 export * from "./synthesis/common.js";
 export type { CorePlan, DividerTarget, DrainTarget, SourceBudget } from "./synthesis/core.js";
 export type { FourResistorResult };
 
 /** The designers' flat form (card, sizing and targets side by side); internal: callers state a {@link SynthesisSpec}. */
-type FlatSpec = FourResistorFlat | FixedGateFlat | DrainFeedbackFlat | SourceFollowerFlat | CurrentSourceBiasFlat | CurrentMirrorFlat | DiodeLoadFlat;
+type FlatSpec = FourResistorFlat | FixedGateFlat | DrainFeedbackFlat | SourceFollowerFlat | CurrentSourceBiasFlat | CurrentMirrorFlat | DiodeLoadFlat | DiffPairFlat | MirrorLoadPairFlat | CascodeStageFlat | CascodeMirrorFlat;
 
 /** The fields of one topology's specification section: everything its designer takes besides the common ones. */
 type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "options" | "limits">;
@@ -73,6 +76,10 @@ export type SourceFollowerSpec = SynthesisSpec<SourceFollowerFlat>;
 export type CurrentSourceBiasSpec = SynthesisSpec<CurrentSourceBiasFlat>;
 export type CurrentMirrorSpec = SynthesisSpec<CurrentMirrorFlat>;
 export type DiodeLoadSpec = SynthesisSpec<DiodeLoadFlat>;
+export type DiffPairSpec = SynthesisSpec<DiffPairFlat>;
+export type MirrorLoadPairSynthesisSpec = SynthesisSpec<MirrorLoadPairFlat>;
+export type CascodeStageSpec = SynthesisSpec<CascodeStageFlat>;
+export type CascodeMirrorSpec = SynthesisSpec<CascodeMirrorFlat>;
 
 /** Any topology's specification, in the design file's shape. */
 export type StageSpec = SynthesisSpec;
@@ -118,7 +125,15 @@ const designers = {
   "current-source-bias": currentSourceBias,
   "current-mirror": currentMirror,
   "diode-load": diodeLoad,
+  "diff-pair": diffPair,
+  "diff-pair-mirror-load": mirrorLoadPair,
+  "cascode-stage": cascodeStage,
+  "cascode-mirror": cascodeMirror,
 } as const;
+
+/** Designers of netlist stages (own specification shapes, tested in test/synthesis-pairs.test.ts): on-chip devices drawn to size, not discrete parts. */
+export const netlistSynthesisTopologies: readonly string[] = ["diff-pair", "diff-pair-mirror-load", "cascode-stage", "cascode-mirror"];
+const onChip = netlistSynthesisTopologies;
 
 export const synthesisTopologies = Object.keys(designers) as (keyof typeof designers)[];
 
@@ -132,6 +147,8 @@ export function synthesize(spec: StageSpec, rec?: Derivation): SynthesisResult {
   const id = isObject(spec) ? spec.topology : undefined;
   const f = typeof id === "string" ? (designers as Record<string, (s: never, r?: Derivation) => SynthesisResult<object>>)[id] : undefined;
   if (!f) throw new InputError(id, `one of the topologies with synthesis: ${synthesisTopologies.map((t) => JSON.stringify(t)).join(", ")}`, "spec.topology", "invalid-design");
+  if (onChip.includes(id as string) && isObject(spec.device) && "part" in spec.device)
+    throw new InputError("part", `device { card }: the ${String(id)} designer sizes drawn transistors (W and L), not a discrete part`, "spec.device.part", "invalid-design");
   const { flat, part } = flatten(spec, rec);
   const design = f(flat as never, rec) as SynthesisResult;
   if (!part) return design;
@@ -153,3 +170,8 @@ export const synthesizeSourceFollower = one<SourceFollowerSpec>();
 export const synthesizeCurrentSourceBias = one<CurrentSourceBiasSpec>();
 export const synthesizeCurrentMirror = one<CurrentMirrorSpec>();
 export const synthesizeDiodeLoad = one<DiodeLoadSpec>();
+export const synthesizeDiffPair = one<DiffPairSpec>();
+/** The five-transistor amplifier in the design file's shape (`designMirrorLoadPair` takes its own flat form). */
+export const synthesizeMirrorLoadPairSpec = one<MirrorLoadPairSynthesisSpec>();
+export const synthesizeCascodeStage = one<CascodeStageSpec>();
+export const synthesizeCascodeMirror = one<CascodeMirrorSpec>();

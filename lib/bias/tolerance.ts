@@ -197,9 +197,10 @@ export function toleranceAnalysis(typed: Stage<string, object>, spec: ToleranceS
       const a = solve({ ...stage, device: { ...stage.device, card: c }, ...devices, components: comps });
       return {
         ...base,
-        ok: a.region === "saturation",
+        // Every transistor of the stage must stay saturated (a netlist stage lists its others in `devices`).
+        ok: a.region === "saturation" && Object.values(a.devices ?? {}).every((d) => d.region === "saturation"),
         region: a.region,
-        id: a.currents.drainMagnitude!,
+        id: a.currents.drainMagnitude ?? a.currents.drain!,
         vd: a.nodes.drain!,
         vs: a.nodes.source!,
         vov: a.op.vov,

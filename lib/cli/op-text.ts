@@ -43,16 +43,8 @@ export function checkLine(c: StageCheck): string {
   return `${c.passed ? "pass" : "FAIL"}  ${c.name}: ${formatChecked(c.value, c.unit)}${bound ? ` (needs ${bound}; margin ${formatChecked(c.margin, c.unit, 4, true)})` : ""}`;
 }
 
-// The topology's own field dimension where it declares one (every registered topology does).
-const componentDim = (name: string, stage: Stage): Dimension =>
-  topologyFields(stage.topology)?.find((f) => f.name === name)?.dim ?? (name === "vg" || name === "vout" ? "voltage" : name === "iss" ? "current" : stage && name.startsWith("r") ? "resistance" : "dimensionless");
-function topologyFields(id: string) {
-  try {
-    return topologyFor(id).components;
-  } catch {
-    return undefined;
-  }
-}
+/** A component's dimension, from its topology's field list (the one that validates it). */
+const componentDim = (name: string, stage: Stage): Dimension => topologyFor(stage.topology).components.find((f) => f.name === name)?.dim ?? "dimensionless";
 
 export function opText(o: OpOutcome): string {
   const a = o.analysis;
@@ -70,8 +62,19 @@ export function opText(o: OpOutcome): string {
   for (const [role, d] of Object.entries(o.stage.devices ?? {})) out.push(device(role, d));
   out.push(`  supplies: VDD ${q(o.stage.supplies.vdd, "voltage")}${o.stage.supplies.vss ? `, VSS ${q(o.stage.supplies.vss, "voltage")}` : ""}`, "");
   out.push(`Operating point: ${a.region}`);
-  out.push(`  VG ${q(a.nodes.gate, "voltage")}   VS ${q(a.nodes.source, "voltage")}   VD ${q(a.nodes.drain, "voltage")}`);
-  out.push(`  ID ${q(a.currents.drainMagnitude, "current")}   VOV ${q(a.op.vov, "voltage")}   Vt ${q(a.op.vt, "voltage")}   saturation margin ${q(a.op.saturationMargin, "voltage")}`);
+  if (a.currents.drainMagnitude === undefined) {
+    // A netlist topology (pairs, cascodes): its own node names, then every transistor.
+    out.push(`  nodes: ${Object.entries(a.nodes).map(([n, v]) => `${n} ${q(v, "voltage")}`).join("   ")}`);
+    const row = (name: string, op: StageAnalysis["op"]) => `  ${name.padEnd(3)} ${op.region.padEnd(10)} ID ${q(Math.abs(op.channelCurrent), "current")}   VOV ${q(op.vov, "voltage")}   saturation margin ${q(op.saturationMargin, "voltage")}`;
+    // The analysis keeps the main transistor in `op` and the others by name: the main one is the name missing from `devices`.
+    let main = 1;
+    while (a.devices?.[`M${main}`]) main++;
+    out.push(row(`M${main}`, a.op));
+    for (const [n, d] of Object.entries(a.devices ?? {})) out.push(row(n, d.op));
+  } else {
+    out.push(`  VG ${q(a.nodes.gate, "voltage")}   VS ${q(a.nodes.source, "voltage")}   VD ${q(a.nodes.drain, "voltage")}`);
+    out.push(`  ID ${q(a.currents.drainMagnitude, "current")}   VOV ${q(a.op.vov, "voltage")}   Vt ${q(a.op.vt, "voltage")}   saturation margin ${q(a.op.saturationMargin, "voltage")}`);
+  }
   out.push(`  gm ${q(a.smallSignal.gm, "conductance")}   ro ${Number.isFinite(a.smallSignal.ro) ? q(a.smallSignal.ro, "resistance") : "∞"}   transistor ${q(a.power.transistor, "power")}   supply ${q(a.power.total, "power")}`);
   for (const m of a.metrics.amplifiers) out.push(`  ${m.kind}: gain ${+m.gain.toPrecision(4)}, Rin ${Number.isFinite(m.rin) ? q(m.rin, "resistance") : "∞"}, Rout ${q(m.rout, "resistance")}`);
   if (o.design) {

@@ -24,6 +24,7 @@ import { partModel } from "../device/discrete-part.js";
 import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
+import { mismatchReport, mismatchText } from "../bias/mismatch-file.js";
 import { analyzeFrequency, type FrequencyAnalysis } from "../bias/frequency.js";
 import { formatQuantity } from "../units/format.js";
 import { writeFileAtomic } from "../io/atomic-write.js";
@@ -53,7 +54,10 @@ stage is designed first: the ideal values, the standard values chosen as a set
 from the series, the deviation from the specification and the operating point
 of the chosen stage. A "tolerance" section adds worst-case corners or a Monte
 Carlo run over part tolerances and temperatures: the spread of the bias and the
-yield of every check (corners must all pass).`,
+yield of every check (corners must all pass). A "mismatch" section (pairs and
+mirrors) adds Pelgrom's offset or current error and a Monte Carlo of device
+mismatch on top of global variation: each figure's spread, the yield of every
+stated limit and which device moves each figure most.`,
   notes: "Hand analysis is approximate: verify by simulation and measurement.",
 } as const satisfies CommandSpec;
 
@@ -258,6 +262,8 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   const verification = values.verify !== undefined ? await verifyFromCommandLine(stage, values.verify, values["verify-tolerance"], values["verify-deck"], rec) : undefined;
   // A "frequency" section: the response by hand analysis, its checks failing the op like the others.
   const frequency = read.frequency ? analyzeFrequency(stage, analysis, read.frequency, record !== undefined ? rec : undefined) : undefined;
+  // A "mismatch" section: Pelgrom closed form and Monte Carlo yields; a yield below minYield fails the op.
+  const mismatch = read.mismatch ? mismatchReport(stage, analysis, read.mismatch, `${read.origin}: mismatch`, record !== undefined ? rec : undefined) : undefined;
   if (record !== undefined) {
     recordLimits(rec, read);
     const written = new Date().toISOString();
@@ -269,7 +275,7 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
     const text = stampRecord(body, format!, { version, command: "op", written, design: { path: file, sha256: designSha256 }, inputs: rec.fingerprint() });
     writeRecord(record, text, [file], values.force === true);
   }
-  const failures = [...failedChecks(analysis, design, tolerance, extraChecks), ...(verification && !verification.passed ? [verificationFailure(verification)] : [])];
+  const failures = [...failedChecks(analysis, design, tolerance, extraChecks), ...(mismatch?.failed ?? []), ...(verification && !verification.passed ? [verificationFailure(verification)] : [])];
   // Target corners are checks of the design; the methods' own assumptions are cautions, not failures.
   for (const c of frequency?.checks ?? [])
     if (!c.passed && (c.name.startsWith("Low-frequency corner") || c.name.startsWith("Upper corner") || (frequency?.view === "two-stage" && c.name.startsWith("Phase margin")))) failures.push(`FAIL  frequency, ${c.name}: ${+c.value.toPrecision(4)} ${c.unit}`);
@@ -277,10 +283,11 @@ export const main = defineCommand(command, async ({ values, positionals }) => {
   if (asText) {
     console.log(opText({ file, ...(record ? { record } : {}), stage, analysis, ...(design ? { design } : {}), ...(tolerance ? { tolerance } : {}), extraChecks, failures }) + (verification ? `\n${verificationText(verification)}` : ""));
     if (frequency) console.log(frequencyText(frequency));
+    if (mismatch) console.log(mismatchText(mismatch));
   } else {
     const head = { design: file, ...(record ? { record } : {}) };
     const body = design ? designSummary(read as Extract<DesignFile, { kind: "specification" }>, design) : analysis;
-    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(frequency ? { frequency } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), ...(verification ? { verification } : {}), failedChecks: failures }));
+    console.log(toJson({ ...head, ...body, ...(tolerance ? { tolerance } : {}), ...(frequency ? { frequency } : {}), ...(mismatch ? { mismatch } : {}), ...(extraChecks.length ? { ratings: extraChecks } : {}), ...(verification ? { verification } : {}), failedChecks: failures }));
     for (const f of failures) console.error(`check failed: ${f.replace(/^FAIL\s+/, "")}`);
   }
   return failures.length ? exitStatus.failed : exitStatus.ok;

@@ -7,6 +7,7 @@
  * point are approximate (said in the summary).
  */
 import { device } from "../device/card.js";
+import { drainCurrent } from "../device/drain-current.js";
 import { InputError } from "../errors.js";
 import type { Stage, StageAnalysis } from "../bias/topology.js";
 import { formatQuantity } from "../units/format.js";
@@ -58,6 +59,47 @@ export function stageLoad<C>(stage: Stage<string, C>): StageLoad {
   return {};
 }
 
+/**
+ * The load of the main transistor of a netlist stage, from the solved nodes (device polarity):
+ * the resistive pair's RD from the drain rail to its drain over the span from its source;
+ * the five-transistor amplifier's diode M3 on M1's drain; the cascode mirror's output cascode
+ * M4 (gate and drain held) on M2's drain. Undefined for other stages.
+ */
+export function netlistLoad<C>(stage: Stage<string, C>, analysis: StageAnalysis): StageLoad | undefined {
+  const sgn = stage.device.card.polarity === "nmos" ? 1 : -1;
+  const drainRail = sgn > 0 ? stage.supplies.vdd : stage.supplies.vss ?? 0;
+  const vs = analysis.nodes.source;
+  if (vs === undefined) return undefined;
+  const open = sgn * (drainRail - vs);
+  if (stage.topology === "diff-pair") {
+    const rd = num(stage.components, "rd");
+    return { loadLine: { openCircuit: open, resistance: rd, label: `load resistor ${formatQuantity(rd, "resistance")} from the source at ${formatQuantity(vs, "voltage")}` } };
+  }
+  if (stage.topology === "diff-pair-mirror-load" && stage.devices?.load) {
+    const ld = stage.devices.load;
+    return { loadCurve: diodeLoadCurve(device(ld.card, ld.w, ld.l, "stagePlots.devices.load"), open, { label: "diode-connected load M3 (mirror input)" }) };
+  }
+  if (stage.topology === "cascode-mirror" && stage.devices?.cascode) {
+    const cd = stage.devices.cascode;
+    const m4 = analysis.devices?.M4;
+    if (!m4) return undefined;
+    // M4's gate and drain are held: its current against the voltage it leaves M2 (its source, device polarity).
+    const dev4 = device(cd.card, cd.w, cd.l, "stagePlots.devices.cascode");
+    const vg = sgn * (m4.terminals.gate - vs);
+    const vd = sgn * (m4.terminals.drain - vs);
+    const n = 161;
+    const x: number[] = [];
+    const y: number[] = [];
+    for (let i = 0; i < n; i++) {
+      const v2 = (vd * i) / (n - 1);
+      x.push(v2);
+      y.push(Math.abs(drainCurrent(dev4, sgn * (vg - v2), sgn * (vd - v2), stage.body === "rail" ? sgn * v2 : 0)));
+    }
+    return { loadCurve: { vds: x, id: y, label: "output cascode M4 (gate at its bias, output held)" } };
+  }
+  return undefined;
+}
+
 export interface StagePlotOptions {
   /** Extra load (e.g. a diode-connected device from diodeLoadCurve) instead of the topology's own. */
   readonly load?: StageLoad;
@@ -82,7 +124,7 @@ export function stagePlots<C>(stage: Stage<string, C>, analysis: StageAnalysis, 
   const vov = op.vov > 0 ? op.vov : 0.3;
   const drives = opts.gateDrives ?? [0.5, 1.5, 2].map((f) => Number((vt + f * vov).toPrecision(3)));
   const name = stage.name ?? analysis.name ?? stage.topology;
-  const load = opts.load ?? stageLoad(stage);
+  const load = opts.load ?? netlistLoad(stage, analysis) ?? stageLoad(stage);
   const output = outputCharacteristics(dev, {
     gateDrives: drives,
     vdsMax: span,

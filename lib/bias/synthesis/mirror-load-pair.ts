@@ -11,12 +11,14 @@
  */
 import type { DeviceCard } from "../../device/card.js";
 import { aspectRatioFor } from "../../device/inverse.js";
-import { InfeasibleError, InputError } from "../../errors.js";
+import { InfeasibleError, InputError, PinchoffError } from "../../errors.js";
 import * as pf from "../../formulas/pair.formulas.js";
 import type { Amperes, Meters, PerVolt, Ratio, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
 import { analyzeStage } from "../analyze.js";
 import type { Stage, StageAnalysis, Supplies } from "../topology.js";
+import { figure, type SynthesisResult } from "./common.js";
+import { netlistResult } from "./netlist-design.js";
 import type { PairFigures } from "../topologies/diff-pair.js";
 import { fmt } from "../topologies/two-transistor.js";
 
@@ -97,4 +99,85 @@ export function designMirrorLoadPair(spec: MirrorLoadPairSpec, rec?: Derivation)
   rec?.note("Re-solve", "The sized stage is solved by nodal analysis at the middle of the common-mode range; its figures follow.");
   const analysis = analyzeStage(stage, rec) as StageAnalysis & { pair: PairFigures };
   return { stage, overdrive: { input: vov1, load: vov3, tail: vov5 }, analysis };
+}
+
+/** The five-transistor amplifier's specification in the shared (design-file) form: the input card is the stage's device; the load's card and length in `load`. */
+export interface MirrorLoadPairSynthesisSpec {
+  readonly topology: "diff-pair-mirror-load";
+  readonly name?: string;
+  readonly card: DeviceCard;
+  readonly supplies: Supplies;
+  readonly body?: Stage["body"];
+  readonly options?: Stage["options"];
+  readonly limits?: Stage["limits"];
+  /** Tail current. */
+  readonly id: Amperes;
+  /** Differential gain magnitude. */
+  readonly gain: Ratio;
+  readonly commonMode: { readonly min: Volts; readonly max: Volts };
+  /** Channel length of the input pair and the tail. */
+  readonly l: Meters;
+  readonly load: { readonly card: DeviceCard; readonly l: Meters };
+  readonly output?: { readonly max: Volts };
+  readonly margin?: Volts;
+}
+
+/** `designMirrorLoadPair` behind the shared designer interface: the result in the `SynthesisResult` shape (no resistors, so nothing to snap). */
+export function synthesizeMirrorLoadPair(spec: MirrorLoadPairSynthesisSpec, rec?: Derivation): SynthesisResult {
+  const o = "diff-pair-mirror-load spec";
+  if (!spec.commonMode || typeof spec.commonMode !== "object") throw new InputError(spec.commonMode, "commonMode { min, max } in V (absolute)", `${o}.commonMode`, "invalid-design");
+  if (!spec.load || typeof spec.load !== "object") throw new InputError(spec.load, "load { card, l }: the mirror load's card (the other polarity) and length", `${o}.load`, "invalid-design");
+  let d: MirrorLoadPairDesign;
+  try {
+    d = designMirrorLoadPair(specOf(spec), rec);
+  } catch (e) {
+    throw renamed(e, o);
+  }
+  const stage: Stage = { ...d.stage, ...(spec.name ? { name: spec.name } : {}), ...(spec.body ? { body: spec.body } : {}), ...(spec.options ? { options: spec.options } : {}), ...(spec.limits ? { limits: spec.limits } : {}) };
+  const analysis = (stage === d.stage ? d.analysis : analyzeStage(stage)) as StageAnalysis & { pair: PairFigures };
+  const s = spec.card.polarity === "nmos" ? 1 : -1;
+  const vgs = Math.abs(analysis.op.vgsDevice);
+  const main = { w: stage.device.w, l: stage.device.l, vov: d.overdrive.input, vgs: vgs as Volts };
+  const vcm = stage.components.vcm!;
+  return netlistResult({
+    topology: "diff-pair-mirror-load",
+    card: spec.card,
+    main,
+    ideal: stage,
+    chosen: { stage, analysis },
+    nodes: { vg: vcm, vs: vcm - s * vgs, vd: analysis.nodes.out! },
+    current: { target: spec.id, achieved: analysis.pair.tailCurrent },
+    output: { target: analysis.nodes.out!, achieved: analysis.nodes.out! },
+    gain: figure(spec.gain, Math.abs(analysis.pair.differentialGain)),
+  });
+}
+
+/** The flat form `designMirrorLoadPair` takes, from the shared form. */
+function specOf(spec: MirrorLoadPairSynthesisSpec): MirrorLoadPairSpec {
+  return {
+    input: spec.card,
+    load: spec.load.card,
+    supplies: spec.supplies,
+    itail: spec.id,
+    gain: spec.gain,
+    commonModeMin: spec.commonMode.min,
+    commonModeMax: spec.commonMode.max,
+    ...(spec.output ? { outputMax: spec.output.max } : {}),
+    lInput: spec.l,
+    lLoad: spec.load.l,
+    ...(spec.margin !== undefined ? { margin: spec.margin } : {}),
+  };
+}
+
+/** designMirrorLoadPair's field names, as the specification names them. */
+const fieldOf: Readonly<Record<string, string>> = { itail: "id", gain: "gain", commonModeMin: "commonMode.min", commonModeMax: "commonMode.max", lInput: "l", lLoad: "load.l", "load.polarity": "load.card.polarity", "input.lambda + load.lambda": "load.card.lambda" };
+
+/** An error of designMirrorLoadPair with its origin named by the specification's field. */
+function renamed(e: unknown, o: string): unknown {
+  if (!(e instanceof PinchoffError) || !e.origin?.startsWith("designMirrorLoadPair: ")) return e;
+  const field = e.origin.slice("designMirrorLoadPair: ".length);
+  const origin = `${o}.${fieldOf[field] ?? field}`;
+  if (e instanceof InputError) return new InputError(e.value, e.expected, origin, e.code);
+  if (e instanceof InfeasibleError) return new InfeasibleError(e.message.startsWith(`${e.origin}: `) ? e.message.slice(e.origin.length + 2) : e.message, origin);
+  return e;
 }

@@ -147,6 +147,21 @@ const absRange = (sign: number, lo: number, hi: number) => {
   return { lower: Math.min(a, b) as Volts, upper: Math.max(a, b) as Volts };
 };
 
+/** The `pair` block both pairs report, from their own gains, range and output resistance. */
+function pairFigures(itail: number, ad: number, ac: number, cmrr: number, hAd: number, hAc: number, range: PairFigures["commonModeRange"], ro: number, sr: number | undefined): PairFigures {
+  return {
+    tailCurrent: itail as Amperes,
+    differentialGain: ad,
+    commonModeGain: ac,
+    cmrr,
+    handDifferentialGain: hAd,
+    handCommonModeGain: hAc,
+    commonModeRange: range,
+    outputResistance: ro as Ohms,
+    ...(sr !== undefined ? { slewRate: sr } : {}),
+  };
+}
+
 export const diffPairSpec: CircuitTopologySpec<"diff-pair", DiffPairComponents, { pair: PairFigures }> = {
   id: "diff-pair",
   title: "Differential pair with resistive loads",
@@ -218,17 +233,7 @@ export const diffPairSpec: CircuitTopologySpec<"diff-pair", DiffPairComponents, 
       metrics: { amplifiers, swing, checks: rangeChecks(s, lo, hi, rec) },
       findings,
       extra: {
-        pair: {
-          tailCurrent: itail as Amperes,
-          differentialGain: ad,
-          commonModeGain: ac,
-          cmrr,
-          handDifferentialGain: hAd,
-          handCommonModeGain: hAc,
-          commonModeRange: absRange(sign, lo, hi),
-          outputResistance: ro as Ohms,
-          ...(sr !== undefined ? { slewRate: sr } : {}),
-        },
+        pair: pairFigures(itail, ad, ac, cmrr, hAd, hAc, absRange(sign, lo, hi), ro, sr),
       },
     };
   },
@@ -309,17 +314,7 @@ export const mirrorLoadPairSpec: CircuitTopologySpec<"diff-pair-mirror-load", Mi
       metrics: { amplifiers, swing, checks: rangeChecks(s, lo, hi, rec) },
       findings,
       extra: {
-        pair: {
-          tailCurrent: itail as Amperes,
-          differentialGain: ad,
-          commonModeGain: ac,
-          cmrr,
-          handDifferentialGain: hAd,
-          handCommonModeGain: hAc,
-          commonModeRange: absRange(sign, lo, hi),
-          outputResistance: ro as Ohms,
-          ...(sr !== undefined ? { slewRate: sr } : {}),
-        },
+        pair: pairFigures(itail, ad, ac, cmrr, hAd, hAc, absRange(sign, lo, hi), ro, sr),
       },
     };
   },
