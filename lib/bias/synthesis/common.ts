@@ -13,7 +13,7 @@
  * measurement, and respect the device ratings.
  */
 import type { DeviceCard } from "../../device/card.js";
-import { polaritySign, requireSquareLawCard } from "../../device/card.js";
+import { checkCard, polaritySign } from "../../device/card.js";
 import type { ModelOptions } from "../../device/drain-current.js";
 import { InputError, requirePositive } from "../../errors.js";
 import type { Amperes, Meters, Ratio, Volts } from "../../quantity.js";
@@ -118,7 +118,8 @@ export function checkSpecBase(spec: SpecBase, origin: string): void {
   if (typeof vss !== "number" || !Number.isFinite(vss) || vss >= vdd)
     throw new InputError(vss, `a finite VSS in V below VDD = ${vdd} V`, `${origin}.supplies.vss`);
   requirePositive(spec.id, `${origin}.id`, "a target drain current > 0 in A");
-  if (spec.card) requireSquareLawCard(spec.card, `${origin}.card`, "synthesis");
+  // Any model: the square law designs by its closed forms, the others through ./model-device.ts.
+  checkCard(spec.card, `${origin}.card`);
   const z = spec.sizing as Record<string, unknown> | undefined;
   if (!z || typeof z !== "object") throw new InputError(z, "sizing { vov, l } or { w, l }", `${origin}.sizing`);
   requirePositive(z.l as number, `${origin}.sizing.l`, "a channel length L > 0 in m");
