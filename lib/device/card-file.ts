@@ -5,11 +5,12 @@
  * caller says to replace; read back validated once (`checkCard`,
  * `checkCardSet`), every error naming the file.
  */
-import { existsSync, lstatSync, mkdirSync, readFileSync } from "node:fs";
+import { existsSync, lstatSync, mkdirSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { dirname, join } from "node:path";
 import { InputError, PinchoffError } from "../errors.js";
 import { writeAtomically, type FileSystemSeam } from "../io/atomic-write.js";
+import { readJsonFile } from "../io/read-json.js";
 import { checkCardSet, type CardSet } from "./card-set.js";
 import { checkCard, type DeviceCard } from "./card.js";
 
@@ -73,18 +74,7 @@ export const scratchCardPath = (name: string): string => join(tmpdir(), "pinchof
 
 /** Read and validate a card file: a device card or a card set. */
 export function readCardFile(path: string): CardFileContent {
-  let text: string;
-  try {
-    text = readFileSync(path, "utf8");
-  } catch (e) {
-    throw new PinchoffError("io", `cannot read the card file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
-  }
-  let json: unknown;
-  try {
-    json = JSON.parse(text);
-  } catch (e) {
-    throw new InputError(text.slice(0, 40), `a JSON card or card set (${(e as Error).message})`, path, "invalid-design");
-  }
+  const json = readJsonFile(path, "card file");
   if (typeof json !== "object" || json === null || Array.isArray(json)) throw new InputError(json, "a card object or a card set object", path, "invalid-design");
   return isSet(json) ? checkCardSet(json, path) : checkCard(json as DeviceCard, path);
 }
