@@ -9,6 +9,8 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeStage } from "../lib/bias/analyze.js";
+import { parseDesignFile } from "../lib/bias/design-file.js";
+import { designOf } from "../lib/cli/op.js";
 import { synthesize, synthesisTopologies, type SynthesisResult } from "../lib/bias/synthesis.js";
 import { cardAt, type CardSet } from "../lib/device/card-set.js";
 import { device, type DeviceCard } from "../lib/device/card.js";
@@ -128,6 +130,17 @@ describe("a card set by L", () => {
     expect(r.stage.device.card).toEqual(want);
     expect(Math.abs(analyzeStage(r.stage).currents.drainMagnitude! - 2e-4) / 2e-4).toBeLessThan(1e-9);
     expect(rec.toJSON().steps.some((s) => s.kind === "note" && /card set/i.test(JSON.stringify(s)))).toBe(true);
+  });
+  it("design files take the set too: an analysis gets the card at the device's L, a specification at sizing.l", () => {
+    const an = parseDesignFile({ topology: "fixed-gate", device: { card: set, w: "20 um", l: "1 um" }, components: { vg: "1.2 V", rd: "5k" }, supplies: { vdd: "3.3 V" } }, "set.json");
+    if (an.kind !== "analysis") throw new Error("expected an analysis");
+    expect(an.stage.device.card).toEqual(cardAt(set, 1e-6 as Meters));
+    const sp = parseDesignFile({ topology: "fixed-gate", device: { card: set }, specification: { id: "100 uA", sizing: { vov: "0.3 V", l: "1 um" }, series: "exact" }, supplies: { vdd: "3.3 V" } }, "set-spec.json");
+    if (sp.kind !== "specification") throw new Error("expected a specification");
+    const r = designOf(sp).design;
+    expect(r.stage.device.card).toEqual(cardAt(set, 1e-6 as Meters));
+    expect(Math.abs(r.deviation.id.relative)).toBeLessThan(1e-9);
+    expect(() => parseDesignFile({ topology: "fixed-gate", device: { card: { ...set, entries: [] }, w: "20 um", l: "1 um" }, components: { vg: "1.2 V", rd: "5k" }, supplies: { vdd: "3.3 V" } }, "bad.json")).toThrow(/bad\.json: device\.card\.entries/);
   });
   it("refuses a length outside the set, naming it", () => {
     const spec = specs(set as unknown as DeviceCard, { vov: 0.3, l: 5e-6 }, "exact")["four-resistor"]!;
