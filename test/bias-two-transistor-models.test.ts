@@ -14,6 +14,7 @@ import { analyzeStage } from "../lib/bias/analyze.js";
 import type { MirrorAnalysis } from "../lib/bias/topologies/current-mirror.js";
 import type { Stage, StageAnalysis } from "../lib/bias/topology.js";
 import { main as op } from "../lib/cli/op.js";
+import { stagePlots } from "../lib/plot/stage.js";
 import { device, type DeviceCard } from "../lib/device/card.js";
 import { drainCurrent } from "../lib/device/drain-current.js";
 import type { Meters } from "../lib/quantity.js";
@@ -146,6 +147,23 @@ describe("diode-load stage with every model", () => {
     for (const f of ["ekvDrainCurrent", "ekvDrainSaturationVoltage", "diodeLoadGain"]) expect(ids).toContain(f);
     for (const f of ["diodeLoadOutputVoltage", "diodeLoadGainSizing", "saturationCurrent"]) expect(ids).not.toContain(f);
     expectReevaluates(rec);
+  });
+});
+
+describe("plots of the two-transistor stages with an EKV card", () => {
+  it("draws the output characteristic with the load and the operating point at the solved current", () => {
+    for (const st of [mirrorStage(cards.ekv!, { rload: 8e3 }), diodeStage(cards.ekv!, pmos(cards.ekv!), "source", 1.3)]) {
+      const a = analyzeStage(st);
+      const plots = stagePlots(st, a);
+      const roles = plots.output.figure.data.map((t) => t.meta?.role);
+      expect(roles).toContain("operating-point");
+      expect(roles.some((r) => r === "load-line" || r === "load-curve")).toBe(true);
+      const q = plots.output.figure.data.find((t) => t.meta?.role === "operating-point")!;
+      const y = (q as { y?: number[] }).y![0]!;
+      const scale = plots.output.axes.y.divisor;
+      // The plot trims its numbers for display: the point sits at the solved current within 0.1 %.
+      expect(Math.abs(Math.abs(y * scale) - a.currents.drainMagnitude!) / a.currents.drainMagnitude!).toBeLessThan(1e-3);
+    }
   });
 });
 

@@ -113,7 +113,7 @@ export const polaritySign = (card: DeviceCard): 1 | -1 => (card.polarity === "nm
 export function requireSquareLawCard(card: DeviceCard, origin: string, what: string): void {
   const m = modelOf(card);
   if (m !== "square-law")
-    throw new InputError(m, `a square-law card: ${what} is written in the square law's closed forms and does not take a "${m}" card yet (analyse single-transistor stages, solve gate voltages or plot with it instead)`, `${origin}.model`);
+    throw new InputError(m, `a square-law card: ${what} is written in the square law's closed forms and does not take a "${m}" card yet (the bias topologies, synthesis, inverse design and the plots take it)`, `${origin}.model`);
 }
 
 /** Validate a card, naming the first bad field; returns the same card. */
