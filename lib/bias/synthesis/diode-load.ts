@@ -205,7 +205,7 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
   const vg = calc(sf.gateNodeForDrive, [vsr, p.vgs1 as Volts], rec, byModel ? "driver: VGS from its model, source at its rail" : "driver: VGS = Vt + VOV, source at its rail");
   const ideal: DiodeLoadComponents = { vg: (s * vg) as Volts };
   rec?.note("Gate bias source", `The driver's gate is to be held at ${+ideal.vg.toPrecision(5)} V by the bias source.`);
-  const d: CoreDesign = { vrs: 0 as Volts, vs: vsr, vt: vt1, vsb: 0 as Volts, vov: p.vov1 as Volts, wl: p.wl1 as Ratio, k: (c.kp * p.wl1) as AmperesPerVoltSquared, vg, vd: vout as Volts, rd: 0 as Ohms, gm: 0, gds: 0, gmb: 0, w: w1, l: spec.sizing.l };
+  const d: CoreDesign = { vrs: 0 as Volts, vs: vsr, vt: (p.vgs1 - p.vov1) as Volts, vsb: 0 as Volts, vov: p.vov1 as Volts, wl: p.wl1 as Ratio, k: (c.kp * p.wl1) as AmperesPerVoltSquared, vg, vd: vout as Volts, rd: 0 as Ohms, gm: 0, gds: 0, gmb: 0, w: w1, l: spec.sizing.l };
   return finish(
     {
       topology: "diode-load",
