@@ -7,6 +7,7 @@ export * from "./quantity.js";
 export * from "./errors.js";
 export * from "./device/card.js";
 export * from "./device/card-set.js";
+export * from "./device/card-file.js";
 export * from "./device/region.js";
 export * from "./device/threshold.js";
 export * from "./device/drain-current.js";

@@ -2,7 +2,9 @@
  * The template index: every notebook in notebooks-templates/ is a template,
  * named by its file name without `.ipynb`. Its one-line description is
  * `metadata.pinchoff.description` when present, else the first heading (or
- * first line) of its first markdown cell.
+ * first line) of its first markdown cell. `metadata.pinchoff.kind` says what
+ * it makes: a stage design (the default) or a device characterisation
+ * ("characterisation": measured data in, a fitted card out).
  */
 import { readdirSync, readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -16,7 +18,12 @@ export interface Template {
   readonly description: string;
   /** Flagged `metadata.pinchoff.demo`: the one `npm run demo` runs. */
   readonly demo: boolean;
+  /** What the template makes: a stage design, or a fitted device card from measurements. */
+  readonly kind: TemplateKind;
 }
+
+export const templateKinds = ["stage", "characterisation"] as const;
+export type TemplateKind = (typeof templateKinds)[number];
 
 export function describeNotebook(text: string, origin: string): string {
   return describe(parseNotebook(text, origin));
@@ -40,8 +47,11 @@ export function listTemplates(dir = templatesDir): Template[] {
   return files.map((f) => {
     const path = join(dir, f);
     const nb = parseNotebook(readFileSync(path, "utf8"), path);
-    const demo = (nb.metadata.pinchoff as { demo?: unknown } | undefined)?.demo === true;
-    return { name: f.slice(0, -".ipynb".length), path, description: describe(nb), demo };
+    const meta = nb.metadata.pinchoff as { demo?: unknown; kind?: unknown } | undefined;
+    const demo = meta?.demo === true;
+    if (meta?.kind !== undefined && !(templateKinds as readonly unknown[]).includes(meta.kind))
+      throw new PinchoffError("invalid-design", `metadata.pinchoff.kind is ${JSON.stringify(meta.kind)}; expected one of ${templateKinds.map((k) => JSON.stringify(k)).join(", ")}`, path);
+    return { name: f.slice(0, -".ipynb".length), path, description: describe(nb), demo, kind: (meta?.kind as TemplateKind | undefined) ?? "stage" };
   });
 }
 

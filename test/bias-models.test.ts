@@ -95,8 +95,16 @@ describe("tolerance and Monte Carlo on a model's own parameters", () => {
     const fast = analyzeStage({ ...stage, device: dev({ ...cards.ekv!, vt0: 0.55 as never, kp: 165e-6 as never }) });
     expect(r.id.max).toBeCloseTo(fast.currents.drainMagnitude, 12);
   });
-  it("refuses the two-transistor closed forms for a model they do not take yet, naming the field", () => {
-    const mirror = { topology: "current-mirror", device: dev(cards.ekv!), devices: { reference: dev(cards.ekv!) }, components: { rref: 10e3, vout: 2 }, supplies: { vdd: 5 } } as unknown as Stage;
-    expect(() => analyzeStage(mirror)).toThrow(/device\.card\.model/);
+  it("spreads an EKV mirror's two cards together: the high-current corner matches a re-analysis with both devices shifted", () => {
+    const mirror = { topology: "current-mirror", device: dev(cards.ekv!), devices: { reference: { ...dev(cards.ekv!), w: 10e-6 } }, components: { rref: 10e3, vout: 2 }, supplies: { vdd: 5 } } as unknown as Stage;
+    const r = toleranceAnalysis(mirror, { resistors: 0, process: { vt0: 0.05 as never, kp: 0.1 } });
+    expect(r.id.min).toBeLessThan(r.id.nominal);
+    expect(r.id.max).toBeGreaterThan(r.id.nominal);
+    const fast = { ...cards.ekv!, vt0: 0.55 as never, kp: 165e-6 as never };
+    const again = analyzeStage({ ...mirror, device: dev(fast), devices: { reference: { ...dev(fast), w: 10e-6 } } } as unknown as Stage);
+    expect(r.id.max).toBeCloseTo(again.currents.drainMagnitude, 12);
+    const mc = toleranceAnalysis(mirror, { resistors: 0.01, process: { vt0: 0.05 as never, kp: 0.1 }, monteCarlo: { samples: 50, seed: 3 } });
+    expect(mc.id.max).toBeGreaterThan(mc.id.nominal);
+    expect(mc.id.min).toBeLessThan(mc.id.nominal);
   });
 });

@@ -46,6 +46,12 @@ describe("template index", () => {
       expect(readFileSync(t.path, "utf8")).toContain('"design-inputs"');
     }
   });
+
+  it("says what each installed template makes: the stage templates and the device characterisation", () => {
+    const kinds = Object.fromEntries(listTemplates().map((t) => [t.name, t.kind]));
+    expect(kinds["device-characterisation-gf180-nmos"]).toBe("characterisation");
+    expect(kinds["cs-four-resistor-nmos"]).toBe("stage");
+  });
 });
 
 describe("pinchoff new", () => {

@@ -1,10 +1,13 @@
 /**
  * Every template in notebooks-templates/ executes through the real tslab
- * kernel under Jupyter (nbconvert's ExecutePreprocessor) with no cell error,
- * shows at least one derivation whose checks all pass, and shows the output
- * characteristic with its load and operating point. The static contract
- * (nbformat 4.5 with cell ids, one design-inputs cell, invented demo data
- * labelled, cautions) is checked first, without a kernel.
+ * kernel under Jupyter (nbconvert's ExecutePreprocessor) with no cell error
+ * and shows at least one derivation whose checks all pass. A stage template
+ * also shows its tolerance corners and the output characteristic with its load
+ * and operating point; a device-characterisation template (metadata.pinchoff.kind
+ * "characterisation") instead shows its fits against the data on log and linear
+ * axes, the residuals and the validity map, and writes a card that reads back.
+ * The static contract (nbformat 4.5 with cell ids, one design-inputs cell,
+ * invented demo data labelled, cautions) is checked first, without a kernel.
  */
 import { execFileSync } from "node:child_process";
 import { mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
@@ -12,6 +15,7 @@ import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { dimensions } from "../lib/quantity.js";
+import { readCardFile } from "../lib/device/card-file.js";
 
 const root = resolve(import.meta.dirname, "..");
 const dir = join(root, "notebooks-templates");
@@ -20,15 +24,19 @@ const jupyterPath = join(root, ".kernel/share/jupyter");
 
 interface Cell { cell_type: string; id?: string; metadata: { tags?: string[] }; source: string | string[]; outputs?: Output[] }
 interface Output { output_type: string; name?: string; text?: string | string[]; data?: Record<string, unknown>; ename?: string; evalue?: string }
-interface Notebook { nbformat: number; nbformat_minor: number; metadata: { kernelspec?: { name?: string }; pinchoff?: { demo?: boolean } }; cells: Cell[] }
+interface Notebook { nbformat: number; nbformat_minor: number; metadata: { kernelspec?: { name?: string }; pinchoff?: { demo?: boolean; kind?: string } }; cells: Cell[] }
 
 const src = (c: Cell) => (Array.isArray(c.source) ? c.source.join("") : c.source);
 const text = (t: string | string[] | undefined) => (Array.isArray(t) ? t.join("") : t ?? "");
 const read = (p: string) => JSON.parse(readFileSync(p, "utf8")) as Notebook;
+/** A device-characterisation template: measured data in, fitted card out (no stage, so no tolerance corners or load line). */
+const characterises = (nb: Notebook) => nb.metadata.pinchoff?.kind === "characterisation";
 
 describe("template files", () => {
-  it("there are at least six stage templates", () => {
-    expect(templates.length).toBeGreaterThanOrEqual(6);
+  it("there are at least six stage templates and a device-characterisation template", () => {
+    const kinds = templates.map((f) => characterises(read(join(dir, f))));
+    expect(kinds.filter((k) => !k).length).toBeGreaterThanOrEqual(6);
+    expect(kinds.filter((k) => k).length).toBeGreaterThanOrEqual(1);
   });
   describe.each(templates)("%s", (file) => {
     const nb = read(join(dir, file));
@@ -56,12 +64,14 @@ describe("template files", () => {
     });
     it("imports only package names, labels its demo data invented and carries the cautions", () => {
       const all = nb.cells.map(src).join("\n");
-      for (const m of all.matchAll(/from\s+"([^"]+)"/g)) expect(["pinchoff", "pinchoff/notebook", "pinchoff/units", "pinchoff/render"]).toContain(m[1]);
+      for (const m of all.matchAll(/from\s+"([^"]+)"/g)) expect(["pinchoff", "pinchoff/notebook", "pinchoff/units", "pinchoff/render", "pinchoff/fit"]).toContain(m[1]);
       const first = nb.cells[0]!;
       expect(first.cell_type).toBe("markdown");
       expect(src(first)).toMatch(/^# /);
       expect(src(first)).toMatch(/invented/i);
-      expect(all).toMatch(/provenance: "(invented|fitted to the characterisation table)/);
+      // A stage template's cards are invented; a characterisation template's data are measured and name their source.
+      if (characterises(nb)) expect(src(first)).toMatch(/measurements[^]*data\/pdk180\/SOURCE\.md/);
+      else expect(all).toMatch(/provenance: "(invented|fitted to the characterisation table)/);
       const md = nb.cells.filter((c) => c.cell_type === "markdown").map(src).join("\n");
       for (const phrase of [/approximate/i, /simulation/i, /measurement/i, /ratings/i, /local codes/i, /licensed/i]) expect(md).toMatch(phrase);
     });
@@ -74,7 +84,21 @@ describe("template files", () => {
       if (rtol) expect(Number(rtol[1])).toBeGreaterThanOrEqual(15);
     });
 
+    it("a characterisation template: fits, error per region, plots, the written card and its use, in that order; replacing a card is an explicit input", () => {
+      if (!characterises(nb)) return;
+      const heading = (re: RegExp) => nb.cells.findIndex((c) => c.cell_type === "markdown" && re.test(src(c)));
+      const order = [/^## Measurement file/, /^## Fits/, /^## Error per region/, /^## Plots/, /^## The card/, /^## Using the card/, /^## Summary/, /^## Cautions/].map(heading);
+      order.forEach((i) => expect(i).toBeGreaterThan(0));
+      expect([...order].sort((a, b) => a - b)).toEqual(order);
+      const all = nb.cells.map(src).join("\n");
+      for (const call of ["readMeasurements(", "fitSweep(", "fitFigures(", "writeCardFile(", "readCardFile("]) expect(all).toContain(call);
+      expect(all).toMatch(/writeCardFile\([^)]*replace: given\.REPLACE_CARD/);
+      const inputs = src(nb.cells.find((c) => c.metadata.tags?.includes("design-inputs"))!);
+      for (const name of ["W", "L", "TEMP", "REPLACE_CARD"]) expect(inputs).toMatch(new RegExp(`^  ${name}: `, "m"));
+    });
+
     it("has a tolerance section after the design and before the plots, with spreads, temperatures and their limits stated", () => {
+      if (characterises(nb)) return;
       const heading = (re: RegExp) => nb.cells.findIndex((c) => c.cell_type === "markdown" && re.test(src(c)));
       const tol = heading(/^## Tolerances and temperature/);
       expect(tol).toBeGreaterThan(heading(/^## Design(\n|$)/));
@@ -107,7 +131,9 @@ describe("templates run through the tslab kernel", () => {
       timeout: 600_000,
     });
     const nb = read(target);
+    const characterisation = characterises(nb);
     const problems: string[] = [];
+    const printed: string[] = [];
     const derivations: Array<{ title: string; checks: Array<{ title: string; passed: boolean; value: number; max?: number; margin: number }>; findings?: Array<{ severity: string; text: string }> }> = [];
     const plots: Array<{ kind: string; figure: { data: Array<{ meta?: { role?: string } }> } }> = [];
     const parts: string[] = [];
@@ -117,6 +143,7 @@ describe("templates run through the tslab kernel", () => {
         if (o.output_type === "error") problems.push(`cell ${i}: ${o.ename}: ${o.evalue}`);
         // tslab reports TypeScript errors on stderr and does not run the cell.
         if (o.output_type === "stream" && o.name === "stderr") problems.push(`cell ${i} stderr: ${text(o.text)}`);
+        if (o.output_type === "stream" && o.name === "stdout") printed.push(text(o.text));
         const d = o.data?.["application/vnd.pinchoff.derivation+json"];
         if (d) derivations.push(d as (typeof derivations)[number]);
         const p = o.data?.["application/vnd.pinchoff.plot+json"];
@@ -131,6 +158,28 @@ describe("templates run through the tslab kernel", () => {
     const failed = derivations.flatMap((d) => d.checks.filter((c) => !c.passed).map((c) => `${d.title}: ${c.title}`));
     expect(failed).toEqual([]);
     expect(derivations.reduce((n, d) => n + d.checks.length, 0)).toBeGreaterThan(0);
+    if (characterisation) {
+      // Measured against model on a log and a linear axis, the residuals and the validity map.
+      const kinds = plots.map((p) => p.kind);
+      const compared = plots.filter((p) => p.kind === "measured-against-model") as unknown as Array<{ figure: { layout: { yaxis?: { type?: string } }; data: Array<{ meta?: { role?: string } }> } }>;
+      expect(compared.some((p) => p.figure.layout.yaxis?.type === "log")).toBe(true);
+      expect(compared.some((p) => p.figure.layout.yaxis?.type !== "log")).toBe(true);
+      for (const p of compared) expect(p.figure.data.map((t) => t.meta?.role)).toEqual(expect.arrayContaining(["measured", "model"]));
+      expect(kinds).toContain("fit-residuals");
+      expect(kinds).toContain("validity-map");
+      expect(libraryCarriers).toBe(1);
+      expect(parts).toEqual(["summary"]);
+      // The card it wrote reads back as a valid EKV card; removed afterwards (the default path is a scratch folder).
+      const path = /card written to (.+)/.exec(printed.join(""))?.[1]?.trim();
+      expect(path, "the notebook prints the card's path").toBeDefined();
+      try {
+        const card = readCardFile(path!);
+        expect((card as { model?: string }).model).toBe("ekv");
+      } finally {
+        rmSync(path!, { force: true });
+      }
+      return;
+    }
     // The tolerance section ran its corners and recorded the saturation and drain-current checks.
     const tolerance = derivations.find((d) => d.title.startsWith("Tolerances and temperature"));
     expect(tolerance, "a derivation titled Tolerances and temperature").toBeDefined();

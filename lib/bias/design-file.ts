@@ -36,8 +36,9 @@
 import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
+import { cardAt, checkCardSet, type CardSet } from "../device/card-set.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
-import type { Dimension, Kelvin } from "../quantity.js";
+import type { Dimension, Kelvin, Meters } from "../quantity.js";
 import { defaultAmbient, partModel, type PartInUse } from "../device/discrete-part.js";
 import { parsePartCard } from "./part-file.js";
 import { checkFrequencySpec, type FrequencySpec } from "./frequency.js";
@@ -183,6 +184,23 @@ function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCa
   return card as unknown as DeviceCard;
 }
 
+/**
+ * A device card, or a card set (`{ kind: "card-set", name, polarity, entries: [{ l, card }, …], provenance? }`,
+ * as `pinchoff fit` writes without --l), each entry's card read as a card, each l as a length.
+ */
+function parseCardOrSet(raw: unknown, f: string, at: (p: string) => string): DeviceCard | CardSet {
+  if (!isObject(raw) || raw.kind !== "card-set") return parseCard(raw, f, at);
+  onlyKeys(raw, ["kind", "name", "polarity", "entries", "provenance"], at(f));
+  if (!Array.isArray(raw.entries) || raw.entries.length === 0) throw new InputError(raw.entries, "entries: [{ l, card }, …], at least one", at(`${f}.entries`), "invalid-design");
+  const entries = raw.entries.map((e: unknown, i: number) => {
+    const o = object(e, at(`${f}.entries[${i}]`), "a card-set entry { l, card }");
+    onlyKeys(o, ["l", "card"], at(`${f}.entries[${i}]`));
+    return { l: quantity(o.l, "length", at(`${f}.entries[${i}].l`)) as Meters, card: parseCard(o.card, `${f}.entries[${i}].card`, at) };
+  });
+  const set = { kind: "card-set", name: typeof raw.name === "string" ? raw.name : "unnamed card set", polarity: raw.polarity, entries, ...(typeof raw.provenance === "string" ? { provenance: raw.provenance } : {}) } as CardSet;
+  return checkCardSet(set, at(f));
+}
+
 /** Parse one transistor `{ card, w, l }`, or a discrete part `{ part, ambient? }`, found at field path `f`. */
 function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
   const dev = object(raw, at(f), "a device { card, w, l } or a discrete part { part, ambient? }");
@@ -195,9 +213,11 @@ function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): S
     return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
   }
   onlyKeys(dev, ["card", "w", "l", "diffusion"], at(f));
-  const card = parseCard(dev.card, `${f}.card`, at);
+  const read = parseCardOrSet(dev.card, `${f}.card`, at);
   const w = requirePositive(quantity(dev.w, "length", at(`${f}.w`)), at(`${f}.w`), "a channel width W > 0 in m");
   const l = requirePositive(quantity(dev.l, "length", at(`${f}.l`)), at(`${f}.l`), "a channel length L > 0 in m");
+  // A card set gives the card at this L (interpolated in 1/L, lib/device/card-set.ts).
+  const card = (read as CardSet).kind === "card-set" ? cardAt(read as CardSet, l as Meters, at(`${f}.card`)) : (read as DeviceCard);
   const diffusion = dev.diffusion === undefined ? undefined : (quantities(dev.diffusion, diffusionFields, `${f}.diffusion`, at, "drain and source diffusions { ad, as, pd, ps }", ["ad", "as", "pd", "ps"]) as unknown as DiffusionGeometry);
   return { card, w: w as StageDevice["w"], l: l as StageDevice["l"], ...(diffusion ? { diffusion } : {}) };
 }
@@ -255,7 +275,7 @@ function specValue(v: unknown, f: SpecField, path: string, at: (p: string) => st
       if (typeof v !== "string" || !f.values.includes(v)) throw new InputError(v, expected(), at(path), "invalid-design");
       return v;
     case "card":
-      return parseCard(v, path, at);
+      return parseCardOrSet(v, path, at);
     case "byName": {
       const o = object(v, at(path), expected());
       const out: Record<string, unknown> = {};
@@ -319,7 +339,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     // A discrete part: its model's card, and its size fixed (W = L, k absorbed in KP), so the specification gives no sizing.
     let part: PartInUse | undefined;
     let rawSpec = d.specification;
-    let card: DeviceCard;
+    let card: DeviceCard | CardSet;
     if (dev.part !== undefined) {
       const used = parseStageDevice(dev, "device", at);
       part = used.part!;
@@ -331,7 +351,8 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
       rawSpec = { ...sp, sizing: { w: used.w, l: used.l } };
     } else {
       onlyKeys(dev, ["card"], at("device"));
-      card = parseCard(dev.card, "device.card", at);
+      // A card set stays a set: synthesis takes its card at specification.sizing.l.
+      card = parseCardOrSet(dev.card, "device.card", at);
     }
     const own = specGroup(rawSpec, fields, "specification", at, `the ${topo.id} specification { ${Object.keys(fields).join(", ")} }`);
     // A rating under a misspelled name would silently not apply: the names must be the topology's resistors.

@@ -16,9 +16,9 @@
  * Figures are magnitudes; a P-channel datasheet's negative values are read as
  * their magnitudes (the polarity says which way they point).
  */
-import { readFileSync } from "node:fs";
+import { readJsonFile } from "../io/read-json.js";
 import { checkPart, type DiscretePart } from "../device/discrete-part.js";
-import { InputError, PinchoffError } from "../errors.js";
+import { InputError } from "../errors.js";
 import type { Dimension } from "../quantity.js";
 import { parseQuantity } from "../units/parse.js";
 
@@ -78,17 +78,5 @@ export function parsePartCard(raw: unknown, at = "part"): DiscretePart {
 
 /** Read a part card from a JSON file of its own. */
 export function readPartCard(path: string): DiscretePart {
-  let text: string;
-  try {
-    text = readFileSync(path, "utf8");
-  } catch (e) {
-    throw new PinchoffError("io", `cannot read the part card (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, path);
-  }
-  let raw: unknown;
-  try {
-    raw = JSON.parse(text.replace(/^\uFEFF/, ""));
-  } catch (e) {
-    throw new InputError(text.length > 60 ? `${text.slice(0, 60)}…` : text, `JSON (${(e as Error).message})`, path, "unparseable");
-  }
-  return parsePartCard(raw, path);
+  return parsePartCard(readJsonFile(path, "part card"), path);
 }

@@ -16,6 +16,7 @@
 import { InputError } from "../errors.js";
 import type { Derivation } from "../record/derivation.js";
 import type { DeviceCard } from "../device/card.js";
+import { cardAt, checkCardSet, type CardSet } from "../device/card-set.js";
 import type { ModelOptions } from "../device/drain-current.js";
 import { defaultAmbient, partModel, ratingChecks, type DiscretePart, type PartInUse } from "../device/discrete-part.js";
 import type { Kelvin } from "../quantity.js";
@@ -48,7 +49,7 @@ type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "opti
 export type SpecificationOf<T extends FlatSpec["topology"]> = Own<Extract<FlatSpec, { topology: T }>>;
 
 /** The device of a specification: a card (its size comes from specification.sizing), or a discrete part (its size is fixed by the part). */
-export type SpecDevice = { readonly card: DeviceCard } | { readonly part: DiscretePart; readonly ambient?: Kelvin };
+export type SpecDevice = { readonly card: DeviceCard | CardSet } | { readonly part: DiscretePart; readonly ambient?: Kelvin };
 
 /** A specification section with no sizing: a discrete part fixes its own size. */
 type PartOwn<S> = Omit<Own<S>, "sizing">;
@@ -66,7 +67,7 @@ export type SynthesisSpec<S extends FlatSpec = FlatSpec> = S extends unknown
       readonly body?: BodyTie;
       readonly options?: ModelOptions;
       readonly limits?: StageLimits;
-    } & ({ readonly device: { readonly card: DeviceCard }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin }; readonly specification: PartOwn<S> })
+    } & ({ readonly device: { readonly card: DeviceCard | CardSet }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin }; readonly specification: PartOwn<S> })
   : never;
 
 export type FourResistorSpec = SynthesisSpec<FourResistorFlat>;
@@ -103,7 +104,12 @@ function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: Part
     if (!own.includes(k)) throw new InputError(k, `a field of the ${String(spec.topology)} specification (${own.join(", ")})`, `spec.specification.${k}`, "invalid-design");
   if (device.part === undefined) {
     for (const k of Object.keys(device)) if (k !== "card") throw new InputError(k, "only card in device (the size comes from specification.sizing)", `spec.device.${k}`, "invalid-design");
-    return { flat: { ...common, card: device.card, ...specification } as unknown as FlatSpec };
+    const sizing = specification.sizing as { l?: unknown } | undefined;
+    const card = cardAtLength(device.card, sizing?.l, "spec.device.card", rec);
+    // A diode-connected load may come from a card set too, at its own L.
+    const load = specification.load as { card?: unknown; l?: unknown } | undefined;
+    const own = isObject(load) && isObject(load.card) && load.card.kind === "card-set" ? { ...specification, load: { ...load, card: cardAtLength(load.card, load.l, "spec.specification.load.card", rec) } } : specification;
+    return { flat: { ...common, card, ...own } as unknown as FlatSpec };
   }
   for (const k of Object.keys(device)) if (k !== "part" && k !== "ambient") throw new InputError(k, "part and ambient in a discrete part's device", `spec.device.${k}`, "invalid-design");
   if (specification.sizing !== undefined)
@@ -115,6 +121,16 @@ function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: Part
   const part: PartInUse = { part: device.part as DiscretePart, ambient: ambient as Kelvin };
   rec?.input(`ambient (${part.part.name})`, part.ambient, "temperature", "device.ambient");
   return { flat: { ...common, card: model.card, ...specification, sizing: { w: model.w, l: model.l } } as unknown as FlatSpec, part };
+}
+
+/** A card as given, or a card set's card at the drawn length the design states (lib/device/card-set.ts), noted in the record. */
+function cardAtLength(card: unknown, l: unknown, origin: string, rec?: Derivation): unknown {
+  if (!isObject(card) || card.kind !== "card-set") return card;
+  if (typeof l !== "number" || !(l > 0)) throw new InputError(l, "a drawn length L > 0 in m beside a card set (the card is taken at that L)", origin.replace(/card$/, "l").replace("device.l", "specification.sizing.l"), "invalid-design");
+  const set = checkCardSet(card as unknown as CardSet, origin);
+  const at = cardAt(set, l as never, origin);
+  rec?.note("Card from the card set", `Card set "${set.name}" at L = ${+(l * 1e6).toPrecision(4)} µm: ${at.provenance ?? `the card fitted at that length ("${at.name}")`}.`);
+  return at;
 }
 
 const designers = {

@@ -111,16 +111,6 @@ export const cardTemperature = (card: DeviceCard): Kelvin => card.temperature?.t
 /** +1 for NMOS, −1 for PMOS: multiplies terminal voltages into the device's own polarity. */
 export const polaritySign = (card: DeviceCard): 1 | -1 => (card.polarity === "nmos" ? 1 : -1);
 
-/**
- * Refuse a card whose model a closed-form calculation cannot take yet, naming the
- * field, what refused it and what to use instead: never a square-law answer for an EKV card.
- */
-export function requireSquareLawCard(card: DeviceCard, origin: string, what: string): void {
-  const m = modelOf(card);
-  if (m !== "square-law")
-    throw new InputError(m, `a square-law card: ${what} is written in the square law's closed forms and does not take a "${m}" card yet (analyse single-transistor stages, solve gate voltages or plot with it instead)`, `${origin}.model`);
-}
-
 /** Validate a card, naming the first bad field; returns the same card. */
 export function checkCard(card: DeviceCard, origin = "device card"): DeviceCard {
   if (!card || typeof card !== "object") throw new InputError(card, "a device card object", origin);

@@ -72,6 +72,16 @@ function deviceVdsOf(dev: Device, vds: number | undefined, origin: string): numb
   return d;
 }
 
+/**
+ * The gate drive (device polarity, magnitude) at which the device's model carries `id` at the given
+ * VDS and VSB (device polarity), whatever the region: plain inversion, no region check. Throws
+ * InfeasibleError when no gate voltage within 31 V of Vt0 reaches it, ConvergenceError as solveIncreasing.
+ */
+export function gateDriveForCurrent(dev: Device, id: number, vds: number, vsb: number, origin = "gateDriveForCurrent"): number {
+  const vt0 = polaritySign(dev.card) * dev.card.vt0;
+  return solveIncreasing((x) => Math.log(deviceCurrent(dev, x, vds, vsb)) - Math.log(id), vt0 - 0.5, vt0 + 1, 1e-12, `|ID| = ${f(id, "A")}`, origin);
+}
+
 /** Gate-source voltage (SPICE sign) for |ID| = `id` in saturation, by numeric inversion of the device's model. */
 export function gateVoltageForModel(dev: Device, id: Amperes, opts: GateDriveOptions = {}, rec?: Derivation): GateDrive {
   checkDevice(dev, "gateVoltageFor.dev");
@@ -81,8 +91,7 @@ export function gateVoltageForModel(dev: Device, id: Amperes, opts: GateDriveOpt
   const d = deviceVdsOf(dev, opts.vds, "gateVoltageFor.opts.vds");
   const use = d === undefined ? saturatedView(dev) : dev;
   const vds = d ?? farSaturation;
-  const vt0 = s * dev.card.vt0;
-  const g = solveIncreasing((x) => Math.log(deviceCurrent(use, x, vds, b)) - Math.log(i), vt0 - 0.5, vt0 + 1, 1e-12, `|ID| = ${f(i, "A")}`, "gateVoltageFor");
+  const g = gateDriveForCurrent(use, i, vds, b, "gateVoltageFor");
   rec?.note(
     "Gate voltage by numeric inversion",
     `The ${modelOf(dev.card)} model has no closed-form inverse: ${s < 0 ? "VSG" : "VGS"} = ${f(g, "V")} gives |ID| = ${f(i, "A")} (regula falsi on ln ID, tolerance 1e-12 V)${d === undefined ? "; no VDS given, so λ·VDS and σ·VDS are taken as 0 and the device as saturated" : ""}. The model's operating point there:`,

@@ -4,6 +4,7 @@
  */
 export * from "../measure/read.js";
 export * from "../measure/select.js";
+export * from "../measure/builtin.js";
 export * from "./accuracy.js";
 export * from "./adapter.js";
 export * from "./fit.js";

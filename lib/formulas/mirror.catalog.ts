@@ -50,6 +50,7 @@ export const symbols = defineSymbols({
   gds1: { tex: "g_{ds1}", dim: "conductance", meaning: "output conductance of the driver" },
   gds2: { tex: "g_{ds2}", dim: "conductance", meaning: "output conductance of the load" },
   eta: { tex: "\\eta", dim: "dimensionless", meaning: "body-effect ratio gmb/gm" },
+  VDsat: { tex: "V_{D,sat}", dim: "voltage", meaning: "drain-source saturation voltage" },
   yL: { tex: "y_{L}", dim: "sqrtVoltage", meaning: "√(2φF + VSB) of the load at the output where it stops conducting" },
 });
 
@@ -98,6 +99,12 @@ export const formulas = defineFormulas({
     result: "VOUTmin",
     expr: "VSR + VOV",
     source: "square-law region boundary (common practice)",
+  },
+  mirrorComplianceSaturation: {
+    title: "Output compliance with the output transistor's model: lowest output voltage with it saturated",
+    result: "VOUTmin",
+    expr: "VSR + VDsat",
+    source: "the device model's own drain saturation voltage (velocity-saturated square law or EKV; common practice)",
   },
   mirrorOutputCurrentTriode: {
     title: "Mirror output current below compliance (output transistor in triode, with (1 + λ·VDS))",

@@ -115,6 +115,20 @@ export const mirrorCompliance = {
   fn: (VSR: Volts, VOV: Volts): Volts => (VSR + VOV) as Volts,
 } as const satisfies Formula;
 
+/** Output compliance with the output transistor's model: lowest output voltage with it saturated: VOUTmin = VSR + VDsat */
+export const mirrorComplianceSaturation = {
+  id: "mirrorComplianceSaturation",
+  title: "Output compliance with the output transistor's model: lowest output voltage with it saturated",
+  expr: "VSR + VDsat",
+  tex: "V_{OUT,min} = {V_{SR}}+{V_{D,sat}}",
+  result: "VOUTmin",
+  resultDim: "voltage",
+  vars: ["VSR","VDsat"],
+  dims: ["voltage","voltage"],
+  source: "the device model's own drain saturation voltage (velocity-saturated square law or EKV; common practice)",
+  fn: (VSR: Volts, VDsat: Volts): Volts => (VSR + VDsat) as Volts,
+} as const satisfies Formula;
+
 /** Mirror output current below compliance (output transistor in triode, with (1 + λ·VDS)): IOUT = k2 * (VOV - VDS2 / 2) * VDS2 * (1 + lambda * VDS2) */
 export const mirrorOutputCurrentTriode = {
   id: "mirrorOutputCurrentTriode",

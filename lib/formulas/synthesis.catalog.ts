@@ -25,6 +25,7 @@ export const symbols = defineSymbols({
   WL: { tex: "W/L", dim: "dimensionless", meaning: "aspect ratio" },
   VG: { tex: "V_{G}", dim: "voltage", meaning: "gate node voltage (device polarity)" },
   VS: { tex: "V_{S}", dim: "voltage", meaning: "source node voltage (device polarity)" },
+  VDsat: { tex: "V_{D,sat}", dim: "voltage", meaning: "drain-source saturation voltage" },
   VD: { tex: "V_{D}", dim: "voltage", meaning: "drain node voltage (device polarity)" },
   VDR: { tex: "V_{DR}", dim: "voltage", meaning: "rail the drain side returns to (device polarity)" },
   VSR: { tex: "V_{SR}", dim: "voltage", meaning: "rail the source side returns to (device polarity)" },
@@ -73,6 +74,12 @@ export const formulas = defineFormulas({
     result: "VD",
     expr: "(VDR + VG - Vt) / 2",
     source: "common practice: drain at mid-swing for the largest symmetric output",
+  },
+  midSwingDrainSaturation: {
+    title: "Drain voltage halfway between the model's triode edge (VS + VDsat) and the drain rail",
+    result: "VD",
+    expr: "(VDR + VS + VDsat) / 2",
+    source: "common practice: drain at mid-swing for the largest symmetric output; VDsat from the device model",
   },
   drainResistorForNode: { title: "Drain resistor for a drain voltage at the drain current", result: "RD", expr: "(VDR - VD) / ID", source: "Ohm's law" },
   drainResistorForGain: {
@@ -140,6 +147,12 @@ export const formulas = defineFormulas({
     result: "VOUT",
     expr: "(VSR + VOV + VDR - Vt2) / 2",
     source: "common practice: output at mid-range for the largest swing either way",
+  },
+  diodeLoadMidOutputSaturation: {
+    title: "Diode-loaded output halfway between the driver's triode edge VSR + VDsat (its model) and the load's conduction edge VDR − Vt2",
+    result: "VOUT",
+    expr: "(VSR + VDsat + VDR - Vt2) / 2",
+    source: "common practice: output at mid-range for the largest swing either way; VDsat from the device model",
   },
   diodeLoadOverdrive: { title: "Overdrive of the diode-connected load", result: "VOV2", expr: "VDR - VOUT - Vt2", source: kcl },
   widthForRatio: { title: "Channel width for an aspect ratio", result: "W", expr: "WL * L", source: "definition of the aspect ratio" },

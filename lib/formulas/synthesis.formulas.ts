@@ -72,6 +72,20 @@ export const midSwingDrain = {
   fn: (VDR: Volts, VG: Volts, Vt: Volts): Volts => ((((VDR + VG) - Vt)) / 2) as Volts,
 } as const satisfies Formula;
 
+/** Drain voltage halfway between the model's triode edge (VS + VDsat) and the drain rail: VD = (VDR + VS + VDsat) / 2 */
+export const midSwingDrainSaturation = {
+  id: "midSwingDrainSaturation",
+  title: "Drain voltage halfway between the model's triode edge (VS + VDsat) and the drain rail",
+  expr: "(VDR + VS + VDsat) / 2",
+  tex: "V_{D} = \\frac{{V_{DR}}+{V_{S}}+{V_{D,sat}}}{2}",
+  result: "VD",
+  resultDim: "voltage",
+  vars: ["VDR","VS","VDsat"],
+  dims: ["voltage","voltage","voltage"],
+  source: "common practice: drain at mid-swing for the largest symmetric output; VDsat from the device model",
+  fn: (VDR: Volts, VS: Volts, VDsat: Volts): Volts => ((((VDR + VS) + VDsat)) / 2) as Volts,
+} as const satisfies Formula;
+
 /** Drain resistor for a drain voltage at the drain current: RD = (VDR - VD) / ID */
 export const drainResistorForNode = {
   id: "drainResistorForNode",
@@ -308,6 +322,20 @@ export const diodeLoadMidOutput = {
   dims: ["voltage","voltage","voltage","voltage"],
   source: "common practice: output at mid-range for the largest swing either way",
   fn: (VSR: Volts, VOV: Volts, VDR: Volts, Vt2: Volts): Volts => (((((VSR + VOV) + VDR) - Vt2)) / 2) as Volts,
+} as const satisfies Formula;
+
+/** Diode-loaded output halfway between the driver's triode edge VSR + VDsat (its model) and the load's conduction edge VDR − Vt2: VOUT = (VSR + VDsat + VDR - Vt2) / 2 */
+export const diodeLoadMidOutputSaturation = {
+  id: "diodeLoadMidOutputSaturation",
+  title: "Diode-loaded output halfway between the driver's triode edge VSR + VDsat (its model) and the load's conduction edge VDR − Vt2",
+  expr: "(VSR + VDsat + VDR - Vt2) / 2",
+  tex: "V_{OUT} = \\frac{{V_{SR}}+{V_{D,sat}}+{V_{DR}}-{V_{t2}}}{2}",
+  result: "VOUT",
+  resultDim: "voltage",
+  vars: ["VSR","VDsat","VDR","Vt2"],
+  dims: ["voltage","voltage","voltage","voltage"],
+  source: "common practice: output at mid-range for the largest swing either way; VDsat from the device model",
+  fn: (VSR: Volts, VDsat: Volts, VDR: Volts, Vt2: Volts): Volts => (((((VSR + VDsat) + VDR) - Vt2)) / 2) as Volts,
 } as const satisfies Formula;
 
 /** Overdrive of the diode-connected load: VOV2 = VDR - VOUT - Vt2 */

@@ -10,3 +10,4 @@ export * from "./stage.js";
 export * from "./pair.js";
 export * from "./bode.js";
 export { simulateFrequency, trySimulateFrequency, type SimulatedResponse } from "../bias/frequency-sim.js";
+export { fitFigures, validityColours } from "./fit.js";

@@ -64,7 +64,7 @@ function cascodeOf(c: CascodeSizing | undefined, lower: Sized, origin: string): 
 }
 
 const common = (spec: SpecBase, origin: string, rec?: Derivation) => {
-  checkSpecBase(spec, origin, true);
+  checkSpecBase(spec, origin);
   const { vdr, vsr, s } = deviceRails(spec.card, spec.supplies);
   const vt = s * spec.card.vt0;
   if (!(vt > 0)) throw new InputError(spec.card.vt0, "an enhancement device (|Vt0| > 0 in its polarity)", `${origin}.card.vt0`);

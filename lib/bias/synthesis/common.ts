@@ -13,7 +13,7 @@
  * measurement, and respect the device ratings.
  */
 import type { DeviceCard } from "../../device/card.js";
-import { polaritySign, requireSquareLawCard } from "../../device/card.js";
+import { checkCard, polaritySign } from "../../device/card.js";
 import type { ModelOptions } from "../../device/drain-current.js";
 import { InputError, requirePositive } from "../../errors.js";
 import type { Amperes, Meters, Ratio, Volts } from "../../quantity.js";
@@ -102,8 +102,8 @@ export function deviceRails(card: DeviceCard, supplies: Supplies): { vdr: Volts;
 /** Fields every specification may carry besides its topology's own (spec-fields.ts leaves these out). */
 const sharedSpecKeys = ["name", "card", "supplies", "body", "options", "limits"] as const;
 
-/** Validate the parts every specification shares; `anyModel` for designers that size through the device model API (any card's model). */
-export function checkSpecBase(spec: SpecBase, origin: string, anyModel = false): void {
+/** Validate the parts every specification shares (any card model: the square law designs by its closed forms, the others through ./model-device.ts). */
+export function checkSpecBase(spec: SpecBase, origin: string): void {
   if (!spec || typeof spec !== "object") throw new InputError(spec, "a specification object", origin);
   // Known fields: the shared ones and the topology's own (spec-fields.ts, the table the design file also reads).
   const topology = (spec as { topology?: string }).topology;
@@ -118,7 +118,8 @@ export function checkSpecBase(spec: SpecBase, origin: string, anyModel = false):
   if (typeof vss !== "number" || !Number.isFinite(vss) || vss >= vdd)
     throw new InputError(vss, `a finite VSS in V below VDD = ${vdd} V`, `${origin}.supplies.vss`);
   requirePositive(spec.id, `${origin}.id`, "a target drain current > 0 in A");
-  if (spec.card && !anyModel) requireSquareLawCard(spec.card, `${origin}.card`, "synthesis");
+  // Any model: the square law designs by its closed forms, the others through ./model-device.ts.
+  checkCard(spec.card, `${origin}.card`);
   const z = spec.sizing as Record<string, unknown> | undefined;
   if (!z || typeof z !== "object") throw new InputError(z, "sizing { vov, l } or { w, l }", `${origin}.sizing`);
   requirePositive(z.l as number, `${origin}.sizing.l`, "a channel length L > 0 in m");

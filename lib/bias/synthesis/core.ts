@@ -10,6 +10,11 @@
  * then the standard-value search, the re-solve and the deviation report.
  * With λ > 0 the design VDS enters W/L (or VOV) and gds, so the design is
  * iterated on VDS until it moves by less than 1 nV.
+ *
+ * A card of another model (square law with mobility degradation, EKV) takes the
+ * device step from its model instead (./model-device.ts: VGS and W/L by numeric
+ * inversion, Vt, VDsat, gm, gds, gmb from the model at the design VDS and VSB);
+ * the triode edge is then VS + VDsat, and the design always iterates on VDS.
  */
 import { defaultPhi } from "../../device/card.js";
 import { thresholdMagnitude } from "../../device/threshold.js";
@@ -18,7 +23,7 @@ import type { Formula } from "../../formulas/define.js";
 import { aspectRatioForCurrent, bodyTransconductance, outputConductanceSat, overdriveForCurrent, transconductanceFromOverdrive } from "../../formulas/device.formulas.js";
 import { drainNode } from "../../formulas/bias.formulas.js";
 import * as sf from "../../formulas/synthesis.formulas.js";
-import type { Amperes, AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, SqrtVolts, Volts } from "../../quantity.js";
+import type { Amperes, AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, Siemens, SqrtVolts, Volts } from "../../quantity.js";
 import type { Derivation } from "../../record/derivation.js";
 import { contrastDigits } from "../../units/format.js";
 import "../analyze.js"; // registers the built-in topologies
@@ -28,6 +33,7 @@ import { eSeries } from "../eseries.js";
 import { snapToSeries, type SnapResult } from "../snap.js";
 import { topologyFor, type AmplifierKind, type Stage, type StageAnalysis, type StageDevice } from "../topology.js";
 import { deviceRails, evaluate, figure, recordDeviation, type SpecBase, type SpecDeviation, type SynthesisResult } from "./common.js";
+import { designsByModel, modelDeviceStep, type ModelDeviceStep } from "./model-device.js";
 
 /** Where the drain goes: an absolute node voltage, or a gain magnitude |vout/vin|. */
 export type DrainTarget = { readonly vd: Volts } | { readonly gain: number };
@@ -108,14 +114,18 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
   // Overdrive and W/L first when the overdrive is stated (the follower's mid-swing needs VOV).
   let vov: Volts;
   let wl: Ratio;
-  if ("vov" in spec.sizing) {
+  const byModel = designsByModel(c);
+  if (byModel) {
+    // A first estimate with VSB = 0; the model's device step at the design VSB follows below.
+    vov = ("vov" in spec.sizing ? spec.sizing.vov : modelDeviceStep(c, spec.sizing, id, vdsGuess, 0, o).vov) as Volts;
+    wl = 0 as Ratio;
+  } else if ("vov" in spec.sizing) {
     vov = spec.sizing.vov;
     wl = calc(aspectRatioForCurrent, [id, c.kp, vov, lambda, vdsGuess]);
   } else {
     wl = (spec.sizing.w / l) as Ratio;
     vov = calc(overdriveForCurrent, [id, (c.kp * wl) as AmperesPerVoltSquared, lambda, vdsGuess]);
   }
-  const k = (c.kp * wl) as AmperesPerVoltSquared;
 
   let vrs: Volts;
   let vs: Volts;
@@ -155,7 +165,15 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
     vs = calc(sf.sourceNodeFromDrop, [vsr, vrs]);
   }
   const vsb = (spec.body === "rail" ? vrs : 0) as Volts;
-  const vt = thresholdMagnitude((s * c.vt0) as Volts, gamma, phi, vsb, rec);
+  let step: ModelDeviceStep | undefined;
+  let vt: Volts;
+  if (byModel) {
+    step = modelDeviceStep(c, spec.sizing, id, vdsGuess, vsb, o, rec, "The transistor");
+    vt = step.vt as Volts;
+    vov = step.vov as Volts;
+    wl = step.wl as Ratio;
+  } else vt = thresholdMagnitude((s * c.vt0) as Volts, gamma, phi, vsb, rec);
+  const k = (c.kp * wl) as AmperesPerVoltSquared;
   if (vt <= 0) rec?.find("caution", `Threshold magnitude ${v(vt)} ≤ 0: a depletion-mode device; the design still follows the square law.`);
   const vg = calc(sf.gateNodeForDrive, [vs, (vt + vov) as Volts], "VGS = Vt + VOV");
   if (plan.gateBetweenRails && (vg >= vdr || vg <= vsr))
@@ -166,9 +184,9 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
       o,
     );
 
-  const gm = transconductanceFromOverdrive.fn(id, vov);
-  const gds = outputConductanceSat.fn(lambda, k, vov);
-  const gmb = spec.body === "rail" && gamma > 0 ? bodyTransconductance.fn(gm, gamma, phi, vsb) : 0;
+  const gm = (step ? step.gm : transconductanceFromOverdrive.fn(id, vov)) as Siemens;
+  const gds = (step ? step.gds : outputConductanceSat.fn(lambda, k, vov)) as Siemens;
+  const gmb = step ? (spec.body === "rail" ? step.gmb : 0) : spec.body === "rail" && gamma > 0 ? bodyTransconductance.fn(gm, gamma, phi, vsb) : 0;
   let vd: Volts;
   let rd = 0 as Ohms;
   const dr = plan.drain;
@@ -182,7 +200,7 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
     rd = calc(sf.drainResistorForNode, [vdr, vd, id]);
   } else if (dr.target && "gain" in dr.target) {
     const av = dr.target.gain as Ratio;
-    if (rec) {
+    if (rec && !step) {
       rec.step(transconductanceFromOverdrive, [id, vov], gm);
       rec.step(outputConductanceSat, [lambda, k, vov], gds);
       if (gmb) rec.step(bodyTransconductance, [gm, gamma, phi, vsb], gmb);
@@ -199,13 +217,24 @@ export function designPass(spec: SpecBase, plan: CorePlan, vdsGuess: Volts, rec?
       rec?.input("VD", dr.target.vd, "voltage", `${o}.drain.vd`);
       if (s < 0) rec?.note("Drain in device polarity", `VD mirrored for the PMOS equations: −VD = ${v(vd)}.`);
     } else {
-      rec?.assume("Drain at mid-swing between the triode edge VG − Vt and the drain rail (common practice: the largest symmetric output swing).");
-      vd = calc(sf.midSwingDrain, [vdr, vg, vt]);
+      if (step) {
+        rec?.assume("Drain at mid-swing between the model's triode edge VS + VDsat and the drain rail (common practice: the largest symmetric output swing).");
+        vd = calc(sf.midSwingDrainSaturation, [vdr, vs, step.vdsat as Volts]);
+      } else {
+        rec?.assume("Drain at mid-swing between the triode edge VG − Vt and the drain rail (common practice: the largest symmetric output swing).");
+        vd = calc(sf.midSwingDrain, [vdr, vg, vt]);
+      }
     }
     if (vd > vdr) throw new InfeasibleError(`a drain at ${v(s * vd)} lies beyond the drain rail ${v(s * vdr)}: RD would come out negative`, `${o}.drain.vd`);
     rd = calc(sf.drainResistorForNode, [vdr, vd, id]);
   }
-  if (vd < vg - vt) {
+  if (step && vd - vs < step.vdsat)
+    throw new InfeasibleError(
+      (dr.kind === "target" && dr.target && "gain" in dr.target ? `a gain of ${dr.target.gain} needs RD = ${+rd.toPrecision(4)} Ω, and with it ` : "") +
+        `the drain at ${v(s * vd)} leaves ${s > 0 ? "VDS" : "VSD"} = ${v(vd - vs)} below the model's VDsat = ${v(step.vdsat)}: the device would be in triode`,
+      dr.kind === "target" && dr.target ? `${o}.drain` : o,
+    );
+  if (!step && vd < vg - vt) {
     // Enough digits that the drain and the edge, and VDS and VOV, read differently (they differ).
     const dg = Math.max(contrastDigits(s * vd, s * (vg - vt), 4), contrastDigits(vd - vs, vov, 4));
     const v = (x: number) => `${+x.toPrecision(dg)} V`;
@@ -226,7 +255,9 @@ export function design(spec: SpecBase, plan: CorePlan, rec?: Derivation): CoreDe
   let vds = ((vdr - vsr) / 2) as Volts;
   let d = designPass(spec, plan, vds);
   const lambda = spec.card.lambda ?? 0;
-  for (let i = 0; lambda > 0; i++) {
+  // A model's current depends on VDS beyond λ (σ, velocity saturation): always iterate.
+  const iterate = lambda > 0 || designsByModel(spec.card);
+  for (let i = 0; iterate; i++) {
     const next = (d.vd - d.vs) as Volts;
     if (Math.abs(next - vds) < 1e-9) break;
     if (i >= 100) throw new ConvergenceError(`design VDS did not settle (last change ${Math.abs(next - vds)} V)`, plan.origin);
@@ -234,7 +265,7 @@ export function design(spec: SpecBase, plan: CorePlan, rec?: Derivation): CoreDe
     d = designPass(spec, plan, vds);
   }
   if (rec) {
-    rec.note("Ideal design", lambda > 0 ? `Design VDS settled at ${v(d.vd - d.vs)} (λ > 0 enters W/L or VOV and gds).` : "λ = 0: a single pass.");
+    rec.note("Ideal design", iterate ? `Design VDS settled at ${v(d.vd - d.vs)} (λ > 0 enters W/L or VOV and gds).` : "λ = 0: a single pass.");
     d = designPass(spec, plan, vds, rec);
     if ("vov" in spec.sizing) rec.step(sf.widthForRatio, [d.wl, d.l], d.w);
   }

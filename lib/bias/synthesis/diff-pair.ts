@@ -40,7 +40,7 @@ export interface DiffPairSpec extends Omit<SpecBase, "dissipation"> {
 const origin = "diff-pair spec";
 
 export function synthesizeDiffPair(spec: DiffPairSpec, rec?: Derivation): SynthesisResult {
-  checkSpecBase(spec, origin, true);
+  checkSpecBase(spec, origin);
   const { vdr, vsr, s } = deviceRails(spec.card, spec.supplies);
   const card = spec.card;
   const vt = s * card.vt0;

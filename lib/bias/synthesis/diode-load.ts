@@ -13,6 +13,12 @@
  *
  * The load keeps its own card and L (`load`); a same-type load with body "rail"
  * carries the body effect (VSB = VOUT − VSR).
+ *
+ * Cards of another model (square law with mobility degradation, EKV) size the
+ * driver and the load by their models (./model-device.ts): the driver's gate
+ * drive and W/L at VDS1, the load's W/L at VGS2 = VDS2, gm, gmb, gds from the
+ * models; the driver's triode edge is VSR + VDsat1 and the load's conduction
+ * edge VDR − Vt2 with Vt2 as its model reports it.
  */
 import { defaultPhi, polaritySign, checkCard, type DeviceCard } from "../../device/card.js";
 import { thresholdMagnitude } from "../../device/threshold.js";
@@ -25,6 +31,7 @@ import type { AmperesPerVoltSquared, Meters, Ohms, PerVolt, Ratio, Siemens, Sqrt
 import type { Derivation } from "../../record/derivation.js";
 import type { DiodeLoadComponents } from "../topology.js";
 import { checkSpecBase, deviceRails, evaluate, type SpecBase, type SynthesisResult } from "./common.js";
+import { designsByModel, modelDeviceStep, modelDiodeStep } from "./model-device.js";
 import { finish, recordSpec, type CoreDesign } from "./core.js";
 
 export interface DiodeLoadSpec extends SpecBase {
@@ -41,6 +48,12 @@ const v = (x: number) => `${+x.toPrecision(4)} V`;
 interface Point {
   vout: number;
   vov1: number;
+  /** The driver's triode edge as a VDS: VOV1 for the square law, VDsat1 for a model. */
+  edge1: number;
+  /** The driver's gate drive VGS1 (magnitude). */
+  vgs1: number;
+  /** The load's W/L (NaN while it does not conduct). */
+  wl2: number;
   wl1: number;
   vt2: number;
   vsb2: number;
@@ -75,7 +88,7 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
   const calc = <A extends readonly number[], R extends number>(f: Formula<A, R>, args: A, r?: Derivation, because?: string): R => evaluate(f, args, r, because);
 
   /** Everything at an output voltage (device polarity); recorded when r is given. */
-  const at = (vout: number, r?: Derivation): Point => {
+  const atSquare = (vout: number, r?: Derivation): Point => {
     const vds1 = (vout - vsr) as Volts;
     let vov1: number;
     let wl1: number;
@@ -104,12 +117,35 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
       }
       gain = -calc(diodeLoadGain, [gm1, gm2, gmb2, gds1, gds2], r);
     }
-    return { vout, vov1, wl1, vt2, vsb2, vov2, gain };
+    const wl2 = vov2 > 0 ? aspectRatioForCurrent.fn(id, lc.kp, vov2, l2, (vdr - vout) as Volts) : NaN;
+    return { vout, vov1, edge1: vov1, vgs1: vt1 + vov1, wl2, wl1, vt2, vsb2, vov2, gain };
   };
+  /** The same point sized by the device models. */
+  const atModel = (vout: number, r?: Derivation): Point => {
+    const vds1 = vout - vsr;
+    const d = modelDeviceStep(c, spec.sizing, id, vds1, 0, origin, r, "Driver M1");
+    const vsb2 = bodyEffect || (sameType && spec.body === "rail") ? vout - vsr : 0;
+    const x = vdr - vout;
+    const ld = modelDiodeStep(lc, spec.load.l, id, x, vsb2, origin, r, "Load M2");
+    let gain = Number.POSITIVE_INFINITY;
+    let vt2 = vt02 as number;
+    let vov2 = 0;
+    let wl2 = NaN;
+    if (ld) {
+      vt2 = ld.vt;
+      vov2 = ld.vov;
+      wl2 = ld.wl;
+      const gmb2 = (vsb2 !== 0 || (sameType && spec.body === "rail") ? ld.gmb : 0) as Siemens;
+      gain = -calc(diodeLoadGain, [d.gm as Siemens, ld.gm as Siemens, gmb2, d.gds as Siemens, ld.gds as Siemens], r);
+    }
+    return { vout, vov1: d.vov, edge1: d.vdsat, vgs1: d.vgs, wl2, wl1: d.wl, vt2, vsb2, vov2, gain };
+  };
+  const byModel = designsByModel(c) || designsByModel(lc);
+  const at = byModel ? atModel : atSquare;
 
   // The output voltage: stated, from the gain, or mid-range (a fixed point, as Vt2 may follow VOUT).
   let vout: number;
-  const lo = (u: number) => vsr + at(u).vov1; // the driver's triode edge at this VOUT
+  const lo = (u: number) => vsr + at(u).edge1; // the driver's triode edge at this VOUT
   if (out && "vout" in out) {
     vout = s * out.vout;
     rec?.input("VOUT", out.vout, "voltage", `${origin}.output.vout`);
@@ -118,7 +154,8 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
     // Bisection between the driver's triode edge and the load's conduction edge; the gain falls as VOUT rises.
     // The driver's triode edge a = VSR + VOV1(a) and the load's conduction edge b = VDR − Vt2(b):
     // fixed points, as VOV1 follows VOUT through λ and Vt2 through the body effect.
-    let a: number = vsr;
+    // A model needs some VDS to carry current at all: start its fixed point mid-span.
+    let a: number = byModel ? (vsr + vdr) / 2 : vsr;
     let b: number = vdr;
     for (let i = 0; i < 100; i++) {
       a = lo(a);
@@ -142,30 +179,33 @@ export function synthesizeDiodeLoad(spec: DiodeLoadSpec, rec?: Derivation): Synt
   } else {
     rec?.assume("Output halfway between the driver's triode edge and the load's conduction edge (common practice).");
     vout = (vsr + vdr) / 2;
+    const mid = (p: Point): number => (byModel ? sf.diodeLoadMidOutputSaturation.fn(vsr, p.edge1 as Volts, vdr, p.vt2 as Volts) : sf.diodeLoadMidOutput.fn(vsr, p.vov1 as Volts, vdr, p.vt2 as Volts));
     for (let i = 0; ; i++) {
       const p = at(vout);
-      const next = sf.diodeLoadMidOutput.fn(vsr, p.vov1 as Volts, vdr, p.vt2 as Volts);
+      const next = mid(p);
       if (Math.abs(next - vout) < 1e-12) break;
       if (i > 200) throw new ConvergenceError(`mid-range output did not settle (last change ${Math.abs(next - vout)} V)`, origin);
       vout = next;
     }
     if (rec) {
       const p = at(vout);
-      rec.step(sf.diodeLoadMidOutput, [vsr, p.vov1, vdr, p.vt2], sf.diodeLoadMidOutput.fn(vsr, p.vov1 as Volts, vdr, p.vt2 as Volts));
+      if (byModel) rec.step(sf.diodeLoadMidOutputSaturation, [vsr, p.edge1, vdr, p.vt2], mid(p));
+      else rec.step(sf.diodeLoadMidOutput, [vsr, p.vov1, vdr, p.vt2], mid(p));
     }
   }
   const p = at(vout, rec);
-  if (vout - vsr < p.vov1)
-    throw new InfeasibleError(`the output at ${v(s * vout)} is ${s > 0 ? "below" : "above"} the driver's triode edge ${v(s * (vsr + p.vov1))}: the driver would be in triode`, `${origin}.output`);
+  if (vout - vsr < p.edge1)
+    throw new InfeasibleError(`the output at ${v(s * vout)} is ${s > 0 ? "below" : "above"} the driver's triode edge ${v(s * (vsr + p.edge1))}: the driver would be in triode`, `${origin}.output`);
   if (!(p.vov2 > 0))
     throw new InfeasibleError(`the output at ${v(s * vout)} leaves the load VSG/VGS = ${v(vdr - vout)} at or below its threshold ${v(p.vt2)}: the load would carry no current`, `${origin}.output`);
-  const wl2 = calc(aspectRatioForCurrent, [id, lc.kp, p.vov2 as Volts, l2, (vdr - vout) as Volts], rec, "load M2 (diode: VDS = VGS)");
+  // The model's load was sized (and recorded) by at(); the square law's is recorded here.
+  const wl2 = (byModel ? p.wl2 : calc(aspectRatioForCurrent, [id, lc.kp, p.vov2 as Volts, l2, (vdr - vout) as Volts], rec, "load M2 (diode: VDS = VGS)")) as Ratio;
   const w2 = calc(sf.widthForRatio, [wl2, spec.load.l], rec, "load");
   const w1 = ("vov" in spec.sizing ? calc(sf.widthForRatio, [p.wl1 as Ratio, spec.sizing.l], rec, "driver") : spec.sizing.w) as Meters;
-  const vg = calc(sf.gateNodeForDrive, [vsr, (vt1 + p.vov1) as Volts], rec, "driver: VGS = Vt + VOV, source at its rail");
+  const vg = calc(sf.gateNodeForDrive, [vsr, p.vgs1 as Volts], rec, byModel ? "driver: VGS from its model, source at its rail" : "driver: VGS = Vt + VOV, source at its rail");
   const ideal: DiodeLoadComponents = { vg: (s * vg) as Volts };
   rec?.note("Gate bias source", `The driver's gate is to be held at ${+ideal.vg.toPrecision(5)} V by the bias source.`);
-  const d: CoreDesign = { vrs: 0 as Volts, vs: vsr, vt: vt1, vsb: 0 as Volts, vov: p.vov1 as Volts, wl: p.wl1 as Ratio, k: (c.kp * p.wl1) as AmperesPerVoltSquared, vg, vd: vout as Volts, rd: 0 as Ohms, gm: 0, gds: 0, gmb: 0, w: w1, l: spec.sizing.l };
+  const d: CoreDesign = { vrs: 0 as Volts, vs: vsr, vt: (p.vgs1 - p.vov1) as Volts, vsb: 0 as Volts, vov: p.vov1 as Volts, wl: p.wl1 as Ratio, k: (c.kp * p.wl1) as AmperesPerVoltSquared, vg, vd: vout as Volts, rd: 0 as Ohms, gm: 0, gds: 0, gmb: 0, w: w1, l: spec.sizing.l };
   return finish(
     {
       topology: "diode-load",

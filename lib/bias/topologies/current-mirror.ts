@@ -13,9 +13,16 @@
  * the reference branch is the canonical network with the gate tied to the
  * drain and RREF as the drain resistor; a load resistor makes the output a
  * fixed-gate network with RLOAD as its drain resistor.
+ *
+ * Square-law cards use the closed forms (verified, with the bracketed solve as
+ * fallback). A card of another model (square law with mobility degradation, EKV)
+ * solves both branches through the model layer: the same canonical networks by
+ * solve-model.ts (regula falsi, tolerance 1e-12 relative, ConvergenceError), the
+ * held output by the model's current, compliance at the model's VDsat; the
+ * result is verified against the device's own model like every other solve.
  */
-import { defaultPhi, requireSquareLawCard, type Device } from "../../device/card.js";
-import { drainCurrent, type ClmMode } from "../../device/drain-current.js";
+import { defaultPhi, type Device } from "../../device/card.js";
+import { deviceCurrent, drainCurrent, operatingPoint, type ClmMode } from "../../device/drain-current.js";
 import { InfeasibleError, InputError } from "../../errors.js";
 import * as bf from "../../formulas/bias.formulas.js";
 import * as df from "../../formulas/device.formulas.js";
@@ -28,7 +35,7 @@ import { kclTolerance, verifyCurrent } from "../verify.js";
 import type { ComponentField, CurrentMirrorComponents, SolveMethod, SpiceCircuit, Stage, StageAnalysis, StageCheck, Topology } from "../topology.js";
 import { diffusionText, spiceNumber } from "../spice.js";
 import { spicePrefix } from "../../spice/deck.js";
-import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
+import { evaluateDevice, fmt, handCaution, modelAssumption, modelled, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, sameProcess, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
 export const mirrorComponents: readonly ComponentField[] = [
   { name: "rref", dim: "resistance", required: true, meaning: "reference resistor from the drain-side rail to the diode-connected reference transistor" },
@@ -71,8 +78,6 @@ function checkMirror(stage: CurrentMirrorStage): Checked {
   const out = checkStage(stage as unknown as Stage);
   const o = stageOrigin(stage);
   const ref = secondDevice(stage, "reference", "the diode-connected reference transistor M1");
-  requireSquareLawCard(out.card, `${o}: device.card`, "the current mirror");
-  requireSquareLawCard(ref.card, `${o}: devices.reference.card`, "the current mirror");
   const c = checkComponents({ id: "current-mirror", components: mirrorComponents }, stage);
   if (!(c.rref > 0))
     throw new InputError(c.rref, "a reference resistance RREF > 0 Ω (RREF sets the reference current; 0 Ω would put the rail straight across the diode-connected transistor)", `${o}: components.rref`);
@@ -106,6 +111,16 @@ function solveReference(ref: Device, rref: number, vdr: number, vsr: number, clm
   const lambda = (card.lambda ?? 0) as PerVolt;
   const span = (vdr - vsr) as Volts;
   const rr = rref as Ohms;
+  if (modelled(ref)) {
+    // The model's own current in the canonical network: gate tied to drain, RREF as the drain resistor (solve-model.ts).
+    rec?.note("M1 at its diode connection", "Gate tied to drain: VDS1 = VGS1, above the model's VDsat whenever M1 conducts in strong or moderate inversion; its current comes from the device model.");
+    const net: BiasNetwork = { k: k1, vt0: vt, gamma: 0, phi: defaultPhi, lambda, clm, vdr, vsr, gateToDrain: true, vg: 0, rd: rref, rs: 0, iss: 0, bodyToRail: false, device: ref };
+    const sol = solveNetwork(net, newSolution(), o, rec);
+    const vgs = (sol.vd - vsr) as Volts;
+    const iref = mf.referenceCurrent.fn(span, vgs, rr);
+    rec?.step(mf.referenceCurrent, [span, vgs, rr], iref, "the current through RREF at the solved VGS1; M1's model carries the same (verified below)");
+    return { vgs, iref, method: sol.method, iterations: sol.iterations, tolerance: sol.tolerance };
+  }
   const vov0 = mf.referenceOverdriveAtRail.fn(span, vt);
   if (rec) {
     rec.step(df.deviceGain, [card.kp, ref.w, ref.l], k1, "reference transistor M1");
@@ -180,7 +195,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     recordDevice(rec, "M1", ref, `${o}: devices.reference`);
     recordDevice(rec, "M2", out, `${o}: device`);
     rec.assume("No DC gate current (insulated gates): all of IREF flows in M1.");
-    rec.assume(`Square law (SPICE Level 1), channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
+    rec.assume(modelAssumption([["M1", ref], ["M2", out]], clm));
     rec.assume("Both sources sit at their rail, so VSB = 0 and there is no body effect, whichever way the body is tied.");
     rec.assume("M1 and M2 are matched (same threshold and k' on one die); mismatch is not modelled.");
     if (pmos)
@@ -197,20 +212,43 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const vt2 = (sign * out.card.vt0) as Volts;
   const lambda2 = (out.card.lambda ?? 0) as PerVolt;
   const ratio = mf.mirrorRatio.fn(k2, k1);
-  const vov2 = df.overdrive.fn(vgs, vt2);
-  const compliance = mf.mirrorCompliance.fn(vsr as Volts, vov2);
+  const outModel = modelled(out);
+  let vov2 = df.overdrive.fn(vgs, vt2);
+  let compliance = mf.mirrorCompliance.fn(vsr as Volts, vov2);
   if (rec) {
     rec.step(df.deviceGain, [out.card.kp, out.w, out.l], k2, "output transistor M2");
     rec.step(mf.mirrorRatio, [k2, k1], ratio, matched ? "one card for both, so N = (W/L)2/(W/L)1" : "the cards differ: N alone does not fix the output current");
-    rec.step(df.overdrive, [vgs, vt2], vov2, "M2 shares M1's gate and its source rail");
-    rec.step(mf.mirrorCompliance, [vsr, vov2], compliance, "M2 stays saturated while VDS2 ≥ VOV");
+    if (!outModel) {
+      rec.step(df.overdrive, [vgs, vt2], vov2, "M2 shares M1's gate and its source rail");
+      rec.step(mf.mirrorCompliance, [vsr, vov2], compliance, "M2 stays saturated while VDS2 ≥ VOV");
+    }
   }
   let vds2: number;
   let iout: number;
   let method: SolveMethod = r.method;
   let iterations = r.iterations;
   let tolerance = r.tolerance;
-  if (c.vout !== undefined) {
+  if (outModel) {
+    // M2 through its own model: the held output by its current, a load resistor by the canonical fixed-gate network.
+    if (c.vout !== undefined) {
+      vds2 = sign * c.vout - vsr;
+      iout = deviceCurrent(out, vgs, vds2, 0, clm);
+      rec?.note("Output held", `An ideal source holds the output at ${fmt(c.vout)} V to ground, so ${pmos ? "VSD2" : "VDS2"} = ${fmt(vds2)} V; M2's model gives IOUT = ${fmt(iout)} A at the mirror's ${pmos ? "VSG" : "VGS"}.`);
+    } else {
+      rec?.note("Output branch", `M2's gate is held at the mirror's gate voltage and RLOAD returns its drain to the ${pmos ? "lower" : "upper"} rail: a fixed-gate network, solved with M2's model.`);
+      const net: BiasNetwork = { k: k2, vt0: vt2, gamma: 0, phi: defaultPhi, lambda: lambda2, clm, vdr, vsr, gateToDrain: false, vg: vsr + vgs, rd: c.rload!, rs: 0, iss: 0, bodyToRail: false, device: out };
+      const sol = solveNetwork(net, newSolution(), o, rec);
+      vds2 = sol.vd - vsr;
+      iout = sol.id;
+      method = sol.method;
+      iterations += sol.iterations;
+      tolerance = Math.max(tolerance, sol.tolerance);
+    }
+    // Compliance at the model's own saturation voltage (it depends on VGS and VSB, not on VDS).
+    const op2 = operatingPoint(out, { vgs: (sign * vgs) as Volts, vds: (sign * Math.max(vds2, 0)) as Volts, vsb: 0 as Volts });
+    vov2 = op2.vov;
+    compliance = rec ? rec.calc(mf.mirrorComplianceSaturation, [vsr as Volts, op2.vdsat], "M2 stays saturated while VDS2 ≥ VDsat of its model") : mf.mirrorComplianceSaturation.fn(vsr as Volts, op2.vdsat);
+  } else if (c.vout !== undefined) {
     vds2 = sign * c.vout - vsr;
     rec?.note("Output held", `An ideal source holds the output at ${fmt(c.vout)} V to ground, so VDS2 = ${pmos ? `−VOUT − VSR = ${fmt(-c.vout)} − (${fmt(vsr)})` : `VOUT − VSR`} = ${fmt(vds2)} V${vds2 >= vov2 ? " ≥ VOV: M2 is saturated" : " < VOV: below compliance, M2 is in triode"}.`);
     iout = outputCurrent(vov2, vds2, k2, lambda2, clm, iref, ratio, vgs, matched, rec);
@@ -229,7 +267,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     }
   }
   const vOut = sign * (vsr + vds2);
-  const complianceMargin = vds2 - vov2;
+  const complianceMargin = vds2 - (compliance - vsr);
 
   // Devices at the solved nodes.
   const gateAbs = sign * (vsr + vgs);
@@ -282,7 +320,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const checks: StageCheck[] = [];
   const m1vov = vgs - (sign * ref.card.vt0);
   checks.push(stageCheck(`M1 overdrive ${pol.gs} − |Vt|`, m1vov, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the reference transistor must be on"));
-  checks.push(stageCheck(`Output compliance ${pol.ds}2 − VOV (M2 saturated)`, complianceMargin, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec, `output at ${fmt(vOut)} V, compliance ${fmt(sign * compliance)} V`));
+  checks.push(stageCheck(`Output compliance ${pol.ds}2 − ${outModel ? "VDsat" : "VOV"} (M2 saturated)`, complianceMargin, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec, `output at ${fmt(vOut)} V, compliance ${fmt(sign * compliance)} V`));
   if (lim.maxDevicePower !== undefined) {
     checks.push(stageCheck("M1 dissipation", p1, "power", { max: lim.maxDevicePower }, rec));
     checks.push(stageCheck("M2 dissipation", p2, "power", { max: lim.maxDevicePower }, rec));
@@ -298,17 +336,17 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
   const ideal = (iref * ratio) as Amperes;
   if (m2.small.op.region === "triode")
     findings.push(
-      `The output is below compliance: ${pol.ds}2 = ${fmt(vds2)} V < VOV = ${fmt(vov2)} V, so M2 is in triode and delivers ${fmt(iout)} A instead of about ${fmt(ideal)} A (${fmt((100 * (ideal - iout)) / ideal)} % short). Keep the output ${pmos ? "below" : "above"} ${fmt(sign * compliance)} V.`,
+      `The output is below compliance: ${pol.ds}2 = ${fmt(vds2)} V < ${outModel ? "VDsat" : "VOV"} = ${fmt(compliance - vsr)} V, so M2 is in triode and delivers ${fmt(iout)} A instead of about ${fmt(ideal)} A (${fmt((100 * (ideal - iout)) / ideal)} % short). Keep the output ${pmos ? "below" : "above"} ${fmt(sign * compliance)} V.`,
     );
   else if (m2.small.op.region === "cutoff") findings.push(`M2 is in cutoff: its threshold exceeds the mirror's ${pol.gs} = ${fmt(vgs)} V.`);
   else if (complianceMargin < 0.05) findings.push(`The output is only ${fmt(complianceMargin)} V above compliance: tolerances may push M2 into triode.`);
-  if (vov2 > 0 && vov2 < 0.05) findings.push(`Overdrive is only ${fmt(vov2)} V: the pair is near weak inversion, where the square law overstates the current (common practice).`);
+  if (!outModel && vov2 > 0 && vov2 < 0.05) findings.push(`Overdrive is only ${fmt(vov2)} V: the pair is near weak inversion, where the square law overstates the current (common practice).`);
   if (!matched) findings.push("M1 and M2 use different cards: the output current follows from each device's own parameters, not from the W/L ratio alone.");
-  if (lambda2 > 0 && m2.small.op.region === "saturation" && Math.abs(vds2 - vgs) > 1e-12)
+  if (!outModel && lambda2 > 0 && m2.small.op.region === "saturation" && Math.abs(vds2 - vgs) > 1e-12)
     findings.push(`With λ = ${fmt(lambda2)} 1/V the output current differs from IREF·N by the factor (1 + λ·VDS2)/(1 + λ·VGS1) = ${fmt(iout / ideal)}: match VDS2 to VGS1 = ${fmt(vgs)} V for an exact copy.`);
   if (c.vout !== undefined) findings.push("The output is held by an ideal voltage source.");
   findings.push("Mirror accuracy also depends on threshold and k' mismatch between M1 and M2, which is not modelled (common practice: use equal L, common-centroid layout).");
-  findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
+  findings.push(handCaution([ref, out]));
   recordFindings(findings, rec);
 
   const swing = swingInVolts(
@@ -318,7 +356,7 @@ export function analyzeMirror(stage: CurrentMirrorStage, rec?: Derivation): Mirr
     vdr,
     compliance,
     c.rload !== undefined ? "drain-side rail (no drop in RLOAD)" : "drain-side rail (beyond it the drain junction conducts)",
-    "output compliance VOUT = VSR + VOV (M2 leaves saturation)",
+    outModel ? "output compliance VOUT = VSR + VDsat (M2 leaves saturation)" : "output compliance VOUT = VSR + VOV (M2 leaves saturation)",
   );
   const gs = m2.analysis.smallSignal;
   return {

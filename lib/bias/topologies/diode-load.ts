@@ -15,9 +15,15 @@
  * the threshold differs. The output voltage is the one unknown: the load
  * current falls and the driver current rises as it moves towards the drain
  * rail, so the difference has exactly one root, bracketed by the rails.
+ *
+ * Square-law cards use the closed forms where they exist. A card of another
+ * model (square law with mobility degradation, EKV) gives each device's current
+ * from its own model (`deviceCurrent`), with the same bracketed root (regula
+ * falsi, tolerance 1e-13 of the span, ConvergenceError after 300 steps); the
+ * driver's triode edge is its model's VDsat. Verified by verify.ts as every solve.
  */
-import { defaultPhi, polaritySign, requireSquareLawCard, type Device } from "../../device/card.js";
-import { channelCurrent, type ClmMode } from "../../device/drain-current.js";
+import { defaultPhi, polaritySign, type Device } from "../../device/card.js";
+import { channelCurrent, deviceCurrent, operatingPoint, type ClmMode } from "../../device/drain-current.js";
 import { thresholdMagnitude } from "../../device/threshold.js";
 import { ConvergenceError, InfeasibleError } from "../../errors.js";
 import { kclTolerance, verifyCurrent } from "../verify.js";
@@ -30,7 +36,7 @@ import { checkComponents, checkStage, pmosConvention } from "../stage.js";
 import { diffusionText, spiceNumber } from "../spice.js";
 import { spicePrefix } from "../../spice/deck.js";
 import type { AmplifierMetrics, ComponentField, DiodeLoadComponents, SpiceCircuit, Stage, StageAnalysis, StageCheck, SwingLimits, Topology } from "../topology.js";
-import { evaluateDevice, fmt, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
+import { evaluateDevice, fmt, handCaution, modelAssumption, modelled, modelLine, partChecks, recordDevice, recordFindings, requireEnhancement, secondDevice, stageCheck, stageOrigin, swingInVolts } from "./two-transistor.js";
 
 export const diodeLoadComponents: readonly ComponentField[] = [{ name: "vg", dim: "voltage", required: true, meaning: "driver gate bias voltage (absolute, from an ideal source)" }];
 
@@ -54,6 +60,11 @@ interface Pair {
   readonly body: boolean;
   readonly sameType: boolean;
   readonly clm: ClmMode;
+  /** The driver and load when their cards name another model than the square law: their currents then come from it. */
+  readonly drvModel?: Device;
+  readonly loadModel?: Device;
+  /** The load's body at the driver's source rail (same type, body "rail"), whatever γ. */
+  readonly bodyAtRail: boolean;
 }
 
 interface Checked {
@@ -70,8 +81,6 @@ function checkDiodeLoad(stage: DiodeLoadStage): Checked {
   const load = secondDevice(stage, "load", "the diode-connected load transistor M2");
   const c = checkComponents({ id: "diode-load", components: diodeLoadComponents }, stage);
   requireEnhancement(load, `${o}: devices.load`, "load transistor M2");
-  requireSquareLawCard(drv.card, `${o}: device.card`, "the diode-load stage");
-  requireSquareLawCard(load.card, `${o}: devices.load.card`, "the diode-load stage");
   const s = polaritySign(drv.card);
   const vdd = stage.supplies.vdd;
   const vss = stage.supplies.vss ?? 0;
@@ -94,6 +103,9 @@ function checkDiodeLoad(stage: DiodeLoadStage): Checked {
     body: sameType && stage.body === "rail" && (load.card.gamma ?? 0) > 0,
     sameType,
     clm: stage.options?.clm ?? "continuous",
+    ...(modelled(drv) ? { drvModel: drv } : {}),
+    ...(modelled(load) ? { loadModel: load } : {}),
+    bodyAtRail: sameType && stage.body === "rail",
   };
   const span = vdr - vsr;
   if (!(span > pair.vt02))
@@ -108,9 +120,13 @@ function checkDiodeLoad(stage: DiodeLoadStage): Checked {
 const loadThreshold = (p: Pair, u: number): number => (p.body ? thresholdMagnitude(p.vt02 as Volts, p.g2 as SqrtVolts, p.phi2 as Volts, (u - p.vsr) as Volts) : p.vt02);
 const loadCurrent = (p: Pair, u: number): number => {
   const x = p.vdr - u;
+  if (p.loadModel) return deviceCurrent(p.loadModel, x, x, p.bodyAtRail ? u - p.vsr : 0, p.clm);
   return channelCurrent(p.k2, x - loadThreshold(p, u), x, p.l2, p.clm);
 };
-const driverCurrent = (p: Pair, u: number): number => channelCurrent(p.k1, p.vg - p.vsr - p.vt1, u - p.vsr, p.l1, p.clm);
+const driverCurrentAt = (p: Pair, vg: number, u: number): number =>
+  p.drvModel ? deviceCurrent(p.drvModel, vg - p.vsr, u - p.vsr, 0, p.clm) : channelCurrent(p.k1, vg - p.vsr - p.vt1, u - p.vsr, p.l1, p.clm);
+const driverCurrent = (p: Pair, u: number): number => driverCurrentAt(p, p.vg, u);
+const anyModel = (p: Pair): boolean => p.drvModel !== undefined || p.loadModel !== undefined;
 /** The driver's current at its triode edge VDS = VOV with VOV = u − VSR (for the lower swing limit). */
 const edgeCurrent = (p: Pair, u: number): number => {
   const v = u - p.vsr;
@@ -176,7 +192,17 @@ function idleOutput(p: Pair, rec?: Derivation, because?: string): number {
 function solveOutput(p: Pair, o: string, rec?: Derivation): { u: number; method: "closed-form" | "bracketed-regula-falsi"; iterations: number; tolerance: number; cutoff: boolean } {
   const vov1 = (p.vg - p.vsr - p.vt1) as Volts;
   rec?.step(bf.railOverdrive, [p.vg, p.vsr, p.vt1], vov1, "driver overdrive: its source sits at the rail");
-  if (!(vov1 > 0)) {
+  // A model with subthreshold conduction (EKV) still carries current below Vt: only a driver that carries none is off.
+  const off = anyModel(p) ? !(driverCurrent(p, p.vdr) > 0) : !(vov1 > 0);
+  if (anyModel(p) && !off) {
+    const r = decreasingRoot((u) => loadCurrent(p, u) - driverCurrent(p, u), p.vsr, p.vdr, o);
+    rec?.note(
+      "Exact solution with the device models",
+      `Each device's current from its own model; equal currents in the output voltage, solved by bracketed regula falsi (Illinois) between the rails to VOUT = ${fmt(p.s * r.u)} V in ${r.iterations} iterations (bracket ${r.width.toExponential(2)} V). The models have no closed-form operating point.`,
+    );
+    return { u: r.u, method: "bracketed-regula-falsi", iterations: r.iterations, tolerance: r.width, cutoff: false };
+  }
+  if (off) {
     rec?.note("Driver in cutoff", `VOV1 = ${fmt(vov1)} V ≤ 0: the driver carries no current, so neither does the load. The load stops conducting once VDR − VOUT falls to its threshold:`);
     let u = idleOutput(p, rec, "the load diode at the edge of conduction");
     // Rounding may leave the load a few ulps of overdrive; step to the edge so it reads as off, as it is.
@@ -241,7 +267,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
     recordDevice(rec, "M1", drv, `${o}: device`);
     recordDevice(rec, "M2", load, `${o}: devices.load`);
     rec.assume("No DC gate current (insulated gates); the output is unloaded.");
-    rec.assume(`Square law (SPICE Level 1), channel-length modulation ${p.clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.`);
+    rec.assume(modelAssumption([["M1", drv], ["M2", load]], p.clm));
     rec.assume(
       p.sameType
         ? p.body
@@ -286,7 +312,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
   const total = (p1 + p2) as Watts;
 
   // Small-signal view.
-  const gmb2 = (p.body ? m2.small.gmb : 0) as Siemens;
+  const gmb2 = (p.body || (p.loadModel && p.bodyAtRail) ? m2.small.gmb : 0) as Siemens;
   const amplifiers: AmplifierMetrics[] = [];
   const on = !r.cutoff;
   if (on) amplifiers.push(gainView(p, m1.small, m2.small, gmb2, rec));
@@ -301,13 +327,14 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
   checks.push(stageCheck(`Driver overdrive ${pol.gs}1 − |Vt1|`, vov1, "voltage", { min: lim.minOverdrive ?? 0 }, rec, "the driver must be on"));
   const findings: string[] = [];
   if (on) {
-    const m = bf.saturationMargin.fn(vds1 as Volts, vov1);
-    rec?.step(bf.saturationMargin, [vds1, vov1], m, "driver margin to the triode edge");
-    checks.push(stageCheck(`Driver saturation margin ${pol.ds}1 − VOV1`, m, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec));
+    // A model's triode edge is its own VDsat (recorded with the driver's operating point above).
+    const m = p.drvModel ? m1.small.op.saturationMargin : bf.saturationMargin.fn(vds1 as Volts, vov1);
+    if (!p.drvModel) rec?.step(bf.saturationMargin, [vds1, vov1], m, "driver margin to the triode edge");
+    checks.push(stageCheck(`Driver saturation margin ${pol.ds}1 − ${p.drvModel ? "VDsat1" : "VOV1"}`, m, "voltage", { min: lim.minSaturationMargin ?? 0 }, rec));
     checks.push(stageCheck("Load overdrive (the load conducts)", m2.small.op.vov, "voltage", { min: 0 }, rec, "a diode-connected load is saturated whenever it conducts"));
-    if (m < 0) findings.push(`The driver is in triode: ${pol.ds}1 = ${fmt(vds1)} V is below VOV1 = ${fmt(vov1)} V by ${fmt(-m)} V; the gain collapses. Lower the gate drive or make the load weaker relative to the driver.`);
+    if (m < 0) findings.push(`The driver is in triode: ${pol.ds}1 = ${fmt(vds1)} V is below ${p.drvModel ? "VDsat1" : "VOV1"} = ${fmt(vds1 - m)} V by ${fmt(-m)} V; the gain collapses. Lower the gate drive or make the load weaker relative to the driver.`);
     else if (m < 0.05) findings.push(`Driver saturation margin is only ${fmt(m)} V: tolerances or temperature may push it into triode.`);
-    if (vov1 < 0.05) findings.push(`Driver overdrive is only ${fmt(vov1)} V: near weak inversion, where the square law overstates the current (common practice).`);
+    if (!p.drvModel && vov1 < 0.05) findings.push(`Driver overdrive is only ${fmt(vov1)} V: near weak inversion, where the square law overstates the current (common practice).`);
   } else
     findings.push(
       `The driver is in cutoff: ${pol.gs}1 − |Vt1| = ${fmt(vov1)} V ≤ 0, so no current flows and the output floats between ${fmt(out)} V and the ${pmos ? "lower" : "upper"} rail (held only by leakage, not modelled). Raise the gate drive to turn it on.`,
@@ -321,7 +348,7 @@ export function analyzeDiodeLoad(stage: DiodeLoadStage, rec?: Derivation): Stage
   // The solver's own check (verify.ts) comes after the design checks.
   rec?.check(`${solverCheckPrefix}load current equals driver current (KCL at the output)`, kcl, "current", { max: kclTolerance(iLoad, idNet, g, vScale) }, "residual of the solved output voltage; tolerance 1e-9·I + G·δV");
   if (p.sameType && stage.body !== "rail" && (load.card.gamma ?? 0) > 0) findings.push("The load's body is tied to its own source: that needs a separate well. On a common substrate set body to \"rail\" for the body effect.");
-  findings.push("Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.");
+  findings.push(handCaution([drv, load]));
   recordFindings(findings, rec);
   return {
     topology: "diode-load",
@@ -349,12 +376,15 @@ function gainView(p: Pair, s1: { gm: Siemens; gds: Siemens }, s2: { gm: Siemens;
     rec.step(mf.diodeLoadOutputResistance, [s2.gm, gmb2, s1.gds, s2.gds], rout);
     const rough = mf.diodeLoadGainNoRo.fn(s1.gm, s2.gm, gmb2);
     rec.step(mf.diodeLoadGainNoRo, [s1.gm, s2.gm, gmb2], rough, "the hand estimate, ro neglected");
-    const k1 = p.k1 as AmperesPerVoltSquared;
-    const k2 = p.k2 as AmperesPerVoltSquared;
-    let eta = 0 as Ratio;
-    if (p.body) eta = rec.calc(mf.bodyEffectRatio, [p.g2 as SqrtVolts, p.phi2 as Volts, s2.op.vsbDevice], "the load's source is the output");
-    const sized = mf.diodeLoadGainSizing.fn(k1, k2, eta);
-    rec.step(mf.diodeLoadGainSizing, [k1, k2, eta], sized, "the gain set by the sizes alone (λ = 0, driver saturated)");
+    if (!anyModel(p)) {
+      // The square law's sizing rule; with another model the gain above, from its gm and gds, is the figure.
+      const k1 = p.k1 as AmperesPerVoltSquared;
+      const k2 = p.k2 as AmperesPerVoltSquared;
+      let eta = 0 as Ratio;
+      if (p.body) eta = rec.calc(mf.bodyEffectRatio, [p.g2 as SqrtVolts, p.phi2 as Volts, s2.op.vsbDevice], "the load's source is the output");
+      const sized = mf.diodeLoadGainSizing.fn(k1, k2, eta);
+      rec.step(mf.diodeLoadGainSizing, [k1, k2, eta], sized, "the gain set by the sizes alone (λ = 0, driver saturated)");
+    }
   }
   return {
     kind: "common-source",
@@ -372,12 +402,57 @@ function outputSwing(p: Pair, u: number, o: string, rec?: Derivation): SwingLimi
   rec?.note("Output swing", "As the input falls the driver cuts off and the output rises until the load stops conducting; as it rises the output falls until the driver reaches its triode edge, VDS1 = VOV1.");
   const up = idleOutput(p, rec, "upper end: driver cut off");
   let lo: number;
-  if (p.l1 === 0 && p.l2 === 0 && !p.body) lo = rec ? rec.calc(mf.diodeLoadLowerSwing, [p.k2 as AmperesPerVoltSquared, p.vdr as Volts, p.vt02 as Volts, p.k1 as AmperesPerVoltSquared, p.vsr as Volts]) : mf.diodeLoadLowerSwing.fn(p.k2 as AmperesPerVoltSquared, p.vdr as Volts, p.vt02 as Volts, p.k1 as AmperesPerVoltSquared, p.vsr as Volts);
+  if (anyModel(p)) {
+    lo = modelTriodeEdge(p, up);
+    rec?.note("Lower end", `With the device models the driver's triode edge is VDS1 = VDsat1 at the gate voltage that puts the output there (found by nested bracketed solves): VOUT = ${fmt(p.s * lo)} V.`);
+  } else if (p.l1 === 0 && p.l2 === 0 && !p.body) lo = rec ? rec.calc(mf.diodeLoadLowerSwing, [p.k2 as AmperesPerVoltSquared, p.vdr as Volts, p.vt02 as Volts, p.k1 as AmperesPerVoltSquared, p.vsr as Volts]) : mf.diodeLoadLowerSwing.fn(p.k2 as AmperesPerVoltSquared, p.vdr as Volts, p.vt02 as Volts, p.k1 as AmperesPerVoltSquared, p.vsr as Volts);
   else {
     lo = decreasingRoot((x) => loadCurrent(p, x) - edgeCurrent(p, x), p.vsr, up, o).u;
     rec?.note("Lower end", `With λ${p.body ? " and the body effect" : ""} the driver's triode edge is where the load current equals (k₁/2)·(VOUT − VSR)²·(1 + λ₁·(VOUT − VSR)): VOUT = ${fmt(p.s * lo)} V (solved numerically).`);
   }
   return swingInVolts(p.s, "drain", u, up, lo, "load stops conducting (driver cut off)", "driver triode edge VDS1 = VOV1");
+}
+
+/**
+ * The lowest output with the driver saturated, for model cards: the output u where the gate voltage
+ * that makes the stage settle at u puts the driver at VDS1 = VDsat1. As u falls the load current and
+ * with it the needed gate voltage and VDsat1 rise, so u − VSR − VDsat1 falls: one root, by bisection
+ * (1e-12 V); the gate voltage at each u by bisection on the driver's current (monotone in VGS).
+ */
+function modelTriodeEdge(p: Pair, up: number): number {
+  // NaN when no gate voltage within 64 V of the rail carries the load's current (a mobility-limited driver near VDS = 0): the driver is then in triode there.
+  const gateFor = (u: number): number => {
+    const target = loadCurrent(p, u);
+    let a = p.vsr;
+    let b = p.vsr + 1;
+    for (let k = 0; driverCurrentAt(p, b, u) < target; k++) {
+      if (k >= 6) return NaN;
+      b += 2 ** k;
+    }
+    for (let k = 0; k < 200 && b - a > 1e-12 * Math.max(1, Math.abs(b)); k++) {
+      const m = (a + b) / 2;
+      if (driverCurrentAt(p, m, u) < target) a = m;
+      else b = m;
+    }
+    return (a + b) / 2;
+  };
+  const drv = p.drvModel;
+  const margin = (u: number): number => {
+    const vg = gateFor(u);
+    if (vg !== vg) return -1;
+    const vdsat = drv ? operatingPoint(drv, { vgs: (p.s * (vg - p.vsr)) as Volts, vds: (p.s * (u - p.vsr)) as Volts, vsb: 0 as Volts }).vdsat : vg - p.vsr - p.vt1;
+    return u - p.vsr - vdsat;
+  };
+  let a = p.vsr + 1e-9;
+  let b = up;
+  if (margin(a) >= 0) return a;
+  if (margin(b) <= 0) return b;
+  for (let k = 0; k < 200 && b - a > 1e-12 * Math.max(1, Math.abs(a), Math.abs(b)); k++) {
+    const m = (a + b) / 2;
+    if (margin(m) < 0) a = m;
+    else b = m;
+  }
+  return (a + b) / 2;
 }
 
 /** SPICE lines: two Level 1 models, supplies, gate source, driver with a 0 V ammeter in its drain lead, diode-connected load. */

@@ -4,7 +4,8 @@
  * voltages, checks with margins, SPICE model lines and the swing record in
  * absolute volts. The single-transistor path lives in ../stage.ts.
  */
-import { defaultPhi, device as makeDevice, polaritySign, type Device, type DeviceCard } from "../../device/card.js";
+import { defaultPhi, device as makeDevice, modelOf, polaritySign, type Device, type DeviceCard } from "../../device/card.js";
+import { models } from "../../device/models/index.js";
 import type { ClmMode } from "../../device/drain-current.js";
 import { smallSignal, type SmallSignal } from "../../device/small-signal.js";
 import { InputError } from "../../errors.js";
@@ -44,6 +45,11 @@ export function requireEnhancement(dev: Device, where: string, role: string): vo
 export function sameProcess(a: DeviceCard, b: DeviceCard): boolean {
   return (
     a.polarity === b.polarity &&
+    modelOf(a) === modelOf(b) &&
+    a.theta === b.theta &&
+    a.thetaB === b.thetaB &&
+    a.ecrit === b.ecrit &&
+    a.sigma === b.sigma &&
     a.kp === b.kp &&
     a.vt0 === b.vt0 &&
     (a.lambda ?? 0) === (b.lambda ?? 0) &&
@@ -62,7 +68,27 @@ export function recordDevice(rec: Derivation, label: string, dev: Device, where:
   rec.input(`LAMBDA(${label})`, c.lambda ?? 0, "inverseVoltage", `card ${c.name}`);
   rec.input(`GAMMA(${label})`, c.gamma ?? 0, "sqrtVoltage", `card ${c.name}`);
   rec.input(`PHI(${label})`, c.phi ?? defaultPhi, "voltage", `card ${c.name}`);
+  if (c.theta !== undefined) rec.input(`THETA(${label})`, c.theta, "inverseVoltage", `card ${c.name}`);
+  if (c.ecrit !== undefined) rec.input(`ESAT(${label})`, c.ecrit, "electricField", `card ${c.name}`);
+  if (c.thetaB !== undefined) rec.input(`THETAB(${label})`, c.thetaB, "inverseVoltage", `card ${c.name}`);
+  if (c.sigma !== undefined) rec.input(`SIGMA(${label})`, c.sigma, "dimensionless", `card ${c.name}`);
 }
+
+/** True when the device's card names a model other than the square law: the stage then solves through the model layer. */
+export const modelled = (dev: Device): boolean => modelOf(dev.card) !== "square-law";
+
+/** The assumption a two-transistor record states about its device models. */
+export function modelAssumption(devs: readonly (readonly [string, Device])[], clm: ClmMode): string {
+  const named = devs.map(([label, d]) => `${label}: ${models[modelOf(d.card)].title}${modelled(d) ? ` (${models[modelOf(d.card)].source})` : ""}`);
+  const square = devs.some(([, d]) => !modelled(d));
+  return `Device models: ${named.join("; ")}.${square ? ` Square-law channel-length modulation ${clm === "continuous" ? "applied in triode and saturation" : "applied in saturation only"}.` : ""}`;
+}
+
+/** The closing caution of a two-transistor record, naming the hand model. */
+export const handCaution = (devs: readonly Device[]): string =>
+  devs.some(modelled)
+    ? `Hand analysis with the fitted ${[...new Set(devs.map((d) => models[modelOf(d.card)].title))].join(" and ")} is approximate outside the range the card was fitted on: verify by simulation and measurement, and respect the device ratings.`
+    : "Hand analysis with the square law is approximate: verify by simulation and measurement, and respect the device ratings.";
 
 export interface Terminals {
   readonly gate: number;
