@@ -8,7 +8,7 @@
  * Targets (issue 8): EKV per L RMS ≤ 5 % and 95th percentile ≤ 10 % for
  * L ≥ 0.5 µm, RMS ≤ 10 % at L = 0.28 µm; temperature predictions RMS ≤ 8 %
  * for L ≥ 1 µm. Where the target is met the test asserts it; where it is not
- * yet met (named below: NMOS L = 0.5 µm and one temperature case, by tenths of a
+ * yet met (named below: NMOS L = 0.5 µm, by tenths of a
  * percent) it asserts the
  * figure reached, so a regression still fails, and the README says so.
  */
@@ -73,10 +73,8 @@ describe("temperature: card at 25 °C plus fitted drift predicts −40 °C and 1
           expect(tf.alphaVt).toBeLessThan(0);
           expect(tf.muExp).toBeGreaterThan(0.5);
           expect(tf.muExp).toBeLessThan(2.5);
-          // the target, 8 %, for both models at every L ≥ 1 µm but one named shortfall: EKV NMOS L = 1 µm at 125 °C
-          // reaches 8.06 % (7.8 % at −40 °C), asserted as ≤ 8.1 % against regression
-          const bound = model.id === "ekv" && pol === "nmos" && l === 1 ? 0.081 : 0.08;
-          for (const p of tf.predictions) expect(p.inWindow.rms!).toBeLessThanOrEqual(bound);
+          // the target: 8 % for both models at every L ≥ 1 µm
+          for (const p of tf.predictions) expect(p.inWindow.rms!).toBeLessThanOrEqual(0.08);
         }
       });
     }
