@@ -12,6 +12,7 @@ import {
   voltsPerKelvin,
   type DeviceCard,
 } from "../lib/index.js";
+import { voltsPerMeter } from "../lib/quantity.js";
 import { runNgspice } from "./support/ngspice.js";
 
 // Invented cards for unit tests.
@@ -38,6 +39,15 @@ describe("card at temperature", () => {
     const cold = cardAtTemperature(pmos, celsius(-40));
     expect(cold.vt0).toBeCloseTo(-(0.6 + 1.5e-3 * 65), 12); // |Vt| rises when cold for alphaVt < 0
     expect(cold.kp).toBeCloseTo(40e-6 * (233.15 / 298.15) ** -1.8, 15);
+  });
+  it("raises a critical field as the mobility falls (Esat ∝ vsat/µ, vsat held) and records the step; a card without one gets none", () => {
+    const rec = new Derivation("hot ekv");
+    const card: DeviceCard = { ...pmos, model: "ekv", ecrit: voltsPerMeter(4e6) };
+    const hot = cardAtTemperature(card, celsius(125), rec);
+    expect(hot.ecrit!).toBeCloseTo(4e6 * (398.15 / 298.15) ** 1.8, 6);
+    expect(hot.ecrit! * hot.kp).toBeCloseTo(card.ecrit! * card.kp, 12); // the product vsat ∝ µ·Esat stays
+    expect(rec.steps.map((s) => (s.kind === "formula" ? s.formula : s.kind))).toContain("criticalFieldAtTemperature");
+    expect("ecrit" in cardAtTemperature(pmos, celsius(125))).toBe(false);
   });
   it("refers the new card to the new temperature, so steps compose", () => {
     const once = cardAtTemperature(pmos, celsius(85));

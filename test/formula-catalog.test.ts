@@ -59,7 +59,7 @@ describe("compositions: a model's hot path generated from its catalog", () => {
       const VDSS = f.ekvSaturationVoltage!.fn(f.ekvLongChannelSaturationVoltage!.fn(Um, IC), Ecrit, L, Um);
       const Vip = f.ekvLimitedDrainVoltage!.fn(VDSS, Um, VDS);
       const IRn = f.ekvReverseCurrent!.fn(VP, VSB, VDS, Vip, Um);
-      const beta = f.ekvGainFactor!.fn(kp, W, f.ekvEquivalentLength!.fn(L, VDS, Vip, Ecrit), theta, n, Um, f.ekvForwardCharge!.fn(IC), thetaB, VSB);
+      const beta = f.ekvGainFactor!.fn(kp, W, f.ekvEquivalentLength!.fn(L, VDS, Vip, Ecrit), theta, n, Um, f.ekvForwardCharge!.fn(IC), f.ekvReverseCharge!.fn(IRn), thetaB, VSB);
       const id = IC === 0 ? 0 : f.ekvDrainCurrent!.fn(f.ekvSpecificCurrent!.fn(n, beta, Um), IC, IRn, lambda, VDS);
       expect(e.ekvChannelCurrent(kp, W, L, Vt0, gamma, phi, lambda, theta, thetaB, Ecrit, sigma, cit, UT, VGS, VDS, VSB)).toBe(id);
       expect(e.ekvInversionCoefficient(Vt0, gamma, phi, sigma, cit, UT, VGS, VDS, VSB)).toBe(IC);

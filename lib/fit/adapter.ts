@@ -9,8 +9,8 @@
 import type { DeviceCard } from "../device/card.js";
 import { spiceCurrent, type DeviceModel } from "../device/model.js";
 import { cardFromVector } from "../device/models/index.js";
-import { mobilityAtTemperature, thresholdAtTemperature } from "../formulas/device.formulas.js";
-import type { AmperesPerVoltSquared, Kelvin, Ratio, Volts, VoltsPerKelvin } from "../quantity.js";
+import { criticalFieldAtTemperature, mobilityAtTemperature, thresholdAtTemperature } from "../formulas/device.formulas.js";
+import type { AmperesPerVoltSquared, Kelvin, Ratio, Volts, VoltsPerKelvin, VoltsPerMeter } from "../quantity.js";
 import { defaultTemperatureCoefficients } from "../device/temperature.js";
 import type { Sweep } from "../measure/select.js";
 import type { FitModel, FitParameter } from "./model.js";
@@ -25,7 +25,7 @@ const needs: Record<string, "body" | "saturation" | undefined> = { gamma: "body"
 export function fitModelOf(model: DeviceModel): FitModel {
   const names = model.parameters.map((q) => q.name);
   const at = (n: string) => names.indexOf(n);
-  const [iVt, iKp, iGamma, iPhi, iCit] = [at("vt0"), at("kp"), at("gamma"), at("phi"), at("cit")];
+  const [iVt, iKp, iGamma, iPhi, iCit, iEcrit] = [at("vt0"), at("kp"), at("gamma"), at("phi"), at("cit"), at("ecrit")];
   const heldValue = model.parameters.map((q) => (Number.isFinite(q.absent) ? q.absent : q.initial));
   const parameters: FitParameter[] = model.parameters.map((q) => ({
     name: q.name,
@@ -95,6 +95,7 @@ export function fitModelOf(model: DeviceModel): FitModel {
       // the catalog's temperature formulas, as cardAtTemperature uses them
       out[iVt] = thresholdAtTemperature.fn(p[iVt]! as Volts, alphaVt as VoltsPerKelvin, t as Kelvin, t0 as Kelvin);
       out[iKp] = mobilityAtTemperature.fn(p[iKp]! as AmperesPerVoltSquared, t as Kelvin, t0 as Kelvin, muExp as Ratio);
+      if (iEcrit >= 0) out[iEcrit] = criticalFieldAtTemperature.fn(p[iEcrit]! as VoltsPerMeter, t as Kelvin, t0 as Kelvin, muExp as Ratio);
     },
     card(p, s, provenance, held) {
       const um = (m: number) => String(+(m * 1e6).toPrecision(4));

@@ -40,7 +40,7 @@ export interface FitModel {
   slope(p: Float64Array): number;
   /**
    * The parameters at temperature t (K) from those at t0: threshold magnitude
-   * + alphaVt·(t − t0), mobility terms × (t/t0)^−muExp, as `cardAtTemperature`
+   * + alphaVt·(t − t0), k′ × (t/t0)^−muExp, a critical field Esat × (t/t0)^muExp, as `cardAtTemperature`
    * of lib/device/temperature.ts moves a card. Writes into out.
    */
   atTemperature(p: Float64Array, t0: number, t: number, alphaVt: number, muExp: number, out: Float64Array): void;

@@ -199,18 +199,32 @@ export const ekvForwardCharge = {
   fn: (IC: Ratio): Ratio => (Math.sqrt(((1 / 4) + IC)) - (1 / 2)) as Ratio,
 } as const satisfies Formula;
 
-/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * 2 * n * Um * qF + thetaB * VSB) */
+/** Normalised inversion charge at the drain end: qR = sqrt(1 / 4 + IRn) - 1 / 2 */
+export const ekvReverseCharge = {
+  id: "ekvReverseCharge",
+  title: "Normalised inversion charge at the drain end",
+  expr: "sqrt(1 / 4 + IRn) - 1 / 2",
+  tex: "q_{r} = \\sqrt{\\frac{1}{4}+{i_{r}}}-\\frac{1}{2}",
+  result: "qR",
+  resultDim: "dimensionless",
+  vars: ["IRn"],
+  dims: ["dimensionless"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
+  fn: (IRn: Ratio): Ratio => (Math.sqrt(((1 / 4) + IRn)) - (1 / 2)) as Ratio,
+} as const satisfies Formula;
+
+/** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * n * Um * (qF + qR) + thetaB * VSB) */
 export const ekvGainFactor = {
   id: "ekvGainFactor",
   title: "Gain factor with mobility degradation",
-  expr: "kp * W / Leq / (1 + theta * 2 * n * Um * qF + thetaB * VSB)",
-  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot2\\cdot{n}\\cdot{U_{T}^{*}}\\cdot{q_{f}}+{\\theta_{B}}\\cdot{V_{SB}}}",
+  expr: "kp * W / Leq / (1 + theta * n * Um * (qF + qR) + thetaB * VSB)",
+  tex: "\\beta = \\frac{\\frac{{k'}\\cdot{W}}{{L_{eq}}}}{1+{\\theta}\\cdot{n}\\cdot{U_{T}^{*}}\\cdot\\left({q_{f}}+{q_{r}}\\right)+{\\theta_{B}}\\cdot{V_{SB}}}",
   result: "beta",
   resultDim: "transconductanceParameter",
-  vars: ["kp","W","Leq","theta","n","Um","qF","thetaB","VSB"],
-  dims: ["transconductanceParameter","length","length","inverseVoltage","dimensionless","voltage","dimensionless","inverseVoltage","voltage"],
-  source: "mobility degradation µ0/(1 + θ·VOV + θB·VSB) (Tsividis & McAndrew, 3rd ed., 2011, from memory) with VOV as the EKV source-end charge 2·n·UT·qf; EKV 2.6 uses θ·VP instead",
-  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, n: Ratio, Um: Volts, qF: Ratio, thetaB: PerVolt, VSB: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * Um) * qF)) + (thetaB * VSB)))) as AmperesPerVoltSquared,
+  vars: ["kp","W","Leq","theta","n","Um","qF","qR","thetaB","VSB"],
+  dims: ["transconductanceParameter","length","length","inverseVoltage","dimensionless","voltage","dimensionless","dimensionless","inverseVoltage","voltage"],
+  source: "mobility degradation µ0/(1 + θ·VOV + θB·VSB) (Tsividis & McAndrew, 3rd ed., 2011, from memory) with VOV as the mean of the EKV source- and drain-end charges, n·UT·(qf + qr) (pinchoff's choice); EKV 2.6 uses θ·VP instead",
+  fn: (kp: AmperesPerVoltSquared, W: Meters, Leq: Meters, theta: PerVolt, n: Ratio, Um: Volts, qF: Ratio, qR: Ratio, thetaB: PerVolt, VSB: Volts): AmperesPerVoltSquared => (((kp * W) / Leq) / (((1 + (((theta * n) * Um) * ((qF + qR)))) + (thetaB * VSB)))) as AmperesPerVoltSquared,
 } as const satisfies Formula;
 
 /** Specific current: IS = 2 * n * beta * Um^2 */
@@ -241,7 +255,7 @@ export const ekvDrainCurrent = {
   fn: (IS: Amperes, IC: Ratio, IRn: Ratio, lambda: PerVolt, VDS: Volts): Amperes => ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))) as Amperes,
 } as const satisfies Formula;
 
-/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCurrent, ekvEquivalentLength, ekvForwardCharge, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
+/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCurrent, ekvEquivalentLength, ekvForwardCharge, ekvReverseCharge, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
 export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
   const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
@@ -255,7 +269,8 @@ export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number,
   const IRn = sq(Math.log1p(Math.exp((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * Um)))))); // ekvReverseCurrent
   const Leq = (L + ((((VDS / 2) + Vip)) / Ecrit)); // ekvEquivalentLength
   const qF = (Math.sqrt(((1 / 4) + IC)) - (1 / 2)); // ekvForwardCharge
-  const beta = (((kp * W) / Leq) / (((1 + ((((theta * 2) * n) * Um) * qF)) + (thetaB * VSB)))); // ekvGainFactor
+  const qR = (Math.sqrt(((1 / 4) + IRn)) - (1 / 2)); // ekvReverseCharge
+  const beta = (((kp * W) / Leq) / (((1 + (((theta * n) * Um) * ((qF + qR)))) + (thetaB * VSB)))); // ekvGainFactor
   const IS = (((2 * n) * beta) * sq(Um)); // ekvSpecificCurrent
   const ID = ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))); // ekvDrainCurrent
   return ID;

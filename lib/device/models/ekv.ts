@@ -19,6 +19,7 @@ import {
   ekvPinchOffFloor,
   ekvPinchOffVoltage,
   ekvReverseCurrent,
+  ekvReverseCharge,
   ekvSaturationVoltage,
   ekvLongChannelSaturationVoltage,
   ekvNormalisingVoltage,
@@ -132,7 +133,8 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, um]);
   const leq = rec.calc(ekvEquivalentLength, [l, vds, vip, e]);
   const qf = rec.calc(ekvForwardCharge, [ic]);
-  const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, um, qf, thetaB, vsb]);
+  const qr = rec.calc(ekvReverseCharge, [ir]);
+  const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, um, qf, qr, thetaB, vsb]);
   const is = rec.calc(ekvSpecificCurrent, [n, beta, um]);
   const id = rec.calc(ekvDrainCurrent, [is, ic, ir, lambda, vds]);
   return { region, id, vt, vov: g - vt, vdsat, ic };
