@@ -173,8 +173,17 @@ export function checkDevice(dev: unknown, origin = "device"): Device {
   return device(d.card, d.w, d.l, origin);
 }
 
-/** True for a device made by `device()` or `checkDevice()`: one WeakSet look-up. */
-export const isDevice = (dev: unknown): dev is Device => typeof dev === "object" && dev !== null && made.has(dev);
+// The device the last look-up proved: a sweep passes one device millions of times, and membership is for life
+// (devices are frozen and never leave the set), so an identity test stands in for the WeakSet look-up.
+let lastProved: object | undefined;
+
+/** True for a device made by `device()` or `checkDevice()`: one WeakSet look-up (an identity test for the last one proved). */
+export function isDevice(dev: unknown): dev is Device {
+  if (dev === lastProved && dev !== undefined) return true;
+  if (typeof dev !== "object" || dev === null || !made.has(dev)) return false;
+  lastProved = dev;
+  return true;
+}
 
 /** A deep, frozen copy of JSON card data, so the validated values cannot be changed afterwards. */
 function frozenCopy<T>(value: T): T {
