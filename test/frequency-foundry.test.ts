@@ -13,6 +13,7 @@
 import { resolve } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
 import { analyzeStage, stageCircuit } from "../lib/bias/analyze.js";
+import { parseDesignFile } from "../lib/bias/design-file.js";
 import { analyzeFrequency } from "../lib/bias/frequency.js";
 import { acCircuit } from "../lib/bias/frequency-spice.js";
 import { processCircuit } from "../lib/bias/simulation-check.js";
@@ -78,6 +79,22 @@ describe("foundry capacitances from the characterisation table", () => {
     // A block whose Cgg is below Cgs + Cgd is refused, naming the field.
     const bad = { ...stage.device.card, tableCapacitances: { ...stage.device.card.tableCapacitances!, cggPerWidth: 1e-12 as never } };
     expect(() => analyzeFrequency({ ...stage, device: { ...stage.device, card: bad } }, analyzeStage(stage as never), {})).toThrow(InputError);
+  });
+
+  it("a design file carries the block: pinchoff op's parser gives the same capacitances, and a block without its fingerprint is refused", () => {
+    const { stage } = sizedStage(40e-6, 8, 1e-6);
+    const file = JSON.parse(JSON.stringify({ topology: stage.topology, name: stage.name, device: stage.device, components: stage.components, supplies: stage.supplies }));
+    const parsed = parseDesignFile(file, "gmid.json");
+    if (parsed.kind !== "analysis") throw new Error("expected an analysis design");
+    const fromFile = analyzeFrequency(parsed.stage, analyzeStage(parsed.stage as never), { source: { resistance: ohms(1e6) } });
+    const fromLibrary = analyzeFrequency(stage, analyzeStage(stage as never), { source: { resistance: ohms(1e6) } });
+    expect(fromFile.capacitances).toEqual(fromLibrary.capacitances);
+    expect(fromFile.high.dominantPole).toBe(fromLibrary.high.dominantPole);
+    const { table: _t, ...noFingerprint } = file.device.card.tableCapacitances;
+    expect(() => parseDesignFile({ ...file, device: { ...file.device, card: { ...file.device.card, tableCapacitances: noFingerprint } } }, "gmid.json")).toThrow(/gmid\.json: device\.card\.tableCapacitances\.table/);
+    const { source: _s, ...noSource } = file.device.card.tableCapacitances.overlap;
+    expect(() => parseDesignFile({ ...file, device: { ...file.device, card: { ...file.device.card, tableCapacitances: { ...file.device.card.tableCapacitances, overlap: noSource } } } }, "gmid.json")).toThrow(/tableCapacitances\.overlap\.source/);
+    expect(() => parseDesignFile({ ...file, device: { ...file.device, card: { ...file.device.card, tableCapacitances: { ...file.device.card.tableCapacitances, cgsPerWidth: "3 pF" } } } }, "gmid.json")).toThrow(/tableCapacitances\.cgsPerWidth/);
   });
 
   it("the dominant pole agrees with ngspice 39 BSIM4 (GF180MCU sm141064.ngspice typical) .ac within 10 %", () => {

@@ -155,7 +155,7 @@ function quantity(v: unknown, dim: Dimension, at: string): number {
 /** Parse a device card found at field path `f` (e.g. "device.card"). */
 function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCard {
   const c = object(raw, at(f), "a device card { name, polarity, kp, vt0, … }");
-  onlyKeys(c, [...Object.keys(cardFields), "temperature", "capacitance", "datasheetCapacitances"], at(f));
+  onlyKeys(c, [...Object.keys(cardFields), "temperature", "capacitance", "datasheetCapacitances", "tableCapacitances"], at(f));
   const card: Record<string, unknown> = {};
   for (const [k, dim] of Object.entries(cardFields)) {
     const v = c[k];
@@ -180,8 +180,29 @@ function parseCard(raw: unknown, f: string, at: (p: string) => string): DeviceCa
   if (c.capacitance !== undefined) card.capacitance = quantities(c.capacitance, capacitanceFields, `${f}.capacitance`, at, "Level 1 capacitance parameters { tox, cgso?, cgdo?, cgbo?, cj?, mj?, pb?, cjsw?, mjsw?, fc?, diffusionLength? }", ["tox"]);
   if (c.datasheetCapacitances !== undefined)
     card.datasheetCapacitances = quantities(c.datasheetCapacitances, { ciss: "capacitance", crss: "capacitance", coss: "capacitance", vds: "voltage" }, `${f}.datasheetCapacitances`, at, "datasheet capacitances { ciss, crss, coss, vds }", ["ciss", "crss", "coss", "vds"]);
+  if (c.tableCapacitances !== undefined) card.tableCapacitances = parseTableCapacitances(c.tableCapacitances, `${f}.tableCapacitances`, at);
   checkCard(card as unknown as DeviceCard, at(f));
   return card as unknown as DeviceCard;
+}
+
+/** A foundry device's gate capacitances per W from a characterisation table (as `tableCapacitances()` writes them). */
+function parseTableCapacitances(raw: unknown, f: string, at: (p: string) => string): Record<string, unknown> {
+  const what = "table capacitances { cgsPerWidth, cgdPerWidth, cggPerWidth, table, at?, overlap? }";
+  const { table, at: where, overlap, ...perWidth } = object(raw, at(f), what);
+  const perW = { cgsPerWidth: "capacitancePerWidth", cgdPerWidth: "capacitancePerWidth", cggPerWidth: "capacitancePerWidth" } as const;
+  const out: Record<string, unknown> = quantities(perWidth, perW, f, at, what, Object.keys(perW));
+  if (typeof table !== "string" || table === "") throw new InputError(table, "the characterisation table's fingerprint (text)", at(`${f}.table`), "invalid-design");
+  out.table = table;
+  if (where !== undefined && typeof where !== "string") throw new InputError(where, "text: where in the table the values were read", at(`${f}.at`), "invalid-design");
+  out.at = where ?? "not stated in the design file";
+  if (overlap !== undefined) {
+    const ow = "the model card's overlap parameters { cgso, cgdo, cgsl?, cgdl?, ckappas?, ckappad?, vgs, vds, source }";
+    const { source, ...values } = object(overlap, at(`${f}.overlap`), ow);
+    if (typeof source !== "string" || source === "") throw new InputError(source, "text naming the model card the overlaps come from", at(`${f}.overlap.source`), "invalid-design");
+    const fields = { cgso: "capacitancePerWidth", cgdo: "capacitancePerWidth", cgsl: "capacitancePerWidth", cgdl: "capacitancePerWidth", ckappas: "voltage", ckappad: "voltage", vgs: "voltage", vds: "voltage" } as const;
+    out.overlap = { ...quantities(values, fields, `${f}.overlap`, at, ow, ["cgso", "cgdo", "vgs", "vds"]), source };
+  }
+  return out;
 }
 
 /**
