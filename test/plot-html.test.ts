@@ -14,11 +14,19 @@ describe("plot HTML", () => {
     const body = lib.slice(lib.indexOf(">") + 1, lib.lastIndexOf("</script>"));
     expect(body).not.toMatch(/<\/script/i);
     expect(body).not.toContain("<!--");
-    expect(body.length).toBeGreaterThan(3_000_000);
+    // the basic bundle (scatter, bar, pie): about 1.2 MB
+    expect(body.length).toBeGreaterThan(1_000_000);
     // Shadowing AMD/CommonJS names makes the bundle set window.Plotly even under RequireJS (the classic Notebook page).
     expect(lib).toContain("(function (define, module, exports)");
     expect(lib).toContain("if (!window.Plotly)");
     expect(lib).not.toMatch(/src\s*=\s*["']https?:/);
+  });
+
+  it("refuses a trace type the embedded basic bundle cannot draw, naming the plot (an empty box would hide it)", () => {
+    const heat = { ...spec, figure: { ...spec.figure, data: [...(spec.figure.data as object[]), { type: "heatmap", z: [[1]] }] } };
+    expect(() => plotHtml(heat)).toThrow(InputError);
+    expect(() => plotBundle(heat, false)).toThrow(/trace type/);
+    expect(plotHtml(spec)).toContain("newPlot");
   });
 
   it("escapes user text in the figure and in the caption", () => {

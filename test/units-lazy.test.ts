@@ -12,7 +12,7 @@ import { fileURLToPath } from "node:url";
 import ts from "typescript";
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), "..");
-const heavy = ["mathjs", "katex", "plotly.js-dist-min", "tslab"];
+const heavy = ["mathjs", "katex", "plotly.js-basic-dist-min", "tslab"];
 
 interface Graph {
   /** Every lib file reached through imports that run at load time. */

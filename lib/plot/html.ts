@@ -16,17 +16,17 @@ export const plotReadyEvent = "pinchoff-plotly-ready";
 
 let librarySource: { version: string; code: string } | undefined;
 
-/** The Plotly bundle installed with pinchoff (plotly.js-dist-min), read once. */
+/** The Plotly bundle installed with pinchoff (plotly.js-basic-dist-min: scatter traces are all pinchoff draws), read once. */
 export function plotLibrary(): { version: string; code: string } {
   if (librarySource) return librarySource;
   const req = createRequire(import.meta.url);
   let file: string;
   let version = "unknown";
   try {
-    file = req.resolve("plotly.js-dist-min");
-    version = (req("plotly.js-dist-min/package.json") as { version: string }).version;
+    file = req.resolve("plotly.js-basic-dist-min");
+    version = (req("plotly.js-basic-dist-min/package.json") as { version: string }).version;
   } catch (e) {
-    throw new PinchoffError("io", `the plotting library plotly.js-dist-min is not installed (${(e as Error).message}); run npm install`, "plot library");
+    throw new PinchoffError("io", `the plotting library plotly.js-basic-dist-min is not installed (${(e as Error).message}); run npm install`, "plot library");
   }
   // Inline in a <script>: no "</script" or "<!--" may appear in the text (both only occur inside string literals, where \x3C is the same character).
   const code = readFileSync(file, "utf8").replace(/<\/(script)/gi, "\\x3C/$1").replace(/<!--/g, "\\x3C!--");
@@ -75,8 +75,20 @@ export function plotHeight(value: unknown, origin: string): number {
   return value;
 }
 
+/** Trace types the embedded bundle (plotly.js-basic-dist-min) draws; any other would leave an empty box. */
+export const drawableTraceTypes: readonly string[] = ["scatter", "bar", "pie"];
+
+function checkTraceTypes(spec: DrawablePlot): void {
+  const data = spec.figure.data;
+  if (!Array.isArray(data)) return;
+  for (const t of data as Array<{ type?: unknown }>)
+    if (t && t.type !== undefined && !drawableTraceTypes.includes(t.type as string))
+      throw new InputError(t.type, `a trace type the embedded plotting bundle draws (${drawableTraceTypes.join(", ")})`, `plot "${spec.title}" trace type`);
+}
+
 /** A figure as an HTML fragment: a box, a note shown until drawn, and the drawing script. Every value in an attribute is escaped or checked. */
 export function plotHtml(spec: DrawablePlot, opts: PlotHtmlOptions = {}): string {
+  checkTraceTypes(spec);
   const id = plotId();
   const height = opts.height !== undefined ? plotHeight(opts.height, "plot height option") : plotHeight(spec.figure.layout?.height, `layout.height of plot "${spec.title}"`);
   const note =
