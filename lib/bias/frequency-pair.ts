@@ -18,9 +18,9 @@
 import { deviceCapacitances, evaluateFormula } from "../device/capacitance.js";
 import { InputError } from "../errors.js";
 import * as ff from "../formulas/frequency.formulas.js";
-import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
+import type { Farads, Hertz, Ohms, Ratio } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import { dominanceRatio, highCornerOf, type FrequencyAnalysis, type FrequencySpec, frequencyRecordNote } from "./frequency.js";
+import { dominanceRatio, highCornerOf, twoKnownPoles, type FrequencyAnalysis, type FrequencySpec, frequencyRecordNote } from "./frequency.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -109,17 +109,7 @@ export function analyzeMirrorPairFrequency(stage: Stage, analysis: StageAnalysis
     midbandGain: av as Ratio,
     source: { resistance: 0 as Ohms },
     load: { capacitance: cl as Farads },
-    high: {
-      timeConstants: { gate: 0 as Seconds, bridge: (1 / wm) as Seconds, output: (1 / w1) as Seconds },
-      b1: b1 as Seconds,
-      b2: b2 as Seconds,
-      octcCorner: (1 / (2 * Math.PI * b1)) as Hertz,
-      dominantPole: fp1 as Hertz,
-      nonDominantPole: fm as Hertz,
-      zero: { frequency: fz as Hertz, rightHalfPlane: false },
-      corner: corner as Hertz,
-      dominantPoleHolds: sep >= dominanceRatio,
-    },
+    high: twoKnownPoles(fp1, fm, { frequency: fz as Hertz, rightHalfPlane: false }, corner, sep >= dominanceRatio),
     nodes: { rsigSeen: 0 as Ohms, rOut: RLP as Ohms, cGate: 0 as Farads, cBridge: CMIR as Farads, cOut: CO as Farads, gm: gm1 },
     pair: { gainBandwidth: gbw as Hertz, outputPole: fp1 as Hertz, mirrorPole: fm as Hertz, mirrorZero: fz as Hertz, mirrorCapacitance: CMIR as Farads, ...(fu !== undefined ? { unityGain: fu as Hertz, phaseMargin: pm! } : {}) },
     checks,

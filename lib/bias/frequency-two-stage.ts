@@ -29,9 +29,9 @@ import { deviceCapacitances, evaluateFormula, hasCapacitanceData, missingCapacit
 import { InfeasibleError, InputError } from "../errors.js";
 import * as ff from "../formulas/frequency.formulas.js";
 import * as tf from "../formulas/two-stage.formulas.js";
-import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
+import type { Farads, Hertz, Ohms, Ratio } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
-import { frequencyRecordNote, type FrequencyAnalysis, type FrequencySpec } from "./frequency.js";
+import { frequencyRecordNote, twoKnownPoles, type FrequencyAnalysis, type FrequencySpec } from "./frequency.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 import type { TwoStageFigures } from "./topologies/two-stage.js";
@@ -290,10 +290,6 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
   } else findings.push("The open-loop gain is below 1: there is no unity-gain frequency.");
   if (!holds) findings.push("The two-stage analysis's conditions do not all hold (see the checks): the phase margin is a rough estimate.");
   for (const f of findings) rec?.find("caution", f);
-  const w1 = 2 * Math.PI * fp1;
-  const w2 = 2 * Math.PI * fp2;
-  const b1 = 1 / w1 + 1 / w2;
-  const b2 = Math.sqrt(1 / (w1 * w2));
   const corner = cornerOf(mod);
   return {
     view: "two-stage",
@@ -303,17 +299,7 @@ export function analyzeTwoStageFrequency(stage: Stage, analysis: StageAnalysis, 
     midbandGain: ts.gain as Ratio,
     source: { resistance: 0 as Ohms },
     load: { capacitance: cl as Farads },
-    high: {
-      timeConstants: { gate: 0 as Seconds, bridge: (1 / w2) as Seconds, output: (1 / w1) as Seconds },
-      b1: b1 as Seconds,
-      b2: b2 as Seconds,
-      octcCorner: (1 / (2 * Math.PI * b1)) as Hertz,
-      dominantPole: fp1 as Hertz,
-      nonDominantPole: fp2 as Hertz,
-      zero: { frequency: Math.abs(fzc) as Hertz, rightHalfPlane: fzc > 0 },
-      corner: corner as Hertz,
-      dominantPoleHolds: holds,
-    },
+    high: twoKnownPoles(fp1, fp2, { frequency: Math.abs(fzc) as Hertz, rightHalfPlane: fzc > 0 }, corner, holds),
     nodes: { rsigSeen: 0 as Ohms, rOut: r2 as Ohms, cGate: c1 as Farads, cBridge: cce as Farads, cOut: c2 as Farads, gm: gm1 },
     checks,
     findings,

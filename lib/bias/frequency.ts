@@ -107,6 +107,28 @@ export interface HighFrequencyResponse {
   readonly dominantPoleHolds: boolean;
 }
 
+/**
+ * The upper-frequency block of an amplifier whose two real poles are known from its own analysis (the
+ * five-transistor and two-stage amplifiers): the open-circuit view takes 1/ω of each pole, the second as the
+ * bridge and the first as the output time constant.
+ */
+export function twoKnownPoles(fp1: number, fp2: number, zero: HighFrequencyResponse["zero"], corner: number, dominantPoleHolds: boolean): HighFrequencyResponse {
+  const w1 = 2 * Math.PI * fp1;
+  const w2 = 2 * Math.PI * fp2;
+  const b1 = 1 / w1 + 1 / w2;
+  return {
+    timeConstants: { gate: 0 as Seconds, bridge: (1 / w2) as Seconds, output: (1 / w1) as Seconds },
+    b1: b1 as Seconds,
+    b2: Math.sqrt(1 / (w1 * w2)) as Seconds,
+    octcCorner: (1 / (2 * Math.PI * b1)) as Hertz,
+    dominantPole: fp1 as Hertz,
+    nonDominantPole: fp2 as Hertz,
+    zero,
+    corner: corner as Hertz,
+    dominantPoleHolds,
+  };
+}
+
 /** Node capacitances and resistances the high-frequency formulas used. */
 export interface FrequencyNodes {
   /** Signal source as the gate sees it. */
