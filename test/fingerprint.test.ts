@@ -47,6 +47,18 @@ describe("fingerprint", () => {
     const redim = make("ab").input("RD", 4700, "conductance");
     expect(redim.fingerprint()).not.toBe(make("ab").fingerprint());
   });
+  it("keeps a quantity given twice by different sources with different values (two cards' TOX), and updates one source's own entry", () => {
+    const d = new Derivation("two cards (invented)").input("tox", 7e-9, "length", "card n").input("tox", 9e-9, "length", "card p").input("tox", 7e-9, "length", "card q");
+    expect(d.inputs.map((i) => [i.name, i.value, i.origin])).toEqual([
+      ["tox", 7e-9, "card n"],
+      ["tox (2)", 9e-9, "card p"],
+    ]);
+    d.input("tox", 8e-9, "length", "card p");
+    expect(d.inputs.find((i) => i.origin === "card p")).toMatchObject({ name: "tox (2)", value: 8e-9 });
+    expect(d.inputs).toHaveLength(2);
+    const one = new Derivation("one card").input("tox", 7e-9, "length", "card n");
+    expect(d.fingerprint()).not.toBe(one.fingerprint());
+  });
   it("is carried in toJSON with the schema version", () => {
     const d = make("ab");
     const j = d.toJSON();

@@ -113,9 +113,18 @@ export class Derivation {
   /** Record a given value (a specification, a component, a card parameter). */
   input(name: string, value: number, dim: Dimension, origin?: string, text?: string): this {
     const entry: InputEntry = { name, value, dim, ...(origin ? { origin } : {}), ...(text ? { text } : {}) };
-    const at = this.inputs.findIndex((i) => i.name === name);
-    if (at >= 0) this.inputs[at] = entry;
-    else this.inputs.push(entry);
+    // Entries for this quantity: the name itself, or the name qualified "(2)", "(3)"… for further sources.
+    const same = (i: InputEntry) => i.name === name || (i.name.startsWith(`${name} (`) && /^ \(\d+\)$/.test(i.name.slice(name.length)));
+    const bySource = this.inputs.findIndex((i) => same(i) && i.origin === entry.origin);
+    if (bySource >= 0) this.inputs[bySource] = { ...entry, name: this.inputs[bySource]!.name };
+    else if (!this.inputs.some(same)) this.inputs.push(entry);
+    else if (!this.inputs.some((i) => same(i) && i.value === value)) {
+      // The same quantity from another source with another value (two cards' TOX in one stage): keep both,
+      // so the table and the fingerprint show every value the steps used.
+      let k = 2;
+      while (this.inputs.some((i) => i.name === `${name} (${k})`)) k++;
+      this.inputs.push({ ...entry, name: `${name} (${k})` });
+    }
     return this;
   }
 
