@@ -39,7 +39,7 @@ import { nearestStandard, standardValuesAround, type SeriesName } from "./eserie
 import { analyzeCascodeFrequency, type CascodeFrequencyNodes } from "./frequency-cascode.js";
 import { analyzeMirrorPairFrequency, type MirrorPairFrequency } from "./frequency-pair.js";
 import { analyzeTwoStageFrequency, checkCompensation, twoStageResponse, type CompensationSpec, type TwoStageFrequency } from "./frequency-two-stage.js";
-import { analyzeDiodeLoadFrequency, analyzeMirrorFrequency, type MirrorFrequencyNodes } from "./frequency-two-transistor.js";
+import { analyzeCascodeMirrorFrequency, analyzeDiodeLoadFrequency, analyzeMirrorFrequency, type CascodeMirrorFrequencyNodes, type MirrorFrequencyNodes } from "./frequency-two-transistor.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -58,7 +58,7 @@ export interface FrequencySpec {
   readonly compensation?: CompensationSpec;
 }
 
-export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage" | "drain-feedback" | "current-mirror" | "diode-load";
+export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage" | "drain-feedback" | "current-mirror" | "diode-load" | "cascode-mirror";
 export type CapacitorRole = "input" | "output" | "bypass";
 
 export interface CouplingCapacitor {
@@ -148,6 +148,8 @@ export interface FrequencyAnalysis {
   readonly twoStage?: TwoStageFrequency;
   /** Current mirror only: the gate node and its pole (lib/bias/frequency-two-transistor.ts). */
   readonly mirror?: MirrorFrequencyNodes;
+  /** Cascode current mirror only: node A (stacked), node X and the cascode's output resistance (lib/bias/frequency-two-transistor.ts). */
+  readonly cascodeMirror?: CascodeMirrorFrequencyNodes;
 }
 
 /** Title of the note that opens every frequency record: the run report files such a record under its own heading. */
@@ -169,7 +171,7 @@ export const nonDominantShare = 0.05;
 /** Drain feedback: the largest impedance of the input coupling capacitor at the low corner, over Rsig + 1/gm, for independent poles. */
 export const feedbackInputShortLimit = 0.1;
 
-const supported = ["four-resistor", "fixed-gate", "current-source-bias", "drain-feedback", "source-follower", "current-mirror", "diode-load", "cascode-stage", "diff-pair-mirror-load", "two-stage-miller"] as const;
+const supported = ["four-resistor", "fixed-gate", "current-source-bias", "drain-feedback", "source-follower", "current-mirror", "diode-load", "cascode-stage", "cascode-mirror", "diff-pair-mirror-load", "two-stage-miller"] as const;
 
 const origin = (stage: Stage) => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -248,6 +250,13 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
     const other = (stage.devices as Record<string, Stage["device"]> | undefined)?.[role];
     if (other && !hasCapacitanceData(other.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.${role}.card "${other.card.name}"`, "invalid-design");
     const fa = stage.topology === "current-mirror" ? analyzeMirrorFrequency(stage, analysis, spec, o, rec) : analyzeDiodeLoadFrequency(stage, analysis, spec, o, rec);
+    requireHighTarget(fa, spec, o);
+    return fa;
+  }
+  if (stage.topology === "cascode-mirror") {
+    const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
+    if (cas && !hasCapacitanceData(cas.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.cascode.card "${cas.card.name}"`, "invalid-design");
+    const fa = analyzeCascodeMirrorFrequency(stage, analysis, spec, o, rec);
     requireHighTarget(fa, spec, o);
     return fa;
   }
