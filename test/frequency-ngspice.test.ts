@@ -25,6 +25,7 @@
  * through one comparison helper for the DC-coupled views (`compareUpper`).
  */
 import { describe, expect, it } from "vitest";
+import { frequencyRows } from "../lib/bias/frequency-summary.js";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { analyzeFrequency, type FrequencyAnalysis, type FrequencySpec } from "../lib/bias/frequency.js";
 import { acCircuit } from "../lib/bias/frequency-spice.js";
@@ -553,6 +554,12 @@ describe("cascode current mirror poles against ngspice 39 Level 1 .ac", () => {
     expect(cascodeMirrors.length).toBeGreaterThanOrEqual(40);
     const kinds = new Set(cascodeMirrors.map((k) => `${k.stage.device.card.polarity}/${k.fa.cascodeMirror!.bias}`));
     expect(kinds.size).toBe(4);
+    // The frequency table carries the cascode mirror's own nodes (node A only in the stacked mirror).
+    for (const k of cascodeMirrors) {
+      const names = frequencyRows(k.fa).map((r) => r.name);
+      expect(names).toContain("pole of node X (between M2 and M4)");
+      expect(names.includes("pole of node A (cascode gates)")).toBe(k.fa.cascodeMirror!.bias === "stacked");
+    }
     if (process.env.CM_DEBUG) for (const n of process.env.CM_DEBUG.split(",").map(Number)) console.log(JSON.stringify({ n, gain: cascodeMirrors[n]!.fa.midbandGain, high: cascodeMirrors[n]!.fa.high, mirror: cascodeMirrors[n]!.fa.mirror, cm: cascodeMirrors[n]!.fa.cascodeMirror, nodes: cascodeMirrors[n]!.fa.nodes }));
     const res = simulateAll(cascodeMirrors, "q", { pointsPerDecade: 60, start: 0.01, stop: 1e13 });
     const fails: string[] = [];
