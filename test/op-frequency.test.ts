@@ -128,5 +128,10 @@ describe("pinchoff op with a frequency section", () => {
     const r = await captureCli(main, [write("noload.json", { ...files[0]!.d, frequency: { load: { capacitance: "2 pF" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
     expect(r.code).not.toBe(0);
     expect(`${r.err}`).toMatch(/frequency\.load\.resistance/);
+    // A source resistance or coupling capacitors have no place: the mirror is current-driven and DC-coupled.
+    const src = await captureCli(main, [write("src.json", { ...files[0]!.d, frequency: { source: { resistance: "1 kohm" }, load: { resistance: "100 kohm" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(`${src.err}`).toMatch(/frequency\.source.*ideal signal current/);
+    const caps = await captureCli(main, [write("caps.json", { ...files[0]!.d, frequency: { load: { resistance: "100 kohm" }, capacitors: { output: "1 uF" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(`${caps.err}`).toMatch(/no coupling or bypass capacitors/);
   }, 60_000);
 });

@@ -16,7 +16,13 @@
  *   1/(gmL + gmbL + gdsL) whose own capacitances load the output node (which of
  *   them depends on its type and body tie; the record names them).
  *
- * Both stages are DC-coupled: a load resistor, coupling capacitors or a
+ * - Cascode current mirror (`cascode-mirror`, stacked or wide-swing): driven by an
+ *   ideal signal current into node A (where IREF enters), loaded by RLOAD
+ *   (`frequency.load.resistance`, returned to the source that holds vout) and CL;
+ *   exact nodal transimpedance, node poles and their time-constant sum
+ *   (`analyzeCascodeMirrorFrequency`).
+ *
+ * The first two stages are DC-coupled: a load resistor, coupling capacitors or a
  * low-corner target are refused with an InputError (no low corner exists).
  * Small-signal values are the DC analysis's (public `StageAnalysis.devices`),
  * so a different device model in the solver carries through. Not on a hot
@@ -26,6 +32,7 @@ import { deviceCapacitances, evaluateFormula } from "../device/capacitance.js";
 import { InputError } from "../errors.js";
 import * as bf from "../formulas/bias.formulas.js";
 import * as ff from "../formulas/frequency.formulas.js";
+import * as pf from "../formulas/pair.formulas.js";
 import type { Farads, Hertz, Ohms, Ratio, Seconds } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 import { dominanceRatio, highCornerOf, highFrequency, type FrequencyAnalysis, type FrequencyNodes, type FrequencySpec, type HighFrequencyResponse, frequencyRecordNote } from "./frequency.js";
@@ -222,8 +229,8 @@ export function analyzeCascodeMirrorFrequency(stage: Stage, analysis: StageAnaly
   if (wide) rec?.note("Node A", "The wide-swing mirror's cascode gates sit at vcas: ZA = 0.");
   const ZX = evaluateFormula(ff.cascodeMirrorNodeX, { gmM4: s4.gm, ZA, gmM2: s2.gm, RGM, gdsM4: s4.gds, RLOAD: rl, gdsM2: s2.gds, gmbM4 }, rec);
   const zt = evaluateFormula(ff.cascodeMirrorTransimpedance, { RLOAD: rl, gmM2: s2.gm, RGM, gdsM2: s2.gds, ZX }, rec);
-  const RoutM = evaluateFormula(ff.cascodeMirrorOutputResistance, { gdsM2: s2.gds, gdsM4: s4.gds, gmM4: s4.gm, gmbM4 }, rec);
-  const RLM = evaluateFormula(ff.cascodeMirrorOutputNode, { RLOAD: rl, RoutM }, rec);
+  const RoutM = evaluateFormula(pf.cascodeOutputResistance, { gdsLow: s2.gds, gdsCas: s4.gds, gmCas: s4.gm, gmbCas: gmbM4 }, rec, "M2 under the output cascode M4");
+  const RLM = evaluateFormula(ff.cascodeOutputNodeResistance, { RD: rl, RoutCas: RoutM }, rec, "RLOAD in the place of RD");
   const RXM = evaluateFormula(ff.cascodeMirrorNodeXResistance, { ZX, RLOAD: rl, Zt: zt }, rec, wide ? undefined : "the stacked mirror's X follows node A, so its capacitance takes more of the output current than 1/gm4 suggests");
   // Node capacitances to AC ground, named in the record.
   const sum = (title: string, parts: Record<string, number>) => {
@@ -252,7 +259,7 @@ export function analyzeCascodeMirrorFrequency(stage: Stage, analysis: StageAnaly
     nodeA = { resistance: ZA as Ohms, capacitance: CAM as Farads, pole: fA as Hertz };
   }
   const fX = evaluateFormula(ff.cascodeMirrorNodeXPole, { RXM, CXM }, rec);
-  const fO = evaluateFormula(ff.cascodeMirrorOutputPole, { RLM, COM }, rec);
+  const fO = evaluateFormula(ff.cascodeMirrorOutputPole, { RLP: RLM, COM }, rec);
   const poles = [fG, fX, fO, ...(nodeA ? [nodeA.pole] : [])].sort((x, y) => x - y);
   const tau = (f: number) => 1 / (2 * Math.PI * f);
   rec?.note("Open-circuit time constants", "Each node's RC; their sum is the denominator's first coefficient, the open-circuit time-constant estimate of the corner.");

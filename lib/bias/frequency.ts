@@ -24,8 +24,8 @@
  * follower (drain at its rail); drain feedback (the common source with RF from drain to gate, gate AC-coupled:
  * the exact two-node determinant for the upper poles, and for the low corner the condition that the input
  * coupling capacitor is a short at the corner beside Rsig + 1/gm, checked in the record and met by design);
- * the cascode stage in lib/bias/frequency-cascode.ts; the current mirror and the diode-load stage in
- * lib/bias/frequency-two-transistor.ts. Other topologies are refused with an InputError.
+ * the cascode stage in lib/bias/frequency-cascode.ts; the current mirror, the cascode mirror and the diode-load
+ * stage in lib/bias/frequency-two-transistor.ts. Other topologies are refused with an InputError.
  * Small-signal values are the DC analysis's (square law); device capacitances
  * from lib/device/capacitance.ts. Not on a hot path; allocates its result.
  */

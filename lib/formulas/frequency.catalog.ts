@@ -132,9 +132,7 @@ export const symbols = defineSymbols({
   ZA: { tex: "Z_{A}", dim: "resistance", meaning: "driving-point resistance at the stacked mirror's reference node A (the cascode gates)" },
   ZX: { tex: "Z_{X}", dim: "resistance", meaning: "transresistance from the signal current to the node X between M2 and M4" },
   RXM: { tex: "R_{X}", dim: "resistance", meaning: "resistance node X's capacitance sees (swing at X per unit output current)" },
-  RLM: { tex: "R_{L}'", dim: "resistance", meaning: "total resistance at the cascode mirror's output (RLOAD ∥ the cascode)" },
   RLOAD: { tex: "R_{LOAD}", dim: "resistance", meaning: "load resistor at the output (returned to the bias source that holds the DC output)" },
-  RoutM: { tex: "R_{out}", dim: "resistance", meaning: "output resistance looking into M4's drain" },
   CGM: { tex: "C_{G}", dim: "capacitance", meaning: "capacitance at the lower pair's gate node" },
   CAM: { tex: "C_{A}", dim: "capacitance", meaning: "capacitance at the stacked mirror's node A, Cgd4 Miller-multiplied" },
   CXM: { tex: "C_{X}", dim: "capacitance", meaning: "capacitance at the node X between M2 and M4" },
@@ -347,8 +345,6 @@ export const formulas = defineFormulas({
     source: nodal,
   },
   cascodeMirrorTransimpedance: { title: "Midband transimpedance of the cascode mirror, signal current in to output voltage", result: "Zt", expr: "-RLOAD * (gmM2 * RGM + gdsM2 * ZX)", source: nodal },
-  cascodeMirrorOutputResistance: { title: "Output resistance looking into M4's drain, ro2 + ro4 + (gm4 + gmb4)·ro2·ro4", result: "RoutM", expr: "(gdsM2 + gdsM4 + gmM4 + gmbM4) / (gdsM2 * gdsM4)", source: nodal },
-  cascodeMirrorOutputNode: { title: "Total resistance at the cascode mirror's output", result: "RLM", expr: "1 / (1 / RLOAD + 1 / RoutM)", source: nodal },
   cascodeMirrorNodeXResistance: {
     title: "Resistance node X's capacitance sees: the swing at X per unit output current (its charging current is taken from the output current; ≈ 1/gm4 with the cascode gates held)",
     result: "RXM",
@@ -368,7 +364,7 @@ export const formulas = defineFormulas({
   cascodeMirrorGatePole: { title: "Mirror pole: the lower gate node's RC", result: "fG", expr: "1 / (2 * pi * RGM * CGM)", source: nodal },
   cascodeMirrorNodeAPole: { title: "Pole of the stacked mirror's node A", result: "fA", expr: "1 / (2 * pi * ZA * CAM)", source: nodal },
   cascodeMirrorNodeXPole: { title: "Pole of the node between M2 and M4 (≈ gm4/(2π·CX))", result: "fX", expr: "1 / (2 * pi * RXM * CXM)", source: nodal },
-  cascodeMirrorOutputPole: { title: "Output pole: RLOAD ∥ the cascode with the output capacitance", result: "fO", expr: "1 / (2 * pi * RLM * COM)", source: nodal },
+  cascodeMirrorOutputPole: { title: "Output pole: RLOAD ∥ the cascode with the output capacitance", result: "fO", expr: "1 / (2 * pi * RLP * COM)", source: nodal },
   // common source with a diode-connected load
   diodeLoadResistance: { title: "Small-signal resistance of the diode-connected load", result: "RDL1", expr: "1 / (gmL + gmbL + gdsL)", source: nodal },
   diodeLoadCapacitanceComplementary: {

@@ -1277,34 +1277,6 @@ export const cascodeMirrorTransimpedance = {
   fn: (RLOAD: Ohms, gmM2: Siemens, RGM: Ohms, gdsM2: Siemens, ZX: Ohms): Ohms => ((-RLOAD) * (((gmM2 * RGM) + (gdsM2 * ZX)))) as Ohms,
 } as const satisfies Formula;
 
-/** Output resistance looking into M4's drain, ro2 + ro4 + (gm4 + gmb4)·ro2·ro4: RoutM = (gdsM2 + gdsM4 + gmM4 + gmbM4) / (gdsM2 * gdsM4) */
-export const cascodeMirrorOutputResistance = {
-  id: "cascodeMirrorOutputResistance",
-  title: "Output resistance looking into M4's drain, ro2 + ro4 + (gm4 + gmb4)·ro2·ro4",
-  expr: "(gdsM2 + gdsM4 + gmM4 + gmbM4) / (gdsM2 * gdsM4)",
-  tex: "R_{out} = \\frac{{g_{ds,M2}}+{g_{ds,M4}}+{g_{m,M4}}+{g_{mb,M4}}}{{g_{ds,M2}}\\cdot{g_{ds,M4}}}",
-  result: "RoutM",
-  resultDim: "resistance",
-  vars: ["gdsM2","gdsM4","gmM4","gmbM4"],
-  dims: ["conductance","conductance","conductance","conductance"],
-  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
-  fn: (gdsM2: Siemens, gdsM4: Siemens, gmM4: Siemens, gmbM4: Siemens): Ohms => (((((gdsM2 + gdsM4) + gmM4) + gmbM4)) / ((gdsM2 * gdsM4))) as Ohms,
-} as const satisfies Formula;
-
-/** Total resistance at the cascode mirror's output: RLM = 1 / (1 / RLOAD + 1 / RoutM) */
-export const cascodeMirrorOutputNode = {
-  id: "cascodeMirrorOutputNode",
-  title: "Total resistance at the cascode mirror's output",
-  expr: "1 / (1 / RLOAD + 1 / RoutM)",
-  tex: "R_{L}' = \\frac{1}{\\frac{1}{{R_{LOAD}}}+\\frac{1}{{R_{out}}}}",
-  result: "RLM",
-  resultDim: "resistance",
-  vars: ["RLOAD","RoutM"],
-  dims: ["resistance","resistance"],
-  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
-  fn: (RLOAD: Ohms, RoutM: Ohms): Ohms => (1 / (((1 / RLOAD) + (1 / RoutM)))) as Ohms,
-} as const satisfies Formula;
-
 /** Resistance node X's capacitance sees: the swing at X per unit output current (its charging current is taken from the output current; ≈ 1/gm4 with the cascode gates held): RXM = abs(ZX) * RLOAD / abs(Zt) */
 export const cascodeMirrorNodeXResistance = {
   id: "cascodeMirrorNodeXResistance",
@@ -1431,18 +1403,18 @@ export const cascodeMirrorNodeXPole = {
   fn: (RXM: Ohms, CXM: Farads): Hertz => (1 / ((((2 * Math.PI) * RXM) * CXM))) as Hertz,
 } as const satisfies Formula;
 
-/** Output pole: RLOAD ∥ the cascode with the output capacitance: fO = 1 / (2 * pi * RLM * COM) */
+/** Output pole: RLOAD ∥ the cascode with the output capacitance: fO = 1 / (2 * pi * RLP * COM) */
 export const cascodeMirrorOutputPole = {
   id: "cascodeMirrorOutputPole",
   title: "Output pole: RLOAD ∥ the cascode with the output capacitance",
-  expr: "1 / (2 * pi * RLM * COM)",
+  expr: "1 / (2 * pi * RLP * COM)",
   tex: "f_{O} = \\frac{1}{2\\cdot\\pi\\cdot{R_{L}'}\\cdot{C_{O}}}",
   result: "fO",
   resultDim: "frequency",
-  vars: ["RLM","COM"],
+  vars: ["RLP","COM"],
   dims: ["resistance","capacitance"],
   source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
-  fn: (RLM: Ohms, COM: Farads): Hertz => (1 / ((((2 * Math.PI) * RLM) * COM))) as Hertz,
+  fn: (RLP: Ohms, COM: Farads): Hertz => (1 / ((((2 * Math.PI) * RLP) * COM))) as Hertz,
 } as const satisfies Formula;
 
 /** Small-signal resistance of the diode-connected load: RDL1 = 1 / (gmL + gmbL + gdsL) */
