@@ -47,7 +47,7 @@ import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 export interface FrequencySpec {
   /** Signal source: its resistance (0 Ω, an ideal voltage source, when omitted). Only a resistance is accepted. */
   readonly source?: { readonly resistance: Ohms };
-  /** Load: a resistor behind the output coupling capacitor and/or a capacitance at the output. */
+  /** Load: a resistor behind the output coupling capacitor (the cascode mirror: RLOAD returned to the source that holds vout) and/or a capacitance at the output. */
   readonly load?: { readonly resistance?: Ohms; readonly capacitance?: Farads };
   /** Coupling and bypass capacitors; omitted ones are designed for `targets.lowCorner` or taken as ideal. */
   readonly capacitors?: { readonly input?: Farads; readonly output?: Farads; readonly bypass?: Farads };
