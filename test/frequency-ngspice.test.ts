@@ -21,10 +21,11 @@
  * designed capacitors always meet it. Further sections: the cascode stage (its dominant
  * pole where one pole dominates and the capacitance across the cascode device does not
  * exceed the output capacitance, both checked in its record), the pair with a mirror
- * load, the current mirror driven by a signal current and the diode-load stage, all
+ * load, the current mirror and the cascode mirror (stacked and wide-swing) driven by a signal current and the diode-load stage, all
  * through one comparison helper for the DC-coupled views (`compareUpper`).
  */
 import { describe, expect, it } from "vitest";
+import { frequencyRows } from "../lib/bias/frequency-summary.js";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { analyzeFrequency, type FrequencyAnalysis, type FrequencySpec } from "../lib/bias/frequency.js";
 import { acCircuit } from "../lib/bias/frequency-spice.js";
@@ -503,6 +504,74 @@ describe("current mirror and diode-load stage poles against ngspice 39 Level 1 .
     const fails: string[] = [];
     const stats = compareUpper(diodeLoads, res, (k, i) => `diode-load ${k.stage.device.card.polarity}/${k.stage.devices!.load!.card.polarity} body ${k.stage.body} #${i}`, fails);
     console.log(`diode-load oracle: ${JSON.stringify(stats)}`);
+    expect(fails).toEqual([]);
+    expect(stats.dom).toBeGreaterThanOrEqual(20);
+  }, 120_000);
+});
+
+// ---- cascode current mirror (stacked and wide-swing, NMOS and PMOS) driven by a signal current into its reference
+// node, loaded by RLOAD returned to the output source and CL. Invented seeded cards and stages (ngspice 39 Level 1 .ac).
+function randomCascodeMirror(i: number): Case | undefined {
+  const pol: Polarity = i % 2 === 0 ? "nmos" : "pmos";
+  const c1 = card(pol, 8000 + i);
+  const c3 = card(pol, 9000 + i);
+  if (!c1.capacitance || !c3.capacitance) return undefined;
+  const vdd = uni(3, 12);
+  const w1 = logu(2e-6, 200e-6);
+  const l1 = logu(0.5e-6, 4e-6);
+  const w3 = logu(2e-6, 200e-6);
+  const l3 = logu(0.5e-6, 4e-6);
+  const iref = logu(2e-6, 300e-6);
+  const vov1 = Math.sqrt((2 * iref) / ((c1.kp as number) * (w1 / l1)));
+  const vov3 = Math.sqrt((2 * iref) / ((c3.kp as number) * (w3 / l3)));
+  const wide = Math.floor(i / 2) % 2 === 0;
+  const vcas = Math.abs(c3.vt0) + 0.2 + vov3 + vov1 + uni(0.1, 0.3);
+  const vout = uni(0.4, 0.95) * vdd;
+  const abs = (v: number) => (pol === "nmos" ? v : vdd - v);
+  const components: Record<string, number> = { iref, vout: abs(vout) };
+  if (wide) components.vcas = abs(vcas);
+  const stage: Stage = {
+    topology: "cascode-mirror",
+    name: `q${i}`,
+    device: { card: c1, w: meters(w1), l: meters(l1) },
+    devices: { cascode: { card: c3, w: meters(w3), l: meters(l3) } },
+    components,
+    supplies: { vdd: volts(vdd) },
+    body: pick(["source", "rail"] as const),
+  } as never;
+  return caseOf(
+    stage,
+    // M2, the stage's main device, is the analysis itself.
+    (dc) => [dc, dc.devices?.M1, dc.devices?.M3, dc.devices?.M4].every((d) => d?.region === "saturation" && d.op.saturationMargin >= 0.2 && d.op.vov >= 0.05),
+    () => ({ load: { resistance: ohms(logu(1e3, 1e6)), capacitance: farads(rand() < 0.2 ? 0 : logu(0.1e-12, 20e-12)) } }),
+  );
+}
+
+const cascodeMirrors = collectCases(60, randomCascodeMirror);
+
+describe("cascode current mirror poles against ngspice 39 Level 1 .ac", () => {
+  it("transimpedance within 1e-6 and dominant pole within 10 % where one pole dominates, stacked and wide-swing, NMOS and PMOS", () => {
+    expect(cascodeMirrors.length).toBeGreaterThanOrEqual(40);
+    const kinds = new Set(cascodeMirrors.map((k) => `${k.stage.device.card.polarity}/${k.fa.cascodeMirror!.bias}`));
+    expect(kinds.size).toBe(4);
+    // The frequency table carries the cascode mirror's own nodes (node A only in the stacked mirror).
+    for (const k of cascodeMirrors) {
+      const names = frequencyRows(k.fa).map((r) => r.name);
+      expect(names).toContain("pole of node X (between M2 and M4)");
+      expect(names.includes("pole of node A (cascode gates)")).toBe(k.fa.cascodeMirror!.bias === "stacked");
+    }
+    if (process.env.CM_DEBUG) for (const n of process.env.CM_DEBUG.split(",").map(Number)) console.log(JSON.stringify({ n, gain: cascodeMirrors[n]!.fa.midbandGain, high: cascodeMirrors[n]!.fa.high, mirror: cascodeMirrors[n]!.fa.mirror, cm: cascodeMirrors[n]!.fa.cascodeMirror, nodes: cascodeMirrors[n]!.fa.nodes }));
+    const res = simulateAll(cascodeMirrors, "q", { pointsPerDecade: 60, start: 0.01, stop: 1e13 });
+    const fails: string[] = [];
+    const label = (k: Case, i: number) => `cascode mirror ${k.stage.device.card.polarity} ${k.fa.cascodeMirror!.bias} body ${k.stage.body} #${i}`;
+    const stats = compareUpper(cascodeMirrors, res, label, fails, false);
+    let worstZt = 0;
+    cascodeMirrors.forEach((k, i) => {
+      const z = rel(res.mag[i]![0]!, Math.abs(k.fa.midbandGain));
+      worstZt = Math.max(worstZt, z);
+      if (!(z <= 1e-6)) fails.push(`${label(k, i)}: transimpedance ${k.fa.midbandGain} vs ngspice ${res.mag[i]![0]} at ${res.freq[0]} Hz`);
+    });
+    console.log(`cascode mirror oracle: ${JSON.stringify({ ...stats, worstZt })}`);
     expect(fails).toEqual([]);
     expect(stats.dom).toBeGreaterThanOrEqual(20);
   }, 120_000);

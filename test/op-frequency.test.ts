@@ -101,4 +101,37 @@ describe("pinchoff op with a frequency section", () => {
       expect(t.out).toMatch(new RegExp(`Frequency response \\(${f.view}`));
     }
   }, 60_000);
+  it("analyses the cascode current mirror, stacked and wide-swing, with RLOAD and CL from the frequency section", async () => {
+    const card = design.device.card;
+    const base = { topology: "cascode-mirror", device: { card, w: "20 um", l: "2 um" }, devices: { cascode: { card, w: "20 um", l: "1 um" } }, supplies: { vdd: "5 V" }, frequency: { load: { resistance: "100 kohm", capacitance: "2 pF" } } };
+    const files = [
+      { bias: "stacked", d: { ...base, name: "sensor bias mirror (invented)", components: { iref: "50 uA", vout: "3 V" } } },
+      { bias: "wide-swing", d: { ...base, name: "low-headroom mirror (invented)", components: { iref: "50 uA", vout: "2 V", vcas: "1.6 V" } } },
+    ];
+    for (const f of files) {
+      const r = await captureCli(main, [write(`${f.bias}.json`, f.d), "--json"]);
+      expect(r.err).toBe("");
+      expect(r.code).toBe(0);
+      const j = JSON.parse(r.out);
+      expect(j.frequency.view).toBe("cascode-mirror");
+      expect(j.frequency.cascodeMirror.bias).toBe(f.bias);
+      expect(j.frequency.drive).toBe("current");
+      // Transimpedance ≈ −RLOAD for a 1:1 mirror whose cascode resistance is far above RLOAD; output pole 1/(2π·RLOAD·CO), CO ≥ CL.
+      expect(j.frequency.midbandGain).toBeLessThan(-0.9e5);
+      expect(j.frequency.midbandGain).toBeGreaterThan(-1.01e5);
+      expect(j.frequency.mirror.outputPole).toBeLessThan(1 / (2 * Math.PI * 100e3 * 2e-12));
+      expect(j.frequency.high.corner).toBeGreaterThan(0.5 / (2 * Math.PI * 100e3 * 2e-12));
+      const t = await captureCli(main, [write(`${f.bias}.json`, f.d), "--text"]);
+      expect(t.out).toMatch(/Frequency response \(cascode-mirror/);
+    }
+    // Without a load resistance the output is held by an ideal source: refused, naming the field.
+    const r = await captureCli(main, [write("noload.json", { ...files[0]!.d, frequency: { load: { capacitance: "2 pF" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(r.code).not.toBe(0);
+    expect(`${r.err}`).toMatch(/frequency\.load\.resistance/);
+    // A source resistance or coupling capacitors have no place: the mirror is current-driven and DC-coupled.
+    const src = await captureCli(main, [write("src.json", { ...files[0]!.d, frequency: { source: { resistance: "1 kohm" }, load: { resistance: "100 kohm" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(`${src.err}`).toMatch(/frequency\.source.*ideal signal current/);
+    const caps = await captureCli(main, [write("caps.json", { ...files[0]!.d, frequency: { load: { resistance: "100 kohm" }, capacitors: { output: "1 uF" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(`${caps.err}`).toMatch(/no coupling or bypass capacitors/);
+  }, 60_000);
 });

@@ -66,6 +66,25 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     if (fa.load.capacitance > 0) lines.push(`C${p}L ${nn.out} 0 ${spiceNumber(fa.load.capacitance)}`);
     return { lines, output: nn.out!, sweep };
   }
+  if (fa.view === "cascode-mirror") {
+    // Signal current into node A (where IREF enters); RLOAD returned to the output source, whose DC value moves by
+    // IOUT·RLOAD so the output still sits at vout (the bias is untouched).
+    const nn = dc.nodes as Record<string, string>;
+    const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
+    if (!stage.device.card.capacitance || !cas?.card.capacitance)
+      throw new InputError(stage.device.card.name, "Level 1 capacitance blocks on the mirror and cascode cards for the AC export (datasheet capacitances are not placed in a cascode mirror's deck)", `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
+    const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === nn.out && l.split(" ")[2] === "0");
+    const m4 = analysis.devices?.M4;
+    if (i < 0 || !m4) throw new Error(`internal: no output source at node ${nn.out} in the cascode-mirror deck`);
+    const vout = (stage.components as Record<string, number>).vout!;
+    const sign = stage.device.card.polarity === "nmos" ? 1 : -1;
+    const rl = fa.load.resistance!;
+    const name = lines[i]!.split(" ")[0]!;
+    lines[i] = `${name} ${p}outb 0 ${spiceNumber(vout + sign * Math.abs(m4.op.channelCurrent) * rl)}`;
+    lines.push(`R${p}LOAD ${p}outb ${nn.out} ${spiceNumber(rl)}`, `I${p}SIG 0 ${nn.a} DC 0 AC 1`);
+    if (fa.load.capacitance > 0) lines.push(`C${p}L ${nn.out} 0 ${spiceNumber(fa.load.capacitance)}`);
+    return { lines, output: nn.out!, sweep };
+  }
   if (fa.drive === "current") {
     // Current mirror: an ideal AC current into the reference (gate) node; DC 0, so the bias is untouched.
     lines.push(`I${p}SIG 0 ${n.gate} DC 0 AC 1`);

@@ -41,6 +41,12 @@ export function frequencyRows(fa: FrequencyAnalysis): FrequencyRow[] {
   if (h.miller && Number.isFinite(h.miller.inputPole)) rows.push({ name: "Miller input pole", value: h.miller.inputPole, dim: "frequency", note: `Miller capacitance ${sig(h.miller.capacitance)} F` });
   if (fa.mirror) rows.push({ name: "mirror pole", value: fa.mirror.mirrorPole, dim: "frequency", note: `gate node: ${sig(fa.mirror.gateResistance)} Ω, ${sig(fa.mirror.gateCapacitance)} F` });
   if (fa.cascode) rows.push({ name: "node pole between the devices", value: fa.cascode.nodePole, dim: "frequency", note: `Miller factor 1 + gm1·RX = ${sig(1 + fa.cascode.gainToX)}` });
+  const cm = fa.cascodeMirror;
+  if (cm) {
+    if (cm.nodeA) rows.push({ name: "pole of node A (cascode gates)", value: cm.nodeA.pole, dim: "frequency", note: `${sig(cm.nodeA.resistance)} Ω, ${sig(cm.nodeA.capacitance)} F with Cgd4's Miller share` });
+    rows.push({ name: "pole of node X (between M2 and M4)", value: cm.nodeX.pole, dim: "frequency", note: `${sig(cm.nodeX.resistance)} Ω, ${sig(cm.nodeX.capacitance)} F` });
+    if (fa.mirror) rows.push({ name: "output pole", value: fa.mirror.outputPole, dim: "frequency", note: `RLOAD ∥ the cascode (${sig(cm.cascodeResistance)} Ω looking into M4), ${cm.bias} bias` });
+  }
   if (fa.pair) {
     rows.push({ name: "gain-bandwidth product", value: fa.pair.gainBandwidth, dim: "frequency" });
     if (fa.pair.phaseMargin !== undefined) rows.push({ name: "phase margin", value: fa.pair.phaseMargin, dim: "dimensionless", note: "degrees" });

@@ -24,8 +24,8 @@
  * follower (drain at its rail); drain feedback (the common source with RF from drain to gate, gate AC-coupled:
  * the exact two-node determinant for the upper poles, and for the low corner the condition that the input
  * coupling capacitor is a short at the corner beside Rsig + 1/gm, checked in the record and met by design);
- * the cascode stage in lib/bias/frequency-cascode.ts; the current mirror and the diode-load stage in
- * lib/bias/frequency-two-transistor.ts. Other topologies are refused with an InputError.
+ * the cascode stage in lib/bias/frequency-cascode.ts; the current mirror, the cascode mirror and the diode-load
+ * stage in lib/bias/frequency-two-transistor.ts. Other topologies are refused with an InputError.
  * Small-signal values are the DC analysis's (square law); device capacitances
  * from lib/device/capacitance.ts. Not on a hot path; allocates its result.
  */
@@ -39,7 +39,7 @@ import { nearestStandard, standardValuesAround, type SeriesName } from "./eserie
 import { analyzeCascodeFrequency, type CascodeFrequencyNodes } from "./frequency-cascode.js";
 import { analyzeMirrorPairFrequency, type MirrorPairFrequency } from "./frequency-pair.js";
 import { analyzeTwoStageFrequency, checkCompensation, twoStageResponse, type CompensationSpec, type TwoStageFrequency } from "./frequency-two-stage.js";
-import { analyzeDiodeLoadFrequency, analyzeMirrorFrequency, type MirrorFrequencyNodes } from "./frequency-two-transistor.js";
+import { analyzeCascodeMirrorFrequency, analyzeDiodeLoadFrequency, analyzeMirrorFrequency, type CascodeMirrorFrequencyNodes, type MirrorFrequencyNodes } from "./frequency-two-transistor.js";
 import { stageCheck } from "./metrics.js";
 import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 
@@ -47,7 +47,7 @@ import type { Stage, StageAnalysis, StageCheck } from "./topology.js";
 export interface FrequencySpec {
   /** Signal source: its resistance (0 Ω, an ideal voltage source, when omitted). Only a resistance is accepted. */
   readonly source?: { readonly resistance: Ohms };
-  /** Load: a resistor behind the output coupling capacitor and/or a capacitance at the output. */
+  /** Load: a resistor behind the output coupling capacitor (the cascode mirror: RLOAD returned to the source that holds vout) and/or a capacitance at the output. */
   readonly load?: { readonly resistance?: Ohms; readonly capacitance?: Farads };
   /** Coupling and bypass capacitors; omitted ones are designed for `targets.lowCorner` or taken as ideal. */
   readonly capacitors?: { readonly input?: Farads; readonly output?: Farads; readonly bypass?: Farads };
@@ -58,7 +58,7 @@ export interface FrequencySpec {
   readonly compensation?: CompensationSpec;
 }
 
-export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage" | "drain-feedback" | "current-mirror" | "diode-load";
+export type FrequencyView = "common-source" | "source-follower" | "cascode" | "differential-pair" | "two-stage" | "drain-feedback" | "current-mirror" | "diode-load" | "cascode-mirror";
 export type CapacitorRole = "input" | "output" | "bypass";
 
 export interface CouplingCapacitor {
@@ -170,6 +170,8 @@ export interface FrequencyAnalysis {
   readonly twoStage?: TwoStageFrequency;
   /** Current mirror only: the gate node and its pole (lib/bias/frequency-two-transistor.ts). */
   readonly mirror?: MirrorFrequencyNodes;
+  /** Cascode current mirror only: node A (stacked), node X and the cascode's output resistance (lib/bias/frequency-two-transistor.ts). */
+  readonly cascodeMirror?: CascodeMirrorFrequencyNodes;
 }
 
 /** Title of the note that opens every frequency record: the run report files such a record under its own heading. */
@@ -191,7 +193,7 @@ export const nonDominantShare = 0.05;
 /** Drain feedback: the largest impedance of the input coupling capacitor at the low corner, over Rsig + 1/gm, for independent poles. */
 export const feedbackInputShortLimit = 0.1;
 
-const supported = ["four-resistor", "fixed-gate", "current-source-bias", "drain-feedback", "source-follower", "current-mirror", "diode-load", "cascode-stage", "diff-pair-mirror-load", "two-stage-miller"] as const;
+const supported = ["four-resistor", "fixed-gate", "current-source-bias", "drain-feedback", "source-follower", "current-mirror", "diode-load", "cascode-stage", "cascode-mirror", "diff-pair-mirror-load", "two-stage-miller"] as const;
 
 const origin = (stage: Stage) => (stage.name ? `stage "${stage.name}"` : `${stage.topology} stage`);
 
@@ -270,6 +272,13 @@ export function analyzeFrequency(anyStage: Stage<string, object>, analysis: Stag
     const other = (stage.devices as Record<string, Stage["device"]> | undefined)?.[role];
     if (other && !hasCapacitanceData(other.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.${role}.card "${other.card.name}"`, "invalid-design");
     const fa = stage.topology === "current-mirror" ? analyzeMirrorFrequency(stage, analysis, spec, o, rec) : analyzeDiodeLoadFrequency(stage, analysis, spec, o, rec);
+    requireHighTarget(fa, spec, o);
+    return fa;
+  }
+  if (stage.topology === "cascode-mirror") {
+    const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
+    if (cas && !hasCapacitanceData(cas.card)) throw new InputError(undefined, missingCapacitanceHelp, `${o}: devices.cascode.card "${cas.card.name}"`, "invalid-design");
+    const fa = analyzeCascodeMirrorFrequency(stage, analysis, spec, o, rec);
     requireHighTarget(fa, spec, o);
     return fa;
   }

@@ -1207,6 +1207,216 @@ export const mirrorGatePole = {
   fn: (Rm: Ohms, CGI: Farads): Hertz => (1 / ((((2 * Math.PI) * Rm) * CGI))) as Hertz,
 } as const satisfies Formula;
 
+/** Stacked cascode mirror: resistance at the lower gate node (M1 diode-connected; M3 passes the signal current through): RGM = 1 / (gmM1 + gdsM1) */
+export const cascodeMirrorGateResistanceStacked = {
+  id: "cascodeMirrorGateResistanceStacked",
+  title: "Stacked cascode mirror: resistance at the lower gate node (M1 diode-connected; M3 passes the signal current through)",
+  expr: "1 / (gmM1 + gdsM1)",
+  tex: "R_{G} = \\frac{1}{{g_{m,M1}}+{g_{ds,M1}}}",
+  result: "RGM",
+  resultDim: "resistance",
+  vars: ["gmM1","gdsM1"],
+  dims: ["conductance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gmM1: Siemens, gdsM1: Siemens): Ohms => (1 / ((gmM1 + gdsM1))) as Ohms,
+} as const satisfies Formula;
+
+/** Wide-swing cascode mirror: resistance at node A (M1/M2 gates and M3's drain; M3's gate held), ≈ 1/gmM1: RGM = 1 / (gmM1 + gdsM1 * (gdsM3 - gmM1) / (gdsM1 + gmM3 + gmbM3 + gdsM3)) */
+export const cascodeMirrorGateResistanceWide = {
+  id: "cascodeMirrorGateResistanceWide",
+  title: "Wide-swing cascode mirror: resistance at node A (M1/M2 gates and M3's drain; M3's gate held), ≈ 1/gmM1",
+  expr: "1 / (gmM1 + gdsM1 * (gdsM3 - gmM1) / (gdsM1 + gmM3 + gmbM3 + gdsM3))",
+  tex: "R_{G} = \\frac{1}{{g_{m,M1}}+\\frac{{g_{ds,M1}}\\cdot\\left({g_{ds,M3}}-{g_{m,M1}}\\right)}{{g_{ds,M1}}+{g_{m,M3}}+{g_{mb,M3}}+{g_{ds,M3}}}}",
+  result: "RGM",
+  resultDim: "resistance",
+  vars: ["gmM1","gdsM1","gdsM3","gmM3","gmbM3"],
+  dims: ["conductance","conductance","conductance","conductance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gmM1: Siemens, gdsM1: Siemens, gdsM3: Siemens, gmM3: Siemens, gmbM3: Siemens): Ohms => (1 / ((gmM1 + ((gdsM1 * ((gdsM3 - gmM1))) / ((((gdsM1 + gmM3) + gmbM3) + gdsM3)))))) as Ohms,
+} as const satisfies Formula;
+
+/** Stacked cascode mirror: driving-point resistance at node A (the cascode gates), ≈ 1/gmM1 + 1/gmM3: ZA = RGM + (1 + gmbM3 * RGM) / (gmM3 + gdsM3) */
+export const cascodeMirrorNodeA = {
+  id: "cascodeMirrorNodeA",
+  title: "Stacked cascode mirror: driving-point resistance at node A (the cascode gates), ≈ 1/gmM1 + 1/gmM3",
+  expr: "RGM + (1 + gmbM3 * RGM) / (gmM3 + gdsM3)",
+  tex: "Z_{A} = {R_{G}}+\\frac{1+{g_{mb,M3}}\\cdot{R_{G}}}{{g_{m,M3}}+{g_{ds,M3}}}",
+  result: "ZA",
+  resultDim: "resistance",
+  vars: ["RGM","gmbM3","gmM3","gdsM3"],
+  dims: ["resistance","conductance","conductance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RGM: Ohms, gmbM3: Siemens, gmM3: Siemens, gdsM3: Siemens): Ohms => (RGM + (((1 + (gmbM3 * RGM))) / ((gmM3 + gdsM3)))) as Ohms,
+} as const satisfies Formula;
+
+/** Transresistance to the node X between M2 and M4 (ZA = 0 in the wide-swing mirror: M4's gate held): ZX = (gmM4 * ZA - gmM2 * RGM * (1 + gdsM4 * RLOAD)) / (gdsM2 * (1 + gdsM4 * RLOAD) + gmM4 + gmbM4 + gdsM4) */
+export const cascodeMirrorNodeX = {
+  id: "cascodeMirrorNodeX",
+  title: "Transresistance to the node X between M2 and M4 (ZA = 0 in the wide-swing mirror: M4's gate held)",
+  expr: "(gmM4 * ZA - gmM2 * RGM * (1 + gdsM4 * RLOAD)) / (gdsM2 * (1 + gdsM4 * RLOAD) + gmM4 + gmbM4 + gdsM4)",
+  tex: "Z_{X} = \\frac{{g_{m,M4}}\\cdot{Z_{A}}-{g_{m,M2}}\\cdot{R_{G}}\\cdot\\left(1+{g_{ds,M4}}\\cdot{R_{LOAD}}\\right)}{{g_{ds,M2}}\\cdot\\left(1+{g_{ds,M4}}\\cdot{R_{LOAD}}\\right)+{g_{m,M4}}+{g_{mb,M4}}+{g_{ds,M4}}}",
+  result: "ZX",
+  resultDim: "resistance",
+  vars: ["gmM4","ZA","gmM2","RGM","gdsM4","RLOAD","gdsM2","gmbM4"],
+  dims: ["conductance","resistance","conductance","resistance","conductance","resistance","conductance","conductance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (gmM4: Siemens, ZA: Ohms, gmM2: Siemens, RGM: Ohms, gdsM4: Siemens, RLOAD: Ohms, gdsM2: Siemens, gmbM4: Siemens): Ohms => ((((gmM4 * ZA) - ((gmM2 * RGM) * ((1 + (gdsM4 * RLOAD)))))) / (((((gdsM2 * ((1 + (gdsM4 * RLOAD)))) + gmM4) + gmbM4) + gdsM4))) as Ohms,
+} as const satisfies Formula;
+
+/** Midband transimpedance of the cascode mirror, signal current in to output voltage: Zt = -RLOAD * (gmM2 * RGM + gdsM2 * ZX) */
+export const cascodeMirrorTransimpedance = {
+  id: "cascodeMirrorTransimpedance",
+  title: "Midband transimpedance of the cascode mirror, signal current in to output voltage",
+  expr: "-RLOAD * (gmM2 * RGM + gdsM2 * ZX)",
+  tex: "Z_{t} = -{R_{LOAD}}\\cdot\\left({g_{m,M2}}\\cdot{R_{G}}+{g_{ds,M2}}\\cdot{Z_{X}}\\right)",
+  result: "Zt",
+  resultDim: "resistance",
+  vars: ["RLOAD","gmM2","RGM","gdsM2","ZX"],
+  dims: ["resistance","conductance","resistance","conductance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RLOAD: Ohms, gmM2: Siemens, RGM: Ohms, gdsM2: Siemens, ZX: Ohms): Ohms => ((-RLOAD) * (((gmM2 * RGM) + (gdsM2 * ZX)))) as Ohms,
+} as const satisfies Formula;
+
+/** Resistance node X's capacitance sees: the swing at X per unit output current (its charging current is taken from the output current; ≈ 1/gm4 with the cascode gates held): RXM = abs(ZX) * RLOAD / abs(Zt) */
+export const cascodeMirrorNodeXResistance = {
+  id: "cascodeMirrorNodeXResistance",
+  title: "Resistance node X's capacitance sees: the swing at X per unit output current (its charging current is taken from the output current; ≈ 1/gm4 with the cascode gates held)",
+  expr: "abs(ZX) * RLOAD / abs(Zt)",
+  tex: "R_{X} = \\frac{\\left|{Z_{X}}\\right|\\cdot{R_{LOAD}}}{\\left|{Z_{t}}\\right|}",
+  result: "RXM",
+  resultDim: "resistance",
+  vars: ["ZX","RLOAD","Zt"],
+  dims: ["resistance","resistance","resistance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (ZX: Ohms, RLOAD: Ohms, Zt: Ohms): Ohms => ((Math.abs(ZX) * RLOAD) / Math.abs(Zt)) as Ohms,
+} as const satisfies Formula;
+
+/** Capacitance at the stacked mirror's node A, M4's gate-drain capacitance multiplied by the gain 1 + |Zt|/ZA to the output (Miller): CAM = CjM + CgdM4 * (1 + abs(Zt) / ZA) */
+export const cascodeMirrorNodeACapacitance = {
+  id: "cascodeMirrorNodeACapacitance",
+  title: "Capacitance at the stacked mirror's node A, M4's gate-drain capacitance multiplied by the gain 1 + |Zt|/ZA to the output (Miller)",
+  expr: "CjM + CgdM4 * (1 + abs(Zt) / ZA)",
+  tex: "C_{A} = {C_{j}}+{C_{gd,M4}}\\cdot\\left(1+\\frac{\\left|{Z_{t}}\\right|}{{Z_{A}}}\\right)",
+  result: "CAM",
+  resultDim: "capacitance",
+  vars: ["CjM","CgdM4","Zt","ZA"],
+  dims: ["capacitance","capacitance","resistance","resistance"],
+  source: "Miller approximation (J. M. Miller, Scientific Papers of the Bureau of Standards 15(351), 1920)",
+  fn: (CjM: Farads, CgdM4: Farads, Zt: Ohms, ZA: Ohms): Farads => (CjM + (CgdM4 * ((1 + (Math.abs(Zt) / ZA))))) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance at the cascode mirror's output, M4's body at the rail: the load, M4's drain junction and gate-drain capacitance: COM = CL + Cdb + CgdM4 */
+export const cascodeMirrorOutputCapacitance = {
+  id: "cascodeMirrorOutputCapacitance",
+  title: "Capacitance at the cascode mirror's output, M4's body at the rail: the load, M4's drain junction and gate-drain capacitance",
+  expr: "CL + Cdb + CgdM4",
+  tex: "C_{O} = {C_{L}}+{C_{db}}+{C_{gd,M4}}",
+  result: "COM",
+  resultDim: "capacitance",
+  vars: ["CL","Cdb","CgdM4"],
+  dims: ["capacitance","capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, Cdb: Farads, CgdM4: Farads): Farads => ((CL + Cdb) + CgdM4) as Farads,
+} as const satisfies Formula;
+
+/** Capacitance at the cascode mirror's output, M4's body at its source: the load and M4's gate-drain capacitance (the drain junction's current returns to the output through M4's channel, so it sits on node X): COM = CL + CgdM4 */
+export const cascodeMirrorOutputCapacitanceTied = {
+  id: "cascodeMirrorOutputCapacitanceTied",
+  title: "Capacitance at the cascode mirror's output, M4's body at its source: the load and M4's gate-drain capacitance (the drain junction's current returns to the output through M4's channel, so it sits on node X)",
+  expr: "CL + CgdM4",
+  tex: "C_{O} = {C_{L}}+{C_{gd,M4}}",
+  result: "COM",
+  resultDim: "capacitance",
+  vars: ["CL","CgdM4"],
+  dims: ["capacitance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (CL: Farads, CgdM4: Farads): Farads => (CL + CgdM4) as Farads,
+} as const satisfies Formula;
+
+/** Sum of the node time constants (first coefficient of the denominator): b1 = tauG + tauA + tauX + tauO */
+export const cascodeMirrorTimeConstantSum = {
+  id: "cascodeMirrorTimeConstantSum",
+  title: "Sum of the node time constants (first coefficient of the denominator)",
+  expr: "tauG + tauA + tauX + tauO",
+  tex: "b_{1} = {\\tau_{G}}+{\\tau_{A}}+{\\tau_{X}}+{\\tau_{O}}",
+  result: "b1",
+  resultDim: "time",
+  vars: ["tauG","tauA","tauX","tauO"],
+  dims: ["time","time","time","time"],
+  source: "open-circuit time-constant method (R. B. Adler, P. E. Gray, C. L. Searle; Gray & Searle, Electronic Principles, Wiley, 1969; common practice)",
+  fn: (tauG: Seconds, tauA: Seconds, tauX: Seconds, tauO: Seconds): Seconds => (((tauG + tauA) + tauX) + tauO) as Seconds,
+} as const satisfies Formula;
+
+/** Second coefficient of the denominator with the nodes taken as independent (√ of the sum of the pairwise products): b2 = sqrt(tauG * tauA + tauG * tauX + tauG * tauO + tauA * tauX + tauA * tauO + tauX * tauO) */
+export const cascodeMirrorB2 = {
+  id: "cascodeMirrorB2",
+  title: "Second coefficient of the denominator with the nodes taken as independent (√ of the sum of the pairwise products)",
+  expr: "sqrt(tauG * tauA + tauG * tauX + tauG * tauO + tauA * tauX + tauA * tauO + tauX * tauO)",
+  tex: "b_{2} = \\sqrt{{\\tau_{G}}\\cdot{\\tau_{A}}+{\\tau_{G}}\\cdot{\\tau_{X}}+{\\tau_{G}}\\cdot{\\tau_{O}}+{\\tau_{A}}\\cdot{\\tau_{X}}+{\\tau_{A}}\\cdot{\\tau_{O}}+{\\tau_{X}}\\cdot{\\tau_{O}}}",
+  result: "b2",
+  resultDim: "time",
+  vars: ["tauG","tauA","tauX","tauO"],
+  dims: ["time","time","time","time"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (tauG: Seconds, tauA: Seconds, tauX: Seconds, tauO: Seconds): Seconds => Math.sqrt(((((((tauG * tauA) + (tauG * tauX)) + (tauG * tauO)) + (tauA * tauX)) + (tauA * tauO)) + (tauX * tauO))) as Seconds,
+} as const satisfies Formula;
+
+/** Mirror pole: the lower gate node's RC: fG = 1 / (2 * pi * RGM * CGM) */
+export const cascodeMirrorGatePole = {
+  id: "cascodeMirrorGatePole",
+  title: "Mirror pole: the lower gate node's RC",
+  expr: "1 / (2 * pi * RGM * CGM)",
+  tex: "f_{G} = \\frac{1}{2\\cdot\\pi\\cdot{R_{G}}\\cdot{C_{G}}}",
+  result: "fG",
+  resultDim: "frequency",
+  vars: ["RGM","CGM"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RGM: Ohms, CGM: Farads): Hertz => (1 / ((((2 * Math.PI) * RGM) * CGM))) as Hertz,
+} as const satisfies Formula;
+
+/** Pole of the stacked mirror's node A: fA = 1 / (2 * pi * ZA * CAM) */
+export const cascodeMirrorNodeAPole = {
+  id: "cascodeMirrorNodeAPole",
+  title: "Pole of the stacked mirror's node A",
+  expr: "1 / (2 * pi * ZA * CAM)",
+  tex: "f_{A} = \\frac{1}{2\\cdot\\pi\\cdot{Z_{A}}\\cdot{C_{A}}}",
+  result: "fA",
+  resultDim: "frequency",
+  vars: ["ZA","CAM"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (ZA: Ohms, CAM: Farads): Hertz => (1 / ((((2 * Math.PI) * ZA) * CAM))) as Hertz,
+} as const satisfies Formula;
+
+/** Pole of the node between M2 and M4 (≈ gm4/(2π·CX)): fX = 1 / (2 * pi * RXM * CXM) */
+export const cascodeMirrorNodeXPole = {
+  id: "cascodeMirrorNodeXPole",
+  title: "Pole of the node between M2 and M4 (≈ gm4/(2π·CX))",
+  expr: "1 / (2 * pi * RXM * CXM)",
+  tex: "f_{X} = \\frac{1}{2\\cdot\\pi\\cdot{R_{X}}\\cdot{C_{X}}}",
+  result: "fX",
+  resultDim: "frequency",
+  vars: ["RXM","CXM"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RXM: Ohms, CXM: Farads): Hertz => (1 / ((((2 * Math.PI) * RXM) * CXM))) as Hertz,
+} as const satisfies Formula;
+
+/** Output pole: RLOAD ∥ the cascode with the output capacitance: fO = 1 / (2 * pi * RLP * COM) */
+export const cascodeMirrorOutputPole = {
+  id: "cascodeMirrorOutputPole",
+  title: "Output pole: RLOAD ∥ the cascode with the output capacitance",
+  expr: "1 / (2 * pi * RLP * COM)",
+  tex: "f_{O} = \\frac{1}{2\\cdot\\pi\\cdot{R_{L}'}\\cdot{C_{O}}}",
+  result: "fO",
+  resultDim: "frequency",
+  vars: ["RLP","COM"],
+  dims: ["resistance","capacitance"],
+  source: "nodal analysis of the hybrid-π model with Cgs, Cgd and the output capacitance (common practice)",
+  fn: (RLP: Ohms, COM: Farads): Hertz => (1 / ((((2 * Math.PI) * RLP) * COM))) as Hertz,
+} as const satisfies Formula;
+
 /** Small-signal resistance of the diode-connected load: RDL1 = 1 / (gmL + gmbL + gdsL) */
 export const diodeLoadResistance = {
   id: "diodeLoadResistance",
