@@ -25,7 +25,7 @@ describe("plot HTML", () => {
   it("refuses a trace type the embedded basic bundle cannot draw, naming the plot (an empty box would hide it)", () => {
     const heat = { ...spec, figure: { ...spec.figure, data: [...(spec.figure.data as object[]), { type: "heatmap", z: [[1]] }] } };
     expect(() => plotHtml(heat)).toThrow(InputError);
-    expect(() => plotBundle(heat, false)).toThrow(/trace type/);
+    expect(() => plotBundle(heat as never, false)).toThrow(/trace type/);
     expect(plotHtml(spec)).toContain("newPlot");
   });
 
