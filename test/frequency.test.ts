@@ -59,6 +59,26 @@ describe("hand calculations written out", () => {
     expect(CM).toBeCloseTo(520e-15, 25);
     expect(ff.millerInputPole.fn(RSP as never, CM) / 1e6).toBeCloseTo(30.61, 1);
   });
+  // Published worked example: Sedra & Smith, Microelectronic Circuits, 6th ed., Example 9.3 and its re-solution by
+  // open-circuit time constants (example numbers and values from memory). A common source fed from Rsig = 100 kΩ with
+  // RG = 4.7 MΩ, RD = RL = 15 kΩ, gm = 1 mA/V, ro = 150 kΩ, Cgs = 1 pF, Cgd = 0.4 pF, no load capacitance.
+  // The book's answers: AM = −7 V/V, Cin = 4.26 pF, fH = 382 kHz by the Miller approximation; τH ≈ 419 ns, fH ≈ 380 kHz
+  // by open-circuit time constants.
+  it("reproduces a published common-source example: midband gain, Miller fH 382 kHz and the open-circuit estimate 380 kHz", () => {
+    const RSP = ff.sourceSeenByGate.fn(100e3 as never, 4.7e6 as never);
+    const RLP = ff.outputNodeResistance.fn((1 / 150e3) as never, 15e3 as never, 15e3 as never);
+    expect(RLP).toBeCloseTo(7142.857, 2);
+    const am = (4.7e6 / (4.7e6 + 100e3)) * 1e-3 * RLP;
+    expect(am).toBeCloseTo(7, 0);
+    const CM = ff.millerCapacitance.fn(1e-12 as never, 0.4e-12 as never, 1e-3 as never, RLP);
+    expect(CM * 1e12).toBeCloseTo(4.26, 2);
+    expect(ff.millerInputPole.fn(RSP, CM) / 1e3).toBeCloseTo(382, 0);
+    const tgs = ff.gateTimeConstant.fn(1e-12 as never, RSP);
+    const tgd = ff.bridgeTimeConstant.fn(0.4e-12 as never, RSP, 1e-3 as never, RLP);
+    const b1 = ff.timeConstantSum.fn(tgs, tgd, 0 as never);
+    expect(Math.abs(b1 / 419e-9 - 1)).toBeLessThan(0.005);
+    expect(Math.abs(ff.upperCorner.fn(b1) / 380e3 - 1)).toBeLessThan(0.005);
+  });
   // Two equal high-pass poles at 1 Hz: |H|² = (f²/(f²+1))² = 1/2 → f² = 1/(√2 − 1), f = 1.5538 Hz (hand calculation),
   // while the short-circuit sum says 2 Hz: the sum overstates the corner when no pole dominates.
   it("low corner of independent poles against the short-circuit sum", () => {
