@@ -1,7 +1,8 @@
 /**
  * `pinchoff fit` on the open 180 nm measurements (data/pdk180: GF180MCU 3.3 V
  * NMOS, published measured I–V, Apache-2.0): card and report written, a card
- * set when no length is given, existing files never replaced without --force,
+ * set when no length is given (every length meeting the square-law target in
+ * its automatic window), a window set by option, existing files never replaced without --force,
  * the data file never written, bad options refused.
  */
 import { mkdtempSync, readFileSync, statSync, writeFileSync } from "node:fs";
@@ -55,6 +56,33 @@ describe("pinchoff fit", { timeout: 60_000 }, () => {
     const t = (1 / 2e-6 - 1 / 1e-6) / (1 / 5e-6 - 1 / 1e-6);
     expect(mid.kp).toBeCloseTo(a.kp + t * (b.kp - a.kp), 15);
     expect(() => cardAt(set, meters(20e-6))).toThrow(/within the fitted range 0\.28–10 µm/);
+  });
+  it("with the automatic window every length meets the target (exit 0), and a window limited in |VDS| is named in the card", async () => {
+    const card = join(dir, "auto-set.json");
+    const r = await run([data, "--w", "10u", "--card", card]);
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.out) as { fits: { device: { l: number }; meetsTarget: boolean; inWindow: { rms: number }; window: { vds?: [number, number] } }[] };
+    expect(out.fits).toHaveLength(5);
+    for (const f of out.fits) {
+      expect(f.meetsTarget).toBe(true);
+      expect(f.inWindow.rms).toBeLessThanOrEqual(0.05);
+    }
+    const short = out.fits.find((f) => Math.abs(f.device.l - 0.28e-6) < 1e-9)!;
+    expect(short.window.vds).toBeDefined();
+    const set = checkCardSet(JSON.parse(readFileSync(card, "utf8")) as CardSet);
+    expect(set.entries[0]!.card.provenance).toContain(`|VDS| ≤ ${short.window.vds![1]} V`);
+  });
+  it("--drain sets the |VDS| range of the window (the low-VDS triode window: λ held, left out of the card)", async () => {
+    const card = join(dir, "triode.json");
+    const r = await run([data, "--w", "10u", "--l", "0.28u", "--overdrive", "0.2:1", "--drain", "0:0.1", "--body", "0:0", "--card", card]);
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.out) as { fits: { window: { chosen: string; vds: [number, number] }; parameters: Record<string, { stdErr: number | string }> }[] };
+    expect(out.fits[0]!.window.chosen).toBe("user");
+    expect(out.fits[0]!.window.vds).toEqual([0, 0.1]);
+    expect(out.fits[0]!.parameters.lambda!.stdErr).toBe("held");
+    const c = JSON.parse(readFileSync(card, "utf8")) as DeviceCard;
+    expect(c.lambda).toBeUndefined();
+    expect(c.provenance).toMatch(/window overdrive 0\.2–1 V, \|VDS\| ≤ 0\.1 V, \|VBS\| = 0 V/);
   });
   it("never replaces an existing file without --force, and never writes over the data", async () => {
     const card = join(dir, "keep.json");

@@ -5,10 +5,16 @@
  * with their standard errors, the error inside the window and over every
  * measured point (per region), and the validity map (`accuracy.ts`).
  *
- * Window. Given by the user, or chosen: for the square law the widest of a
- * fixed ladder of windows (strong inversion, VBS = 0; overdrive from 0.2–1.0 V
- * down to 0.4–0.6 V, then saturation only) whose fit reaches the target RMS
- * (5 % unless set); when none does, the narrowest is kept and `meetsTarget` is
+ * Window. Given by the user, or chosen: for the square law the first rung of a
+ * fixed ladder of windows (strong inversion, VBS = 0) whose fit reaches the
+ * target RMS (5 % unless set). The ladder narrows the drain-voltage range in
+ * four steps, each with overdrive bands from the preferred 0.2–1.0 V down:
+ * every |VDS|; saturation only; saturation with |VDS| ≤ 1 V (around analog
+ * operating points, where a linear λ still describes the output conductance
+ * that DIBL and channel-length modulation make nonlinear at short L); the
+ * low-|VDS| triode window of the textbook extraction (|VDS| ≤ 0.1 V, λ held).
+ * A rung whose points cannot tell the free parameters apart is skipped; when
+ * no rung reaches the target, the last one fitted is kept and `meetsTarget` is
  * false. The mobility/velocity-saturation form walks the same ladder after a
  * first rung of every overdrive from 0.2 to 3 V. EKV, which holds in every
  * region, uses every point above the floor, fitted in stages (`allRegionFit`);
@@ -83,7 +89,12 @@ export interface FitResult {
   readonly p: Float64Array;
 }
 
-/** The ladder the automatic square-law window walks, widest first. */
+/**
+ * The ladder the automatic square-law window walks: the drain-voltage range narrows step by step
+ * (every |VDS|, saturation, saturation at |VDS| ≤ 1 V, triode at |VDS| ≤ 0.1 V) and within each step
+ * the overdrive band. 0.1–1.2 V follows 0.2–1.0 V for output curves spaced widely in VGS (0.5 V in the
+ * open data), where the narrower band holds one gate voltage only.
+ */
 export const squareLawWindows: readonly FitWindow[] = [
   { vov: [0.2, 1.0], vbs: [0, 0] },
   { vov: [0.2, 0.8], vbs: [0, 0] },
@@ -92,6 +103,11 @@ export const squareLawWindows: readonly FitWindow[] = [
   { vov: [0.1, 1.2], vbs: [0, 0], saturationOnly: true },
   { vov: [0.3, 0.7], vbs: [0, 0], saturationOnly: true },
   { vov: [0.4, 0.6], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.2, 1.0], vds: [0, 1], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.1, 1.2], vds: [0, 1], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.3, 0.7], vds: [0, 1], vbs: [0, 0], saturationOnly: true },
+  { vov: [0.2, 1.0], vds: [0, 0.1], vbs: [0, 0] },
+  { vov: [0.1, 0.6], vds: [0, 0.1], vbs: [0, 0] },
 ];
 
 /** Indices of the points inside a window (overdrive from the start estimate `est`). */
@@ -254,7 +270,7 @@ const atBound = (model: FitModel, p: Float64Array, j: number) => {
 export function describeWindow(w: FitWindow): string {
   const parts: string[] = [];
   if (w.vov) parts.push(`overdrive ${w.vov[0]}–${w.vov[1]} V`);
-  if (w.vds) parts.push(`|VDS| ${w.vds[0]}–${w.vds[1]} V`);
+  if (w.vds) parts.push(w.vds[0] === 0 ? `|VDS| ≤ ${w.vds[1]} V` : `|VDS| ${w.vds[0]}–${w.vds[1]} V`);
   if (w.vbs) parts.push(w.vbs[0] === w.vbs[1] ? `|VBS| = ${w.vbs[0]} V` : `|VBS| ${w.vbs[0]}–${w.vbs[1]} V`);
   if (w.saturationOnly) parts.push("saturation only");
   return parts.length ? parts.join(", ") : "every point";
