@@ -93,7 +93,7 @@ describe("square-law fit on the open 180 nm measurements (GF180MCU 3.3 V, W = 10
         const [vt, kp, , , lambda] = f.parameters;
         // the README's square-law table is copied from these lines
         const lam = lambda!.held ? "held (0)" : lambda!.value < 1e-6 ? "0 (at bound)" : lambda!.value.toFixed(3);
-        console.log(`| ${pol} | ${l} | ${describeWindow(f.window).replace(/\|VBS\| = 0 V/, "VBS = 0")} (${f.window.points} pts) | ${pct(f.inWindow.rms!)} | ${vt!.value.toFixed(3)} ± ${(vt!.stdErr * 1e3).toFixed(0)} mV | ${(kp!.value * 1e6).toFixed(1)} ± ${(kp!.stdErr * 1e6).toFixed(1)} µA/V² | ${lam} | ${(100 * f.accuracy.overall.rms!).toFixed(0)} % |`);
+        console.log(`| ${pol} | ${l} | ${describeWindow(f.window).replace(/\|VBS\| = 0 V/, "VBS = 0").replace(/\|/g, "\\|")} (${f.window.points} pts) | ${pct(f.inWindow.rms!)} | ${vt!.value.toFixed(3)} ± ${(vt!.stdErr * 1e3).toFixed(0)} mV | ${(kp!.value * 1e6).toFixed(1)} ± ${(kp!.stdErr * 1e6).toFixed(1)} µA/V² | ${lam} | ${(100 * f.accuracy.overall.rms!).toFixed(0)} % |`);
         expect(f.meetsTarget).toBe(true);
         expect(f.inWindow.rms!).toBeLessThanOrEqual(0.05);
         expect(f.window.chosen).toBe("auto");

@@ -13,9 +13,10 @@
  * operating points, where a linear λ still describes the output conductance
  * that DIBL and channel-length modulation make nonlinear at short L); the
  * low-|VDS| triode window of the textbook extraction (|VDS| ≤ 0.1 V, λ held).
+ * The first rung that reaches the target is the window: the widest that fits.
  * A rung whose points cannot tell the free parameters apart is skipped; when
- * no rung reaches the target, the last one fitted is kept and `meetsTarget` is
- * false. The mobility/velocity-saturation form walks the same ladder after a
+ * no rung reaches the target, the last (narrowest) one fitted is kept and
+ * `meetsTarget` is false. The mobility/velocity-saturation form walks the same ladder after a
  * first rung of every overdrive from 0.2 to 3 V. EKV, which holds in every
  * region, uses every point above the floor, fitted in stages (`allRegionFit`);
  * a fit from the data's start estimate is added only when the staged one
