@@ -14,7 +14,7 @@ import { InputError } from "../lib/errors.js";
 import { describeWindow, fitSweep, squareLawWindows, type FitWindow } from "../lib/fit/fit.js";
 import { squareLawFit } from "../lib/fit/models.js";
 import { parseMeasurements, readMeasurements } from "../lib/measure/read.js";
-import { select } from "../lib/measure/select.js";
+import { geometries, select } from "../lib/measure/select.js";
 import { runNgspice } from "./support/ngspice.js";
 
 interface Card {
@@ -134,6 +134,16 @@ describe("square-law fit on the open 180 nm measurements (GF180MCU 3.3 V, W = 10
         expect(f.card.provenance).toMatch(/\|VDS\| ≤ 0\.1 V.*lambda not fitted/);
       }
   });
+  it("every geometry and temperature of the set (W 0.22–10 µm, L 0.28–10 µm, −40/25/125 °C) meets 5 % in its window", () => {
+    let fits = 0;
+    for (const pol of ["nmos", "pmos"] as const)
+      for (const g of geometries(sets[pol])) {
+        const f = fitSweep(squareLawFit, select(sets[pol], { w: g.w, l: g.l, temp: g.temp, corner: g.corner, currentSign: pol === "pmos" ? "magnitude" : "spice" }));
+        expect.soft(f.inWindow.rms!, `${pol} W=${g.w} L=${g.l} T=${g.temp}: ${describeWindow(f.window)}`).toBeLessThanOrEqual(0.05);
+        fits++;
+      }
+    expect(fits).toBe(150);
+  }, 60_000);
   it("the automatic ladder narrows the drain range step by step: every |VDS|, saturation, saturation at bounded |VDS|, low-|VDS| triode", () => {
     const step = (w: FitWindow) => (w.vds ? (w.saturationOnly ? 2 : 3) : w.saturationOnly ? 1 : 0);
     const steps = squareLawWindows.map(step);
