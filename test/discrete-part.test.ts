@@ -13,7 +13,8 @@ import { analyzeStage } from "../lib/bias/analyze.js";
 import { parseDesign, parseDesignFile } from "../lib/bias/design-file.js";
 import { parsePartCard } from "../lib/bias/part-file.js";
 import { main } from "../lib/cli/op.js";
-import { partModel } from "../lib/device/discrete-part.js";
+import { checkPart, partModel, ratingChecks, type DiscretePart } from "../lib/device/discrete-part.js";
+import { kelvin } from "../lib/quantity.js";
 import { Derivation } from "../lib/record/derivation.js";
 import { expectReevaluates } from "./support/reevaluate.js";
 import { captureCli } from "./support/cli.js";
@@ -78,6 +79,38 @@ describe("square-law model from a datasheet", () => {
     expect(() => parsePartCard({ ...partJson, threshold: { vgs: "2 A", id: "1 mA" } }, "p.json")).toThrow(/p\.json\.threshold\.vgs/);
     expect(() => parsePartCard({ ...partJson, ratings: { ...partJson.ratings, tjMax: "20 degC" } }, "p.json")).toThrow(/ratings\.tjMax/);
     expect(() => parsePartCard({ ...partJson, colour: "black" }, "p.json")).toThrow(/p\.json\.colour/);
+  });
+});
+
+describe("where PD is stated (ratings.pdAt): one shape in a part file and in the library", () => {
+  it("a file's { ambient } or { case } with units is the library's { ambient } or { case } in K", () => {
+    const ta = parsePartCard(partJson, "p.json");
+    expect(ta.ratings.pdAt).toEqual({ ambient: 298.15 });
+    const tc = parsePartCard({ ...partJson, ratings: { ...partJson.ratings, pdAt: { case: "25 degC" } } }, "p.json");
+    expect(tc.ratings.pdAt).toEqual({ case: 298.15 });
+    // The library takes the same object: the parsed card and one written by hand are checked alike.
+    const byHand = { ...ta, ratings: { ...ta.ratings, pdAt: { case: 298.15 } } } as DiscretePart;
+    expect(checkPart(byHand, "lib").ratings.pdAt).toEqual({ case: 298.15 });
+  });
+  it("derates a PD stated at the ambient and cautions on one stated at the case, from either path", () => {
+    const ta = parsePartCard(partJson, "p.json");
+    const use = (pdAt: DiscretePart["ratings"]["pdAt"]) => ({ part: { ...ta, ratings: { ...ta.ratings, pdAt } }, ambient: kelvin(313.15) });
+    const stress = { vds: 5, vgs: 3, id: 0.02, power: 0.1 };
+    const allowed = (pdAt: DiscretePart["ratings"]["pdAt"], rec?: Derivation) => ratingChecks(use(pdAt), stress, (name, _v, _d, max) => ({ name, max }), rec).find((c) => c.name.endsWith("dissipation within PD"))!.max;
+    // PD derated linearly from 25 °C to TJ(max) 150 °C at a 40 °C ambient: 0.4·(150 − 40)/(150 − 25) = 0.352 W.
+    expect(allowed({ ambient: kelvin(298.15) })).toBeCloseTo(0.352, 12);
+    const rec = new Derivation("case");
+    expect(allowed({ case: kelvin(298.15) }, rec)).toBe(0.4);
+    expect(rec.findings.some((f) => /stated at the case/.test(f.text))).toBe(true);
+  });
+  it("refuses any other shape, saying what to write, in a file and in the library", () => {
+    expect(() => parsePartCard({ ...partJson, ratings: { ...partJson.ratings, pdAt: { kind: "ambient", temperature: "25 degC" } } }, "p.json")).toThrow(/p\.json\.ratings\.pdAt.*\{ "ambient": "25 degC" \}/);
+    expect(() => parsePartCard({ ...partJson, ratings: { ...partJson.ratings, pdAt: { ambient: "25 degC", case: "25 degC" } } }, "p.json")).toThrow(/p\.json\.ratings\.pdAt/);
+    const ta = parsePartCard(partJson, "p.json");
+    for (const pdAt of [{ kind: "ambient", temperature: 298.15 }, { ambient: 298.15, case: 298.15 }, {}])
+      expect(() => checkPart({ ...ta, ratings: { ...ta.ratings, pdAt } } as never, "lib")).toThrow(/lib "QN-60 \(invented\)"\.ratings\.pdAt.*\{ ambient: 298\.15 \} or \{ case: 298\.15 \}/);
+    expect(() => checkPart({ ...ta, ratings: { ...ta.ratings, pdAt: { case: -1 } } } as never, "lib")).toThrow(/ratings\.pdAt\.case/);
+    expect(() => checkPart({ ...ta, ratings: { ...ta.ratings, pdAt: { ambient: 500 } } } as never, "lib")).toThrow(/ratings\.tjMax/);
   });
 });
 

@@ -25,6 +25,12 @@ import { onResistance, overdrive } from "../formulas/device.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Kelvin, KelvinPerWatt, Meters, Ohms, Siemens, Volts, Watts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 
+/**
+ * Where a part's PD is stated: the ambient temperature TA (free air) or the case temperature TC (an ideal heat
+ * sink), in K; exactly one. The same shape in a part file, there with units (`{ "ambient": "25 degC" }`).
+ */
+export type PowerRatingReference = { readonly ambient: Kelvin; readonly case?: undefined } | { readonly case: Kelvin; readonly ambient?: undefined };
+
 /** Absolute maximum ratings (magnitudes). */
 export interface PartRatings {
   /** Drain-source voltage VDS(max). */
@@ -35,8 +41,8 @@ export interface PartRatings {
   readonly id: Amperes;
   /** Power dissipation PD at its stated temperature. */
   readonly pd: Watts;
-  /** Where PD is stated: at the ambient (free air) or at the case, and at which temperature (25 °C on most datasheets). */
-  readonly pdAt: { readonly kind: "ambient" | "case"; readonly temperature: Kelvin };
+  /** Where PD is stated, as the datasheet writes it ("PD at TA = 25 °C" or "at TC = 25 °C"). */
+  readonly pdAt: PowerRatingReference;
   /** Maximum junction temperature TJ(max). */
   readonly tjMax: Kelvin;
   /** Junction-to-ambient thermal resistance, when stated. */
@@ -89,6 +95,9 @@ export interface PartModel {
 /** Equivalent drawn size of a discrete part's model. */
 export const partSize = 1e-6 as Meters;
 
+/** The temperature PD is stated at (TA or TC). */
+const pdTemperature = (r: PartRatings): Kelvin => (r.pdAt.case ?? r.pdAt.ambient) as Kelvin;
+
 /** Validate a part card once, naming the first bad field; returns it unchanged. */
 export function checkPart(part: DiscretePart, origin = "part"): DiscretePart {
   if (!part || typeof part !== "object") throw new InputError(part, "a discrete part card", origin, "invalid-design");
@@ -111,10 +120,14 @@ export function checkPart(part: DiscretePart, origin = "part"): DiscretePart {
   pos(r.vgs, "ratings.vgs", "VGS(max) > 0 in V");
   pos(r.id, "ratings.id", "ID(max) > 0 in A");
   pos(r.pd, "ratings.pd", "PD > 0 in W");
-  if (!r.pdAt || (r.pdAt.kind !== "ambient" && r.pdAt.kind !== "case")) throw new InputError(r.pdAt?.kind, `"ambient" or "case" (where PD is stated)`, at("ratings.pdAt.kind"), "invalid-design");
-  pos(r.pdAt.temperature, "ratings.pdAt.temperature", "the temperature at which PD is stated, in K (or degC as text)");
+  const pdAt = r.pdAt as unknown;
+  const keys = pdAt && typeof pdAt === "object" ? Object.keys(pdAt) : [];
+  if (keys.length !== 1 || (keys[0] !== "ambient" && keys[0] !== "case"))
+    throw new InputError(pdAt, "where PD is stated: { ambient: 298.15 } or { case: 298.15 } (the datasheet's TA or TC, in K)", at("ratings.pdAt"), "invalid-design");
+  const tPd = pdTemperature(r);
+  pos(tPd, `ratings.pdAt.${keys[0]}`, "the temperature at which PD is stated, in K (or degC as text)");
   pos(r.tjMax, "ratings.tjMax", "TJ(max) in K (or degC as text)");
-  if (!(r.tjMax > r.pdAt.temperature)) throw new InputError(r.tjMax, `TJ(max) above the temperature at which PD is stated (${r.pdAt.temperature} K)`, at("ratings.tjMax"));
+  if (!(r.tjMax > tPd)) throw new InputError(r.tjMax, `TJ(max) above the temperature at which PD is stated (${tPd} K)`, at("ratings.tjMax"));
   if (r.rthJA !== undefined) pos(r.rthJA, "ratings.rthJA", "RθJA > 0 in K/W");
   if (r.rthJC !== undefined) pos(r.rthJC, "ratings.rthJC", "RθJC > 0 in K/W");
   if (part.threshold.vgs >= r.vgs) throw new InputError(part.threshold.vgs, `VGS(th) below VGS(max) = ${r.vgs} V`, at("threshold.vgs"));
@@ -208,12 +221,13 @@ export function ratingChecks<T>(use: PartInUse, stress: PartStress, check: (name
   out.push(check(`${n}: |VGS| within VGS(max)`, Math.abs(stress.vgs), "voltage", r.vgs, "absolute maximum rating"));
   out.push(check(`${n}: ID within ID(max)`, Math.abs(stress.id), "current", r.id, "continuous rating"));
   let allowed: number = r.pd;
-  let detail = `PD at ${r.pdAt.kind} ${+(r.pdAt.temperature - 273.15).toFixed(1)} °C`;
-  if (r.pdAt.kind === "ambient" && ambient > r.pdAt.temperature) {
-    allowed = df.deratedPowerRating.fn(r.pd, r.tjMax, ambient, r.pdAt.temperature);
-    rec?.step(df.deratedPowerRating, [r.pd, r.tjMax, ambient, r.pdAt.temperature], allowed, "the board runs above the temperature PD is stated at");
+  const tPd = pdTemperature(r);
+  let detail = `PD at ${r.pdAt.case !== undefined ? "case" : "ambient"} ${+(tPd - 273.15).toFixed(1)} °C`;
+  if (r.pdAt.ambient !== undefined && ambient > tPd) {
+    allowed = df.deratedPowerRating.fn(r.pd, r.tjMax, ambient, tPd);
+    rec?.step(df.deratedPowerRating, [r.pd, r.tjMax, ambient, tPd], allowed, "the board runs above the temperature PD is stated at");
     detail = `PD derated to the ${+(ambient - 273.15).toFixed(1)} °C ambient`;
-  } else if (r.pdAt.kind === "case") rec?.find("caution", `${n}: PD is stated at the case (an ideal heat sink); on a board the junction temperature from RθJA is the real limit.`);
+  } else if (r.pdAt.case !== undefined) rec?.find("caution", `${n}: PD is stated at the case (an ideal heat sink); on a board the junction temperature from RθJA is the real limit.`);
   out.push(check(`${n}: dissipation within PD`, stress.power, "power", allowed, detail));
   if (r.rthJA !== undefined) {
     const tj = df.junctionTemperature.fn(ambient, stress.power as Watts, r.rthJA);
