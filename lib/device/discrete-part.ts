@@ -71,10 +71,31 @@ export interface DiscretePart {
 /** The ambient a part's board runs at when none is stated: 25 °C (common practice for datasheet figures). */
 export const defaultAmbient = 298.15 as Kelvin;
 
-/** A part as used in a stage: the card and the ambient temperature its board runs at. */
+/** A part as used in a stage: the card, the ambient temperature its board runs at, and its heat sink when it has one. */
 export interface PartInUse {
   readonly part: DiscretePart;
   readonly ambient: Kelvin;
+  /**
+   * Case-to-ambient thermal resistance RθCA of the part's mounting (the interface and the heat sink), when it sits
+   * on one: TJ is then checked as TA + P·(RθJC + RθCA), which needs the card's RθJC.
+   */
+  readonly rthCA?: KelvinPerWatt;
+}
+
+/** Record how a part is used (its ambient, its heat sink) as inputs of `rec`. */
+export function recordPartInUse(rec: Derivation, use: PartInUse): void {
+  rec.input(`ambient (${use.part.name})`, use.ambient, "temperature", "device.ambient");
+  if (use.rthCA !== undefined) rec.input(`RθCA (${use.part.name})`, use.rthCA, "thermalResistance", "device.rthCA (interface and heat sink)");
+}
+
+/** A part in use, validated once: the ambient above absolute zero, RθCA > 0 and only beside a card's RθJC. `origin` is the device's field path. */
+export function partInUse(part: DiscretePart, ambient: number, rthCA: number | undefined, origin: string): PartInUse {
+  if (typeof ambient !== "number" || !(ambient > 0) || !Number.isFinite(ambient)) throw new InputError(ambient, "an ambient temperature above absolute zero in K (or degC as text)", `${origin}.ambient`, "invalid-design");
+  if (rthCA === undefined) return { part, ambient: ambient as Kelvin };
+  requirePositive(rthCA, `${origin}.rthCA`, "a case-to-ambient thermal resistance RθCA > 0 in K/W (interface and heat sink)");
+  if (part.ratings.rthJC === undefined)
+    throw new InputError(rthCA, `a part card that states RθJC (ratings.rthJC of "${part.name}"): RθCA adds to the junction-to-case resistance`, `${origin}.rthCA`, "invalid-design");
+  return { part, ambient: ambient as Kelvin, rthCA: rthCA as KelvinPerWatt };
 }
 
 /** The square-law model derived from a part. */
@@ -229,10 +250,19 @@ export function ratingChecks<T>(use: PartInUse, stress: PartStress, check: (name
     detail = `PD derated to the ${+(ambient - 273.15).toFixed(1)} °C ambient`;
   } else if (r.pdAt.case !== undefined) rec?.find("caution", `${n}: PD is stated at the case (an ideal heat sink); on a board the junction temperature from RθJA is the real limit.`);
   out.push(check(`${n}: dissipation within PD`, stress.power, "power", allowed, detail));
-  if (r.rthJA !== undefined) {
+  const ta = +(ambient - 273.15).toFixed(1);
+  if (use.rthCA !== undefined) {
+    // On a heat sink the series path junction–case–ambient sets TJ (the free-air RθJA path beside it is left out).
+    if (r.rthJC === undefined) throw new InputError(use.rthCA, `a part card that states RθJC (ratings.rthJC): RθCA adds to it`, `${n}: rthCA`, "invalid-design");
+    const tj = df.junctionTemperatureThroughCase.fn(ambient, stress.power as Watts, r.rthJC, use.rthCA);
+    rec?.step(df.junctionTemperatureThroughCase, [ambient, stress.power, r.rthJC, use.rthCA], tj, "steady state, the part on its heat sink");
+    out.push(check(`${n}: junction temperature within TJ(max)`, tj, "temperature", r.tjMax, `ambient ${ta} °C, RθJC ${r.rthJC} K/W + RθCA ${use.rthCA} K/W (heat sink)`));
+  } else if (r.rthJA !== undefined) {
     const tj = df.junctionTemperature.fn(ambient, stress.power as Watts, r.rthJA);
     rec?.step(df.junctionTemperature, [ambient, stress.power, r.rthJA], tj, "steady state, the part in free air on its board");
-    out.push(check(`${n}: junction temperature within TJ(max)`, tj, "temperature", r.tjMax, `ambient ${+(ambient - 273.15).toFixed(1)} °C, RθJA ${r.rthJA} K/W`));
-  } else rec?.find("caution", `${n}: no RθJA stated, so the junction temperature is not checked; add the heat sink's path and check it by hand.`);
+    out.push(check(`${n}: junction temperature within TJ(max)`, tj, "temperature", r.tjMax, `ambient ${ta} °C, RθJA ${r.rthJA} K/W`));
+  } else if (r.rthJC !== undefined)
+    rec?.find("caution", `${n}: the card states RθJC but no RθJA, so the junction temperature is not checked; give the heat sink's case-to-ambient resistance as the device's rthCA to check TJ = TA + P·(RθJC + RθCA).`);
+  else rec?.find("caution", `${n}: no RθJA or RθJC stated, so the junction temperature is not checked; check it by hand from the part's thermal path.`);
   return out;
 }
