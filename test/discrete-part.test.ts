@@ -96,6 +96,8 @@ describe("where PD is stated (ratings.pdAt): one shape in a part file and in the
     // The library takes the same object: the parsed card and one written by hand are checked alike.
     const byHand = { ...ta, ratings: { ...ta.ratings, pdAt: { case: 298.15 } } } as DiscretePart;
     expect(checkPart(byHand, "lib").ratings.pdAt).toEqual({ case: 298.15 });
+    const spelled = { ...ta, ratings: { ...ta.ratings, pdAt: { ambient: kelvin(298.15), case: undefined } } };
+    expect(() => checkPart(spelled, "lib")).not.toThrow();
   });
   it("derates a PD stated at the ambient and cautions on one stated at the case, from either path", () => {
     const ta = parsePartCard(partJson, "p.json");

@@ -142,7 +142,8 @@ export function checkPart(part: DiscretePart, origin = "part"): DiscretePart {
   pos(r.id, "ratings.id", "ID(max) > 0 in A");
   pos(r.pd, "ratings.pd", "PD > 0 in W");
   const pdAt = r.pdAt as unknown;
-  const keys = pdAt && typeof pdAt === "object" ? Object.keys(pdAt) : [];
+  // Keys given a value (the type's `case?: undefined` may be spelled out).
+  const keys = pdAt && typeof pdAt === "object" ? Object.entries(pdAt).filter(([, v]) => v !== undefined).map(([k]) => k) : [];
   if (keys.length !== 1 || (keys[0] !== "ambient" && keys[0] !== "case"))
     throw new InputError(pdAt, "where PD is stated: { ambient: 298.15 } or { case: 298.15 } (the datasheet's TA or TC, in K)", at("ratings.pdAt"), "invalid-design");
   const tPd = pdTemperature(r);
