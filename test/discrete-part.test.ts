@@ -13,7 +13,8 @@ import { analyzeStage } from "../lib/bias/analyze.js";
 import { parseDesign, parseDesignFile } from "../lib/bias/design-file.js";
 import { parsePartCard } from "../lib/bias/part-file.js";
 import { main } from "../lib/cli/op.js";
-import { partModel } from "../lib/device/discrete-part.js";
+import { checkPart, partModel, ratingChecks, type DiscretePart } from "../lib/device/discrete-part.js";
+import { kelvin } from "../lib/quantity.js";
 import { Derivation } from "../lib/record/derivation.js";
 import { expectReevaluates } from "./support/reevaluate.js";
 import { captureCli } from "./support/cli.js";
@@ -33,6 +34,11 @@ beforeAll(() => {
   dir = mkdtempSync(join(tmpdir(), "pinchoff-part-"));
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
+const write = (name: string, v: unknown) => {
+  const p = join(dir, name);
+  writeFileSync(p, JSON.stringify(v));
+  return p;
+};
 
 describe("square-law model from a datasheet", () => {
   it("derives k, Vt and the RDS(on) cross-check as the hand calculation does", () => {
@@ -81,6 +87,40 @@ describe("square-law model from a datasheet", () => {
   });
 });
 
+describe("where PD is stated (ratings.pdAt): one shape in a part file and in the library", () => {
+  it("a file's { ambient } or { case } with units is the library's { ambient } or { case } in K", () => {
+    const ta = parsePartCard(partJson, "p.json");
+    expect(ta.ratings.pdAt).toEqual({ ambient: 298.15 });
+    const tc = parsePartCard({ ...partJson, ratings: { ...partJson.ratings, pdAt: { case: "25 degC" } } }, "p.json");
+    expect(tc.ratings.pdAt).toEqual({ case: 298.15 });
+    // The library takes the same object: the parsed card and one written by hand are checked alike.
+    const byHand = { ...ta, ratings: { ...ta.ratings, pdAt: { case: 298.15 } } } as DiscretePart;
+    expect(checkPart(byHand, "lib").ratings.pdAt).toEqual({ case: 298.15 });
+    const spelled = { ...ta, ratings: { ...ta.ratings, pdAt: { ambient: kelvin(298.15), case: undefined } } };
+    expect(() => checkPart(spelled, "lib")).not.toThrow();
+  });
+  it("derates a PD stated at the ambient and cautions on one stated at the case, from either path", () => {
+    const ta = parsePartCard(partJson, "p.json");
+    const use = (pdAt: DiscretePart["ratings"]["pdAt"]) => ({ part: { ...ta, ratings: { ...ta.ratings, pdAt } }, ambient: kelvin(313.15) });
+    const stress = { vds: 5, vgs: 3, id: 0.02, power: 0.1 };
+    const allowed = (pdAt: DiscretePart["ratings"]["pdAt"], rec?: Derivation) => ratingChecks(use(pdAt), stress, (name, _v, _d, max) => ({ name, max }), rec).find((c) => c.name.endsWith("dissipation within PD"))!.max;
+    // PD derated linearly from 25 °C to TJ(max) 150 °C at a 40 °C ambient: 0.4·(150 − 40)/(150 − 25) = 0.352 W.
+    expect(allowed({ ambient: kelvin(298.15) })).toBeCloseTo(0.352, 12);
+    const rec = new Derivation("case");
+    expect(allowed({ case: kelvin(298.15) }, rec)).toBe(0.4);
+    expect(rec.findings.some((f) => /stated at the case/.test(f.text))).toBe(true);
+  });
+  it("refuses any other shape, saying what to write, in a file and in the library", () => {
+    expect(() => parsePartCard({ ...partJson, ratings: { ...partJson.ratings, pdAt: { kind: "ambient", temperature: "25 degC" } } }, "p.json")).toThrow(/p\.json\.ratings\.pdAt.*\{ "ambient": "25 degC" \}/);
+    expect(() => parsePartCard({ ...partJson, ratings: { ...partJson.ratings, pdAt: { ambient: "25 degC", case: "25 degC" } } }, "p.json")).toThrow(/p\.json\.ratings\.pdAt/);
+    const ta = parsePartCard(partJson, "p.json");
+    for (const pdAt of [{ kind: "ambient", temperature: 298.15 }, { ambient: 298.15, case: 298.15 }, {}])
+      expect(() => checkPart({ ...ta, ratings: { ...ta.ratings, pdAt } } as never, "lib")).toThrow(/lib "QN-60 \(invented\)"\.ratings\.pdAt.*\{ ambient: 298\.15 \} or \{ case: 298\.15 \}/);
+    expect(() => checkPart({ ...ta, ratings: { ...ta.ratings, pdAt: { case: -1 } } } as never, "lib")).toThrow(/ratings\.pdAt\.case/);
+    expect(() => checkPart({ ...ta, ratings: { ...ta.ratings, pdAt: { ambient: 500 } } } as never, "lib")).toThrow(/ratings\.tjMax/);
+  });
+});
+
 describe("ratings checked in a design that uses the part", () => {
   // A 12 V common-source stage around the invented part (values invented).
   const stageJson = {
@@ -89,11 +129,6 @@ describe("ratings checked in a design that uses the part", () => {
     device: { part: partJson, ambient: "40 degC" },
     components: { rg1: "68k", rg2: "39k", rd: "240", rs: "120" },
     supplies: { vdd: "12 V" },
-  };
-  const write = (name: string, v: unknown) => {
-    const p = join(dir, name);
-    writeFileSync(p, JSON.stringify(v));
-    return p;
   };
   const run = (argv: string[]) => captureCli(main, argv);
 
@@ -167,5 +202,49 @@ describe("ratings checked in a design that uses the part", () => {
     const names = j.operatingPoint.metrics.checks.map((c: { name: string }) => c.name);
     expect(names).toContain("QN-60 (invented): junction temperature within TJ(max)");
     expect(() => parseDesignFile({ topology: "four-resistor", device: { part: partJson }, specification: { ...spec, sizing: { vov: "0.3 V", l: "1 um" } }, supplies: { vdd: "12 V" } }, "s.json")).toThrow(/s\.json: specification\.sizing: .*size is fixed by the part/);
+  });
+});
+
+describe("junction temperature through the case and a heat sink (device.rthCA)", () => {
+  // The invented part with RθJC stated and no RθJA (a package meant for a heat sink); values invented.
+  const { rthJA: _free, ...sinkRatings } = partJson.ratings;
+  const sinkPart = { ...partJson, name: "QN-60H (invented)", ratings: { ...sinkRatings, rthJC: "50 K/W" } };
+  const stageJson = { name: "QN-60H line stage (invented)", topology: "four-resistor", device: { part: sinkPart, ambient: "40 degC" }, components: { rg1: "68k", rg2: "39k", rd: "240", rs: "120" }, supplies: { vdd: "12 V" } };
+  const tjCheck = (a: ReturnType<typeof analyzeStage>) => a.metrics.checks.find((c) => c.name === "QN-60H (invented): junction temperature within TJ(max)");
+
+  it("with RθJC only: no TJ check, a caution naming the field that would give one", () => {
+    const rec = new Derivation("no sink");
+    const a = analyzeStage(parseDesign(stageJson, "s.json"), rec);
+    expect(tjCheck(a)).toBeUndefined();
+    expect(rec.findings.some((f) => f.severity === "caution" && /RθJC but no RθJA.*rthCA/.test(f.text))).toBe(true);
+  });
+
+  it("with the heat sink's RθCA: TJ = TA + P·(RθJC + RθCA) checked against TJ(max), passing and failing", async () => {
+    const rec = new Derivation("sink");
+    const a = analyzeStage(parseDesign({ ...stageJson, device: { ...stageJson.device, rthCA: "100 K/W" } }, "s.json"), rec);
+    const tj = tjCheck(a)!;
+    // Hand: TJ = 313.15 K + P·(50 + 100) K/W with P = ID·VDS of the same analysis.
+    expect(tj.value).toBeCloseTo(313.15 + a.power.transistor * 150, 9);
+    expect(tj.max).toBeCloseTo(423.15, 9);
+    expect(tj.passed).toBe(true);
+    expect(rec.steps.some((s) => s.kind === "formula" && (s as { formula: string }).formula === "junctionTemperatureThroughCase")).toBe(true);
+    expectReevaluates(rec.toJSON());
+    // A hot enclosure with a poor heat sink: 130 °C + P·(50 + 1000) K/W is over 150 °C at this bias; exit 1 from the command.
+    const hot = { ...stageJson, device: { ...stageJson.device, ambient: "130 degC", rthCA: "1000 K/W" } };
+    const r = await captureCli(main, [write("hot-sink.json", hot), "--json"]);
+    expect(r.code).toBe(1);
+    expect(JSON.parse(r.out).failedChecks.join("\n")).toMatch(/QN-60H \(invented\): junction temperature within TJ\(max\)/);
+  });
+
+  it("refuses RθCA beside a card without RθJC, and a bad RθCA, naming the field; a specification takes it too", async () => {
+    expect(() => parseDesign({ ...stageJson, device: { part: partJson, rthCA: "100 K/W" } }, "s.json")).toThrow(/s\.json: device\.rthCA: .*RθJC/);
+    expect(() => parseDesign({ ...stageJson, device: { ...stageJson.device, rthCA: "-5 K/W" } }, "s.json")).toThrow(/device\.rthCA/);
+    expect(() => parseDesign({ ...stageJson, device: { ...stageJson.device, rthCA: "5 V" } }, "s.json")).toThrow(/device\.rthCA/);
+    const spec = { id: "10 mA", drain: { vd: "8.5 V" }, source: { vrs: "4 V" }, gate: { current: "50 uA" }, series: "E96" };
+    const r = await captureCli(main, [write("spec-sink.json", { name: "QN-60H line stage (invented)", topology: "four-resistor", device: { part: sinkPart, ambient: "40 degC", rthCA: "100 K/W" }, specification: spec, supplies: { vdd: "12 V" } }), "--json"]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    const tj = j.operatingPoint.metrics.checks.find((c: { name: string }) => c.name === "QN-60H (invented): junction temperature within TJ(max)");
+    expect(tj.value).toBeCloseTo(313.15 + j.operatingPoint.power.transistor * 150, 9);
   });
 });

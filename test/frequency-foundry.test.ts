@@ -72,6 +72,11 @@ describe("foundry capacitances from the characterisation table", () => {
     expect(Math.abs(fa.capacitances.cgd / (sized.cgd + covD * sized.w) - 1)).toBeLessThan(1e-12);
     // Cgb is the rest of the table's Cgg.
     expect(Math.abs(fa.capacitances.cgb / (sized.cgg - sized.cgs - sized.cgd) - 1)).toBeLessThan(1e-9);
+    // The card's block carries the sizing's per-width figures as read from the table; the totals are those times W.
+    const block = stage.device.card.tableCapacitances!;
+    expect([block.cgsPerWidth, block.cgdPerWidth, block.cggPerWidth]).toEqual([sized.cgsPerWidth, sized.cgdPerWidth, sized.cggPerWidth]);
+    expect([sized.cgs, sized.cgd]).toEqual([sized.cgsPerWidth * sized.w, sized.cgdPerWidth * sized.w]);
+    expect(Math.abs(sized.cgg / (sized.cggPerWidth * sized.w) - 1)).toBeLessThan(1e-15);
     const data = rec.toJSON();
     expect(JSON.stringify(data)).toContain(table.fingerprint.slice(0, 12));
     expect(data.assumptions.some((a) => /junction/.test(a))).toBe(true);

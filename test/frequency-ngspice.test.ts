@@ -577,3 +577,28 @@ describe("cascode current mirror poles against ngspice 39 Level 1 .ac", () => {
     expect(stats.dom).toBeGreaterThanOrEqual(20);
   }, 120_000);
 });
+
+// ---- the same mirrors with the output held at the drain voltage RLOAD gave and RLOAD given as the outside load
+// (frequency.load.resistance, returned to the vout source): the small-signal circuit is the same, so the hand
+// figures must coincide and ngspice 39 Level 1 .ac must agree with them as it does with the resistor in the bias network.
+describe("current mirror with its output held at vout and an outside RLOAD against ngspice 39 Level 1 .ac", () => {
+  it("the same transimpedance and poles as the bias-network resistor, and ngspice agrees", () => {
+    const held: Case[] = mirrors.slice(0, 20).map((k) => {
+      const c = k.stage.components as { rref: number; rload: number };
+      const stage = { ...k.stage, components: { rref: c.rref, vout: k.dc.nodes.drain } } as Stage;
+      const dc = analyzeStage(stage as never);
+      const spec: FrequencySpec = { load: { resistance: ohms(c.rload), capacitance: k.spec.load!.capacitance! } };
+      return { stage, dc, fa: analyzeFrequency(stage, dc, spec), spec };
+    });
+    held.forEach((h, i) => {
+      expect(rel(h.fa.midbandGain, mirrors[i]!.fa.midbandGain)).toBeLessThan(1e-6);
+      expect(rel(h.fa.high.corner, mirrors[i]!.fa.high.corner)).toBeLessThan(1e-6);
+    });
+    const res = simulateAll(held, "h", { pointsPerDecade: 60, start: 1, stop: 1e13 });
+    const fails: string[] = [];
+    const stats = compareUpper(held, res, (k, i) => `held mirror ${k.stage.device.card.polarity} #${i}`, fails);
+    console.log(`held mirror oracle: ${JSON.stringify(stats)}`);
+    expect(fails).toEqual([]);
+    expect(stats.dom).toBeGreaterThanOrEqual(5);
+  }, 120_000);
+});

@@ -276,15 +276,15 @@ describe("drain-feedback stage", () => {
 describe("current mirror and diode-load stage", () => {
   // Invented on-chip cards: the 20 nm oxide NMOS above and a PMOS of the same process.
   const pcard: DeviceCard = { ...card, name: "test-p", polarity: "pmos", vt0: volts(-0.7), kp: amperesPerVoltSquared(40e-6) };
+  const m: Stage = {
+    topology: "current-mirror",
+    name: "bias mirror (invented)",
+    device: { card, w: meters(40e-6), l: meters(2e-6) },
+    devices: { reference: { card, w: meters(10e-6), l: meters(2e-6) } },
+    components: { rref: ohms(100e3), rload: ohms(20e3) },
+    supplies: { vdd: volts(5) },
+  } as never;
   it("mirror: Rm = 1/(gm1 + gds1 + 1/RREF), the mirror pole 1/(2π·Rm·Cgate), transimpedance −gm2·Rm·RL'", () => {
-    const m: Stage = {
-      topology: "current-mirror",
-      name: "bias mirror (invented)",
-      device: { card, w: meters(40e-6), l: meters(2e-6) },
-      devices: { reference: { card, w: meters(10e-6), l: meters(2e-6) } },
-      components: { rref: ohms(100e3), rload: ohms(20e3) },
-      supplies: { vdd: volts(5) },
-    } as never;
     const dc = analyzeStage(m as never);
     const rec = new Derivation("mirror");
     const fa = analyzeFrequency(m, dc, { load: { capacitance: farads(1e-12) } }, rec);
@@ -299,10 +299,60 @@ describe("current mirror and diode-load stage", () => {
     const deck = acCircuit(m, dc, fa).lines.join("\n");
     expect(deck).toMatch(/^ISIG 0 g DC 0 AC 1$/m);
     expect(deck).toMatch(/AD=.*AS=.*PD=.*PS=/);
-    // An output held by an ideal source has no output pole; a source resistance has no meaning for a current drive.
-    const held = { ...m, components: { rref: ohms(100e3), vout: volts(2) } } as Stage;
-    expect(() => analyzeFrequency(held, analyzeStage(held as never), {})).toThrow(/load resistor/);
+    // A source resistance has no meaning for a current drive.
     expect(() => analyzeFrequency(m, dc, { source: { resistance: ohms(50) } })).toThrow(InputError);
+  });
+  it("mirror load in one place: components.rload where the bias network holds it, else frequency.load.resistance returned to the vout source", () => {
+    const dc = analyzeStage(m as never);
+    const own = analyzeFrequency(m, dc, { load: { capacitance: farads(1e-12) } });
+    // The same operating point with the output held at the drain voltage RLOAD gave, and RLOAD as the outside load:
+    // the small-signal circuit is the same, so every figure is.
+    const held = { ...m, components: { rref: ohms(100e3), vout: dc.nodes.drain } } as Stage;
+    const hdc = analyzeStage(held as never);
+    expect(Math.abs(hdc.op.channelCurrent / dc.op.channelCurrent - 1)).toBeLessThan(1e-9);
+    const rec = new Derivation("held mirror");
+    const fa = analyzeFrequency(held, hdc, { load: { resistance: ohms(20e3), capacitance: farads(1e-12) } }, rec);
+    for (const [a, b] of [
+      [fa.midbandGain, own.midbandGain],
+      [fa.high.corner, own.high.corner],
+      [fa.mirror!.mirrorPole, own.mirror!.mirrorPole],
+      [fa.mirror!.outputPole, own.mirror!.outputPole],
+    ] as const)
+      expect(Math.abs(a / b - 1)).toBeLessThan(1e-9);
+    expect(fa.load.resistance).toBe(20e3);
+    expect(own.load.resistance).toBeUndefined();
+    expect(rec.inputs.find((i) => i.name === "RLOAD")?.origin).toMatch(/frequency\.load\.resistance/);
+    expectReevaluates(rec);
+    // The AC deck returns RLOAD to the vout source, moved by IOUT·RLOAD so the bias is untouched.
+    const deck = acCircuit(held, hdc, fa).lines.join("\n");
+    const vb = Number(/^VOUT outb 0 (\S+)$/m.exec(deck)?.[1]);
+    expect(Math.abs(vb - (dc.nodes.drain + Math.abs(hdc.op.channelCurrent) * 20e3))).toBeLessThan(1e-6);
+    expect(deck).toMatch(/^RLOAD outb x 20000$/m);
+    expect(deck).not.toMatch(/^COUT /m);
+    // Neither, or both at once, is refused naming the field and where the load goes.
+    for (const [f, msg] of [
+      [() => analyzeFrequency(held, hdc, { load: { capacitance: farads(1e-12) } }), /frequency\.load\.resistance/],
+      [() => analyzeFrequency(m, dc, { load: { resistance: ohms(20e3) } }), /frequency\.load\.resistance.*components\.rload/],
+    ] as const) {
+      expect(f).toThrow(InputError);
+      expect(f).toThrow(msg);
+    }
+  });
+  it("cascode mirror: RLOAD from frequency.load.resistance, required, recorded with its origin", () => {
+    const cm: Stage = {
+      topology: "cascode-mirror",
+      name: "sensor bias mirror (invented)",
+      device: { card, w: meters(20e-6), l: meters(2e-6) },
+      devices: { cascode: { card, w: meters(20e-6), l: meters(1e-6) } },
+      components: { iref: 50e-6, vout: volts(3) },
+      supplies: { vdd: volts(5) },
+    } as never;
+    const dc = analyzeStage(cm as never);
+    const rec = new Derivation("cascode mirror");
+    const fa = analyzeFrequency(cm, dc, { load: { resistance: ohms(100e3), capacitance: farads(2e-12) } }, rec);
+    expect(fa.load.resistance).toBe(100e3);
+    expect(rec.inputs.find((i) => i.name === "RLOAD")?.origin).toMatch(/frequency\.load\.resistance/);
+    expect(() => analyzeFrequency(cm, dc, { load: { capacitance: farads(2e-12) } })).toThrow(/frequency\.load\.resistance/);
   });
   it("diode load: the load's resistance and capacitances at the output, per load type and body tie", () => {
     const base = { topology: "diode-load", name: "gain cell (invented)", device: { card, w: meters(20e-6), l: meters(1e-6) }, components: { vg: volts(1.2) }, supplies: { vdd: volts(5) } };

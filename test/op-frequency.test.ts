@@ -101,6 +101,27 @@ describe("pinchoff op with a frequency section", () => {
       expect(t.out).toMatch(new RegExp(`Frequency response \\(${f.view}`));
     }
   }, 60_000);
+  it("takes a simple mirror's load from components.rload or, with its output held at vout, from frequency.load.resistance", async () => {
+    const card = design.device.card;
+    const base = { name: "bias mirror (invented)", topology: "current-mirror", device: design.device, devices: { reference: { card, w: "10 um", l: "2 um" } }, supplies: { vdd: "5 V" } };
+    const own = JSON.parse((await captureCli(main, [write("own.json", { ...base, components: { rref: "100 kohm", rload: "20 kohm" }, frequency: { load: { capacitance: "1 pF" } } }), "--json"])).out);
+    // The same operating point held by a source at the drain voltage RLOAD gave, RLOAD now the outside load.
+    const vd = own.nodes.drain as number;
+    const r = await captureCli(main, [write("held.json", { ...base, components: { rref: "100 kohm", vout: `${vd} V` }, frequency: { load: { resistance: "20 kohm", capacitance: "1 pF" } } }), "--json"]);
+    expect(r.err).toBe("");
+    const held = JSON.parse(r.out);
+    expect(held.frequency.view).toBe("current-mirror");
+    expect(Math.abs(held.frequency.midbandGain / own.frequency.midbandGain - 1)).toBeLessThan(1e-6);
+    expect(Math.abs(held.frequency.high.corner / own.frequency.high.corner - 1)).toBeLessThan(1e-6);
+    // Both at once: refused, naming the field and where the load is given.
+    const both = await captureCli(main, [write("both.json", { ...base, components: { rref: "100 kohm", rload: "20 kohm" }, frequency: { load: { resistance: "20 kohm" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(both.code).not.toBe(0);
+    expect(`${both.err}`).toMatch(/frequency\.load\.resistance.*components\.rload/);
+    // Held without a load resistance: refused, naming the field.
+    const none = await captureCli(main, [write("none.json", { ...base, components: { rref: "100 kohm", vout: "2 V" }, frequency: { load: { capacitance: "1 pF" } } }), "--json"]).catch((e: Error) => ({ code: -1, out: "", err: e.message }));
+    expect(none.code).not.toBe(0);
+    expect(`${none.err}`).toMatch(/frequency\.load\.resistance/);
+  }, 60_000);
   it("analyses the cascode current mirror, stacked and wide-swing, with RLOAD and CL from the frequency section", async () => {
     const card = design.device.card;
     const base = { topology: "cascode-mirror", device: { card, w: "20 um", l: "2 um" }, devices: { cascode: { card, w: "20 um", l: "1 um" } }, supplies: { vdd: "5 V" }, frequency: { load: { resistance: "100 kohm", capacitance: "2 pF" } } };

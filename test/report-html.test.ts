@@ -2,17 +2,20 @@
 import { describe, expect, it } from "vitest";
 import { buildReport, reportMarker, type ReportModel } from "../lib/report/html.js";
 import { cautionList as cautions } from "../lib/record/cautions.js";
-import { collect, plotMime } from "../lib/runner/collect.js";
+import { allChecks, collect, plotMime } from "../lib/runner/collect.js";
+import { renderHtmlFragment } from "../lib/record/render-html.js";
+import escapeHtml from "escape-html";
 import type { Notebook } from "../lib/runner/notebook-file.js";
 import { analyzeStage } from "../lib/bias/analyze.js";
 import { analyzeFrequency, isFrequencyRecord } from "../lib/bias/frequency.js";
 import { frequencyRows } from "../lib/bias/frequency-summary.js";
 import type { Stage } from "../lib/bias/topology.js";
 import { bodePlot } from "../lib/plot/bode.js";
-import { Derivation } from "../lib/record/derivation.js";
+import { Derivation, solverCheckPrefix } from "../lib/record/derivation.js";
 import { tableBundle, partMime } from "../lib/notebook/display.js";
 import { amperesPerVoltSquared, farads, hertz, meters, ohms, perVolt, volts } from "../lib/quantity.js";
 
+const esc = (t: string) => escapeHtml(t);
 const hostile = '<script>alert("x")</script>&';
 const model = (over: Partial<ReportModel> = {}): ReportModel => ({
   title: `Title ${hostile}`,
@@ -82,6 +85,38 @@ describe("report", () => {
     expect(at("<h2>SPICE deck</h2>")).toBeLessThan(at("<h2>Cautions</h2>"));
     // Without a marked summary the box says how to mark one.
     expect(buildReport(model())).toContain('showTable(rows, title, { part: "summary" })');
+  });
+
+  it("lists the solver's KCL check apart from the design checks in the results box, as the record does", () => {
+    // Invented stage; the DC record carries design checks and the solver's own KCL residual.
+    const stage: Stage = {
+      topology: "four-resistor",
+      name: "report stage (invented)",
+      device: { card: { name: "t", polarity: "nmos", kp: amperesPerVoltSquared(100e-6), vt0: volts(0.7), lambda: perVolt(0.02), provenance: "invented for the tests" }, w: meters(40e-6), l: meters(2e-6) },
+      components: { rg1: ohms(680e3), rg2: ohms(220e3), rd: ohms(10e3), rs: ohms(1.5e3) },
+      supplies: { vdd: volts(12) },
+    };
+    const rec = new Derivation("Bias: report stage");
+    analyzeStage(stage as never, rec);
+    const data = rec.toJSON();
+    const checks = allChecks({ derivations: [{ cell: 1, data }], plots: [], parts: [], failures: [], skipped: [] });
+    const kcl = data.checks.find((c) => c.title.startsWith(solverCheckPrefix))!;
+    expect(kcl.title).toMatch(/KCL/);
+    const html = buildReport(model({ checks, derivations: [{ title: data.title, cell: 1, html: renderHtmlFragment(data) }] }));
+    const box = html.slice(html.indexOf('<section class="results">'), html.indexOf("</section>", html.indexOf('<section class="results">')));
+    const table = (kind: string) => box.slice(box.indexOf(`<table data-checks="${kind}">`), box.indexOf("</table>", box.indexOf(`<table data-checks="${kind}">`)));
+    const bare = esc(kcl.title.slice(solverCheckPrefix.length));
+    expect(table("design")).not.toContain("KCL");
+    expect(table("solver")).toContain(bare);
+    expect(box).not.toContain(esc(solverCheckPrefix));
+    expect(box.indexOf("<h3>Solver checks</h3>")).toBeGreaterThan(box.indexOf('<table data-checks="design">'));
+    for (const c of data.checks.filter((x) => !x.title.startsWith(solverCheckPrefix))) expect(table("design")).toContain(esc(c.title));
+    // The record rendered below the box puts the same check under its own solver heading.
+    const record = html.slice(html.indexOf('<section class="derivation"'));
+    expect(record.indexOf("Solver checks")).toBeGreaterThan(-1);
+    expect(record.indexOf(bare)).toBeGreaterThan(record.indexOf("Solver checks"));
+    // The verdict still counts every check.
+    expect(box).toContain(`All ${data.checks.length} checks pass`);
   });
 
   it("marks overrides, the failing check and its margin, and carries the record and cautions", () => {

@@ -14,7 +14,8 @@
  *     },
  *     — or, for a discrete part from its datasheet, instead of card, w and l:
  *     "device": { "part": { "name": "…", "polarity": "nmos", "threshold": …, "forwardTransconductance": …,
- *                           "onResistance": …, "ratings": … }, "ambient": "40 degC" },   see ./part-file.ts
+ *                           "onResistance": …, "ratings": … }, "ambient": "40 degC", "rthCA": "4 K/W" },   see ./part-file.ts
+ *       (rthCA, optional: case-to-ambient through the interface and heat sink; TJ is then checked through RθJC + RθCA)
  *     "components": { "rg1": "200k", "rg2": "100k", "rd": "5k", "rs": "1k" },
  *     — or, to design the stage, instead of components:
  *     "specification": { "id": "1 mA", "sizing": { "vov": "0.3 V", "l": "1 um" }, "drain": { "vd": "3 V" }, … },
@@ -38,8 +39,8 @@ import { readFileSync } from "node:fs";
 import { checkCard, type DeviceCard } from "../device/card.js";
 import { cardAt, checkCardSet, type CardSet } from "../device/card-set.js";
 import { InputError, PinchoffError, requirePositive } from "../errors.js";
-import type { Dimension, Kelvin, Meters } from "../quantity.js";
-import { defaultAmbient, partModel, type PartInUse } from "../device/discrete-part.js";
+import type { Dimension, Meters } from "../quantity.js";
+import { defaultAmbient, partInUse, partModel, type PartInUse } from "../device/discrete-part.js";
 import { parsePartCard } from "./part-file.js";
 import { checkFrequencySpec, type FrequencySpec } from "./frequency.js";
 import type { DiffusionGeometry } from "../device/capacitance-card.js";
@@ -222,16 +223,17 @@ function parseCardOrSet(raw: unknown, f: string, at: (p: string) => string): Dev
   return checkCardSet(set, at(f));
 }
 
-/** Parse one transistor `{ card, w, l }`, or a discrete part `{ part, ambient? }`, found at field path `f`. */
+/** Parse one transistor `{ card, w, l }`, or a discrete part `{ part, ambient?, rthCA? }`, found at field path `f`. */
 function parseStageDevice(raw: unknown, f: string, at: (p: string) => string): StageDevice {
-  const dev = object(raw, at(f), "a device { card, w, l } or a discrete part { part, ambient? }");
+  const dev = object(raw, at(f), "a device { card, w, l } or a discrete part { part, ambient?, rthCA? }");
   if (dev.part !== undefined) {
-    onlyKeys(dev, ["part", "ambient"], at(f));
+    onlyKeys(dev, ["part", "ambient", "rthCA"], at(f));
     const part = parsePartCard(dev.part, at(`${f}.part`));
     const ambient = dev.ambient === undefined ? defaultAmbient : quantity(dev.ambient, "temperature", at(`${f}.ambient`));
-    if (!(ambient > 0)) throw new InputError(dev.ambient, "an ambient temperature above absolute zero", at(`${f}.ambient`));
+    const rthCA = dev.rthCA === undefined ? undefined : quantity(dev.rthCA, "thermalResistance", at(`${f}.rthCA`));
+    const use = partInUse(part, ambient, rthCA, at(f));
     const model = partModel(part, undefined, at(`${f}.part`));
-    return { card: model.card, w: model.w, l: model.l, part: { part, ambient: ambient as Kelvin } };
+    return { card: model.card, w: model.w, l: model.l, part: use };
   }
   onlyKeys(dev, ["card", "w", "l", "diffusion"], at(f));
   const read = parseCardOrSet(dev.card, `${f}.card`, at);
@@ -352,7 +354,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
     if (!Object.prototype.hasOwnProperty.call(specFields, topo.id))
       throw new InputError(topo.id, `a topology with a designer for a specification: ${Object.keys(specFields).map((t) => JSON.stringify(t)).join(", ")}`, at("topology"), "invalid-design");
     const fields = specFields[topo.id as SpecTopology] as Readonly<Record<string, SpecField>>;
-    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing), or a discrete part { part, ambient? }");
+    const dev = object(d.device, at("device"), "a device { card } (its size comes from specification.sizing), or a discrete part { part, ambient?, rthCA? }");
     for (const k of ["w", "l"] as const)
       if (dev[k] !== undefined) throw new InputError(dev[k], `no device.${k} with a specification: the size comes from specification.sizing (vov or w, and l)`, at(`device.${k}`), "invalid-design");
     if (d.devices !== undefined)
@@ -383,7 +385,7 @@ export function parseDesignFile(design: unknown, origin = "design"): DesignFile 
       if (!resistorNames.includes(k)) throw new InputError(k, `one of the ${topo.id} resistors ${resistorNames.join(", ")}`, at(`specification.dissipation.resistors.${k}`), "invalid-design");
     // Passed to synthesis as parsed: the library takes this same shape (lib/bias/synthesis.ts converts it once).
     const { sizing, ...partOwn } = own;
-    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient } : { card }, specification: part || sizing === undefined ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
+    const spec = { topology: topo.id, ...parseCommon(d, at, origin), device: part ? { part: part.part, ambient: part.ambient, ...(part.rthCA !== undefined ? { rthCA: part.rthCA } : {}) } : { card }, specification: part || sizing === undefined ? partOwn : { sizing, ...partOwn } } as unknown as StageSpec;
     return { kind: "specification", origin, spec, ...(part ? { part } : {}), ...tolerance };
   }
 

@@ -73,21 +73,22 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     const cas = (stage.devices as Record<string, Stage["device"]> | undefined)?.cascode;
     if (!stage.device.card.capacitance || !cas?.card.capacitance)
       throw new InputError(stage.device.card.name, "Level 1 capacitance blocks on the mirror and cascode cards for the AC export (datasheet capacitances are not placed in a cascode mirror's deck)", `${stage.name ?? stage.topology}: device.card.capacitance`, "invalid-design");
-    const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === nn.out && l.split(" ")[2] === "0");
     const m4 = analysis.devices?.M4;
-    if (i < 0 || !m4) throw new Error(`internal: no output source at node ${nn.out} in the cascode-mirror deck`);
-    const vout = (stage.components as Record<string, number>).vout!;
-    const sign = stage.device.card.polarity === "nmos" ? 1 : -1;
-    const rl = fa.load.resistance!;
-    const name = lines[i]!.split(" ")[0]!;
-    lines[i] = `${name} ${p}outb 0 ${spiceNumber(vout + sign * Math.abs(m4.op.channelCurrent) * rl)}`;
-    lines.push(`R${p}LOAD ${p}outb ${nn.out} ${spiceNumber(rl)}`, `I${p}SIG 0 ${nn.a} DC 0 AC 1`);
+    if (!m4) throw new Error(`internal: no M4 analysis in the cascode-mirror deck`);
+    loadHeldOutput(lines, stage, nn.out!, Math.abs(m4.op.channelCurrent), fa.load.resistance!, p);
+    lines.push(`I${p}SIG 0 ${nn.a} DC 0 AC 1`);
     if (fa.load.capacitance > 0) lines.push(`C${p}L ${nn.out} 0 ${spiceNumber(fa.load.capacitance)}`);
     return { lines, output: nn.out!, sweep };
   }
   if (fa.drive === "current") {
     // Current mirror: an ideal AC current into the reference (gate) node; DC 0, so the bias is untouched.
     lines.push(`I${p}SIG 0 ${n.gate} DC 0 AC 1`);
+    // An outside RLOAD goes between the source that holds vout and the output.
+    if (fa.load.resistance !== undefined) {
+      const held = (dc.nodes as Record<string, string>).held;
+      if (!held) throw new Error(`internal: the ${stage.topology} deck names no held output node`);
+      loadHeldOutput(lines, stage, held, Math.abs(analysis.op.channelCurrent), fa.load.resistance, p);
+    }
   } else if (fa.circuit.gateCoupled) {
     lines.push(`V${p}SIG ${sig} 0 DC 0 AC 1`);
     lines.push(rsig > 0 ? `R${p}SIG ${sig} ${gateIn} ${spiceNumber(rsig)}` : `V${p}SIGR ${sig} ${gateIn} 0`);
@@ -107,7 +108,7 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
   if (cb !== undefined) lines.push(`C${p}B ${n.source} 0 ${spiceNumber(cb)}`);
   const outNode = fa.view === "cascode" ? (dc.nodes as Record<string, string>).out! : fa.outputNode === "drain" ? n.drain : n.source;
   let out = outNode;
-  if (fa.load.resistance !== undefined) {
+  if (fa.load.resistance !== undefined && fa.drive !== "current") {
     out = `${p}out`;
     lines.push(`C${p}OUT ${outNode} ${out} ${spiceNumber(cap("output")!)}`);
     lines.push(`R${p}L ${out} 0 ${spiceNumber(fa.load.resistance)}`);
@@ -139,6 +140,20 @@ export function acCircuit(stage: Stage, analysis: StageAnalysis, fa: FrequencyAn
     lines.push(`C${p}GS2 ${g} ${x} ${spiceNumber(c.cgs)}`, `C${p}GD2 ${g} ${d} ${spiceNumber(c.cgd)}`, `C${p}DS2 ${d} ${x} ${spiceNumber(c.cds)}`);
   }
   return { lines, output: out, sweep };
+}
+
+/**
+ * A mirror's output held at vout by a source: RLOAD goes between that source and the output, and the source moves by
+ * IOUT·RLOAD (up for an NMOS sink, down for a PMOS source) so the output still sits at vout and the bias is untouched.
+ */
+function loadHeldOutput(lines: string[], stage: Stage, out: string, iout: number, rl: number, p: string): void {
+  const i = lines.findIndex((l) => /^V\S* /.test(l) && l.split(" ")[1] === out && l.split(" ")[2] === "0");
+  if (i < 0) throw new Error(`internal: no output source at node ${out} in the ${stage.topology} deck`);
+  const vout = (stage.components as Record<string, number>).vout!;
+  const sign = stage.device.card.polarity === "nmos" ? 1 : -1;
+  const name = lines[i]!.split(" ")[0]!;
+  lines[i] = `${name} ${p}outb 0 ${spiceNumber(vout + sign * iout * rl)}`;
+  lines.push(`R${p}LOAD ${p}outb ${out} ${spiceNumber(rl)}`);
 }
 
 const loadNodes = (nn: Record<string, string>) => ({ g: nn.loadGate!, d: nn.loadDrain!, s: nn.loadSource! });

@@ -9,8 +9,10 @@
  *   Rm = 1/(gm1 + gds1 + 1/RREF) with the diode device's and the output device's
  *   gate capacitances on it (the mirror pole 1/(2π·Rm·Cgate)), Cgd of the output
  *   device bridges to the output, and RLOAD ∥ ro2 with Cdb2 + Cds2 + CL sets the
- *   output pole. The response is the transimpedance vout/iin (V/A). An output
- *   held by an ideal source (`vout`) has no output pole and is refused.
+ *   output pole. The response is the transimpedance vout/iin (V/A). RLOAD is
+ *   `components.rload` where the bias network holds the load resistor; with the
+ *   output held at `vout` by a source it is `frequency.load.resistance`,
+ *   returned to that source (as in the cascode mirror), and it is required.
  * - Common source with a diode-connected load (`diode-load`): the driver's gate
  *   DC-coupled in series with its bias source, the load device a resistance
  *   1/(gmL + gmbL + gdsL) whose own capacitances load the output node (which of
@@ -22,8 +24,9 @@
  *   exact nodal transimpedance, node poles and their time-constant sum
  *   (`analyzeCascodeMirrorFrequency`).
  *
- * The first two stages are DC-coupled: a load resistor, coupling capacitors or a
- * low-corner target are refused with an InputError (no low corner exists).
+ * All three are DC-coupled: coupling capacitors or a low-corner target are
+ * refused with an InputError (no low corner exists), and so is an outside load
+ * resistor on the diode-load stage (its load device is the load).
  * Small-signal values are the DC analysis's (public `StageAnalysis.devices`),
  * so a different device model in the solver carries through. Not on a hot
  * path; allocates its result.
@@ -50,8 +53,6 @@ export interface MirrorFrequencyNodes {
 }
 
 function refuseCoupling(spec: FrequencySpec, o: string, what: string): void {
-  if (spec.load?.resistance !== undefined)
-    throw new InputError(spec.load.resistance, `no load resistance: the ${what}'s output is DC-coupled (fold a resistive load into the stage's own load)`, `${o}: frequency.load.resistance`, "invalid-design");
   if (spec.capacitors || spec.targets?.lowCorner !== undefined)
     throw new InputError(spec.capacitors ?? spec.targets?.lowCorner, `no coupling or bypass capacitors and no low-corner target: the ${what} is DC-coupled, so it has no low corner`, `${o}: frequency`, "invalid-design");
 }
@@ -64,27 +65,48 @@ function second(stage: Stage, analysis: StageAnalysis, role: string, o: string) 
   return { dev, an };
 }
 
+/**
+ * The load resistance a mirror's output drives, in one place for both mirrors: the bias network's own resistor
+ * (`components.rload`, simple mirror) where it has one, else `frequency.load.resistance`, returned to the source
+ * that holds the DC output at vout. Both at once, or neither, is refused naming the field.
+ */
+export function mirrorLoadResistance(stage: Stage, spec: FrequencySpec, o: string): { readonly value: Ohms; readonly origin: string; readonly external: boolean } {
+  const own = (stage.components as Record<string, number | undefined>).rload;
+  const ext = spec.load?.resistance;
+  if (own !== undefined) {
+    if (ext !== undefined)
+      throw new InputError(ext, `no frequency.load.resistance: this mirror's bias network already holds its load resistor (components.rload = ${own} Ω), which is the load the frequency analysis uses; give one load there`, `${o}: frequency.load.resistance`, "invalid-design");
+    return { value: own as Ohms, origin: `${o}: components.rload`, external: false };
+  }
+  if (ext === undefined)
+    throw new InputError(undefined, "a load resistance (frequency.load.resistance, RLOAD returned to the source that holds vout): with the output held by an ideal source there is no output pole to analyse", `${o}: frequency.load.resistance`, "invalid-design");
+  return { value: ext, origin: `${o}: frequency.load.resistance`, external: true };
+}
+
 export function analyzeMirrorFrequency(stage: Stage, analysis: StageAnalysis, spec: FrequencySpec, o: string, rec?: Derivation): FrequencyAnalysis {
   refuseCoupling(spec, o, "current mirror");
   if (spec.source !== undefined)
     throw new InputError(spec.source, "no signal source resistance: the mirror is driven by an ideal signal current into its reference node (RREF and the diode device set the node's resistance)", `${o}: frequency.source`, "invalid-design");
   const c = stage.components as Record<string, number | undefined>;
-  if (c.rload === undefined)
-    throw new InputError(c.vout, "a load resistor (components.rload): an output held by an ideal voltage source has no output pole to analyse", `${o}: components.vout`, "invalid-design");
+  const rl = mirrorLoadResistance(stage, spec, o);
   const { dev: refDev, an: ref } = second(stage, analysis, "reference", o);
   const cl = spec.load?.capacitance ?? 0;
   const { gm, gds } = analysis.smallSignal;
   const findings: string[] = [];
   const checks: StageCheck[] = [];
   if (rec) {
-    rec.note(frequencyRecordNote, "Current mirror driven by a signal current into the reference node (the gates of both devices); output at the output device's drain, loaded by RLOAD. Sources and bodies sit at the rail, so there is no body effect. Small-signal values at the operating point.");
+    rec.note(
+      frequencyRecordNote,
+      `Current mirror driven by a signal current into the reference node (the gates of both devices); output at the output device's drain, loaded by RLOAD ${rl.external ? "returned to the source that holds the DC output at vout" : "to the drain-side rail"}. Sources and bodies sit at the rail, so there is no body effect. Small-signal values at the operating point.`,
+    );
+    rec.input("RLOAD", rl.value, "resistance", rl.origin);
     rec.input("CL", cl, "capacitance", spec.load?.capacitance !== undefined ? `${o}: frequency.load.capacitance` : `${o}: no load capacitance given`);
     rec.assume("The signal current source is ideal; the device capacitances are constant at the operating point (small signal).");
   }
   const c1 = deviceCapacitances(refDev, ref.op, `${o}: devices.reference`, rec);
   const c2 = deviceCapacitances(stage.device, analysis.op, `${o}: device`, rec);
   const Rm = evaluateFormula(ff.mirrorNodeResistance, { gm3: ref.smallSignal.gm, gds3: ref.smallSignal.gds, RREF: c.rref! }, rec, "the diode device, its ro and RREF all return the gate node to AC ground");
-  const RLP = evaluateFormula(bf.commonSourceOutput, { RD: c.rload, gds }, rec, "RLOAD in the place of RD");
+  const RLP = evaluateFormula(bf.commonSourceOutput, { RD: rl.value, gds }, rec, "RLOAD in the place of RD");
   const av = evaluateFormula(ff.mirrorTransimpedance, { gm, Rm, RLP }, rec);
   const CGI = evaluateFormula(ff.mirrorGateCapacitance, { Cgs3: c1.cgs, Cgb3: c1.cgb, Cdb3: c1.cdb, Cds3: c1.cds, Cgs4: c2.cgs, Cgb4: c2.cgb }, rec, "subscript 3 the reference device, 4 the output device");
   const CGO = evaluateFormula(ff.gateToOutput, { Cgd: c2.cgd }, rec, "the output device's gate-drain capacitance");
@@ -101,7 +123,8 @@ export function analyzeMirrorFrequency(stage: Stage, analysis: StageAnalysis, sp
     midbandGain: av as Ratio,
     drive: "current",
     source: { resistance: Infinity as Ohms },
-    load: { capacitance: cl as Farads },
+    // An outside load (returned to the output's source) is the AC deck's to place; components.rload is in the DC deck.
+    load: { ...(rl.external ? { resistance: rl.value } : {}), capacitance: cl as Farads },
     high,
     nodes,
     mirror: { gateResistance: Rm as Ohms, gateCapacitance: CGI as Farads, mirrorPole: fm as Hertz, outputPole: (high.miller?.outputPole ?? Infinity) as Hertz },
@@ -113,6 +136,8 @@ export function analyzeMirrorFrequency(stage: Stage, analysis: StageAnalysis, sp
 
 export function analyzeDiodeLoadFrequency(stage: Stage, analysis: StageAnalysis, spec: FrequencySpec, o: string, rec?: Derivation): FrequencyAnalysis {
   refuseCoupling(spec, o, "diode-load stage");
+  if (spec.load?.resistance !== undefined)
+    throw new InputError(spec.load.resistance, "no load resistance: the diode-load stage's output is DC-coupled (fold a resistive load into the stage's own load)", `${o}: frequency.load.resistance`, "invalid-design");
   const { dev: loadDev, an: load } = second(stage, analysis, "load", o);
   const rsig = spec.source?.resistance ?? 0;
   const cl = spec.load?.capacitance ?? 0;
@@ -187,9 +212,7 @@ export function analyzeCascodeMirrorFrequency(stage: Stage, analysis: StageAnaly
     throw new InputError(spec.capacitors ?? spec.targets?.lowCorner, "no coupling or bypass capacitors and no low-corner target: the cascode mirror is DC-coupled, so it has no low corner", `${o}: frequency`, "invalid-design");
   if (spec.source !== undefined)
     throw new InputError(spec.source, "no signal source resistance: the cascode mirror is driven by an ideal signal current into its reference node", `${o}: frequency.source`, "invalid-design");
-  const rl = spec.load?.resistance;
-  if (rl === undefined)
-    throw new InputError(undefined, "a load resistance (frequency.load.resistance, RLOAD returned to the source that holds vout): with the output held by an ideal source there is no output pole to analyse", `${o}: frequency.load.resistance`, "invalid-design");
+  const rl = mirrorLoadResistance(stage, spec, o).value;
   const dv = analysis.devices ?? {};
   const m = (n: "M1" | "M2" | "M3" | "M4") => {
     // M2 is the stage's main device: its analysis is the stage's own.

@@ -60,8 +60,8 @@ export function parsePartCard(raw: unknown, at = "part"): DiscretePart {
   const ratings = group(rest, `${at}.ratings`, { vds: ["voltage", true], vgs: ["voltage", true], id: ["current", true], pd: ["power", true], tjMax: ["temperature", true], rthJA: ["thermalResistance", false], rthJC: ["thermalResistance", false] }, "the absolute maximum ratings", pmos);
   if (!isObject(pdAt) || Object.keys(pdAt).length !== 1 || !("ambient" in pdAt || "case" in pdAt))
     throw new InputError(pdAt, `where PD is stated: { "ambient": "25 degC" } or { "case": "25 degC" }`, `${at}.ratings.pdAt`, "invalid-design");
-  const kind = "ambient" in pdAt ? "ambient" : "case";
-  const t = group(pdAt, `${at}.ratings.pdAt`, { [kind]: ["temperature", true] }, "the temperature PD is stated at", false)[kind]!;
+  const where = "ambient" in pdAt ? "ambient" : "case";
+  const t = group(pdAt, `${at}.ratings.pdAt`, { [where]: ["temperature", true] }, "the temperature PD is stated at", false)[where]!;
   const caps = raw.capacitances === undefined ? undefined : group(raw.capacitances, `${at}.capacitances`, { ciss: ["capacitance", true], crss: ["capacitance", true], coss: ["capacitance", true], vds: ["voltage", true] }, "the datasheet capacitances { ciss, crss, coss, vds }", pmos);
   const part = {
     ...(caps ? { capacitances: caps } : {}),
@@ -70,7 +70,7 @@ export function parsePartCard(raw: unknown, at = "part"): DiscretePart {
     threshold,
     forwardTransconductance: fwd,
     ...(on ? { onResistance: on } : {}),
-    ratings: { ...ratings, pdAt: { kind, temperature: t } },
+    ratings: { ...ratings, pdAt: { [where]: t } },
     ...(raw.provenance !== undefined ? { provenance: raw.provenance } : {}),
   } as unknown as DiscretePart;
   return checkPart(part, at);

@@ -18,8 +18,8 @@ import type { Derivation } from "../record/derivation.js";
 import type { DeviceCard } from "../device/card.js";
 import { cardAt, checkCardSet, type CardSet } from "../device/card-set.js";
 import type { ModelOptions } from "../device/drain-current.js";
-import { defaultAmbient, partModel, ratingChecks, type DiscretePart, type PartInUse } from "../device/discrete-part.js";
-import type { Kelvin } from "../quantity.js";
+import { defaultAmbient, partInUse, partModel, ratingChecks, recordPartInUse, type DiscretePart, type PartInUse } from "../device/discrete-part.js";
+import type { Kelvin, KelvinPerWatt } from "../quantity.js";
 import { analyzeStage } from "./analyze.js";
 import { specFields, type SpecTopology } from "./spec-fields.js";
 import type { BodyTie, StageLimits, Supplies } from "./topology.js";
@@ -49,7 +49,7 @@ type Own<S> = Omit<S, "topology" | "name" | "card" | "supplies" | "body" | "opti
 export type SpecificationOf<T extends FlatSpec["topology"]> = Own<Extract<FlatSpec, { topology: T }>>;
 
 /** The device of a specification: a card (its size comes from specification.sizing), or a discrete part (its size is fixed by the part). */
-export type SpecDevice = { readonly card: DeviceCard | CardSet } | { readonly part: DiscretePart; readonly ambient?: Kelvin };
+export type SpecDevice = { readonly card: DeviceCard | CardSet } | { readonly part: DiscretePart; readonly ambient?: Kelvin; readonly rthCA?: KelvinPerWatt };
 
 /** A specification section with no sizing: a discrete part fixes its own size. */
 type PartOwn<S> = Omit<Own<S>, "sizing">;
@@ -67,7 +67,7 @@ export type SynthesisSpec<S extends FlatSpec = FlatSpec> = S extends unknown
       readonly body?: BodyTie;
       readonly options?: ModelOptions;
       readonly limits?: StageLimits;
-    } & ({ readonly device: { readonly card: DeviceCard | CardSet }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin }; readonly specification: PartOwn<S> })
+    } & ({ readonly device: { readonly card: DeviceCard | CardSet }; readonly specification: Own<S> } | { readonly device: { readonly part: DiscretePart; readonly ambient?: Kelvin; readonly rthCA?: KelvinPerWatt }; readonly specification: PartOwn<S> })
   : never;
 
 export type FourResistorSpec = SynthesisSpec<FourResistorFlat>;
@@ -111,15 +111,13 @@ function flatten(spec: unknown, rec?: Derivation): { flat: FlatSpec; part?: Part
     const own = isObject(load) && isObject(load.card) && load.card.kind === "card-set" ? { ...specification, load: { ...load, card: cardAtLength(load.card, load.l, "spec.specification.load.card", rec) } } : specification;
     return { flat: { ...common, card, ...own } as unknown as FlatSpec };
   }
-  for (const k of Object.keys(device)) if (k !== "part" && k !== "ambient") throw new InputError(k, "part and ambient in a discrete part's device", `spec.device.${k}`, "invalid-design");
+  for (const k of Object.keys(device)) if (k !== "part" && k !== "ambient" && k !== "rthCA") throw new InputError(k, "part, ambient and rthCA in a discrete part's device", `spec.device.${k}`, "invalid-design");
   if (specification.sizing !== undefined)
     throw new InputError(specification.sizing, "no specification.sizing with a discrete part: its size is fixed by the part (W/L is absorbed in its k)", "spec.specification.sizing", "invalid-design");
   if (common.body === "rail") throw new InputError("rail", `body "source" (or omitted): the discrete part has its body tied to its source inside the package`, "spec.body", "invalid-design");
-  const ambient = device.ambient === undefined ? defaultAmbient : device.ambient;
-  if (typeof ambient !== "number" || !(ambient > 0)) throw new InputError(ambient, "an ambient temperature above absolute zero in K", "spec.device.ambient", "invalid-design");
   const model = partModel(device.part as DiscretePart, rec, "device.part");
-  const part: PartInUse = { part: device.part as DiscretePart, ambient: ambient as Kelvin };
-  rec?.input(`ambient (${part.part.name})`, part.ambient, "temperature", "device.ambient");
+  const part = partInUse(device.part as DiscretePart, (device.ambient ?? defaultAmbient) as number, device.rthCA as number | undefined, "spec.device");
+  if (rec) recordPartInUse(rec, part);
   return { flat: { ...common, card: model.card, ...specification, sizing: { w: model.w, l: model.l } } as unknown as FlatSpec, part };
 }
 

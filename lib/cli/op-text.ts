@@ -56,7 +56,7 @@ export function opText(o: OpOutcome): string {
   for (const [n, v] of Object.entries(o.stage.components)) out.push(`  ${n.toUpperCase().padEnd(6)} ${q(v, componentDim(n, o.stage))}`);
   const device = (label: string, d: StageDevice) =>
     d.part
-      ? `  ${label} ${d.part.part.name}: discrete part, model k = ${q(d.card.kp, "transconductanceParameter")}, Vt = ${q(Math.abs(d.card.vt0), "voltage")} from its datasheet; ambient ${formatQuantity(d.part.ambient, "temperature", { celsius: true })}`
+      ? `  ${label} ${d.part.part.name}: discrete part, model k = ${q(d.card.kp, "transconductanceParameter")}, Vt = ${q(Math.abs(d.card.vt0), "voltage")} from its datasheet; ambient ${formatQuantity(d.part.ambient, "temperature", { celsius: true })}${d.part.rthCA !== undefined ? `, heat sink RθCA ${q(d.part.rthCA, "thermalResistance")}` : ""}`
       : `  ${label} ${d.card.name ?? "card"}: W ${q(d.w, "length")}, L ${q(d.l, "length")}`;
   out.push(device("device", o.stage.device));
   for (const [role, d] of Object.entries(o.stage.devices ?? {})) out.push(device(role, d));

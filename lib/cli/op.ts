@@ -20,7 +20,7 @@ import type { Dimension } from "../quantity.js";
 import { checkStamp, stampRecord } from "../record/stamp.js";
 import { toolVersion } from "../runner/paths.js";
 import { Derivation } from "../record/derivation.js";
-import { partModel } from "../device/discrete-part.js";
+import { partModel, recordPartInUse } from "../device/discrete-part.js";
 import { defineCommand, exitStatus, usageLine, UsageError, type CommandSpec } from "./args.js";
 import { checkLine, formatChecked, opText } from "./op-text.js";
 import { toleranceChecks, type ToleranceChecks } from "../bias/check-yield.js";
@@ -71,7 +71,7 @@ export function operatingPointOf(stage: Stage, file?: string): { analysis: Stage
   for (const d of [stage.device, ...Object.values(stage.devices ?? {})])
     if (d.part) {
       partModel(d.part.part, derivation);
-      derivation.input(`ambient (${d.part.part.name})`, d.part.ambient, "temperature", "device.ambient");
+      recordPartInUse(derivation, d.part);
     }
   try {
     const analysis = analyzeStage(stage, derivation);

@@ -25,6 +25,12 @@ import { onResistance, overdrive } from "../formulas/device.formulas.js";
 import type { Amperes, AmperesPerVoltSquared, Kelvin, KelvinPerWatt, Meters, Ohms, Siemens, Volts, Watts } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
 
+/**
+ * Where a part's PD is stated: the ambient temperature TA (free air) or the case temperature TC (an ideal heat
+ * sink), in K; exactly one. The same shape in a part file, there with units (`{ "ambient": "25 degC" }`).
+ */
+export type PowerRatingReference = { readonly ambient: Kelvin; readonly case?: undefined } | { readonly case: Kelvin; readonly ambient?: undefined };
+
 /** Absolute maximum ratings (magnitudes). */
 export interface PartRatings {
   /** Drain-source voltage VDS(max). */
@@ -35,8 +41,8 @@ export interface PartRatings {
   readonly id: Amperes;
   /** Power dissipation PD at its stated temperature. */
   readonly pd: Watts;
-  /** Where PD is stated: at the ambient (free air) or at the case, and at which temperature (25 °C on most datasheets). */
-  readonly pdAt: { readonly kind: "ambient" | "case"; readonly temperature: Kelvin };
+  /** Where PD is stated, as the datasheet writes it ("PD at TA = 25 °C" or "at TC = 25 °C"). */
+  readonly pdAt: PowerRatingReference;
   /** Maximum junction temperature TJ(max). */
   readonly tjMax: Kelvin;
   /** Junction-to-ambient thermal resistance, when stated. */
@@ -65,10 +71,31 @@ export interface DiscretePart {
 /** The ambient a part's board runs at when none is stated: 25 °C (common practice for datasheet figures). */
 export const defaultAmbient = 298.15 as Kelvin;
 
-/** A part as used in a stage: the card and the ambient temperature its board runs at. */
+/** A part as used in a stage: the card, the ambient temperature its board runs at, and its heat sink when it has one. */
 export interface PartInUse {
   readonly part: DiscretePart;
   readonly ambient: Kelvin;
+  /**
+   * Case-to-ambient thermal resistance RθCA of the part's mounting (the interface and the heat sink), when it sits
+   * on one: TJ is then checked as TA + P·(RθJC + RθCA), which needs the card's RθJC.
+   */
+  readonly rthCA?: KelvinPerWatt;
+}
+
+/** Record how a part is used (its ambient, its heat sink) as inputs of `rec`. */
+export function recordPartInUse(rec: Derivation, use: PartInUse): void {
+  rec.input(`ambient (${use.part.name})`, use.ambient, "temperature", "device.ambient");
+  if (use.rthCA !== undefined) rec.input(`RθCA (${use.part.name})`, use.rthCA, "thermalResistance", "device.rthCA (interface and heat sink)");
+}
+
+/** A part in use, validated once: the ambient above absolute zero, RθCA > 0 and only beside a card's RθJC. `origin` is the device's field path. */
+export function partInUse(part: DiscretePart, ambient: number, rthCA: number | undefined, origin: string): PartInUse {
+  if (typeof ambient !== "number" || !(ambient > 0) || !Number.isFinite(ambient)) throw new InputError(ambient, "an ambient temperature above absolute zero in K (or degC as text)", `${origin}.ambient`, "invalid-design");
+  if (rthCA === undefined) return { part, ambient: ambient as Kelvin };
+  requirePositive(rthCA, `${origin}.rthCA`, "a case-to-ambient thermal resistance RθCA > 0 in K/W (interface and heat sink)");
+  if (part.ratings.rthJC === undefined)
+    throw new InputError(rthCA, `a part card that states RθJC (ratings.rthJC of "${part.name}"): RθCA adds to the junction-to-case resistance`, `${origin}.rthCA`, "invalid-design");
+  return { part, ambient: ambient as Kelvin, rthCA: rthCA as KelvinPerWatt };
 }
 
 /** The square-law model derived from a part. */
@@ -88,6 +115,9 @@ export interface PartModel {
 
 /** Equivalent drawn size of a discrete part's model. */
 export const partSize = 1e-6 as Meters;
+
+/** The temperature PD is stated at (TA or TC). */
+const pdTemperature = (r: PartRatings): Kelvin => (r.pdAt.case ?? r.pdAt.ambient) as Kelvin;
 
 /** Validate a part card once, naming the first bad field; returns it unchanged. */
 export function checkPart(part: DiscretePart, origin = "part"): DiscretePart {
@@ -111,10 +141,15 @@ export function checkPart(part: DiscretePart, origin = "part"): DiscretePart {
   pos(r.vgs, "ratings.vgs", "VGS(max) > 0 in V");
   pos(r.id, "ratings.id", "ID(max) > 0 in A");
   pos(r.pd, "ratings.pd", "PD > 0 in W");
-  if (!r.pdAt || (r.pdAt.kind !== "ambient" && r.pdAt.kind !== "case")) throw new InputError(r.pdAt?.kind, `"ambient" or "case" (where PD is stated)`, at("ratings.pdAt.kind"), "invalid-design");
-  pos(r.pdAt.temperature, "ratings.pdAt.temperature", "the temperature at which PD is stated, in K (or degC as text)");
+  const pdAt = r.pdAt as unknown;
+  // Keys given a value (the type's `case?: undefined` may be spelled out).
+  const keys = pdAt && typeof pdAt === "object" ? Object.entries(pdAt).filter(([, v]) => v !== undefined).map(([k]) => k) : [];
+  if (keys.length !== 1 || (keys[0] !== "ambient" && keys[0] !== "case"))
+    throw new InputError(pdAt, "where PD is stated: { ambient: 298.15 } or { case: 298.15 } (the datasheet's TA or TC, in K)", at("ratings.pdAt"), "invalid-design");
+  const tPd = pdTemperature(r);
+  pos(tPd, `ratings.pdAt.${keys[0]}`, "the temperature at which PD is stated, in K (or degC as text)");
   pos(r.tjMax, "ratings.tjMax", "TJ(max) in K (or degC as text)");
-  if (!(r.tjMax > r.pdAt.temperature)) throw new InputError(r.tjMax, `TJ(max) above the temperature at which PD is stated (${r.pdAt.temperature} K)`, at("ratings.tjMax"));
+  if (!(r.tjMax > tPd)) throw new InputError(r.tjMax, `TJ(max) above the temperature at which PD is stated (${tPd} K)`, at("ratings.tjMax"));
   if (r.rthJA !== undefined) pos(r.rthJA, "ratings.rthJA", "RθJA > 0 in K/W");
   if (r.rthJC !== undefined) pos(r.rthJC, "ratings.rthJC", "RθJC > 0 in K/W");
   if (part.threshold.vgs >= r.vgs) throw new InputError(part.threshold.vgs, `VGS(th) below VGS(max) = ${r.vgs} V`, at("threshold.vgs"));
@@ -208,17 +243,27 @@ export function ratingChecks<T>(use: PartInUse, stress: PartStress, check: (name
   out.push(check(`${n}: |VGS| within VGS(max)`, Math.abs(stress.vgs), "voltage", r.vgs, "absolute maximum rating"));
   out.push(check(`${n}: ID within ID(max)`, Math.abs(stress.id), "current", r.id, "continuous rating"));
   let allowed: number = r.pd;
-  let detail = `PD at ${r.pdAt.kind} ${+(r.pdAt.temperature - 273.15).toFixed(1)} °C`;
-  if (r.pdAt.kind === "ambient" && ambient > r.pdAt.temperature) {
-    allowed = df.deratedPowerRating.fn(r.pd, r.tjMax, ambient, r.pdAt.temperature);
-    rec?.step(df.deratedPowerRating, [r.pd, r.tjMax, ambient, r.pdAt.temperature], allowed, "the board runs above the temperature PD is stated at");
+  const tPd = pdTemperature(r);
+  let detail = `PD at ${r.pdAt.case !== undefined ? "case" : "ambient"} ${+(tPd - 273.15).toFixed(1)} °C`;
+  if (r.pdAt.ambient !== undefined && ambient > tPd) {
+    allowed = df.deratedPowerRating.fn(r.pd, r.tjMax, ambient, tPd);
+    rec?.step(df.deratedPowerRating, [r.pd, r.tjMax, ambient, tPd], allowed, "the board runs above the temperature PD is stated at");
     detail = `PD derated to the ${+(ambient - 273.15).toFixed(1)} °C ambient`;
-  } else if (r.pdAt.kind === "case") rec?.find("caution", `${n}: PD is stated at the case (an ideal heat sink); on a board the junction temperature from RθJA is the real limit.`);
+  } else if (r.pdAt.case !== undefined) rec?.find("caution", `${n}: PD is stated at the case (an ideal heat sink); on a board the junction temperature from RθJA is the real limit.`);
   out.push(check(`${n}: dissipation within PD`, stress.power, "power", allowed, detail));
-  if (r.rthJA !== undefined) {
+  const ta = +(ambient - 273.15).toFixed(1);
+  if (use.rthCA !== undefined) {
+    // On a heat sink the series path junction–case–ambient sets TJ (the free-air RθJA path beside it is left out).
+    if (r.rthJC === undefined) throw new InputError(use.rthCA, `a part card that states RθJC (ratings.rthJC): RθCA adds to it`, `${n}: rthCA`, "invalid-design");
+    const tj = df.junctionTemperatureThroughCase.fn(ambient, stress.power as Watts, r.rthJC, use.rthCA);
+    rec?.step(df.junctionTemperatureThroughCase, [ambient, stress.power, r.rthJC, use.rthCA], tj, "steady state, the part on its heat sink");
+    out.push(check(`${n}: junction temperature within TJ(max)`, tj, "temperature", r.tjMax, `ambient ${ta} °C, RθJC ${r.rthJC} K/W + RθCA ${use.rthCA} K/W (heat sink)`));
+  } else if (r.rthJA !== undefined) {
     const tj = df.junctionTemperature.fn(ambient, stress.power as Watts, r.rthJA);
     rec?.step(df.junctionTemperature, [ambient, stress.power, r.rthJA], tj, "steady state, the part in free air on its board");
-    out.push(check(`${n}: junction temperature within TJ(max)`, tj, "temperature", r.tjMax, `ambient ${+(ambient - 273.15).toFixed(1)} °C, RθJA ${r.rthJA} K/W`));
-  } else rec?.find("caution", `${n}: no RθJA stated, so the junction temperature is not checked; add the heat sink's path and check it by hand.`);
+    out.push(check(`${n}: junction temperature within TJ(max)`, tj, "temperature", r.tjMax, `ambient ${ta} °C, RθJA ${r.rthJA} K/W`));
+  } else if (r.rthJC !== undefined)
+    rec?.find("caution", `${n}: the card states RθJC but no RθJA, so the junction temperature is not checked; give the heat sink's case-to-ambient resistance as the device's rthCA to check TJ = TA + P·(RθJC + RθCA).`);
+  else rec?.find("caution", `${n}: no RθJA or RθJC stated, so the junction temperature is not checked; check it by hand from the part's thermal path.`);
   return out;
 }

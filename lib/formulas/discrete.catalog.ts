@@ -32,6 +32,8 @@ export const symbols = defineSymbols({
   PD: { tex: "P_{D}", dim: "power", meaning: "power dissipation rating at its stated temperature" },
   PDat: { tex: "P_{D}(T_{A})", dim: "power", meaning: "power rating derated to the ambient temperature" },
   RthJA: { tex: "R_{\\theta JA}", dim: "thermalResistance", meaning: "junction-to-ambient thermal resistance" },
+  RthJC: { tex: "R_{\\theta JC}", dim: "thermalResistance", meaning: "junction-to-case thermal resistance (datasheet)" },
+  RthCA: { tex: "R_{\\theta CA}", dim: "thermalResistance", meaning: "case-to-ambient thermal resistance: the interface and the heat sink" },
 });
 
 export const formulas = defineFormulas({
@@ -49,6 +51,12 @@ export const formulas = defineFormulas({
   },
   onResistanceRatio: { title: "Model on-resistance against the datasheet's", result: "ronRatio", expr: "Ron / RDSon", source: "common practice" },
   junctionTemperature: { title: "Junction temperature", result: "Tj", expr: "Ta + P * RthJA", source: thermal },
+  junctionTemperatureThroughCase: {
+    title: "Junction temperature through the case and its heat sink (series thermal path)",
+    result: "Tj",
+    expr: "Ta + P * (RthJC + RthCA)",
+    source: "steady-state junction temperature through the series path junction–case–ambient (common practice; the free-air path in parallel is left out, which errs high)",
+  },
   deratedPowerRating: {
     title: "Power rating derated linearly from its stated temperature to the maximum junction temperature",
     result: "PDat",

@@ -59,6 +59,20 @@ export const junctionTemperature = {
   fn: (Ta: Kelvin, P: Watts, RthJA: KelvinPerWatt): Kelvin => (Ta + (P * RthJA)) as Kelvin,
 } as const satisfies Formula;
 
+/** Junction temperature through the case and its heat sink (series thermal path): Tj = Ta + P * (RthJC + RthCA) */
+export const junctionTemperatureThroughCase = {
+  id: "junctionTemperatureThroughCase",
+  title: "Junction temperature through the case and its heat sink (series thermal path)",
+  expr: "Ta + P * (RthJC + RthCA)",
+  tex: "T_{J} = {T_{A}}+{P}\\cdot\\left({R_{\\theta JC}}+{R_{\\theta CA}}\\right)",
+  result: "Tj",
+  resultDim: "temperature",
+  vars: ["Ta","P","RthJC","RthCA"],
+  dims: ["temperature","power","thermalResistance","thermalResistance"],
+  source: "steady-state junction temperature through the series path junction–case–ambient (common practice; the free-air path in parallel is left out, which errs high)",
+  fn: (Ta: Kelvin, P: Watts, RthJC: KelvinPerWatt, RthCA: KelvinPerWatt): Kelvin => (Ta + (P * ((RthJC + RthCA)))) as Kelvin,
+} as const satisfies Formula;
+
 /** Power rating derated linearly from its stated temperature to the maximum junction temperature: PDat = PD * (Tjmax - Ta) / (Tjmax - Tpd) */
 export const deratedPowerRating = {
   id: "deratedPowerRating",

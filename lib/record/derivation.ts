@@ -87,6 +87,17 @@ export interface DerivationData {
  */
 export const solverCheckPrefix = "Solver: ";
 
+/** A list of checks split into the design's and the solver's own (the prefix dropped there), each in its order. */
+export function splitSolverChecks<T extends { readonly title: string }>(checks: readonly T[]): { design: T[]; solver: T[] } {
+  const design: T[] = [];
+  const solver: T[] = [];
+  for (const c of checks) {
+    if (c.title.startsWith(solverCheckPrefix)) solver.push({ ...c, title: c.title.slice(solverCheckPrefix.length) });
+    else design.push(c);
+  }
+  return { design, solver };
+}
+
 export class Derivation {
   readonly inputs: InputEntry[] = [];
   readonly steps: Step[] = [];

@@ -5,7 +5,7 @@
  */
 import { InputError } from "../errors.js";
 import { contrastDigits, formatQuantity, type FormatOptions } from "../units/format.js";
-import { solverCheckPrefix, type CheckEntry, type Derivation, type DerivationData } from "./derivation.js";
+import { splitSolverChecks, type CheckEntry, type Derivation, type DerivationData } from "./derivation.js";
 
 /** What renderers accept: a live record or its JSON data. */
 export type DerivationLike = Derivation | DerivationData;
@@ -31,12 +31,7 @@ export const noInputsNote = (d: DerivationData): string => (d.inputs.length ? ""
  * own, the prefix dropped there. Empty groups are left out.
  */
 export function checkGroups(d: DerivationData): { heading: string; checks: CheckEntry[] }[] {
-  const design: CheckEntry[] = [];
-  const solver: CheckEntry[] = [];
-  for (const c of d.checks) {
-    if (c.title.startsWith(solverCheckPrefix)) solver.push({ ...c, title: c.title.slice(solverCheckPrefix.length) });
-    else design.push(c);
-  }
+  const { design, solver } = splitSolverChecks(d.checks);
   const groups: { heading: string; checks: CheckEntry[] }[] = [];
   if (design.length) groups.push({ heading: "Checks", checks: design });
   if (solver.length) groups.push({ heading: "Solver checks", checks: solver });

@@ -1,8 +1,8 @@
 /**
  * The standalone run report: one HTML file a reviewer opens offline and signs.
  * It opens with a results box (the verdict, the notebook's summary table with
- * the chosen values, operating point, region and margin, and every check with
- * pass/fail and margin), then the design inputs (overrides marked), every
+ * the chosen values, operating point, region and margin, and every design check
+ * with pass/fail and margin, the solver's own checks apart), then the design inputs (overrides marked), every
  * derivation with typeset formulas, the corner-spread table, the SPICE deck,
  * the checks with margins, the plots, the fingerprints, the tool version, the
  * date, the notebook path and the cautions. Every string from the notebook or
@@ -15,6 +15,7 @@ import type { CellFailure, CheckLine, CollectedPart, CollectedPlot } from "../ru
 import { plotHtml, plotLibraryHtml } from "../plot/html.js";
 import { cautionList } from "../record/cautions.js";
 import { isBodeFigure } from "../plot/bode.js";
+import { splitSolverChecks } from "../record/derivation.js";
 
 /** Marks a file as a pinchoff run report, so a later run may replace it. */
 export const reportMarker = '<meta name="generator" content="pinchoff run report">';
@@ -122,13 +123,20 @@ export function buildReport(m: ReportModel): string {
   const summaries = tablesOf("summary");
   if (summaries.length) for (const p of summaries) out.push(`<h3>${esc(p.title)} <small>(cell ${p.cell + 1})</small></h3>${table(p)}`);
   else out.push(`<p>The notebook marked no summary table (show one with <code>showTable(rows, title, { part: "summary" })</code>).</p>`);
-  out.push(`<h3>Checks</h3>`);
-  if (!m.checks.length) out.push(`<p>No derivation in this notebook recorded a check.</p>`);
-  else {
-    out.push(`<table><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th><th>Derivation</th></tr></thead><tbody>`);
-    for (const c of m.checks)
+  // The design's checks, then the solver's own (KCL residuals) under their own heading, as the records print them.
+  const { design, solver } = splitSolverChecks(m.checks);
+  const checkTable = (kind: "design" | "solver", cs: readonly CheckLine[]) => {
+    out.push(`<table data-checks="${kind}"><thead><tr><th></th><th>Check</th><th>Value</th><th>Required</th><th>Margin</th><th>Derivation</th></tr></thead><tbody>`);
+    for (const c of cs)
       out.push(`<tr><td class="${c.passed ? "pass" : "fail"}">${c.passed ? "pass" : "FAIL"}</td><td>${esc(c.title)}${c.detail ? `<br><small>${esc(c.detail)}</small>` : ""}</td><td class="num">${esc(q(c.value, c.dim))}</td><td class="num">${esc(bound(c))}</td><td class="num">${esc(q(c.margin, c.dim))}</td><td>${esc(c.derivation)} <small>(cell ${c.cell + 1})</small></td></tr>`);
     out.push(`</tbody></table>`);
+  };
+  out.push(`<h3>Checks</h3>`);
+  if (!design.length) out.push(`<p>No derivation in this notebook recorded a design check.</p>`);
+  else checkTable("design", design);
+  if (solver.length) {
+    out.push(`<h3>Solver checks</h3><p>The solver's own residuals at the solved operating point (not design requirements); the verdict counts them too.</p>`);
+    checkTable("solver", solver);
   }
   out.push(`</section>`);
 

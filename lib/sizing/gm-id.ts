@@ -80,6 +80,11 @@ export interface EfficiencyDesign {
   readonly gds: number;
   readonly gmb: number;
   readonly intrinsicGain: number;
+  /** Gate capacitances per width read from the table at the bias point (F/m): the source of the totals below and of a card's `tableCapacitances`. */
+  readonly cggPerWidth: FaradsPerMeter;
+  readonly cgsPerWidth: FaradsPerMeter;
+  readonly cgdPerWidth: FaradsPerMeter;
+  /** Totals at the sized W: the per-width figures times W (F). */
   readonly cgg: number;
   readonly cgs: number;
   readonly cgd: number;
@@ -272,6 +277,9 @@ export function sizeByEfficiency(table: DeviceTable, spec: EfficiencySpec, proce
     gds,
     gmb: r.p.gmbw * w,
     intrinsicGain: a0,
+    cggPerWidth: r.p.cggw as FaradsPerMeter,
+    cgsPerWidth: r.p.cgsw as FaradsPerMeter,
+    cgdPerWidth: r.p.cgdw as FaradsPerMeter,
     cgg,
     cgs: r.p.cgsw * w,
     cgd: r.p.cgdw * w,
@@ -354,9 +362,9 @@ function multiplierFor(p: ProcessDescription, t: DeviceTable, w: number, maxMult
 export function tableCapacitances(d: EfficiencyDesign, overlap?: Omit<OverlapParameters, "vgs" | "vds">): TableCapacitances {
   return {
     ...(overlap ? { overlap: { ...overlap, vgs: d.vgs as Volts, vds: d.vds as Volts } } : {}),
-    cgsPerWidth: (d.cgs / d.w) as FaradsPerMeter,
-    cgdPerWidth: (d.cgd / d.w) as FaradsPerMeter,
-    cggPerWidth: (d.cgg / d.w) as FaradsPerMeter,
+    cgsPerWidth: d.cgsPerWidth,
+    cgdPerWidth: d.cgdPerWidth,
+    cggPerWidth: d.cggPerWidth,
     table: d.tableFingerprint,
     at: `${d.model}, L = ${d.l} m, |VGS| = ${d.vgs.toFixed(4)} V, |VDS| = ${d.vds} V, |VSB| = ${d.vsb} V`,
   };

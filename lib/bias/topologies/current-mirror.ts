@@ -449,7 +449,8 @@ export function mirrorSpice(stage: CurrentMirrorStage, prefix = ""): SpiceCircui
   else lines.push(`${ammeter} ${drail} ${d} 0`);
   return {
     lines,
-    nodes: { gate: g, source: srail, drain: d, body: srail, reference: g, vdd, vss },
+    // `held`: the node the vout source holds (the frequency deck returns an outside load there).
+    nodes: { gate: g, source: srail, drain: d, body: srail, reference: g, vdd, vss, ...(c.vout !== undefined ? { held: n("x") } : {}) },
     drainAmmeter: ammeter,
     instance: `M${p}2`,
     instances: { reference: `M${p}1` },
