@@ -1,0 +1,71 @@
+/**
+ * Elementary functions of stated accuracy for the hot paths, plain numbers in and out.
+ *
+ * exp(x): Tang's table method. x = (64·m + j)·ln2/64 + r with |r| ≤ ln2/128 (k = 64·m + j
+ * rounded to nearest by the 1.5·2⁵² shift, ln2/64 split into a head with trailing zeros and a
+ * tail so k·head is exact), e^x = 2^m · 2^(j/64) · e^r, e^r − 1 by its Taylor polynomial to r⁵
+ * (the r⁶ term is below 4e-17 relative), 2^(j/64) and 2^m from tables built at load. Where 2^m
+ * would leave the normal range (|x| ≳ 708: overflow, subnormal results, underflow), for NaN and
+ * ±Infinity, it returns Math.exp(x), so the edges are exactly Math's.
+ *
+ * softplus(x) = ln(1 + eˣ), written max(x, 0) + ln(1 + e^−|x|) so it never overflows: e = e^−|x|
+ * ∈ (0, 1] by the exp above; ln(1 + e) as ln(u)·e/(u − 1) with u = 1 + e (Goldberg's
+ * correction for the rounding of 1 + e; e itself where u rounds to 1), ln u on [1, 2] as
+ * ln c + 2·atanh(s), c = i/128 the nearest table point, s = (u − c)/(u + c), |s| ≤ 1/512, the
+ * odd series to s⁷. softplus(±Infinity) = +Infinity / 0 and NaN → NaN, as the expression does.
+ *
+ * Accuracy, measured against the IEEE 754 double results of V8's Math.exp, Math.log1p and
+ * Math.log (test/elementary.test.ts, dense grids and edge values): exp within 1.5 ulp
+ * (3.3e-16 relative) over [−745, 710]; softplus within 4 ulp (8e-16 relative) over [−800, 800].
+ * Speed (this machine, in a loop over an array): exp ≈ 4 ns against Math.exp's 8.7 ns; softplus
+ * ≈ 12 ns against 21–24 ns for Math.log1p(Math.exp(x)). A general fast ln did not pay (splitting
+ * the exponent through a typed-array view costs more than Math.log), so there is none.
+ * Allocation: three tables at load, nothing per call.
+ */
+
+/** ln 2/64 in two parts: the head has 32 trailing zero bits, so k·head is exact for |k| < 2²⁰. */
+const ln2By64Head = 6.93147180369123816490e-1 / 64;
+const ln2By64Tail = 1.90821492927058770002e-10 / 64;
+const invLn2By64 = 64 / Math.LN2;
+/** 1.5·2⁵²: adding and subtracting it rounds a double below 2⁵¹ to the nearest integer. */
+const roundShift = 6755399441055744;
+
+/** 2^(j/64), j = 0..63 (Math.pow of an exact exponent, within 1 ulp). */
+const twoToJBy64 = new Float64Array(64);
+for (let j = 0; j < 64; j++) twoToJBy64[j] = Math.pow(2, j / 64);
+/** 2^m for m = −1022..1023, at index m + 1022 (exact). */
+const twoToM = new Float64Array(2046);
+for (let m = -1022; m <= 1023; m++) twoToM[m + 1022] = Math.pow(2, m);
+/** ln(i/128), i = 0..256 (index 0 unused). */
+const lnTable = new Float64Array(257);
+for (let i = 1; i <= 256; i++) lnTable[i] = Math.log(i / 128);
+
+/** eˣ within 1.5 ulp; Math.exp's own result at the edges (see the header). */
+export function exp(x: number): number {
+  const k = x * invLn2By64 + roundShift - roundShift;
+  const ki = k | 0;
+  const m = (ki >> 6) + 1022;
+  // NaN and ±Infinity give m = 1022 through k | 0, so they are caught by the range of x too
+  if (!(m > 0 && m < 2045) || !(x > -708 && x < 709)) return Math.exp(x);
+  const r = x - k * ln2By64Head - k * ln2By64Tail;
+  const q = r * (1 + r * (1 / 2 + r * (1 / 6 + r * (1 / 24 + r * (1 / 120)))));
+  const t = twoToJBy64[ki & 63]!;
+  return (t + t * q) * twoToM[m]!;
+}
+
+/** ln u for u in [1, 2]. */
+function lnOneToTwo(u: number): number {
+  const i = (u * 128 + 0.5) | 0;
+  const c = i / 128;
+  const s = (u - c) / (u + c);
+  const s2 = s * s;
+  return lnTable[i]! + 2 * s * (1 + s2 * (1 / 3 + s2 * (1 / 5 + s2 * (1 / 7))));
+}
+
+/** ln(1 + eˣ) without overflow, within 4 ulp (see the header). */
+export function softplus(x: number): number {
+  if (!(x === x)) return x;
+  const e = exp(-Math.abs(x));
+  const u = 1 + e;
+  return Math.max(x, 0) + (u === 1 ? e : lnOneToTwo(u) * (e / (u - 1)));
+}
