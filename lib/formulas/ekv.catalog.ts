@@ -117,7 +117,7 @@ export const formulas = defineFormulas({
   ekvForwardCurrent: {
     title: "Forward normalised current (inversion coefficient)",
     result: "IC",
-    expr: "log1p(exp((VP - VSB) / (2 * Um)))^2",
+    expr: "softplus((VP - VSB) / (2 * Um))^2",
     source: ekv95,
   },
   ekvLongChannelSaturationVoltage: {
@@ -144,7 +144,7 @@ export const formulas = defineFormulas({
   ekvReverseCurrent: {
     title: "Reverse normalised current, saturating at VDSS'",
     result: "IRn",
-    expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * Um)))^2",
+    expr: "softplus((VP - VSB - VDS / 2 - Vip) / (2 * Um))^2",
     source: ekv26,
   },
   ekvEquivalentLength: {
