@@ -201,6 +201,7 @@ export const compositions = defineCompositions({
   ekvChannelCurrent: {
     title: "EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows)",
     inputs: ["kp", "W", "L", "Vt0", "gamma", "phi", "lambda", "theta", "thetaB", "Ecrit", "sigma", "cit", "UT", "VGS", "VDS", "VSB"],
+    pointInputs: ["VGS", "VDS", "VSB"],
     steps: [
       ...pinchOff,
       { returnWhen: "IC == 0", value: 0, why: "a source tens of volts above the pinch-off voltage: the channel carries nothing" },
