@@ -311,7 +311,7 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
   for (let o = 0; o < count; o += 256) {
     const m = Math.min(256, count - o);
     for (let k = 0; k < m; k++) {
-      const VGp = (((((VGS[o + k] + VSB[o + k]) - Vt0) + (sigma * VDS[o + k])) + phi) + c0); // ekvEffectiveGate
+      const VGp = (((((VGS[o + k]! + VSB[o + k]!) - Vt0) + (sigma * VDS[o + k]!)) + phi) + c0); // ekvEffectiveGate
       const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + c1)) - c2)))) : c3; // ekvPinchOffVoltage / ekvPinchOffFloor
       VP_[k] = VP;
       const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + c4)))))); // ekvSlopeFactor
@@ -320,27 +320,27 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
       Um_[k] = Um;
     }
     for (let k = 0; k < m; k++) {
-      const IC = sq(softplus((((VP_[k] - VSB[o + k])) / ((2 * Um_[k]))))); // ekvForwardCurrent
+      const IC = sq(softplus((((VP_[k]! - VSB[o + k]!)) / ((2 * Um_[k]!))))); // ekvForwardCurrent
       IC_[k] = IC;
     }
     for (let k = 0; k < m; k++) {
-      const VDSSL = (Um_[k] * ((Math.sqrt(IC_[k]) - ((3 / 4) * Math.log(IC_[k]))))); // ekvLongChannelSaturationVoltage
+      const VDSSL = (Um_[k]! * ((Math.sqrt(IC_[k]!) - ((3 / 4) * Math.log(IC_[k]!))))); // ekvLongChannelSaturationVoltage
       VDSSL_[k] = VDSSL;
     }
     for (let k = 0; k < m; k++) {
-      const VDSS = ((VDSSL_[k] / ((Math.sqrt(((1 / 4) + (VDSSL_[k] / (c5)))) + (1 / 2)))) + (Um_[k] * ((Math.log((c5 / ((2 * Um_[k])))) - 0.6)))); // ekvSaturationVoltage
-      const Vip = (Math.sqrt((sq(VDSS) + (sq(Um_[k]) / 4))) - Math.sqrt((sq((((VDS[o + k] / 2) - VDSS))) + (sq(Um_[k]) / 4)))); // ekvLimitedDrainVoltage
+      const VDSS = ((VDSSL_[k]! / ((Math.sqrt(((1 / 4) + (VDSSL_[k]! / (c5)))) + (1 / 2)))) + (Um_[k]! * ((Math.log((c5 / ((2 * Um_[k]!)))) - 0.6)))); // ekvSaturationVoltage
+      const Vip = (Math.sqrt((sq(VDSS) + (sq(Um_[k]!) / 4))) - Math.sqrt((sq((((VDS[o + k]! / 2) - VDSS))) + (sq(Um_[k]!) / 4)))); // ekvLimitedDrainVoltage
       Vip_[k] = Vip;
     }
     for (let k = 0; k < m; k++) {
-      const IRn = sq(softplus((((((VP_[k] - VSB[o + k]) - (VDS[o + k] / 2)) - Vip_[k])) / ((2 * Um_[k]))))); // ekvReverseCurrent
-      const Leq = (L + ((((VDS[o + k] / 2) + Vip_[k])) / Ecrit)); // ekvEquivalentLength
-      const qF = (Math.sqrt(((1 / 4) + IC_[k])) - (1 / 2)); // ekvForwardCharge
+      const IRn = sq(softplus((((((VP_[k]! - VSB[o + k]!) - (VDS[o + k]! / 2)) - Vip_[k]!)) / ((2 * Um_[k]!))))); // ekvReverseCurrent
+      const Leq = (L + ((((VDS[o + k]! / 2) + Vip_[k]!)) / Ecrit)); // ekvEquivalentLength
+      const qF = (Math.sqrt(((1 / 4) + IC_[k]!)) - (1 / 2)); // ekvForwardCharge
       const qR = (Math.sqrt(((1 / 4) + IRn)) - (1 / 2)); // ekvReverseCharge
-      const beta = ((c6 / Leq) / (((1 + (((theta * n_[k]) * Um_[k]) * ((qF + qR)))) + (thetaB * VSB[o + k])))); // ekvGainFactor
-      const IS = (((2 * n_[k]) * beta) * sq(Um_[k])); // ekvSpecificCurrent
-      const ID = ((IS * ((IC_[k] - IRn))) * ((1 + (lambda * VDS[o + k])))); // ekvDrainCurrent
-      out[o + k] = IC_[k] === 0 ? 0 : ID;
+      const beta = ((c6 / Leq) / (((1 + (((theta * n_[k]!) * Um_[k]!) * ((qF + qR)))) + (thetaB * VSB[o + k]!)))); // ekvGainFactor
+      const IS = (((2 * n_[k]!) * beta) * sq(Um_[k]!)); // ekvSpecificCurrent
+      const ID = ((IS * ((IC_[k]! - IRn))) * ((1 + (lambda * VDS[o + k]!)))); // ekvDrainCurrent
+      out[o + k] = IC_[k]! === 0 ? 0 : ID;
     }
   }
 }

@@ -293,7 +293,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
   const invariants = new Map<string, string>();
   let current = 0;
   const ctx: JsContext = {
-    symbol: (v) => (points.includes(v) ? `${v}[o + k]` : defined.has(v) && defined.get(v)! < current ? `${v}_[k]` : v),
+    symbol: (v) => (points.includes(v) ? `${v}[o + k]!` : defined.has(v) && defined.get(v)! < current ? `${v}_[k]!` : v),
     hoisted: (node) => {
       const trivial = node.type === "SymbolNode" || node.type === "ConstantNode" || node.type === "ParenthesisNode";
       if (trivial || !freeSymbols(node).length || isVarying(node)) return undefined;
