@@ -278,29 +278,39 @@ export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number,
   return ID;
 }
 
+const ekvChannelCurrent$VGp = new Float64Array(256);
 const ekvChannelCurrent$VP = new Float64Array(256);
 const ekvChannelCurrent$Um = new Float64Array(256);
 const ekvChannelCurrent$IC = new Float64Array(256);
 const ekvChannelCurrent$VDSSL = new Float64Array(256);
+const ekvChannelCurrent$VDSS = new Float64Array(256);
 const ekvChannelCurrent$Vip = new Float64Array(256);
+const ekvChannelCurrent$IRn = new Float64Array(256);
+const ekvChannelCurrent$Leq = new Float64Array(256);
 const ekvChannelCurrent$n = new Float64Array(256);
+const ekvChannelCurrent$qF = new Float64Array(256);
 
 /**
  * EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), at `count` points: VGS, VDS, VSB per point from arrays, the result into out[0..count).
- * The steps of ekvChannelCurrent in 5 loops over blocks of 256 points (a new loop at each step that calls
- * exp, log or softplus, so the processor overlaps independent points), intermediates that cross loops in module
+ * The steps of ekvChannelCurrent in 10 loops over blocks of 256 points (a new loop at each step that calls
+ * sqrt, exp, log or softplus, so the processor overlaps independent points), intermediates that cross loops in module
  * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ekvChannelCurrent at every point, a masked
  * result where it returns early.
  */
 export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: Float64Array, VDS: Float64Array, VSB: Float64Array, out: Float64Array, count: number): void {
   if (!(Number.isInteger(count) && count >= 0 && count <= out.length && count <= VGS.length && count <= VDS.length && count <= VSB.length))
     throw new InputError(count, "a point count no larger than the input and output arrays", "ekvChannelCurrentBlock");
+  const VGp_ = ekvChannelCurrent$VGp;
   const VP_ = ekvChannelCurrent$VP;
   const Um_ = ekvChannelCurrent$Um;
   const IC_ = ekvChannelCurrent$IC;
   const VDSSL_ = ekvChannelCurrent$VDSSL;
+  const VDSS_ = ekvChannelCurrent$VDSS;
   const Vip_ = ekvChannelCurrent$Vip;
+  const IRn_ = ekvChannelCurrent$IRn;
+  const Leq_ = ekvChannelCurrent$Leq;
   const n_ = ekvChannelCurrent$n;
+  const qF_ = ekvChannelCurrent$qF;
   const c0 = (gamma * Math.sqrt(phi));
   const c1 = (sq(gamma) / 4);
   const c2 = (gamma / 2);
@@ -312,9 +322,14 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
     const m = Math.min(256, count - o);
     for (let k = 0; k < m; k++) {
       const VGp = (((((VGS[o + k]! + VSB[o + k]!) - Vt0) + (sigma * VDS[o + k]!)) + phi) + c0); // ekvEffectiveGate
-      const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + c1)) - c2)))) : c3; // ekvPinchOffVoltage / ekvPinchOffFloor
+      VGp_[k] = VGp;
+    }
+    for (let k = 0; k < m; k++) {
+      const VP = VGp_[k]! > 0 ? ((VGp_[k]! - phi) - (gamma * ((Math.sqrt((VGp_[k]! + c1)) - c2)))) : c3; // ekvPinchOffVoltage / ekvPinchOffFloor
       VP_[k] = VP;
-      const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + c4)))))); // ekvSlopeFactor
+    }
+    for (let k = 0; k < m; k++) {
+      const n = (1 + (gamma / ((2 * Math.sqrt(((VP_[k]! + phi) + c4)))))); // ekvSlopeFactor
       n_[k] = n;
       const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
       Um_[k] = Um;
@@ -329,17 +344,27 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
     }
     for (let k = 0; k < m; k++) {
       const VDSS = ((VDSSL_[k]! / ((Math.sqrt(((1 / 4) + (VDSSL_[k]! / (c5)))) + (1 / 2)))) + (Um_[k]! * ((Math.log((c5 / ((2 * Um_[k]!)))) - 0.6)))); // ekvSaturationVoltage
-      const Vip = (Math.sqrt((sq(VDSS) + (sq(Um_[k]!) / 4))) - Math.sqrt((sq((((VDS[o + k]! / 2) - VDSS))) + (sq(Um_[k]!) / 4)))); // ekvLimitedDrainVoltage
+      VDSS_[k] = VDSS;
+    }
+    for (let k = 0; k < m; k++) {
+      const Vip = (Math.sqrt((sq(VDSS_[k]!) + (sq(Um_[k]!) / 4))) - Math.sqrt((sq((((VDS[o + k]! / 2) - VDSS_[k]!))) + (sq(Um_[k]!) / 4)))); // ekvLimitedDrainVoltage
       Vip_[k] = Vip;
     }
     for (let k = 0; k < m; k++) {
       const IRn = sq(softplus((((((VP_[k]! - VSB[o + k]!) - (VDS[o + k]! / 2)) - Vip_[k]!)) / ((2 * Um_[k]!))))); // ekvReverseCurrent
+      IRn_[k] = IRn;
       const Leq = (L + ((((VDS[o + k]! / 2) + Vip_[k]!)) / Ecrit)); // ekvEquivalentLength
+      Leq_[k] = Leq;
+    }
+    for (let k = 0; k < m; k++) {
       const qF = (Math.sqrt(((1 / 4) + IC_[k]!)) - (1 / 2)); // ekvForwardCharge
-      const qR = (Math.sqrt(((1 / 4) + IRn)) - (1 / 2)); // ekvReverseCharge
-      const beta = ((c6 / Leq) / (((1 + (((theta * n_[k]!) * Um_[k]!) * ((qF + qR)))) + (thetaB * VSB[o + k]!)))); // ekvGainFactor
+      qF_[k] = qF;
+    }
+    for (let k = 0; k < m; k++) {
+      const qR = (Math.sqrt(((1 / 4) + IRn_[k]!)) - (1 / 2)); // ekvReverseCharge
+      const beta = ((c6 / Leq_[k]!) / (((1 + (((theta * n_[k]!) * Um_[k]!) * ((qF_[k]! + qR)))) + (thetaB * VSB[o + k]!)))); // ekvGainFactor
       const IS = (((2 * n_[k]!) * beta) * sq(Um_[k]!)); // ekvSpecificCurrent
-      const ID = ((IS * ((IC_[k]! - IRn))) * ((1 + (lambda * VDS[o + k]!)))); // ekvDrainCurrent
+      const ID = ((IS * ((IC_[k]! - IRn_[k]!))) * ((1 + (lambda * VDS[o + k]!)))); // ekvDrainCurrent
       out[o + k] = IC_[k]! === 0 ? 0 : ID;
     }
   }
