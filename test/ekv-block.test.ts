@@ -134,13 +134,19 @@ describe("block evaluator generation", () => {
   });
   it("computes a step that reads no per-point value once, before the loops, and hoists per-device subexpressions", () => {
     expect(text).toContain("const k = (kp * WL); // kk");
-    expect(text).toMatch(/const c\d+ = \(1 \+ \(lambda \* 2\)\);/);
+    expect(text).toMatch(/const \$c\d+ = \(1 \+ \(lambda \* 2\)\);/);
     expect(text).toContain("export function fBlock(kp: number, WL: number, Vt: number, lambda: number, VGS: Float64Array, out: Float64Array, count: number): void {");
   });
   it("starts a new loop at a step that calls a slow function, keeps what crosses loops in scratch, and masks the early return", () => {
-    expect(text.match(/for \(let k = 0; k < m; k\+\+\)/g)).toHaveLength(2);
+    expect(text.match(/for \(let \$k = 0; \$k < \$m; \$k\+\+\)/g)).toHaveLength(2);
     expect(text).toContain("const f$VOV = new Float64Array");
-    expect(text).toContain("out[o + k] = VOV_[k]! < (-10) ? 0 : G;");
+    expect(text).toContain("out[$o + $k] = $VOV[$k]! < (-10) ? 0 : G;");
+  });
+  it("returns a last step that reads no per-point value as it is, past the per-point ones", () => {
+    const t = compositionBlock(cat, "g", { title: "t", inputs: ["kp", "WL", "Vt", "VGS"], pointInputs: ["VGS"], steps: ["vov", "kk"] });
+    expect(t).toContain("const k = (kp * WL); // kk");
+    // k is the catalog's symbol here, not a loop index: the generated names are $-prefixed
+    expect(t).toContain("out[$o + $k] = k;");
   });
   it("refuses a point input that is not an input", () => {
     expect(() => compositionBlock(cat, "f", { title: "t", inputs: ["kp"], pointInputs: ["VGS"], steps: ["kk"] })).toThrow(/point input VGS is not an input/);

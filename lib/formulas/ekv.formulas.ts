@@ -300,72 +300,72 @@ const ekvChannelCurrent$qF = new Float64Array(256);
 export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: Float64Array, VDS: Float64Array, VSB: Float64Array, out: Float64Array, count: number): void {
   if (!(Number.isInteger(count) && count >= 0 && count <= out.length && count <= VGS.length && count <= VDS.length && count <= VSB.length))
     throw new InputError(count, "a point count no larger than the input and output arrays", "ekvChannelCurrentBlock");
-  const VGp_ = ekvChannelCurrent$VGp;
-  const VP_ = ekvChannelCurrent$VP;
-  const Um_ = ekvChannelCurrent$Um;
-  const IC_ = ekvChannelCurrent$IC;
-  const VDSSL_ = ekvChannelCurrent$VDSSL;
-  const VDSS_ = ekvChannelCurrent$VDSS;
-  const Vip_ = ekvChannelCurrent$Vip;
-  const IRn_ = ekvChannelCurrent$IRn;
-  const Leq_ = ekvChannelCurrent$Leq;
-  const n_ = ekvChannelCurrent$n;
-  const qF_ = ekvChannelCurrent$qF;
-  const c0 = (gamma * Math.sqrt(phi));
-  const c1 = (sq(gamma) / 4);
-  const c2 = (gamma / 2);
-  const c3 = (-phi);
-  const c4 = (4 * UT);
-  const c5 = (Ecrit * L);
-  const c6 = (kp * W);
-  for (let o = 0; o < count; o += 256) {
-    const m = Math.min(256, count - o);
-    for (let k = 0; k < m; k++) {
-      const VGp = (((((VGS[o + k]! + VSB[o + k]!) - Vt0) + (sigma * VDS[o + k]!)) + phi) + c0); // ekvEffectiveGate
-      VGp_[k] = VGp;
+  const $VGp = ekvChannelCurrent$VGp;
+  const $VP = ekvChannelCurrent$VP;
+  const $Um = ekvChannelCurrent$Um;
+  const $IC = ekvChannelCurrent$IC;
+  const $VDSSL = ekvChannelCurrent$VDSSL;
+  const $VDSS = ekvChannelCurrent$VDSS;
+  const $Vip = ekvChannelCurrent$Vip;
+  const $IRn = ekvChannelCurrent$IRn;
+  const $Leq = ekvChannelCurrent$Leq;
+  const $n = ekvChannelCurrent$n;
+  const $qF = ekvChannelCurrent$qF;
+  const $c0 = (gamma * Math.sqrt(phi));
+  const $c1 = (sq(gamma) / 4);
+  const $c2 = (gamma / 2);
+  const $c3 = (-phi);
+  const $c4 = (4 * UT);
+  const $c5 = (Ecrit * L);
+  const $c6 = (kp * W);
+  for (let $o = 0; $o < count; $o += 256) {
+    const $m = Math.min(256, count - $o);
+    for (let $k = 0; $k < $m; $k++) {
+      const VGp = (((((VGS[$o + $k]! + VSB[$o + $k]!) - Vt0) + (sigma * VDS[$o + $k]!)) + phi) + $c0); // ekvEffectiveGate
+      $VGp[$k] = VGp;
     }
-    for (let k = 0; k < m; k++) {
-      const VP = VGp_[k]! > 0 ? ((VGp_[k]! - phi) - (gamma * ((Math.sqrt((VGp_[k]! + c1)) - c2)))) : c3; // ekvPinchOffVoltage / ekvPinchOffFloor
-      VP_[k] = VP;
+    for (let $k = 0; $k < $m; $k++) {
+      const VP = $VGp[$k]! > 0 ? (($VGp[$k]! - phi) - (gamma * ((Math.sqrt(($VGp[$k]! + $c1)) - $c2)))) : $c3; // ekvPinchOffVoltage / ekvPinchOffFloor
+      $VP[$k] = VP;
     }
-    for (let k = 0; k < m; k++) {
-      const n = (1 + (gamma / ((2 * Math.sqrt(((VP_[k]! + phi) + c4)))))); // ekvSlopeFactor
-      n_[k] = n;
+    for (let $k = 0; $k < $m; $k++) {
+      const n = (1 + (gamma / ((2 * Math.sqrt((($VP[$k]! + phi) + $c4)))))); // ekvSlopeFactor
+      $n[$k] = n;
       const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
-      Um_[k] = Um;
+      $Um[$k] = Um;
     }
-    for (let k = 0; k < m; k++) {
-      const IC = sq(softplus((((VP_[k]! - VSB[o + k]!)) / ((2 * Um_[k]!))))); // ekvForwardCurrent
-      IC_[k] = IC;
+    for (let $k = 0; $k < $m; $k++) {
+      const IC = sq(softplus(((($VP[$k]! - VSB[$o + $k]!)) / ((2 * $Um[$k]!))))); // ekvForwardCurrent
+      $IC[$k] = IC;
     }
-    for (let k = 0; k < m; k++) {
-      const VDSSL = (Um_[k]! * ((Math.sqrt(IC_[k]!) - ((3 / 4) * Math.log(IC_[k]!))))); // ekvLongChannelSaturationVoltage
-      VDSSL_[k] = VDSSL;
+    for (let $k = 0; $k < $m; $k++) {
+      const VDSSL = ($Um[$k]! * ((Math.sqrt($IC[$k]!) - ((3 / 4) * Math.log($IC[$k]!))))); // ekvLongChannelSaturationVoltage
+      $VDSSL[$k] = VDSSL;
     }
-    for (let k = 0; k < m; k++) {
-      const VDSS = ((VDSSL_[k]! / ((Math.sqrt(((1 / 4) + (VDSSL_[k]! / (c5)))) + (1 / 2)))) + (Um_[k]! * ((Math.log((c5 / ((2 * Um_[k]!)))) - 0.6)))); // ekvSaturationVoltage
-      VDSS_[k] = VDSS;
+    for (let $k = 0; $k < $m; $k++) {
+      const VDSS = (($VDSSL[$k]! / ((Math.sqrt(((1 / 4) + ($VDSSL[$k]! / ($c5)))) + (1 / 2)))) + ($Um[$k]! * ((Math.log(($c5 / ((2 * $Um[$k]!)))) - 0.6)))); // ekvSaturationVoltage
+      $VDSS[$k] = VDSS;
     }
-    for (let k = 0; k < m; k++) {
-      const Vip = (Math.sqrt((sq(VDSS_[k]!) + (sq(Um_[k]!) / 4))) - Math.sqrt((sq((((VDS[o + k]! / 2) - VDSS_[k]!))) + (sq(Um_[k]!) / 4)))); // ekvLimitedDrainVoltage
-      Vip_[k] = Vip;
+    for (let $k = 0; $k < $m; $k++) {
+      const Vip = (Math.sqrt((sq($VDSS[$k]!) + (sq($Um[$k]!) / 4))) - Math.sqrt((sq((((VDS[$o + $k]! / 2) - $VDSS[$k]!))) + (sq($Um[$k]!) / 4)))); // ekvLimitedDrainVoltage
+      $Vip[$k] = Vip;
     }
-    for (let k = 0; k < m; k++) {
-      const IRn = sq(softplus((((((VP_[k]! - VSB[o + k]!) - (VDS[o + k]! / 2)) - Vip_[k]!)) / ((2 * Um_[k]!))))); // ekvReverseCurrent
-      IRn_[k] = IRn;
-      const Leq = (L + ((((VDS[o + k]! / 2) + Vip_[k]!)) / Ecrit)); // ekvEquivalentLength
-      Leq_[k] = Leq;
+    for (let $k = 0; $k < $m; $k++) {
+      const IRn = sq(softplus(((((($VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - $Vip[$k]!)) / ((2 * $Um[$k]!))))); // ekvReverseCurrent
+      $IRn[$k] = IRn;
+      const Leq = (L + ((((VDS[$o + $k]! / 2) + $Vip[$k]!)) / Ecrit)); // ekvEquivalentLength
+      $Leq[$k] = Leq;
     }
-    for (let k = 0; k < m; k++) {
-      const qF = (Math.sqrt(((1 / 4) + IC_[k]!)) - (1 / 2)); // ekvForwardCharge
-      qF_[k] = qF;
+    for (let $k = 0; $k < $m; $k++) {
+      const qF = (Math.sqrt(((1 / 4) + $IC[$k]!)) - (1 / 2)); // ekvForwardCharge
+      $qF[$k] = qF;
     }
-    for (let k = 0; k < m; k++) {
-      const qR = (Math.sqrt(((1 / 4) + IRn_[k]!)) - (1 / 2)); // ekvReverseCharge
-      const beta = ((c6 / Leq_[k]!) / (((1 + (((theta * n_[k]!) * Um_[k]!) * ((qF_[k]! + qR)))) + (thetaB * VSB[o + k]!)))); // ekvGainFactor
-      const IS = (((2 * n_[k]!) * beta) * sq(Um_[k]!)); // ekvSpecificCurrent
-      const ID = ((IS * ((IC_[k]! - IRn_[k]!))) * ((1 + (lambda * VDS[o + k]!)))); // ekvDrainCurrent
-      out[o + k] = IC_[k]! === 0 ? 0 : ID;
+    for (let $k = 0; $k < $m; $k++) {
+      const qR = (Math.sqrt(((1 / 4) + $IRn[$k]!)) - (1 / 2)); // ekvReverseCharge
+      const beta = (($c6 / $Leq[$k]!) / (((1 + (((theta * $n[$k]!) * $Um[$k]!) * (($qF[$k]! + qR)))) + (thetaB * VSB[$o + $k]!)))); // ekvGainFactor
+      const IS = (((2 * $n[$k]!) * beta) * sq($Um[$k]!)); // ekvSpecificCurrent
+      const ID = ((IS * (($IC[$k]! - $IRn[$k]!))) * ((1 + (lambda * VDS[$o + $k]!)))); // ekvDrainCurrent
+      out[$o + $k] = $IC[$k]! === 0 ? 0 : ID;
     }
   }
 }

@@ -253,6 +253,9 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
   const points = spec.pointInputs ?? [];
   for (const v of points) if (!spec.inputs.includes(v)) throw new Error(`${where}: point input ${v} is not an input`);
   const name = `${id}Block`;
+  // the generated locals are $-prefixed; out and count are its parameters
+  for (const v of [...spec.inputs, ...Object.values(c.formulas).map((f) => f.result)])
+    if (v === "out" || v === "count" || v.startsWith("$")) throw new Error(`${where}: symbol ${v} would clash with the block evaluator's own names`);
   const varying = new Set<string>(points);
   const isVarying = (node: MathNode) => freeSymbols(node).some((v) => varying.has(v));
 
@@ -262,6 +265,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
   const exits: { cond: MathNode; value: number }[] = [];
   const before: Item[] = [];
   let loop = 0;
+  let lastResult = "";
   for (const step of spec.steps as readonly CompositionStep[]) {
     let item: Item;
     if (typeof step === "string") {
@@ -274,6 +278,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
       exits.push({ cond: parse(step.returnWhen), value: step.value });
       continue;
     }
+    lastResult = item.result;
     const all = item.when ? [item.when, ...item.nodes] : item.nodes;
     if (!all.some(isVarying)) {
       before.push(item);
@@ -283,7 +288,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     if (items.length && all.some(callsSlow)) item.loop = ++loop;
     items.push(item);
   }
-  const last = items.length ? items[items.length - 1]!.result : before[before.length - 1]!.result;
+  const last = lastResult;
   // Pass 2: an intermediate goes to a scratch array when a later loop (or the final store) reads it.
   const defined = new Map(items.map((it) => [it.result, it.loop]));
   const stored = new Set<string>();
@@ -297,13 +302,13 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
   const invariants = new Map<string, string>();
   let current = 0;
   const ctx: JsContext = {
-    symbol: (v) => (points.includes(v) ? `${v}[o + k]!` : defined.has(v) && defined.get(v)! < current ? `${v}_[k]!` : v),
+    symbol: (v) => (points.includes(v) ? `${v}[$o + $k]!` : defined.has(v) && defined.get(v)! < current ? `$${v}[$k]!` : v),
     hoisted: (node) => {
       const trivial = node.type === "SymbolNode" || node.type === "ConstantNode" || node.type === "ParenthesisNode";
       if (trivial || !freeSymbols(node).length || isVarying(node)) return undefined;
       const js = node.type === "OperatorNode" && comparisons[(node as MathNode & { op: string }).op] ? toJs(node, where, true) : toJs(node, where);
       let k = invariants.get(js);
-      if (!k) invariants.set(js, (k = `c${invariants.size}`));
+      if (!k) invariants.set(js, (k = `$c${invariants.size}`));
       return k;
     },
   };
@@ -312,11 +317,11 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     current = it.loop;
     const [a, b] = it.nodes;
     const js = it.when ? `${toJs(it.when, where, true, ctx)} ? ${toJs(a!, where, false, ctx)} : ${toJs(b!, where, false, ctx)}` : toJs(a!, where, false, ctx);
-    (loops[it.loop] ??= []).push(`      const ${it.result} = ${js}; // ${it.label}`, ...(stored.has(it.result) ? [`      ${it.result}_[k] = ${it.result};`] : []));
+    (loops[it.loop] ??= []).push(`      const ${it.result} = ${js}; // ${it.label}`, ...(stored.has(it.result) ? [`      $${it.result}[$k] = ${it.result};`] : []));
   }
   current = loop;
   const store = exits.reduceRight((rest, e) => `${isVarying(e.cond) ? toJs(e.cond, where, true, ctx) : toJs(e.cond, where, true)} ? ${e.value} : ${rest}`, last);
-  (loops[loop] ??= []).push(`      out[o + k] = ${store};`);
+  (loops[loop] ??= []).push(`      out[$o + $k] = ${store};`);
   const scratch = [...stored];
   return [
     ...scratch.map((v) => `const ${id}$${v} = new Float64Array(${blockSize});`),
@@ -331,15 +336,15 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     `export function ${name}(${spec.inputs.map((v) => `${v}: ${points.includes(v) ? "Float64Array" : "number"}`).join(", ")}, out: Float64Array, count: number): void {`,
     `  if (!(Number.isInteger(count) && count >= 0 && count <= out.length${points.map((v) => ` && count <= ${v}.length`).join("")}))`,
     `    throw new InputError(count, "a point count no larger than the input and output arrays", ${JSON.stringify(name)});`,
-    ...scratch.map((v) => `  const ${v}_ = ${id}$${v};`),
+    ...scratch.map((v) => `  const $${v} = ${id}$${v};`),
     ...before.map((it) => {
       const [a, b] = it.nodes;
       return `  const ${it.result} = ${it.when ? `${toJs(it.when, where, true)} ? ${toJs(a!, where)} : ${toJs(b!, where)}` : toJs(a!, where)}; // ${it.label}`;
     }),
     ...[...invariants].map(([js, k]) => `  const ${k} = ${js};`),
-    `  for (let o = 0; o < count; o += ${blockSize}) {`,
-    `    const m = Math.min(${blockSize}, count - o);`,
-    ...loops.flatMap((body) => [`    for (let k = 0; k < m; k++) {`, ...body, `    }`]),
+    `  for (let $o = 0; $o < count; $o += ${blockSize}) {`,
+    `    const $m = Math.min(${blockSize}, count - $o);`,
+    ...loops.flatMap((body) => [`    for (let $k = 0; $k < $m; $k++) {`, ...body, `    }`]),
     `  }`,
     `}`,
   ].join("\n");
