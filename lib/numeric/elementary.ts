@@ -47,11 +47,12 @@ for (let i = 0; i <= 128; i++) {
 
 /** eˣ within 1.5 ulp; Math.exp's own result at the edges (see the header). */
 export function exp(x: number): number {
+  // NaN, ±Infinity, overflow and results near or below the subnormal range: Math's own
+  if (!(x > -708 && x < 709)) return Math.exp(x);
   const k = x * invLn2By64 + roundShift - roundShift;
   const ki = k | 0;
+  // |x| < 709 keeps |k| ≤ 65 464, so m + 1022 is 0..2044, inside the table (2^m normal)
   const m = (ki >> 6) + 1022;
-  // NaN and ±Infinity give m = 1022 through k | 0, so they are caught by the range of x too
-  if (!(m > 0 && m < 2045) || !(x > -708 && x < 709)) return Math.exp(x);
   const r = x - k * ln2By64Head - k * ln2By64Tail;
   const q = r * (1 + r * (1 / 2 + r * (1 / 6 + r * (1 / 24 + r * (1 / 120)))));
   const t = twoToJBy64[ki & 63]!;
