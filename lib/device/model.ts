@@ -16,6 +16,7 @@
 import type { Dimension } from "../quantity.js";
 import type { ModelId } from "./card.js";
 import type { Region } from "./region.js";
+import { InputError } from "../errors.js";
 
 /** One model's reading of a bias point (device polarity, VDS ≥ 0), as the operating point reports it. */
 export interface ModelBias {
@@ -53,6 +54,12 @@ export interface ModelParameter {
  */
 export type VectorCurrent = (p: Float64Array, vgs: number, vds: number, vsb: number) => number;
 
+/**
+ * Channel currents at `count` bias points at once (device polarity, per-point arrays, any sign
+ * of VDS), each equal to the model's `current` at that point, into out[0..count). Allocation-free.
+ */
+export type VectorCurrents = (p: Float64Array, vgs: Float64Array, vds: Float64Array, vsb: Float64Array, out: Float64Array, count: number) => void;
+
 export interface DeviceModel {
   readonly id: ModelId;
   readonly title: string;
@@ -62,6 +69,11 @@ export interface DeviceModel {
   /** Vector length: parameters, then W, L, T. */
   readonly size: number;
   readonly current: VectorCurrent;
+  /**
+   * The same current at many points at once, where the model has a block evaluator (EKV): the
+   * fit's residuals and sweeps use it when present; it must equal `current` at every point.
+   */
+  readonly currents?: VectorCurrents;
 }
 
 /** Slots after the parameters, relative to the vector's end. */
@@ -76,6 +88,33 @@ export const derivativeStep = 1e-5;
  */
 export function reversible(forward: VectorCurrent): VectorCurrent {
   return (p, vgs, vds, vsb) => (vds >= 0 ? forward(p, vgs, vds, vsb) : -forward(p, vgs - vds, -vds, vsb + vds));
+}
+
+/** Points per chunk of `reversibleCurrents`, whose swap scratch is module-level (no allocation per call). */
+const swapChunk = 256;
+const swapVgs = new Float64Array(swapChunk);
+const swapVds = new Float64Array(swapChunk);
+const swapVsb = new Float64Array(swapChunk);
+const swapOut = new Float64Array(swapChunk);
+
+/** `reversible` for a block of points: a point with vds < 0 is evaluated with drain and source swapped and its current negated. */
+export function reversibleCurrents(forward: VectorCurrents): VectorCurrents {
+  return (p, vgs, vds, vsb, out, count) => {
+    if (!(Number.isInteger(count) && count >= 0 && count <= out.length && count <= vgs.length && count <= vds.length && count <= vsb.length))
+      throw new InputError(count, "a point count no larger than the bias and output arrays", "DeviceModel.currents");
+    for (let o = 0; o < count; o += swapChunk) {
+      const m = Math.min(swapChunk, count - o);
+      for (let k = 0; k < m; k++) {
+        const d = vds[o + k]!;
+        const forwardPoint = d >= 0;
+        swapVgs[k] = forwardPoint ? vgs[o + k]! : vgs[o + k]! - d;
+        swapVds[k] = forwardPoint ? d : -d;
+        swapVsb[k] = forwardPoint ? vsb[o + k]! : vsb[o + k]! + d;
+      }
+      forward(p, swapVgs, swapVds, swapVsb, swapOut, m);
+      for (let k = 0; k < m; k++) out[o + k] = vds[o + k]! >= 0 ? swapOut[k]! : -swapOut[k]!;
+    }
+  };
 }
 
 /**

@@ -2,7 +2,8 @@
  * Any device model of `lib/device/models/` as a fit model: its parameters and
  * bounds, its allocation-free current on the parameter vector (W, L and the
  * measurement temperature filled in from the sweep), its card through
- * `cardFromVector`. A parameter the window has no data for is held at the
+ * `cardFromVector` (all the window's points at once through the model's block
+ * evaluator `currents` where it has one). A parameter the window has no data for is held at the
  * value a card without it means (`absent`) and left out of the card, so the
  * fitted card computes exactly what the fit computed.
  */
@@ -46,6 +47,8 @@ export function fitModelOf(model: DeviceModel): FitModel {
     v[model.size - 1] = s.temp;
     return v;
   };
+  // Bias arrays for the block path, grown to the largest window seen and reused.
+  let bias = { vgs: new Float64Array(0), vds: new Float64Array(0), vsb: new Float64Array(0) };
   return {
     id: model.id,
     title: model.title,
@@ -74,6 +77,21 @@ export function fitModelOf(model: DeviceModel): FitModel {
     evaluate(p, s, idx, out) {
       const v = vector(p, s);
       const sign = s.polarity === "nmos" ? 1 : -1;
+      if (model.currents) {
+        // the block path: the window's bias points gathered in device polarity, then all evaluated at once
+        const n = idx.length;
+        if (bias.vgs.length < n) bias = { vgs: new Float64Array(n), vds: new Float64Array(n), vsb: new Float64Array(n) };
+        const { vgs, vds, vsb } = bias;
+        for (let k = 0; k < n; k++) {
+          const i = idx[k]!;
+          vgs[k] = sign * s.vgs[i]!;
+          vds[k] = sign * s.vds[i]!;
+          vsb[k] = -sign * s.vbs[i]!;
+        }
+        model.currents(v, vgs, vds, vsb, out, n);
+        if (sign < 0) for (let k = 0; k < n; k++) out[k] = -out[k]!;
+        return;
+      }
       for (let k = 0; k < idx.length; k++) {
         const i = idx[k]!;
         out[k] = spiceCurrent(model, v, sign, s.vgs[i]!, s.vds[i]!, -s.vbs[i]!);

@@ -62,6 +62,11 @@ export interface CompositionSpec {
   /** The function's parameters, symbol names, in order. */
   readonly inputs: readonly string[];
   readonly steps: readonly CompositionStep[];
+  /**
+   * Inputs that vary from point to point (bias voltages). When given, the generator also emits
+   * `<id>Block`, which evaluates the steps over arrays of these at many points (generate.ts).
+   */
+  readonly pointInputs?: readonly string[];
 }
 
 /** Identity helpers that keep literal types for the generator and the checker. */

@@ -117,7 +117,7 @@ export const formulas = defineFormulas({
   ekvForwardCurrent: {
     title: "Forward normalised current (inversion coefficient)",
     result: "IC",
-    expr: "log1p(exp((VP - VSB) / (2 * Um)))^2",
+    expr: "softplus((VP - VSB) / (2 * Um))^2",
     source: ekv95,
   },
   ekvLongChannelSaturationVoltage: {
@@ -144,7 +144,7 @@ export const formulas = defineFormulas({
   ekvReverseCurrent: {
     title: "Reverse normalised current, saturating at VDSS'",
     result: "IRn",
-    expr: "log1p(exp((VP - VSB - VDS / 2 - Vip) / (2 * Um)))^2",
+    expr: "softplus((VP - VSB - VDS / 2 - Vip) / (2 * Um))^2",
     source: ekv26,
   },
   ekvEquivalentLength: {
@@ -201,6 +201,7 @@ export const compositions = defineCompositions({
   ekvChannelCurrent: {
     title: "EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows)",
     inputs: ["kp", "W", "L", "Vt0", "gamma", "phi", "lambda", "theta", "thetaB", "Ecrit", "sigma", "cit", "UT", "VGS", "VDS", "VSB"],
+    pointInputs: ["VGS", "VDS", "VSB"],
     steps: [
       ...pinchOff,
       { returnWhen: "IC == 0", value: 0, why: "a source tens of volts above the pinch-off voltage: the channel carries nothing" },

@@ -8,6 +8,7 @@ import { parse, type MathNode } from "mathjs";
 import { PinchoffError } from "../errors.js";
 import { formatQuantity, texQuantity, type FormatOptions } from "../units/format.js";
 import type { FormulaStep, RecordedValue } from "./derivation.js";
+import { printFormulaFunctions } from "../formulas/functions.js";
 
 /** Left side of the recorded TeX (`I_{D}` of `I_{D} = …`), as the generator writes it. */
 export function resultTex(step: Pick<FormulaStep, "tex">): string {
@@ -43,7 +44,7 @@ function substituting(step: FormulaStep, show: (v: RecordedValue, origin: string
 
 export function substitutedTex(step: FormulaStep, opts: FormatOptions = {}): string {
   const handler = substituting(step, (v, origin) => texQuantity(v.value, v.dim, { ...opts, origin }), (t) => `{${t}}`, (t) => `\\left(${t}\\right)`);
-  return parsed(step).toTex({ parenthesis: "auto", implicit: "hide", handler } as never);
+  return parsed(step).toTex({ parenthesis: "auto", implicit: "hide", handler: printFormulaFunctions("tex", handler) } as never);
 }
 
 /** The three parts of a typeset step: formula, substituted formula, result. */
@@ -59,5 +60,5 @@ export function stepTex(step: FormulaStep, opts: FormatOptions = {}): { formula:
 /** Plain-text form of the substituted right side, for terminals: `(2.00 mA/V²) / 2 * (300 mV) ^ 2`. */
 export function substitutedText(step: FormulaStep, opts: FormatOptions = {}): string {
   const handler = substituting(step, (v, origin) => formatQuantity(v.value, v.dim, { ...opts, origin }), (t) => t, (t) => `(${t})`);
-  return parsed(step).toString({ parenthesis: "auto", implicit: "hide", handler } as never);
+  return parsed(step).toString({ parenthesis: "auto", implicit: "hide", handler: printFormulaFunctions("text", handler) } as never);
 }

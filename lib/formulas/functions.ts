@@ -1,0 +1,39 @@
+/**
+ * The formula language's own functions, beyond those mathjs knows: for each, the
+ * implementation that the generated code imports and that the tests' unit-carrying
+ * re-evaluation calls (one implementation, so the number and its proof agree), the
+ * module the generated code imports it from, and how it is typeset and printed as the
+ * trade writes it (a mathjs print handler, used by the generator's TeX and by the
+ * substituted lines of lib/record/substitute.ts).
+ */
+import type { MathNode } from "mathjs";
+import { softplus } from "../numeric/elementary.js";
+
+export interface FormulaFunction {
+  /** The plain-number implementation (one argument). */
+  readonly impl: (x: number) => number;
+  /** Module the generated `*.formulas.ts` imports it from (relative to lib/formulas/). */
+  readonly module: string;
+  readonly tex: (arg: string) => string;
+  readonly text: (arg: string) => string;
+}
+
+export const formulaFunctions: Readonly<Record<string, FormulaFunction>> = {
+  /** ln(1 + eˣ), the EKV interpolation between weak and strong inversion; never overflows. */
+  softplus: { impl: softplus, module: "../numeric/elementary.js", tex: (a) => `\\ln\\left(1+e^{${a}}\\right)`, text: (a) => `ln(1 + exp(${a}))` },
+};
+
+type Handler = (node: MathNode, options: object) => string | undefined;
+
+/** A mathjs print handler (toTex when `mode` is "tex", toString otherwise) that prints these functions, tried after `inner`. */
+export function printFormulaFunctions(mode: "tex" | "text", inner?: Handler): Handler {
+  return (node, options) => {
+    const own = inner?.(node, options);
+    if (own !== undefined) return own;
+    const n = node as MathNode & { fn?: { name?: string }; args?: MathNode[] };
+    const f = n.type === "FunctionNode" && n.fn?.name ? formulaFunctions[n.fn.name] : undefined;
+    if (!f || n.args?.length !== 1) return undefined;
+    const arg = n.args[0]!;
+    return mode === "tex" ? f.tex(arg.toTex(options)) : f.text(arg.toString(options));
+  };
+}
