@@ -69,5 +69,15 @@ export const defineSymbols = <const S extends Record<string, SymbolSpec>>(s: S) 
 export const defineFormulas = <const F extends Record<string, FormulaSpec>>(f: F) => f;
 export const defineCompositions = <const C extends Record<string, CompositionSpec>>(c: C) => c;
 
+/**
+ * TeX of a catalog function mathjs does not know (it would print \\mathrm{wrightOmega}), for the typeset formula
+ * and its substituted line alike; undefined for any other node. `options` are the print options, handler included.
+ */
+export function texOfFunction(node: { type: string }, options: object): string | undefined {
+  const f = node as { type: string; fn?: { name?: string }; args?: { toTex(o: object): string }[] };
+  if (f.type !== "FunctionNode" || f.fn?.name !== "wrightOmega") return undefined;
+  return `\\omega\\left(${f.args!.map((a) => a.toTex(options)).join(",")}\\right)`;
+}
+
 /** x², used by generated code for `^2`. */
 export const sq = (x: number): number => x * x;

@@ -6,6 +6,7 @@
  */
 import { parse, type MathNode } from "mathjs";
 import { PinchoffError } from "../errors.js";
+import { texOfFunction } from "../formulas/define.js";
 import { formatQuantity, texQuantity, type FormatOptions } from "../units/format.js";
 import type { FormulaStep, RecordedValue } from "./derivation.js";
 
@@ -42,7 +43,8 @@ function substituting(step: FormulaStep, show: (v: RecordedValue, origin: string
 }
 
 export function substitutedTex(step: FormulaStep, opts: FormatOptions = {}): string {
-  const handler = substituting(step, (v, origin) => texQuantity(v.value, v.dim, { ...opts, origin }), (t) => `{${t}}`, (t) => `\\left(${t}\\right)`);
+  const values = substituting(step, (v, origin) => texQuantity(v.value, v.dim, { ...opts, origin }), (t) => `{${t}}`, (t) => `\\left(${t}\\right)`);
+  const handler = (n: MathNode, options: object) => values(n) ?? texOfFunction(n, options);
   return parsed(step).toTex({ parenthesis: "auto", implicit: "hide", handler } as never);
 }
 
