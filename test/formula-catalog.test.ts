@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import { composition, loadCatalogs, mergeSymbols, refuseRestatements } from "../lib/formulas/generate.js";
 import * as e from "../lib/formulas/ekv.formulas.js";
 import { wrightOmega } from "../lib/formulas/wright-omega.js";
+import { wrightOmegaByBisection } from "./support/reevaluate.js";
 
 describe("formula catalogs", () => {
   it("state every equation once across all catalogs", async () => {
@@ -71,17 +72,8 @@ describe("compositions: a model's hot path generated from its catalog", () => {
 });
 
 describe("the Wright ω function (lib/formulas/wright-omega.ts), which solves the EKV charge–voltage relation", () => {
-  // Reference: ω + ln ω = y solved by bisection on u = ln ω (u + eᵘ = y is increasing in u), 200 halvings.
-  const bisected = (y: number) => {
-    let lo = Math.min(y, 0) - 1;
-    let hi = Math.max(y, 1) + 1;
-    for (let k = 0; k < 200; k++) {
-      const m = (lo + hi) / 2;
-      if (m + Math.exp(m) < y) lo = m;
-      else hi = m;
-    }
-    return Math.exp((lo + hi) / 2);
-  };
+  // Reference: ω + ln ω = y solved by bisection on u = ln ω (test/support/reevaluate.ts), 200 halvings.
+  const bisected = wrightOmegaByBisection;
   it("is within 2·10⁻¹³ (relative) of bisection from y = −700 to 10⁶, across every start region's edges", () => {
     let worst = 0;
     for (let y = -700; y < 1e6; y += y < -60 ? 1.3 : y < 20 ? 0.0007 : y < 1000 ? 0.37 : 977) worst = Math.max(worst, Math.abs(wrightOmega(y) / bisected(y) - 1));

@@ -35,7 +35,7 @@ export interface Reevaluation {
  * The Wright ω function (ω + ln ω = y) for the catalog's `wrightOmega`, which mathjs lacks: by bisection on
  * u = ln ω (u + eᵘ = y rises with u), independent of lib/formulas/wright-omega.ts; 0 where eʸ underflows.
  */
-function wrightOmegaByBisection(y: number): number {
+export function wrightOmegaByBisection(y: number): number {
   if (Math.exp(y) === 0) return 0;
   let lo = Math.min(y, 0) - 1;
   let hi = Math.max(y, 1) + 1;
