@@ -2,6 +2,8 @@ import { describe, expect, it } from "vitest";
 import { composition, loadCatalogs, mergeSymbols, refuseRestatements } from "../lib/formulas/generate.js";
 import * as e from "../lib/formulas/ekv.formulas.js";
 import { wrightOmega } from "../lib/formulas/wright-omega.js";
+import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
+import { stepTex, substitutedText } from "../lib/record/substitute.js";
 import { wrightOmegaByBisection } from "./support/reevaluate.js";
 
 describe("formula catalogs", () => {
@@ -85,6 +87,17 @@ describe("the Wright ω function (lib/formulas/wright-omega.ts), which solves th
     expect(wrightOmega(-800)).toBe(0);
     expect(wrightOmega(1e200) / (1e200 - Math.log(1e200))).toBeCloseTo(1, 15);
     expect(Number.isNaN(wrightOmega(NaN))).toBe(true);
+  });
+  it("is typeset as ω in the formula and in its substituted line, and printed by name in plain text", () => {
+    expect(e.ekvForwardCharge.tex).toContain("\\omega\\left(");
+    expect(e.ekvForwardCharge.tex).not.toContain("wrightOmega");
+    const rec = new Derivation("EKV charge" as never);
+    const VP = 0.4;
+    const qF = rec.calc(e.ekvForwardCharge, [VP as never, 0 as never, 0.025 as never]);
+    expect(2 * qF + Math.log(qF)).toBeCloseTo(VP / 0.025, 12);
+    const step = rec.steps.find((st): st is FormulaStep => st.kind === "formula")!;
+    expect(stepTex(step).substituted).toMatch(/\\omega\\left\(.*400\\,\\mathrm\{m\}\\mathrm\{V\}/);
+    expect(substitutedText(step)).toMatch(/^wrightOmega\(/);
   });
   it("gives q of 2q + ln q = v through q = ω(v + ln 2)/2, as the EKV charge formulas state it", () => {
     for (const v of [-30, -5, -1, 0, 0.7, 3, 12, 80]) {
