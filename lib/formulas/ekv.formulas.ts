@@ -113,7 +113,7 @@ export const ekvForwardCharge = {
   vars: ["VP","VSB","Um"],
   dims: ["voltage","voltage","voltage"],
   source: "charge–voltage relation 2q + ln q = (VP − V)/UT of the charge-based EKV model (Enz & Vittoz, Charge-Based MOS Transistor Modeling: The EKV Model for Low-Power and RF IC Design, Wiley, 2006, from memory; the same relation as the ACM model, Cunha, Schneider & Galup-Montoro, IEEE JSSC 33(10), 1510–1519, 1998)",
-  fn: (VP: Volts, VSB: Volts, Um: Volts): Ratio => (wrightOmega(((((VP - VSB)) / Um) + Math.log(2))) / 2) as Ratio,
+  fn: (VP: Volts, VSB: Volts, Um: Volts): Ratio => (wrightOmega(((((VP - VSB)) / Um) + 0.6931471805599453)) / 2) as Ratio,
 } as const satisfies Formula;
 
 /** Forward normalised current (inversion coefficient): IC = qF^2 + qF */
@@ -183,7 +183,7 @@ export const ekvReverseCharge = {
   vars: ["VP","VSB","VDS","Vip","Um"],
   dims: ["voltage","voltage","voltage","voltage","voltage"],
   source: "charge–voltage relation 2q + ln q = (VP − V)/UT of the charge-based EKV model (Enz & Vittoz, Charge-Based MOS Transistor Modeling: The EKV Model for Low-Power and RF IC Design, Wiley, 2006, from memory; the same relation as the ACM model, Cunha, Schneider & Galup-Montoro, IEEE JSSC 33(10), 1510–1519, 1998); the saturating drain voltage of EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (VP: Volts, VSB: Volts, VDS: Volts, Vip: Volts, Um: Volts): Ratio => (wrightOmega(((((((VP - VSB) - (VDS / 2)) - Vip)) / Um) + Math.log(2))) / 2) as Ratio,
+  fn: (VP: Volts, VSB: Volts, VDS: Volts, Vip: Volts, Um: Volts): Ratio => (wrightOmega(((((((VP - VSB) - (VDS / 2)) - Vip)) / Um) + 0.6931471805599453)) / 2) as Ratio,
 } as const satisfies Formula;
 
 /** Reverse normalised current: IRn = qR^2 + qR */
@@ -262,13 +262,13 @@ export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number,
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
   const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
   const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
-  const qF = (wrightOmega(((((VP - VSB)) / Um) + Math.log(2))) / 2); // ekvForwardCharge
+  const qF = (wrightOmega(((((VP - VSB)) / Um) + 0.6931471805599453)) / 2); // ekvForwardCharge
   const IC = (sq(qF) + qF); // ekvForwardCurrent
   if (IC === 0) return 0; // a source tens of volts above the pinch-off voltage: the channel carries nothing
   const VDSSL = (Um * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))); // ekvLongChannelSaturationVoltage
   const VDSS = ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (Um * ((Math.log(((Ecrit * L) / ((2 * Um)))) - 0.6)))); // ekvSaturationVoltage
   const Vip = (Math.sqrt((sq(VDSS) + (sq(Um) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(Um) / 4)))); // ekvLimitedDrainVoltage
-  const qR = (wrightOmega(((((((VP - VSB) - (VDS / 2)) - Vip)) / Um) + Math.log(2))) / 2); // ekvReverseCharge
+  const qR = (wrightOmega(((((((VP - VSB) - (VDS / 2)) - Vip)) / Um) + 0.6931471805599453)) / 2); // ekvReverseCharge
   const IRn = (sq(qR) + qR); // ekvReverseCurrent
   const Leq = (L + ((((VDS / 2) + Vip)) / Ecrit)); // ekvEquivalentLength
   const beta = (((kp * W) / Leq) / (((1 + (((theta * n) * Um) * ((qF + qR)))) + (thetaB * VSB)))); // ekvGainFactor
@@ -283,7 +283,7 @@ export function ekvInversionCoefficient(Vt0: number, gamma: number, phi: number,
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
   const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
   const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
-  const qF = (wrightOmega(((((VP - VSB)) / Um) + Math.log(2))) / 2); // ekvForwardCharge
+  const qF = (wrightOmega(((((VP - VSB)) / Um) + 0.6931471805599453)) / 2); // ekvForwardCharge
   const IC = (sq(qF) + qF); // ekvForwardCurrent
   return IC;
 }

@@ -128,7 +128,13 @@ function toJs(node: MathNode, where: string, condition = false): string {
     case "FunctionNode": {
       const fn = mathFunctions[n.fn.name as string];
       if (!fn) throw new Error(`${where}: function ${n.fn.name} not supported`);
-      return `${fn}(${(n.args as MathNode[]).map((a) => toJs(a, where)).join(", ")})`;
+      // A Math function of constants (ln 2) is computed here once, not on every call.
+      const args = n.args as (MathNode & { value?: unknown })[];
+      if (fn.startsWith("Math.") && args.every((a) => a.type === "ConstantNode")) {
+        const value = (Math as unknown as Record<string, (...x: number[]) => number>)[fn.slice(5)]!(...args.map((a) => Number(a.value)));
+        if (Number.isFinite(value)) return `${value}`;
+      }
+      return `${fn}(${args.map((a) => toJs(a, where)).join(", ")})`;
     }
     default:
       throw new Error(`${where}: expression node ${n.type} not supported`);

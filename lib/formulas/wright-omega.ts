@@ -8,7 +8,7 @@
  * series in x = eʸ below y = −2 (W(x) = Σ (−k)^(k−1)/k!·x^k), from Taylor series about y = −1 and y = 3 up
  * to y = 6 (coefficients from (1 + ω)·ω′ = ω, computed once at load), from the asymptotic series in ln y
  * above; every start is within 2·10⁻⁴, and one Fritsch–Shafer–Crowley step (Comm. ACM 16(2), 123–124,
- * 1973; fourth order) takes it to rounding.
+ * 1973; fourth order) takes it to rounding (below y = −7 the series alone is exact to rounding).
  * Tolerance: relative error ≤ 2·10⁻¹³ for −745 < y < 10⁶ (checked against bisection in
  * test/formula-catalog.test.ts). Failure mode: 0 where eʸ underflows (y < −745), NaN for NaN.
  * One or two transcendental calls, no allocation.
@@ -51,8 +51,9 @@ export function wrightOmega(y: number): number {
   let w: number;
   if (y < -2) {
     const x = Math.exp(y);
-    if (x === 0) return 0;
     w = x * (1 + x * (-1 + x * (3 / 2 + x * (-8 / 3 + x * (125 / 24 + x * (-54 / 5))))));
+    // below y = −7 (x < 10⁻³) the series is exact to rounding (the next term is 117649/5040·x⁷): no step needed; 0 where eʸ underflows
+    if (y < -7) return w;
   } else if (y < 0.5) w = horner(low, y - lowCentre);
   else if (y < 6) w = horner(high, y - highCentre);
   else {
