@@ -11,7 +11,7 @@
  *   Enz & Vittoz 2006), and the current is i = q² + q, in place of the 1995 interpolation i = ln²(1 + e^(v/2)), which
  *   is the same in weak inversion but 21 % below it at VP = VS and 13 % above it half a volt higher. Fitted to the open 180 nm measurements (test/fit-pdk180.test.ts) the interpolation left the
  *   low-VDS transfer curves 10–18 % high there (NMOS L = 0.5 µm: RMS 4.8 %, 95th percentile 10.6 %); the charge
- *   relation gives 4.4 % and 9.0 %, and lowers the RMS at every NMOS length and the PMOS L ≤ 1 µm;
+ *   relation gives 4.4 % and 8.9 %, and lowers the RMS at every NMOS length and the PMOS L ≤ 0.5 µm;
  * - the 2.6 smoothing ΔV = 4·UT·√(LAMBDA·(…) + 1/64) is taken at LAMBDA = 0, ΔV = UT/2;
  *   channel-length modulation is instead the factor (1 + λ·VDS) of SPICE Level 1;
  * - the equivalent length uses the same saturation voltage VDSS' as the reverse current;
