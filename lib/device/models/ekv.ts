@@ -2,7 +2,8 @@
  * The EKV all-region model (equations and sources: lib/formulas/ekv.catalog.ts).
  * One expression from weak through strong inversion, continuous in ID, gm, gds
  * and gm/ID; the inversion coefficient IC = IF/IS comes with it.
- * Closed form, no allocation; the card's temperature sets UT = kT/q.
+ * A fixed sequence of operations (the charge relation through the Wright ω function, lib/formulas/wright-omega.ts),
+ * no iteration to convergence, no allocation; the card's temperature sets UT = kT/q.
  */
 import {
   ekvChannelCurrent,
