@@ -3,7 +3,7 @@
  * EKV models: the solved node voltages carry the same current in each device's
  * own model (KCL, evaluated independently through drainCurrent), PMOS mirrors
  * NMOS, the record shows the model's equations and re-evaluates with units, the
- * EKV card reduces to the square law in strong inversion, and design files with
+ * EKV card carries its strong-inversion limit, and design files with
  * an EKV card run through `pinchoff op`. Cards and stages are invented for the tests.
  */
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
@@ -17,10 +17,14 @@ import { main as op } from "../lib/cli/op.js";
 import { stagePlots } from "../lib/plot/stage.js";
 import { device, type DeviceCard } from "../lib/device/card.js";
 import { drainCurrent } from "../lib/device/drain-current.js";
-import type { Meters } from "../lib/quantity.js";
+import { thermalVoltage, type Kelvin, type Meters } from "../lib/quantity.js";
 import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
 import { captureCli } from "./support/cli.js";
+import { ekvStrongInversionCurrent } from "./support/ekv-limit.js";
 import { expectReevaluates } from "./support/reevaluate.js";
+
+/** UT at the cards' default temperature, 300.15 K (lib/device/card.ts). */
+const ut = thermalVoltage(300.15 as Kelvin);
 
 const base = { name: "invented-n", polarity: "nmos", kp: 150e-6, vt0: 0.6, lambda: 0.04, gamma: 0.45, phi: 0.7 };
 const cards = {
@@ -81,7 +85,7 @@ describe("current mirror with every model", () => {
     expectReevaluates(rec);
   });
 
-  it("EKV in strong inversion with γ = θ = σ = λ = 0 and no velocity saturation reduces to the square law (EKV 1995 strong-inversion limit, ID = (k'/2n)·(W/L)·(VGS − VT0)², n = 1 for γ = 0)", () => {
+  it("EKV in strong inversion with γ = θ = σ = λ = 0 and no velocity saturation carries its strong-inversion limit ID = (k'/2)·(W/L)·((VOV − UT·(ln q − 1))² − UT²) (charge-based EKV, n = 1 for γ = 0), below the square law's", () => {
     const sq = { name: "invented-n", polarity: "nmos", kp: 150e-6, vt0: 0.6 } as unknown as DeviceCard;
     const ek = { ...sq, model: "ekv", gamma: 0, theta: 0, ecrit: 1e12, sigma: 0 } as unknown as DeviceCard;
     // RREF 2k…20k: overdrives 1.4 V … 0.5 V, well inside strong inversion.
@@ -89,9 +93,11 @@ describe("current mirror with every model", () => {
       const at = (c: DeviceCard) => analyzeStage({ ...mirrorStage(c, { vout: 2.5 }), components: { rref, vout: 2.5 } } as unknown as Stage) as MirrorAnalysis;
       const a = at(sq);
       const b = at(ek);
-      expect(a.mirror.gateSource - 0.6).toBeGreaterThan(0.45);
-      expect(b.mirror.referenceCurrent / a.mirror.referenceCurrent - 1).toBeCloseTo(0, 4);
-      expect(b.mirror.outputCurrent / a.mirror.outputCurrent - 1).toBeCloseTo(0, 4);
+      const vov = b.mirror.gateSource - 0.6;
+      expect(vov).toBeGreaterThan(0.45);
+      expect(b.mirror.referenceCurrent / ekvStrongInversionCurrent(150e-6 * 10, vov, ut) - 1).toBeCloseTo(0, 4);
+      expect(b.mirror.outputCurrent / ekvStrongInversionCurrent(150e-6 * 20, vov, ut) - 1).toBeCloseTo(0, 4);
+      expect(b.mirror.referenceCurrent).toBeLessThan(a.mirror.referenceCurrent);
     }
   });
 });
@@ -131,13 +137,13 @@ describe("diode-load stage with every model", () => {
       });
   }
 
-  it("EKV in strong inversion reduces to the square law (EKV 1995 strong-inversion limit)", () => {
+  it("EKV in strong inversion carries its strong-inversion limit (charge-based EKV), below the square law's", () => {
     const sq = { name: "invented-n", polarity: "nmos", kp: 150e-6, vt0: 0.6 } as unknown as DeviceCard;
     const ek = { ...sq, model: "ekv", gamma: 0, theta: 0, ecrit: 1e12, sigma: 0 } as unknown as DeviceCard;
     const a = analyzeStage(diodeStage(sq, pmos(sq), "source", 1.8));
     const b = analyzeStage(diodeStage(ek, pmos(ek), "source", 1.8));
-    expect(b.nodes.drain - a.nodes.drain).toBeCloseTo(0, 4);
-    expect(b.currents.drainMagnitude! / a.currents.drainMagnitude! - 1).toBeCloseTo(0, 4);
+    expect(b.currents.drainMagnitude! / ekvStrongInversionCurrent(150e-6 * 20, 1.8 - 0.6, ut) - 1).toBeCloseTo(0, 4);
+    expect(b.currents.drainMagnitude!).toBeLessThan(a.currents.drainMagnitude!);
   });
 
   it("records an EKV diode-load stage with the EKV equations; the record re-evaluates with units", () => {

@@ -137,28 +137,40 @@ describe("square law with mobility degradation and velocity saturation", () => {
 const longEkv = (gamma: number) =>
   at({ name: "invented-ekv", polarity: "nmos", model: "ekv", kp: 100e-6, vt0: 0.5, gamma, phi: 0.7, lambda: 0, theta: 0, ecrit: 1e12, sigma: 0 } as unknown as DeviceCard, 10e-6, 10e-6);
 
-describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995)", () => {
+describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995; charge–voltage relation of Enz & Vittoz 2006)", () => {
   const g = new Float64Array(3);
-  it("gm·n·UT/ID = (1 − e^(−√IC))/√IC in saturation, so the weak and strong asymptotes of gm/ID cross at IC = 1", () => {
-    // γ = 0: n = 1 and VP = VGS − Vt0 exactly, so the relation is that of the interpolation function F.
+  const chargeAt = (vov: number) => ekvFormulas.ekvForwardCharge.fn(vov as never, 0 as never, ut);
+  it("gm·n·UT/ID = 2/(1 + √(1 + 4·IC)) in saturation, so the weak and strong asymptotes of gm/ID cross at IC = 1", () => {
+    // γ = 0: n = 1 and VP = VGS − Vt0 exactly. The relation follows from 2q + ln q = v and i = q² + q
+    // (Enz & Vittoz, Charge-Based MOS Transistor Modeling, Wiley, 2006, from memory).
     const p = parameterVector(longEkv(0));
     for (const vov of [-0.2, -0.08, 0, 0.05, 0.15, 0.4, 1]) {
       const vgs = 0.5 + vov;
       const id = ekv.current(p, vgs, 3, 0);
       conductances(ekv, p, vgs, 3, 0, g);
-      const ic = ekvFormulas.ekvForwardCurrent.fn(vov as never, 0 as never, ut);
-      const want = (1 - Math.exp(-Math.sqrt(ic))) / Math.sqrt(ic);
+      const ic = ekvFormulas.ekvForwardCurrent.fn(chargeAt(vov));
+      const want = 2 / (1 + Math.sqrt(1 + 4 * ic));
       expect((g[0]! * ut) / id).toBeCloseTo(want, 5);
     }
   });
-  it("strong inversion: ID → β/2·VOV² and gm/ID → 2/VOV (γ = 0, far from the transition: within 0.1 % at VOV ≥ 0.5 V)", () => {
+  it("strong inversion: ID → β/2·VOV² short by the charge-sheet term, ID = β/2·(VOV − UT·(ln q − 1))² − β·UT²/2, and gm/ID = 1/(UT·(q + 1)) → 2/VOV (γ = 0)", () => {
+    // The surface potential keeps rising by UT·ln q above pinch-off (charge-sheet model, Enz & Vittoz 2006, from memory):
+    // the square law's β/2·VOV² is the limit, approached as UT·ln q/VOV → 0 (12 % short at 0.5 V, 7 % at 2 V).
     const p = parameterVector(longEkv(0));
     const beta = 100e-6;
+    let gap = Infinity;
     for (const vov of [0.5, 1, 2]) {
       const id = ekv.current(p, 0.5 + vov, 3.3, 0);
       conductances(ekv, p, 0.5 + vov, 3.3, 0, g);
-      expect(Math.abs(id / ((beta / 2) * vov * vov) - 1)).toBeLessThan(1e-3);
-      expect(Math.abs((g[0]! / id) * (vov / 2) - 1)).toBeLessThan(1e-3);
+      const q = chargeAt(vov);
+      expect(Math.abs(id / ((beta / 2) * (vov - ut * (Math.log(q) - 1)) ** 2 - (beta * ut * ut) / 2) - 1)).toBeLessThan(1e-3);
+      const short = 1 - id / ((beta / 2) * vov * vov);
+      expect(short).toBeGreaterThan(0);
+      expect(short).toBeLessThan(gap);
+      gap = short;
+      // gm/ID = 1/(UT·(q + 1)) from di/dv = q; within 3 % of the square law's 2/VOV here
+      expect(Math.abs((g[0]! / id) * ut * (q + 1) - 1)).toBeLessThan(1e-3);
+      expect(Math.abs((g[0]! / id) * (vov / 2) - 1)).toBeLessThan(0.03);
     }
   });
   it("weak inversion: gm/ID → 1/(n·UT) and the slope is n·UT·ln10 per decade, n = 1 + γ/(2√(VP + 2φF))", () => {
@@ -176,7 +188,7 @@ describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995)"
       expect(Math.abs(Math.log10(decade) - 1)).toBeLessThan(0.03);
     }
   });
-  it("with interface traps, gm/ID → 1/((n + Cit/Cox)·UT) in weak inversion while the strong-inversion current stays as without them (within 0.1 %)", () => {
+  it("with interface traps, gm/ID → 1/((n + Cit/Cox)·UT) in weak inversion while the strong-inversion current stays as without them (within 1 %)", () => {
     const cit = 0.25;
     const card = { name: "invented-ekv-cit", polarity: "nmos", model: "ekv", kp: 100e-6, vt0: 0.5, gamma: 0.6, phi: 0.7, lambda: 0, theta: 0, ecrit: 1e12, sigma: 0, cit } as unknown as DeviceCard;
     const p = parameterVector(at(card, 10e-6, 10e-6));
@@ -187,8 +199,8 @@ describe("EKV against its published equations (Enz, Krummenacher & Vittoz 1995)"
       conductances(ekv, p, vgs, 1, 0, g);
       expect(Math.abs((g[0]! / ekv.current(p, vgs, 1, 0)) * (n + cit) * ut - 1)).toBeLessThan(0.03);
     }
-    // far above threshold the traps' term cancels: the same current as without it
-    for (const vov of [1, 2]) expect(Math.abs(ekv.current(p, 0.5 + vov, 3.3, 0) / ekv.current(p1, 0.5 + vov, 3.3, 0) - 1)).toBeLessThan(1e-3);
+    // far above threshold the traps' term cancels but in the charge-sheet term Um·ln q: within 1 % of the current without it
+    for (const vov of [1, 2]) expect(Math.abs(ekv.current(p, 0.5 + vov, 3.3, 0) / ekv.current(p1, 0.5 + vov, 3.3, 0) - 1)).toBeLessThan(1e-2);
   });
   it("gm/ID levels off at 1/(n·UT) in weak inversion and never rises past it", () => {
     const p = parameterVector(longEkv(0.6));

@@ -1,6 +1,10 @@
 import { describe, expect, it } from "vitest";
 import { composition, loadCatalogs, mergeSymbols, refuseRestatements } from "../lib/formulas/generate.js";
 import * as e from "../lib/formulas/ekv.formulas.js";
+import { wrightOmega } from "../lib/numeric/wright-omega.js";
+import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
+import { stepTex, substitutedText } from "../lib/record/substitute.js";
+import { wrightOmegaByBisection } from "./support/reevaluate.js";
 
 describe("formula catalogs", () => {
   it("state every equation once across all catalogs", async () => {
@@ -55,14 +59,50 @@ describe("compositions: a model's hot path generated from its catalog", () => {
       const VP = VGp > 0 ? f.ekvPinchOffVoltage!.fn(VGp, phi, gamma) : f.ekvPinchOffFloor!.fn(phi);
       const n = f.ekvSlopeFactor!.fn(gamma, VP, phi, UT);
       const Um = f.ekvNormalisingVoltage!.fn(UT, cit, n);
-      const IC = f.ekvForwardCurrent!.fn(VP, VSB, Um);
+      const qF = f.ekvForwardCharge!.fn(VP, VSB, Um);
+      const IC = f.ekvForwardCurrent!.fn(qF);
       const VDSS = f.ekvSaturationVoltage!.fn(f.ekvLongChannelSaturationVoltage!.fn(Um, IC), Ecrit, L, Um);
       const Vip = f.ekvLimitedDrainVoltage!.fn(VDSS, Um, VDS);
-      const IRn = f.ekvReverseCurrent!.fn(VP, VSB, VDS, Vip, Um);
-      const beta = f.ekvGainFactor!.fn(kp, W, f.ekvEquivalentLength!.fn(L, VDS, Vip, Ecrit), theta, n, Um, f.ekvForwardCharge!.fn(IC), f.ekvReverseCharge!.fn(IRn), thetaB, VSB);
+      const qR = f.ekvReverseCharge!.fn(VP, VSB, VDS, Vip, Um);
+      const IRn = f.ekvReverseCurrent!.fn(qR);
+      const beta = f.ekvGainFactor!.fn(kp, W, f.ekvEquivalentLength!.fn(L, VDS, Vip, Ecrit), theta, n, Um, qF, qR, thetaB, VSB);
       const id = IC === 0 ? 0 : f.ekvDrainCurrent!.fn(f.ekvSpecificCurrent!.fn(n, beta, Um), IC, IRn, lambda, VDS);
       expect(e.ekvChannelCurrent(kp, W, L, Vt0, gamma, phi, lambda, theta, thetaB, Ecrit, sigma, cit, UT, VGS, VDS, VSB)).toBe(id);
       expect(e.ekvInversionCoefficient(Vt0, gamma, phi, sigma, cit, UT, VGS, VDS, VSB)).toBe(IC);
+    }
+  });
+});
+
+describe("the Wright ω function (lib/numeric/wright-omega.ts), which solves the EKV charge–voltage relation", () => {
+  // Reference: ω + ln ω = y solved by bisection on u = ln ω (test/support/reevaluate.ts), 200 halvings.
+  const bisected = wrightOmegaByBisection;
+  it("is within 2·10⁻¹³ (relative) of bisection from y = −700 to 10⁶, across every start region's edges", () => {
+    let worst = 0;
+    for (let y = -700; y < 1e6; y += y < -60 ? 1.3 : y < 20 ? 0.0007 : y < 1000 ? 0.37 : 977) worst = Math.max(worst, Math.abs(wrightOmega(y) / bisected(y) - 1));
+    expect(worst).toBeLessThan(2e-13);
+  });
+  it("has the known values ω(1) = 1 and ω(0) = W(1) = Ω = 0.5671432904097838 (the omega constant), is 0 where eʸ underflows and ≈ y − ln y far out", () => {
+    expect(wrightOmega(1)).toBeCloseTo(1, 15);
+    expect(wrightOmega(0)).toBeCloseTo(0.5671432904097838, 15);
+    expect(wrightOmega(-800)).toBe(0);
+    expect(wrightOmega(1e200) / (1e200 - Math.log(1e200))).toBeCloseTo(1, 15);
+    expect(Number.isNaN(wrightOmega(NaN))).toBe(true);
+  });
+  it("is typeset as ω in the formula and in its substituted line, and printed by name in plain text", () => {
+    expect(e.ekvForwardCharge.tex).toContain("\\omega\\left(");
+    expect(e.ekvForwardCharge.tex).not.toContain("wrightOmega");
+    const rec = new Derivation("EKV charge" as never);
+    const VP = 0.4;
+    const qF = rec.calc(e.ekvForwardCharge, [VP as never, 0 as never, 0.025 as never]);
+    expect(2 * qF + Math.log(qF)).toBeCloseTo(VP / 0.025, 12);
+    const step = rec.steps.find((st): st is FormulaStep => st.kind === "formula")!;
+    expect(stepTex(step).substituted).toMatch(/\\omega\\left\(.*400\\,\\mathrm\{m\}\\mathrm\{V\}/);
+    expect(substitutedText(step)).toMatch(/^wrightOmega\(/);
+  });
+  it("gives q of 2q + ln q = v through q = ω(v + ln 2)/2, as the EKV charge formulas state it", () => {
+    for (const v of [-30, -5, -1, 0, 0.7, 3, 12, 80]) {
+      const q = wrightOmega(v + Math.LN2) / 2;
+      expect(2 * q + Math.log(q)).toBeCloseTo(v, 12);
     }
   });
 });

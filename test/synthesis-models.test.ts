@@ -15,9 +15,10 @@ import { netlistSynthesisTopologies, synthesize, synthesisTopologies as allTopol
 import { cardAt, type CardSet } from "../lib/device/card-set.js";
 import { device, type DeviceCard } from "../lib/device/card.js";
 import { drainCurrent } from "../lib/device/drain-current.js";
-import type { Meters } from "../lib/quantity.js";
+import { thermalVoltage, type Kelvin, type Meters } from "../lib/quantity.js";
 import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
 import { designShape } from "./support/design-shape.js";
+import { ekvStrongInversionCurrent } from "./support/ekv-limit.js";
 import { expectReevaluates } from "./support/reevaluate.js";
 
 // The single-transistor designers; the netlist stages' designers take fitted cards in test/synthesis-pairs.test.ts.
@@ -102,14 +103,15 @@ describe("the device step is the model's", () => {
       expectReevaluates(rec);
     }
   });
-  it("the EKV card in its square-law limit (γ = θ = σ = λ = 0, no velocity saturation) designs the square law's W within 1e-4 (EKV 1995 strong-inversion limit)", () => {
+  it("the EKV card with γ = θ = σ = λ = 0 and no velocity saturation designs the square law's W scaled by its strong-inversion limit, VOV²/((VOV − UT·(ln q − 1))² − UT²) (charge-based EKV)", () => {
     const sq = { name: "invented-n", polarity: "nmos", kp: 150e-6, vt0: 0.6 } as unknown as DeviceCard;
     const ek = { ...sq, model: "ekv", gamma: 0, theta: 0, ecrit: 1e12, sigma: 0 } as unknown as DeviceCard;
     for (const topology of ["fixed-gate", "current-mirror", "diode-load"]) {
       const at = (c: DeviceCard) => synthesize(designShape({ ...specs(c, { vov: 0.8, l: 1e-6 }, "exact")[topology]!, ...(topology === "fixed-gate" ? { drain: { vd: 3 } } : {}), ...(topology === "diode-load" ? { output: { vout: 2.5 } } : {}) }));
       const a = at(sq);
       const b = at(ek);
-      expect(b.ideal.w / a.ideal.w - 1).toBeCloseTo(0, 4);
+      const vov = 0.8;
+      expect(b.ideal.w / a.ideal.w / ((150e-6 / 2) * vov * vov / ekvStrongInversionCurrent(150e-6, vov, thermalVoltage(300.15 as Kelvin))) - 1).toBeCloseTo(0, 4);
       expect(b.ideal.vg - a.ideal.vg).toBeCloseTo(0, 4);
     }
   });

@@ -6,8 +6,9 @@
  * where it stays within ±5 % and ±10 %.
  *
  * Regions. Inversion level from the overdrive VOV = |VGS| − Vt(VSB) through the
- * EKV relation VOV = 2·n·UT·ln(e^√IC − 1) (Enz, Krummenacher & Vittoz, Analog
- * Integrated Circuits and Signal Processing 8, 83–114, 1995): weak below
+ * EKV charge relation of the model (lib/formulas/ekv.catalog.ts), VOV = n·UT·(2q + ln q)
+ * with q = √(1/4 + IC) − 1/2 (Enz & Vittoz, Charge-Based MOS Transistor Modeling,
+ * Wiley, 2006, from memory): weak below
  * IC = 0.1, strong above IC = 10, moderate between (the usual boundaries,
  * common practice). Saturation when VDS ≥ max(VOV, 4·UT) (common practice),
  * triode otherwise.
@@ -69,8 +70,12 @@ export function accuracy(model: FitModel, p: Float64Array, s: Sweep, minCurrent 
   const sign = s.polarity === "nmos" ? 1 : -1;
   const ut = thermalVoltage(s.temp);
   const nSlope = model.slope(p);
-  const ovWeak = 2 * nSlope * ut * Math.log(Math.exp(Math.sqrt(0.1)) - 1);
-  const ovStrong = 2 * nSlope * ut * Math.log(Math.exp(Math.sqrt(10)) - 1);
+  const overdriveAt = (ic: number) => {
+    const q = Math.sqrt(0.25 + ic) - 0.5;
+    return nSlope * ut * (2 * q + Math.log(q));
+  };
+  const ovWeak = overdriveAt(0.1);
+  const ovStrong = overdriveAt(10);
   const buckets: Record<RegionName, number[]> = { weak: [], moderate: [], strong: [], triode: [], saturation: [] };
   const used: number[] = [];
   for (let i = 0; i < n; i++) {

@@ -2,7 +2,7 @@
 import type { Formula } from "./define.js";
 import { sq } from "./define.js";
 import { InputError } from "../errors.js";
-import { softplus } from "../numeric/elementary.js";
+import { wrightOmega } from "../numeric/wright-omega.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerMeter } from "../quantity.js";
 
 /** Normalising voltage of the charges and currents: Um = UT * (1 + cit / n) */
@@ -103,18 +103,32 @@ export const ekvSlopeFactor = {
   fn: (gamma: SqrtVolts, VP: Volts, phi: Volts, UT: Volts): Ratio => (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))) as Ratio,
 } as const satisfies Formula;
 
-/** Forward normalised current (inversion coefficient): IC = softplus((VP - VSB) / (2 * Um))^2 */
-export const ekvForwardCurrent = {
-  id: "ekvForwardCurrent",
-  title: "Forward normalised current (inversion coefficient)",
-  expr: "softplus((VP - VSB) / (2 * Um))^2",
-  tex: "IC = {\\ln\\left(1+e^{\\frac{{V_{P}}-{V_{SB}}}{2\\cdot{U_{T}^{*}}}}\\right)}^{2}",
-  result: "IC",
+/** Normalised inversion charge at the source: qF = wrightOmega((VP - VSB) / Um + log(2)) / 2 */
+export const ekvForwardCharge = {
+  id: "ekvForwardCharge",
+  title: "Normalised inversion charge at the source",
+  expr: "wrightOmega((VP - VSB) / Um + log(2)) / 2",
+  tex: "q_{f} = \\frac{\\omega\\left(\\frac{{V_{P}}-{V_{SB}}}{{U_{T}^{*}}}+\\ln\\left(2\\right)\\right)}{2}",
+  result: "qF",
   resultDim: "dimensionless",
   vars: ["VP","VSB","Um"],
   dims: ["voltage","voltage","voltage"],
+  source: "charge–voltage relation 2q + ln q = (VP − V)/UT of the charge-based EKV model (Enz & Vittoz, Charge-Based MOS Transistor Modeling: The EKV Model for Low-Power and RF IC Design, Wiley, 2006, from memory; the same relation as the ACM model, Cunha, Schneider & Galup-Montoro, IEEE JSSC 33(10), 1510–1519, 1998)",
+  fn: (VP: Volts, VSB: Volts, Um: Volts): Ratio => (wrightOmega(((((VP - VSB)) / Um) + 0.6931471805599453)) / 2) as Ratio,
+} as const satisfies Formula;
+
+/** Forward normalised current (inversion coefficient): IC = qF^2 + qF */
+export const ekvForwardCurrent = {
+  id: "ekvForwardCurrent",
+  title: "Forward normalised current (inversion coefficient)",
+  expr: "qF^2 + qF",
+  tex: "IC = {{q_{f}}}^{2}+{q_{f}}",
+  result: "IC",
+  resultDim: "dimensionless",
+  vars: ["qF"],
+  dims: ["dimensionless"],
   source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
-  fn: (VP: Volts, VSB: Volts, Um: Volts): Ratio => sq(softplus((((VP - VSB)) / ((2 * Um))))) as Ratio,
+  fn: (qF: Ratio): Ratio => (sq(qF) + qF) as Ratio,
 } as const satisfies Formula;
 
 /** Saturation voltage for the reverse current, long channel: VDSSL = Um * (sqrt(IC) - 3 / 4 * log(IC)) */
@@ -159,18 +173,32 @@ export const ekvLimitedDrainVoltage = {
   fn: (VDSS: Volts, Um: Volts, VDS: Volts): Volts => (Math.sqrt((sq(VDSS) + (sq(Um) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(Um) / 4)))) as Volts,
 } as const satisfies Formula;
 
-/** Reverse normalised current, saturating at VDSS': IRn = softplus((VP - VSB - VDS / 2 - Vip) / (2 * Um))^2 */
-export const ekvReverseCurrent = {
-  id: "ekvReverseCurrent",
-  title: "Reverse normalised current, saturating at VDSS'",
-  expr: "softplus((VP - VSB - VDS / 2 - Vip) / (2 * Um))^2",
-  tex: "i_{r} = {\\ln\\left(1+e^{\\frac{{V_{P}}-{V_{SB}}-\\frac{{V_{DS}}}{2}-{V_{ip}}}{2\\cdot{U_{T}^{*}}}}\\right)}^{2}",
-  result: "IRn",
+/** Normalised inversion charge at the drain end, saturating at VDSS': qR = wrightOmega((VP - VSB - VDS / 2 - Vip) / Um + log(2)) / 2 */
+export const ekvReverseCharge = {
+  id: "ekvReverseCharge",
+  title: "Normalised inversion charge at the drain end, saturating at VDSS'",
+  expr: "wrightOmega((VP - VSB - VDS / 2 - Vip) / Um + log(2)) / 2",
+  tex: "q_{r} = \\frac{\\omega\\left(\\frac{{V_{P}}-{V_{SB}}-\\frac{{V_{DS}}}{2}-{V_{ip}}}{{U_{T}^{*}}}+\\ln\\left(2\\right)\\right)}{2}",
+  result: "qR",
   resultDim: "dimensionless",
   vars: ["VP","VSB","VDS","Vip","Um"],
   dims: ["voltage","voltage","voltage","voltage","voltage"],
-  source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
-  fn: (VP: Volts, VSB: Volts, VDS: Volts, Vip: Volts, Um: Volts): Ratio => sq(softplus((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * Um))))) as Ratio,
+  source: "charge–voltage relation 2q + ln q = (VP − V)/UT of the charge-based EKV model (Enz & Vittoz, Charge-Based MOS Transistor Modeling: The EKV Model for Low-Power and RF IC Design, Wiley, 2006, from memory; the same relation as the ACM model, Cunha, Schneider & Galup-Montoro, IEEE JSSC 33(10), 1510–1519, 1998); the saturating drain voltage of EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
+  fn: (VP: Volts, VSB: Volts, VDS: Volts, Vip: Volts, Um: Volts): Ratio => (wrightOmega(((((((VP - VSB) - (VDS / 2)) - Vip)) / Um) + 0.6931471805599453)) / 2) as Ratio,
+} as const satisfies Formula;
+
+/** Reverse normalised current: IRn = qR^2 + qR */
+export const ekvReverseCurrent = {
+  id: "ekvReverseCurrent",
+  title: "Reverse normalised current",
+  expr: "qR^2 + qR",
+  tex: "i_{r} = {{q_{r}}}^{2}+{q_{r}}",
+  result: "IRn",
+  resultDim: "dimensionless",
+  vars: ["qR"],
+  dims: ["dimensionless"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
+  fn: (qR: Ratio): Ratio => (sq(qR) + qR) as Ratio,
 } as const satisfies Formula;
 
 /** Equivalent channel length with velocity saturation: Leq = L + (VDS / 2 + Vip) / Ecrit */
@@ -185,34 +213,6 @@ export const ekvEquivalentLength = {
   dims: ["length","voltage","voltage","electricField"],
   source: "EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999 (from memory)",
   fn: (L: Meters, VDS: Volts, Vip: Volts, Ecrit: VoltsPerMeter): Meters => (L + ((((VDS / 2) + Vip)) / Ecrit)) as Meters,
-} as const satisfies Formula;
-
-/** Normalised inversion charge at the source: qF = sqrt(1 / 4 + IC) - 1 / 2 */
-export const ekvForwardCharge = {
-  id: "ekvForwardCharge",
-  title: "Normalised inversion charge at the source",
-  expr: "sqrt(1 / 4 + IC) - 1 / 2",
-  tex: "q_{f} = \\sqrt{\\frac{1}{4}+{IC}}-\\frac{1}{2}",
-  result: "qF",
-  resultDim: "dimensionless",
-  vars: ["IC"],
-  dims: ["dimensionless"],
-  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
-  fn: (IC: Ratio): Ratio => (Math.sqrt(((1 / 4) + IC)) - (1 / 2)) as Ratio,
-} as const satisfies Formula;
-
-/** Normalised inversion charge at the drain end: qR = sqrt(1 / 4 + IRn) - 1 / 2 */
-export const ekvReverseCharge = {
-  id: "ekvReverseCharge",
-  title: "Normalised inversion charge at the drain end",
-  expr: "sqrt(1 / 4 + IRn) - 1 / 2",
-  tex: "q_{r} = \\sqrt{\\frac{1}{4}+{i_{r}}}-\\frac{1}{2}",
-  result: "qR",
-  resultDim: "dimensionless",
-  vars: ["IRn"],
-  dims: ["dimensionless"],
-  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
-  fn: (IRn: Ratio): Ratio => (Math.sqrt(((1 / 4) + IRn)) - (1 / 2)) as Ratio,
 } as const satisfies Formula;
 
 /** Gain factor with mobility degradation: beta = kp * W / Leq / (1 + theta * n * Um * (qF + qR) + thetaB * VSB) */
@@ -257,21 +257,21 @@ export const ekvDrainCurrent = {
   fn: (IS: Amperes, IC: Ratio, IRn: Ratio, lambda: PerVolt, VDS: Volts): Amperes => ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))) as Amperes,
 } as const satisfies Formula;
 
-/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCurrent, ekvEquivalentLength, ekvForwardCharge, ekvReverseCharge, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
+/** EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCharge, ekvForwardCurrent, ekvLongChannelSaturationVoltage, ekvSaturationVoltage, ekvLimitedDrainVoltage, ekvReverseCharge, ekvReverseCurrent, ekvEquivalentLength, ekvGainFactor, ekvSpecificCurrent, ekvDrainCurrent (inlined; plain numbers, no allocation). */
 export function ekvChannelCurrent(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
   const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
   const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
   const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
-  const IC = sq(softplus((((VP - VSB)) / ((2 * Um))))); // ekvForwardCurrent
+  const qF = (wrightOmega(((((VP - VSB)) / Um) + 0.6931471805599453)) / 2); // ekvForwardCharge
+  const IC = (sq(qF) + qF); // ekvForwardCurrent
   if (IC === 0) return 0; // a source tens of volts above the pinch-off voltage: the channel carries nothing
   const VDSSL = (Um * ((Math.sqrt(IC) - ((3 / 4) * Math.log(IC))))); // ekvLongChannelSaturationVoltage
   const VDSS = ((VDSSL / ((Math.sqrt(((1 / 4) + (VDSSL / ((Ecrit * L))))) + (1 / 2)))) + (Um * ((Math.log(((Ecrit * L) / ((2 * Um)))) - 0.6)))); // ekvSaturationVoltage
   const Vip = (Math.sqrt((sq(VDSS) + (sq(Um) / 4))) - Math.sqrt((sq((((VDS / 2) - VDSS))) + (sq(Um) / 4)))); // ekvLimitedDrainVoltage
-  const IRn = sq(softplus((((((VP - VSB) - (VDS / 2)) - Vip)) / ((2 * Um))))); // ekvReverseCurrent
+  const qR = (wrightOmega(((((((VP - VSB) - (VDS / 2)) - Vip)) / Um) + 0.6931471805599453)) / 2); // ekvReverseCharge
+  const IRn = (sq(qR) + qR); // ekvReverseCurrent
   const Leq = (L + ((((VDS / 2) + Vip)) / Ecrit)); // ekvEquivalentLength
-  const qF = (Math.sqrt(((1 / 4) + IC)) - (1 / 2)); // ekvForwardCharge
-  const qR = (Math.sqrt(((1 / 4) + IRn)) - (1 / 2)); // ekvReverseCharge
   const beta = (((kp * W) / Leq) / (((1 + (((theta * n) * Um) * ((qF + qR)))) + (thetaB * VSB)))); // ekvGainFactor
   const IS = (((2 * n) * beta) * sq(Um)); // ekvSpecificCurrent
   const ID = ((IS * ((IC - IRn))) * ((1 + (lambda * VDS)))); // ekvDrainCurrent
@@ -285,15 +285,13 @@ const ekvChannelCurrent$IC = new Float64Array(256);
 const ekvChannelCurrent$VDSSL = new Float64Array(256);
 const ekvChannelCurrent$VDSS = new Float64Array(256);
 const ekvChannelCurrent$Vip = new Float64Array(256);
-const ekvChannelCurrent$IRn = new Float64Array(256);
-const ekvChannelCurrent$Leq = new Float64Array(256);
 const ekvChannelCurrent$n = new Float64Array(256);
 const ekvChannelCurrent$qF = new Float64Array(256);
 
 /**
  * EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), at `count` points: VGS, VDS, VSB per point from arrays, the result into out[0..count).
- * The steps of ekvChannelCurrent in 10 loops over blocks of 256 points (a new loop at each step that calls
- * sqrt, exp, log or softplus, so the processor overlaps independent points), intermediates that cross loops in module
+ * The steps of ekvChannelCurrent in 8 loops over blocks of 256 points (a new loop at each step that calls
+ * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), intermediates that cross loops in module
  * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ekvChannelCurrent at every point, a masked
  * result where it returns early.
  */
@@ -307,8 +305,6 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
   const $VDSSL = ekvChannelCurrent$VDSSL;
   const $VDSS = ekvChannelCurrent$VDSS;
   const $Vip = ekvChannelCurrent$Vip;
-  const $IRn = ekvChannelCurrent$IRn;
-  const $Leq = ekvChannelCurrent$Leq;
   const $n = ekvChannelCurrent$n;
   const $qF = ekvChannelCurrent$qF;
   const $c0 = (gamma * Math.sqrt(phi));
@@ -335,7 +331,9 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
       $Um[$k] = Um;
     }
     for (let $k = 0; $k < $m; $k++) {
-      const IC = sq(softplus(((($VP[$k]! - VSB[$o + $k]!)) / ((2 * $Um[$k]!))))); // ekvForwardCurrent
+      const qF = (wrightOmega((((($VP[$k]! - VSB[$o + $k]!)) / $Um[$k]!) + 0.6931471805599453)) / 2); // ekvForwardCharge
+      $qF[$k] = qF;
+      const IC = (sq(qF) + qF); // ekvForwardCurrent
       $IC[$k] = IC;
     }
     for (let $k = 0; $k < $m; $k++) {
@@ -351,31 +349,24 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
       $Vip[$k] = Vip;
     }
     for (let $k = 0; $k < $m; $k++) {
-      const IRn = sq(softplus(((((($VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - $Vip[$k]!)) / ((2 * $Um[$k]!))))); // ekvReverseCurrent
-      $IRn[$k] = IRn;
+      const qR = (wrightOmega((((((($VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - $Vip[$k]!)) / $Um[$k]!) + 0.6931471805599453)) / 2); // ekvReverseCharge
+      const IRn = (sq(qR) + qR); // ekvReverseCurrent
       const Leq = (L + ((((VDS[$o + $k]! / 2) + $Vip[$k]!)) / Ecrit)); // ekvEquivalentLength
-      $Leq[$k] = Leq;
-    }
-    for (let $k = 0; $k < $m; $k++) {
-      const qF = (Math.sqrt(((1 / 4) + $IC[$k]!)) - (1 / 2)); // ekvForwardCharge
-      $qF[$k] = qF;
-    }
-    for (let $k = 0; $k < $m; $k++) {
-      const qR = (Math.sqrt(((1 / 4) + $IRn[$k]!)) - (1 / 2)); // ekvReverseCharge
-      const beta = (($c6 / $Leq[$k]!) / (((1 + (((theta * $n[$k]!) * $Um[$k]!) * (($qF[$k]! + qR)))) + (thetaB * VSB[$o + $k]!)))); // ekvGainFactor
+      const beta = (($c6 / Leq) / (((1 + (((theta * $n[$k]!) * $Um[$k]!) * (($qF[$k]! + qR)))) + (thetaB * VSB[$o + $k]!)))); // ekvGainFactor
       const IS = (((2 * $n[$k]!) * beta) * sq($Um[$k]!)); // ekvSpecificCurrent
-      const ID = ((IS * (($IC[$k]! - $IRn[$k]!))) * ((1 + (lambda * VDS[$o + $k]!)))); // ekvDrainCurrent
+      const ID = ((IS * (($IC[$k]! - IRn))) * ((1 + (lambda * VDS[$o + $k]!)))); // ekvDrainCurrent
       out[$o + $k] = $IC[$k]! === 0 ? 0 : ID;
     }
   }
 }
 
-/** EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity, composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCurrent (inlined; plain numbers, no allocation). */
+/** EKV inversion coefficient IF/IS for VDS ≥ 0 in device polarity, composed from ekvEffectiveGate, ekvPinchOffVoltage, ekvPinchOffFloor, ekvSlopeFactor, ekvNormalisingVoltage, ekvForwardCharge, ekvForwardCurrent (inlined; plain numbers, no allocation). */
 export function ekvInversionCoefficient(Vt0: number, gamma: number, phi: number, sigma: number, cit: number, UT: number, VGS: number, VDS: number, VSB: number): number {
   const VGp = (((((VGS + VSB) - Vt0) + (sigma * VDS)) + phi) + (gamma * Math.sqrt(phi))); // ekvEffectiveGate
   const VP = VGp > 0 ? ((VGp - phi) - (gamma * ((Math.sqrt((VGp + (sq(gamma) / 4))) - (gamma / 2))))) : (-phi); // ekvPinchOffVoltage / ekvPinchOffFloor
   const n = (1 + (gamma / ((2 * Math.sqrt(((VP + phi) + (4 * UT))))))); // ekvSlopeFactor
   const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
-  const IC = sq(softplus((((VP - VSB)) / ((2 * Um))))); // ekvForwardCurrent
+  const qF = (wrightOmega(((((VP - VSB)) / Um) + 0.6931471805599453)) / 2); // ekvForwardCharge
+  const IC = (sq(qF) + qF); // ekvForwardCurrent
   return IC;
 }

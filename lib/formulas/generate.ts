@@ -21,7 +21,7 @@
  * their order are the point function's, so the results are equal point by point.
  *
  * Functions: mathjs's sqrt exp log log1p abs max min atan, and the formula language's own
- * (`functions.ts`: softplus), imported by the generated file from their one implementation.
+ * (`functions.ts`: softplus, wrightOmega), imported by the generated file from their one implementation.
  *
  * mathjs is used here, at build time, so the generated code needs none.
  */
@@ -66,7 +66,7 @@ const typeOfDim: Record<Dimension, string> = {
   fraction: "Fraction",
 };
 
-const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", atan: "Math.atan", exp: "Math.exp", log: "Math.log", log1p: "Math.log1p", abs: "Math.abs", max: "Math.max", min: "Math.min" };
+const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", atan: "Math.atan", exp: "Math.exp", log: "Math.log", log1p: "Math.log1p", abs: "Math.abs", max: "Math.max", min: "Math.min", wrightOmega: "wrightOmega" };
 
 interface Catalog {
   file: string;
@@ -153,7 +153,13 @@ function toJs(node: MathNode, where: string, condition = false, ctx?: JsContext)
       const name = n.fn.name as string;
       const fn = mathFunctions[name] ?? (formulaFunctions[name] ? name : undefined);
       if (!fn) throw new Error(`${where}: function ${n.fn.name} not supported`);
-      return `${fn}(${(n.args as MathNode[]).map((a) => toJs(a, where, false, ctx)).join(", ")})`;
+      // A Math function of constants (ln 2) is computed here once, not on every call.
+      const args = n.args as (MathNode & { value?: unknown })[];
+      if (fn.startsWith("Math.") && args.every((a) => a.type === "ConstantNode")) {
+        const value = (Math as unknown as Record<string, (...x: number[]) => number>)[fn.slice(5)]!(...args.map((a) => Number(a.value)));
+        if (Number.isFinite(value)) return `${value}`;
+      }
+      return `${fn}(${args.map((a) => toJs(a, where, false, ctx)).join(", ")})`;
     }
     default:
       throw new Error(`${where}: expression node ${n.type} not supported`);
@@ -342,7 +348,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     `/**`,
     ` * ${spec.title}, at \`count\` points: ${points.join(", ")} per point from arrays, the result into out[0..count).`,
     ` * The steps of ${id} in ${loops.length} loops over blocks of ${blockSize} points (a new loop at each step that calls`,
-    ` * sqrt, exp, log or softplus, so the processor overlaps independent points), intermediates that cross loops in module`,
+    ` * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), intermediates that cross loops in module`,
     ` * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ${id} at every point, a masked`,
     ` * result where it returns early.`,
     ` */`,

@@ -49,11 +49,27 @@ export interface Reevaluation {
   readonly problem?: string;
 }
 
+/**
+ * The Wright ω function (ω + ln ω = y) for the catalog's `wrightOmega`, which mathjs lacks: by bisection on
+ * u = ln ω (u + eᵘ = y rises with u), independent of lib/numeric/wright-omega.ts; 0 where eʸ underflows.
+ */
+export function wrightOmegaByBisection(y: number): number {
+  if (Math.exp(y) === 0) return 0;
+  let lo = Math.min(y, 0) - 1;
+  let hi = Math.max(y, 1) + 1;
+  for (let k = 0; k < 200; k++) {
+    const m = (lo + hi) / 2;
+    if (m + Math.exp(m) < y) lo = m;
+    else hi = m;
+  }
+  return Math.exp((lo + hi) / 2);
+}
+
 const agree = (a: number, b: number, rel: number) => a === b || Math.abs(a - b) <= rel * Math.max(Math.abs(a), Math.abs(b));
 
 /** Evaluate `expr` with unit-carrying inputs and express it in the unit of `resultDim`. */
 export function evaluateWithUnits(expr: string, inputs: ReadonlyArray<{ name: string; value: number; dim: Dimension }>, resultDim: Dimension): Reevaluation {
-  const scope: Record<string, unknown> = {};
+  const scope: Record<string, unknown> = { wrightOmega: wrightOmegaByBisection };
   for (const i of inputs) scope[i.name] = asUnit(i.value, i.dim);
   let out: unknown;
   try {

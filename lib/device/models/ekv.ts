@@ -2,8 +2,9 @@
  * The EKV all-region model (equations and sources: lib/formulas/ekv.catalog.ts).
  * One expression from weak through strong inversion, continuous in ID, gm, gds
  * and gm/ID; the inversion coefficient IC = IF/IS comes with it.
- * Closed form, no allocation; the card's temperature sets UT = kT/q. `ekv.currents` evaluates
- * many bias points at once through the generated block evaluator (≈ 3× the points per second).
+ * A fixed sequence of operations (the charge relation through the Wright ω function, lib/numeric/wright-omega.ts),
+ * no iteration to convergence, no allocation; the card's temperature sets UT = kT/q. `ekv.currents` evaluates
+ * many bias points at once through the generated block evaluator (about 3× the points per second).
  */
 import {
   ekvChannelCurrent,
@@ -73,7 +74,7 @@ const forwardBlock = (p: Float64Array, vgs: Float64Array, vds: Float64Array, vsb
 export const ekv: DeviceModel = {
   id: "ekv",
   title: "EKV all-region model",
-  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995; EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999",
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995; EPFL-EKV 2.6, Bucher et al., EPFL technical report, 1999; charge–voltage relation of Enz & Vittoz, Charge-Based MOS Transistor Modeling, Wiley, 2006",
   parameters: ekvParameters,
   size: ekvParameters.length + 3,
   current: reversible(forward),
@@ -109,7 +110,7 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
     const vt = b > -phi ? ekvThreshold.fn(vt0, gamma, phi, vsb, sigma, vds) : NaN;
     const vp = ekvPinchOffAt(vt0, gamma, phi, sigma, g, d, b);
     const um = ekvNormalisingVoltage.fn(u, cit, ekvSlopeFactor.fn(gamma, vp, phi, u));
-    const ic = ekvForwardCurrent.fn(vp, vsb, um);
+    const ic = ekvForwardCurrent.fn(ekvForwardCharge.fn(vp, vsb, um));
     const vdsat = ekvDrainSaturationVoltage.fn(um, ic, e, l);
     const id = ekvChannelCurrent(c.kp, w, l, vt0, gamma, phi, lambda, theta, thetaB, e, sigma, cit, u, g, d, b);
     return { region: d < vdsat ? "triode" : "saturation", id, vt, vov: g - vt, vdsat, ic };
@@ -125,7 +126,8 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   const vp = vgp > 0 ? rec.calc(ekvPinchOffVoltage, [vgp, phi, gamma]) : rec.calc(ekvPinchOffFloor, [phi], "VG' ≤ 0: no channel charge");
   const n = rec.calc(ekvSlopeFactor, [gamma, vp, phi, u]);
   const um = c.cit === undefined ? ekvNormalisingVoltage.fn(u, cit, n) : rec.calc(ekvNormalisingVoltage, [u, cit, n], "interface traps steepen nothing above threshold: Um cancels there");
-  const ic = rec.calc(ekvForwardCurrent, [vp, vsb, um], "the inversion coefficient");
+  const qf = rec.calc(ekvForwardCharge, [vp, vsb, um]);
+  const ic = rec.calc(ekvForwardCurrent, [qf], "the inversion coefficient");
   const vdsat = rec.calc(ekvDrainSaturationVoltage, [um, ic, e, l]);
   const region = d < vdsat ? "triode" : "saturation";
   rec.note(`Region: ${region}`, `${s < 0 ? "VSD" : "VDS"} = ${+d.toPrecision(4)} V ${d < vdsat ? "<" : "≥"} VDsat = ${+vdsat.toPrecision(4)} V; ${ic < 0.1 ? "weak" : ic > 10 ? "strong" : "moderate"} inversion (IC = ${+ic.toPrecision(3)}).`);
@@ -135,10 +137,9 @@ export function ekvBias(dev: Device, g: number, d: number, b: number, rec?: Deri
   }
   const vdss = rec.calc(ekvSaturationVoltage, [rec.calc(ekvLongChannelSaturationVoltage, [um, ic]), e, l, um]);
   const vip = rec.calc(ekvLimitedDrainVoltage, [vdss, um, vds]);
-  const ir = rec.calc(ekvReverseCurrent, [vp, vsb, vds, vip, um]);
+  const qr = rec.calc(ekvReverseCharge, [vp, vsb, vds, vip, um]);
+  const ir = rec.calc(ekvReverseCurrent, [qr]);
   const leq = rec.calc(ekvEquivalentLength, [l, vds, vip, e]);
-  const qf = rec.calc(ekvForwardCharge, [ic]);
-  const qr = rec.calc(ekvReverseCharge, [ir]);
   const beta = rec.calc(ekvGainFactor, [c.kp, w, leq, theta, n, um, qf, qr, thetaB, vsb]);
   const is = rec.calc(ekvSpecificCurrent, [n, beta, um]);
   const id = rec.calc(ekvDrainCurrent, [is, ic, ir, lambda, vds]);
