@@ -1,0 +1,155 @@
+#!/usr/bin/env node
+/**
+ * `npm run build`: the one build step. Two stages:
+ *
+ * 1. TypeScript (`tsc -p tsconfig.json`) type-checks `lib/` and writes the
+ *    declarations into `dist/` (the `.d.ts` layout the package's "types" and
+ *    tslab's TypeScript 5.0 read, unchanged) and one `.js` per module into
+ *    `.build/modules/` (scratch, gitignored).
+ * 2. esbuild links those modules into `dist/`: one file per entry point at the
+ *    path the package names (package.json "exports" and "bin", plus the few
+ *    files run by path, `entryExtras` below), with the code two or more entry
+ *    points share in `dist/chunks/`. npm packages stay external (loaded from
+ *    node_modules as before, lazily where the source says so).
+ *
+ * Why: Node 20's ES module loader costs about a millisecond per module (resolve,
+ * stat, read, link), so the numeric core's ~100 modules made `import "pinchoff"`
+ * cost more than its code; linked, the core is a handful of files (see the
+ * "Performance" table in README.md and the `core.import` bench case).
+ * Nothing is minified: stack traces keep the source's names and layout.
+ *
+ * Files located from a module (`import.meta.url`) go through
+ * `lib/io/package-root.ts`, which finds the package folder from wherever the
+ * code was linked to. Failure: tsc's type errors or esbuild's errors, printed,
+ * exit status 1, and `dist/` left without a stale mix (it is emptied first).
+ */
+import { spawnSync } from "node:child_process";
+import { existsSync, readFileSync, rmSync } from "node:fs";
+import { dirname, join, relative, resolve, sep } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), "../..");
+const dist = join(root, "dist");
+const modules = join(root, ".build", "modules");
+/**
+ * The core's internal entry points, which the other entry points load by the private specifiers
+ * of package.json "imports": the part of the core that `graphOf` reaches, then the rest. A module
+ * belongs to the first part that reaches it. "pinchoff/units" has an import-time target of its
+ * own, so it loads its few core modules without the rest of the core.
+ */
+const coreParts = [
+  { specifier: "#core-base", file: "chunks/core-base.js", graphOf: "units/index.js" },
+  { specifier: "#core", file: "chunks/core.js" },
+];
+
+/** Built files run or imported by path rather than through the package's exports. */
+const entryExtras = [
+  "cli/demo.js", // `npm run demo`
+  "runner/run.js", // the notebook-run bench case times the runner itself
+];
+
+/** The entry points: every `dist/…js` file package.json "exports" or "bin" names, plus `entryExtras`. */
+export function entryPoints(pkg) {
+  const files = new Set(entryExtras);
+  const add = (target) => {
+    if (typeof target === "string") {
+      if (target.startsWith("./dist/") && target.endsWith(".js")) files.add(target.slice("./dist/".length));
+    } else if (target && typeof target === "object") for (const v of Object.values(target)) add(v);
+  };
+  add(pkg.exports);
+  add(pkg.bin);
+  return [...files].sort();
+}
+
+function run(cmd, args) {
+  const r = spawnSync(cmd, args, { cwd: root, stdio: "inherit" });
+  if (r.error) throw r.error;
+  if (r.status !== 0) throw new Error(`${relative(root, args[0] ?? cmd)} exited with status ${r.status}`);
+}
+
+/** The modules an entry point's import graph holds (within `.build/modules/`), as esbuild sees it. */
+async function graphOf(esbuild, entry) {
+  const r = await esbuild.build({ absWorkingDir: root, entryPoints: [join(modules, entry)], bundle: true, write: false, metafile: true, format: "esm", platform: "node", packages: "external", logLevel: "silent" });
+  return Object.keys(r.metafile.inputs).map((p) => resolve(root, p)).filter((p) => p.startsWith(modules + sep)).sort();
+}
+
+/** The run-time export names of each core module (importing the modules tsc just wrote). */
+async function exportNames(files) {
+  const names = new Map();
+  for (const f of files) names.set(f, Object.keys(await import(pathToFileURL(f).href)).sort());
+  return names;
+}
+
+/** One core module's exports under names unique across the core: module number, `$`, name. */
+const linkName = (i, name) => `m${i}$${name}`;
+
+const common = { absWorkingDir: root, bundle: true, format: "esm", platform: "node", target: "node20", packages: "external", charset: "utf8", logLevel: "warning" };
+
+export async function build() {
+  const pkg = JSON.parse(readFileSync(join(root, "package.json"), "utf8"));
+  const entries = entryPoints(pkg);
+  for (const part of coreParts)
+    if (pkg.imports?.[part.specifier] !== `./dist/${part.file}`) throw new Error(`package.json "imports" must map "${part.specifier}" to "./dist/${part.file}"`);
+  rmSync(dist, { recursive: true, force: true });
+  rmSync(modules, { recursive: true, force: true });
+  run(process.execPath, [join(root, "node_modules/typescript/bin/tsc"), "-p", "tsconfig.json", "--outDir", modules, "--declarationDir", dist]);
+  for (const e of entries) if (!existsSync(join(modules, e))) throw new Error(`entry point dist/${e} has no module lib/${e.replace(/\.js$/, ".ts")}`);
+  const esbuild = await import("esbuild");
+
+  // The core's modules, numbered, each with its part and its run-time export names.
+  const core = await graphOf(esbuild, "index.js");
+  const number = new Map(core.map((f, i) => [f, i]));
+  const partOf = new Map();
+  for (const part of coreParts) {
+    const reach = part.graphOf ? new Set(await graphOf(esbuild, part.graphOf)) : undefined;
+    for (const f of core) if (!partOf.has(f) && (!reach || reach.has(f))) partOf.set(f, part);
+  }
+  const names = await exportNames(core);
+  const reexports = (f) => (names.get(f).length ? `export { ${names.get(f).map((n) => `${n} as ${linkName(number.get(f), n)}`).join(", ")} } from ${JSON.stringify(f)};` : `import ${JSON.stringify(f)};`);
+  // Each part's entry re-exports its modules; each also imports the earlier parts' modules, so every
+  // module of a part is reached by the same entries and esbuild puts each part in one chunk.
+  const partSource = (part) => core.map((f) => (partOf.get(f) === part ? reexports(f) : coreParts.indexOf(partOf.get(f)) < coreParts.indexOf(part) ? `import ${JSON.stringify(f)};` : "")).filter(Boolean).join("\n");
+
+  // Pass 1: the core, its public entry beside the internal ones.
+  await esbuild.build({
+    ...common,
+    entryPoints: [{ in: join(modules, "index.js"), out: "index" }, ...coreParts.map((p) => ({ in: `core-part:${p.specifier}`, out: p.file.replace(/\.js$/, "") }))],
+    outdir: dist,
+    splitting: true,
+    chunkNames: "chunks/core-[hash]",
+    plugins: [{ name: "core-parts", setup(b) {
+      b.onResolve({ filter: /^core-part:/ }, (a) => ({ path: a.path.slice("core-part:".length), namespace: "pinchoff-core-part" }));
+      b.onLoad({ filter: /.*/, namespace: "pinchoff-core-part" }, (a) => ({ contents: partSource(coreParts.find((p) => p.specifier === a.path)), resolveDir: modules, loader: "js" }));
+    } }],
+  });
+
+  // Pass 2: the other entry points. An import of a core module becomes an import of its exports
+  // from the core part's internal entry, so the whole package runs one instance of every core
+  // module (one Derivation class, one InputError, one registry of validated devices).
+  await esbuild.build({
+    ...common,
+    entryPoints: entries.filter((e) => e !== "index.js").map((e) => ({ in: join(modules, e), out: e.replace(/\.js$/, "") })),
+    outdir: dist,
+    splitting: true,
+    chunkNames: "chunks/[name]-[hash]",
+    external: coreParts.map((p) => p.specifier),
+    plugins: [{ name: "core-link", setup(b) {
+      b.onResolve({ filter: /^\.\.?\// }, (a) => {
+        const f = resolve(a.resolveDir, a.path);
+        return number.has(f) ? { path: f, namespace: "pinchoff-core" } : undefined;
+      });
+      b.onLoad({ filter: /.*/, namespace: "pinchoff-core" }, (a) => ({
+        contents: `export { ${names.get(a.path).map((n) => `${linkName(number.get(a.path), n)} as ${n}`).join(", ")} } from "${partOf.get(a.path).specifier}";`,
+        loader: "js",
+        resolveDir: modules,
+      }));
+    } }],
+  });
+}
+
+if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+  build().catch((e) => {
+    console.error(`[pinchoff build] ${e.message}`);
+    process.exit(1);
+  });
+}
