@@ -5,7 +5,7 @@
  * 1. TypeScript (`tsc -p tsconfig.json`) type-checks `lib/` and writes the
  *    declarations into `dist/` (the `.d.ts` layout the package's "types" and
  *    tslab's TypeScript 5.0 read, unchanged) and one `.js` per module into
- *    `.build/modules/` (scratch, gitignored).
+ *    a scratch folder `.build/<pid>/modules/` (gitignored).
  * 2. esbuild links those modules into `dist/`: one file per entry point at the
  *    path the package names (package.json "exports" and "bin", plus the few
  *    files run by path, `entryExtras` below), with the code two or more entry
@@ -21,16 +21,21 @@
  * Files located from a module (`import.meta.url`) go through
  * `lib/io/package-root.ts`, which finds the package folder from wherever the
  * code was linked to. Failure: tsc's type errors or esbuild's errors, printed,
- * exit status 1, and `dist/` left without a stale mix (it is emptied first).
+ * exit status 1, and the previous `dist/` left as it was: the new one is built
+ * beside it and moved into place when complete (so a build started by a test
+ * while another test reads `dist/` swaps the folder instead of emptying it).
  */
 import { spawnSync } from "node:child_process";
-import { existsSync, readFileSync, rmSync } from "node:fs";
+import { existsSync, readFileSync, renameSync, rmSync } from "node:fs";
 import { dirname, join, relative, resolve, sep } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), "../..");
 const dist = join(root, "dist");
-const modules = join(root, ".build", "modules");
+/** This build's scratch folder: tsc's modules and the new dist/, moved into place when complete. */
+const scratch = join(root, ".build", String(process.pid));
+const modules = join(scratch, "modules");
+const staged = join(scratch, "dist");
 /**
  * The core's internal entry points, which the other entry points load by the private specifiers
  * of package.json "imports": the part of the core that `graphOf` reaches, then the rest. A module
@@ -90,9 +95,31 @@ export async function build() {
   const entries = entryPoints(pkg);
   for (const part of coreParts)
     if (pkg.imports?.[part.specifier] !== `./dist/${part.file}`) throw new Error(`package.json "imports" must map "${part.specifier}" to "./dist/${part.file}"`);
-  rmSync(dist, { recursive: true, force: true });
-  rmSync(modules, { recursive: true, force: true });
-  run(process.execPath, [join(root, "node_modules/typescript/bin/tsc"), "-p", "tsconfig.json", "--outDir", modules, "--declarationDir", dist]);
+  rmSync(scratch, { recursive: true, force: true });
+  try {
+    await link(entries);
+    replaceDist();
+  } finally {
+    rmSync(scratch, { recursive: true, force: true });
+  }
+}
+
+/** Move the staged dist/ into place; the old one goes to the scratch folder (removed after). */
+function replaceDist() {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      if (existsSync(dist)) renameSync(dist, join(scratch, `old-dist-${attempt}`));
+      renameSync(staged, dist);
+      return;
+    } catch (e) {
+      // Another build swapped its dist/ in between: try again (the newest complete build wins).
+      if (attempt >= 5 || (e.code !== "ENOTEMPTY" && e.code !== "EEXIST" && e.code !== "ENOENT")) throw e;
+    }
+  }
+}
+
+async function link(entries) {
+  run(process.execPath, [join(root, "node_modules/typescript/bin/tsc"), "-p", "tsconfig.json", "--outDir", modules, "--declarationDir", staged]);
   for (const e of entries) if (!existsSync(join(modules, e))) throw new Error(`entry point dist/${e} has no module lib/${e.replace(/\.js$/, ".ts")}`);
   const esbuild = await import("esbuild");
 
@@ -114,7 +141,7 @@ export async function build() {
   await esbuild.build({
     ...common,
     entryPoints: [{ in: join(modules, "index.js"), out: "index" }, ...coreParts.map((p) => ({ in: `core-part:${p.specifier}`, out: p.file.replace(/\.js$/, "") }))],
-    outdir: dist,
+    outdir: staged,
     splitting: true,
     chunkNames: "chunks/core-[hash]",
     plugins: [{ name: "core-parts", setup(b) {
@@ -129,7 +156,7 @@ export async function build() {
   await esbuild.build({
     ...common,
     entryPoints: entries.filter((e) => e !== "index.js").map((e) => ({ in: join(modules, e), out: e.replace(/\.js$/, "") })),
-    outdir: dist,
+    outdir: staged,
     splitting: true,
     chunkNames: "chunks/[name]-[hash]",
     external: coreParts.map((p) => p.specifier),
