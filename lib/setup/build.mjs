@@ -16,7 +16,10 @@
  * stat, read, link), so the numeric core's ~100 modules made `import "pinchoff"`
  * cost more than its code; linked, the core is a handful of files (see the
  * "Performance" table in README.md and the `core.import` bench case).
- * Nothing is minified: stack traces keep the source's names and layout.
+ * Nothing is minified: stack traces keep the source's names and layout. Characters
+ * outside ASCII are written as escapes (esbuild's default), so V8 holds each
+ * file as one-byte text: the core's import took about 15 % less CPU than with
+ * the characters kept (measured, Node 20.20.2, interleaved runs).
  *
  * Files located from a module (`import.meta.url`) go through
  * `lib/io/package-root.ts`, which finds the package folder from wherever the
@@ -88,7 +91,7 @@ async function exportNames(files) {
 /** One core module's exports under names unique across the core: module number, `$`, name. */
 const linkName = (i, name) => `m${i}$${name}`;
 
-const common = { absWorkingDir: root, bundle: true, format: "esm", platform: "node", target: "node20", packages: "external", charset: "utf8", logLevel: "warning" };
+const common = { absWorkingDir: root, bundle: true, format: "esm", platform: "node", target: "node20", packages: "external", logLevel: "warning" };
 
 export async function build() {
   const pkg = JSON.parse(readFileSync(join(root, "package.json"), "utf8"));
