@@ -75,10 +75,10 @@ function run(cmd, args) {
   if (r.status !== 0) throw new Error(`${relative(root, args[0] ?? cmd)} exited with status ${r.status}`);
 }
 
-/** The modules an entry point's import graph holds (within `.build/modules/`), as esbuild sees it. */
+/** The modules an entry point's import graph holds (within the scratch modules folder), as esbuild sees it. */
 async function graphOf(esbuild, entry) {
-  const r = await esbuild.build({ absWorkingDir: root, entryPoints: [join(modules, entry)], bundle: true, write: false, metafile: true, format: "esm", platform: "node", packages: "external", logLevel: "silent" });
-  return Object.keys(r.metafile.inputs).map((p) => resolve(root, p)).filter((p) => p.startsWith(modules + sep)).sort();
+  const r = await esbuild.build({ absWorkingDir: modules, entryPoints: [join(modules, entry)], bundle: true, write: false, metafile: true, format: "esm", platform: "node", packages: "external", logLevel: "silent" });
+  return Object.keys(r.metafile.inputs).map((p) => resolve(modules, p)).filter((p) => p.startsWith(modules + sep)).sort();
 }
 
 /** The run-time export names of each core module (importing the modules tsc just wrote). */
@@ -91,7 +91,8 @@ async function exportNames(files) {
 /** One core module's exports under names unique across the core: module number, `$`, name. */
 const linkName = (i, name) => `m${i}$${name}`;
 
-const common = { absWorkingDir: root, bundle: true, format: "esm", platform: "node", target: "node20", packages: "external", logLevel: "warning" };
+// Working folder: the modules, so the paths in the output's comments (`// device/card.js`) and the chunk hashes are the same in every build.
+const common = { absWorkingDir: modules, bundle: true, format: "esm", platform: "node", target: "node20", packages: "external", logLevel: "warning" };
 
 export async function build() {
   const pkg = JSON.parse(readFileSync(join(root, "package.json"), "utf8"));
