@@ -167,13 +167,12 @@ async function link(entries) {
     plugins: [{ name: "core-link", setup(b) {
       b.onResolve({ filter: /^\.\.?\// }, (a) => {
         const f = resolve(a.resolveDir, a.path);
-        return number.has(f) ? { path: f, namespace: "pinchoff-core" } : undefined;
+        return number.has(f) ? { path: relative(modules, f), namespace: "pinchoff-core" } : undefined;
       });
-      b.onLoad({ filter: /.*/, namespace: "pinchoff-core" }, (a) => ({
-        contents: `export { ${names.get(a.path).map((n) => `${linkName(number.get(a.path), n)} as ${n}`).join(", ")} } from "${partOf.get(a.path).specifier}";`,
-        loader: "js",
-        resolveDir: modules,
-      }));
+      b.onLoad({ filter: /.*/, namespace: "pinchoff-core" }, (a) => {
+        const f = join(modules, a.path);
+        return { contents: `export { ${names.get(f).map((n) => `${linkName(number.get(f), n)} as ${n}`).join(", ")} } from "${partOf.get(f).specifier}";`, loader: "js", resolveDir: modules };
+      });
     } }],
   });
 }
