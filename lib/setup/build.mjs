@@ -41,12 +41,13 @@ const modules = join(scratch, "modules");
 const staged = join(scratch, "dist");
 /**
  * The core's internal entry points, which the other entry points load by the private specifiers
- * of package.json "imports": the part of the core that `graphOf` reaches, then the rest. A module
- * belongs to the first part that reaches it. "pinchoff/units" has an import-time target of its
- * own, so it loads its few core modules without the rest of the core.
+ * of package.json "imports": the parts of the core that `graphOf` reaches, then the rest. A module
+ * belongs to the first part that reaches it. "pinchoff/units" (an import-time target of its own)
+ * and "pinchoff/fit" need a small share of the core, so they load it without the rest.
  */
 const coreParts = [
   { specifier: "#core-base", file: "chunks/core-base.js", graphOf: "units/index.js" },
+  { specifier: "#core-fit", file: "chunks/core-fit.js", graphOf: "fit/index.js" },
   { specifier: "#core", file: "chunks/core.js" },
 ];
 
