@@ -93,7 +93,7 @@ describe("built entry points", () => {
     const r = spawnSync(process.execPath, ["--import", `data:text/javascript,${encodeURIComponent(register)}`, "--input-type=module", "-e", `await import(${JSON.stringify(pathToFileURL(join(root, "dist/index.js")).href)});`], { cwd: root, encoding: "utf8" });
     expect(r.status, r.stderr).toBe(0);
     const loaded = r.stderr.split("\n").filter((l) => l.startsWith("LOADED ")).map((l) => l.slice("LOADED ".length));
-    const files = loaded.filter((u) => u.startsWith("file:"));
+    const files = [...new Set(loaded.filter((u) => u.startsWith("file:")))]; // a file imported twice resolves twice
     expect(files[0]).toBe(pathToFileURL(join(root, "dist/index.js")).href);
     expect(files.length).toBeLessThanOrEqual(4);
     expect(loaded).not.toContain("node:crypto");
