@@ -12,10 +12,12 @@
  *    points share in `dist/chunks/`. npm packages stay external (loaded from
  *    node_modules as before, lazily where the source says so).
  *
- * Why: Node 20's ES module loader costs about a millisecond per module (resolve,
- * stat, read, link), so the numeric core's ~100 modules made `import "pinchoff"`
- * cost more than its code; linked, the core is a handful of files (see the
- * "Performance" table in README.md and the `core.import` bench case).
+ * Why: Node 20's ES module loader costs half a millisecond to a millisecond per
+ * module file (resolve, stat, read, link), so the numeric core's ~100 modules made
+ * `import "pinchoff"` cost more than its code; linked, the core is four files
+ * (see the "Performance" table in README.md and the `core.import` bench case).
+ * Pass 1 links the core; pass 2 the other entry points, which reach core modules
+ * through the core's internal entries (`coreParts`), never through a copy.
  * Nothing is minified: stack traces keep the source's names and layout. Characters
  * outside ASCII are written as escapes (esbuild's default), so V8 holds each
  * file as one-byte text: the core's import took about 15 % less CPU than with
