@@ -9,7 +9,7 @@ import { join, relative } from "node:path";
 import { fileURLToPath } from "node:url";
 import { PinchoffError } from "../errors.js";
 import { defineCommand, type CommandSpec } from "./args.js";
-import { packageRoot } from "../runner/paths.js";
+import { packageRoot } from "../io/package-root.js";
 import { interruptOnSignals } from "../runner/interrupt.js";
 import { RunInterrupted, runNotebook } from "../runner/run.js";
 import { summarize } from "../runner/summary.js";
@@ -33,7 +33,7 @@ in the package folder, prints the check summary and the report's path.`,
 
 export const main = defineCommand(command, async () => {
   const t = demoTemplate();
-  const outDir = join(packageRoot, "out", "demo");
+  const outDir = join(packageRoot(), "out", "demo");
   console.log(`demo: running template ${t.name} (${t.description})`);
   const stop = interruptOnSignals((x) => console.error(`demo: ${x}`));
   try {

@@ -17,7 +17,7 @@
  */
 import * as nodeFs from "node:fs";
 import { basename, dirname, join, resolve, sep } from "node:path";
-import { randomBytes } from "node:crypto";
+import { nodeCrypto } from "./lazy-builtins.js";
 import { PinchoffError } from "../errors.js";
 
 /** The file system calls the writer uses; node:fs by default. */
@@ -92,7 +92,7 @@ function rmQuiet(fs: FileSystemSeam, p: string): void {
   }
 }
 
-const tempName = (path: string) => join(dirname(path), `.${basename(path)}.${process.pid}.${randomBytes(4).toString("hex")}.tmp`);
+const tempName = (path: string) => join(dirname(path), `.${basename(path)}.${process.pid}.${nodeCrypto().randomBytes(4).toString("hex")}.tmp`);
 
 /**
  * Write every file completely and durably under a temporary name, then put
@@ -170,7 +170,7 @@ export function prepareOutputDir(dir: string, hint = "choose another with --out"
   try {
     if (nodeFs.existsSync(dir) && !nodeFs.statSync(dir).isDirectory()) throw new PinchoffError("io", "the output path exists and is not a folder", dir);
     created = nodeFs.mkdirSync(dir, { recursive: true });
-    const probe = join(dir, `.pinchoff-probe-${process.pid}-${randomBytes(4).toString("hex")}`);
+    const probe = join(dir, `.pinchoff-probe-${process.pid}-${nodeCrypto().randomBytes(4).toString("hex")}`);
     nodeFs.closeSync(nodeFs.openSync(probe, "wx"));
     nodeFs.unlinkSync(probe);
     return created;

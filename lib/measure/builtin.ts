@@ -3,12 +3,12 @@
  * (GF180MCU 3.3 V devices; LICENSE and SOURCE.md beside them): the default
  * measurement file of the device-characterisation template and the checks.
  */
-import { dirname, resolve } from "node:path";
-import { fileURLToPath } from "node:url";
+import { join, resolve } from "node:path";
+import { packageRoot } from "../io/package-root.js";
 import { InputError } from "../errors.js";
 
 /** The folder of the shipped open-process data. */
-export const builtinDataFolder = (): string => resolve(dirname(fileURLToPath(import.meta.url)), "../../data/pdk180");
+export const builtinDataFolder = (): string => join(packageRoot(), "data", "pdk180");
 
 /** The shipped measured sweeps of the open process's 3.3 V NMOS or PMOS (long layout; the PMOS file records |ID|). */
 export function builtinMeasurementFile(polarity: "nmos" | "pmos"): string {

@@ -20,13 +20,13 @@
  * library, section or device, timeout); a grid outside the process's L range or
  * supply maximum is an `InputError`.
  */
-import { createHash } from "node:crypto";
 import { mkdirSync, readFileSync, renameSync, writeFileSync } from "node:fs";
 import { availableParallelism, homedir } from "node:os";
 import { join } from "node:path";
 import { InputError } from "../errors.js";
 import type { Meters } from "../quantity.js";
 import { canonicalJson } from "../record/fingerprint.js";
+import { nodeCrypto } from "../io/lazy-builtins.js";
 import { element, includeLine, libLine, spiceNumber, writeDeck } from "../spice/deck.js";
 import { column } from "../spice/raw.js";
 import { runDeck } from "../spice/run.js";
@@ -128,7 +128,7 @@ function checkGrid(p: ProcessDescription, polarity: Polarity, g: SweepGrid): voi
 
 /** The fingerprint of a characterisation: library and include bytes, section, device, W, temperature, grid. */
 export function tableFingerprint(p: ProcessDescription, polarity: Polarity, section: string, w: number, grid: SweepGrid): string {
-  const h = createHash("sha256");
+  const h = nodeCrypto().createHash("sha256");
   h.update("pinchoff-device-table/1\n");
   for (const f of [p.library.file, ...p.includes]) h.update(readFileSync(f));
   h.update(canonicalJson({ section, model: p.devices[polarity].model, polarity, w, temperature: p.temperature, grid }));

@@ -10,8 +10,8 @@
  * field and the file. The built-in demo is `processes/gf180-3v3.json`.
  */
 import { existsSync, readFileSync } from "node:fs";
-import { dirname, isAbsolute, resolve } from "node:path";
-import { fileURLToPath } from "node:url";
+import { dirname, isAbsolute, join, resolve } from "node:path";
+import { packageRoot } from "../io/package-root.js";
 import { InputError, PinchoffError } from "../errors.js";
 import type { Meters, Volts } from "../quantity.js";
 import { spiceIdentifier, spicePath } from "../spice/deck.js";
@@ -49,7 +49,7 @@ export interface ProcessDescription {
 }
 
 /** The folder of the shipped process descriptions. */
-export const processesFolder = (): string => resolve(dirname(fileURLToPath(import.meta.url)), "../../processes");
+export const processesFolder = (): string => join(packageRoot(), "processes");
 
 /** The built-in demo process: the open 180 nm kit's 3.3 V devices. */
 export const builtinProcessFile = (): string => resolve(processesFolder(), "gf180-3v3.json");

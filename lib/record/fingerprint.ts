@@ -6,7 +6,7 @@
  * only name, dimension and value counted (where a value came from, or how it was
  * typed, does not change the calculation).
  */
-import { createHash } from "node:crypto";
+import { nodeCrypto } from "../io/lazy-builtins.js";
 import { InputError } from "../errors.js";
 import type { DerivationData, InputEntry } from "./derivation.js";
 
@@ -52,7 +52,7 @@ export function fingerprintText(data: Pick<DerivationData, "inputs" | "title"> |
 
 /** Full SHA-256 hex digest of the inputs of one derivation, or of a whole design (a list, in order). */
 export function fingerprint(data: Pick<DerivationData, "inputs" | "title"> | ReadonlyArray<Pick<DerivationData, "inputs" | "title">>): string {
-  return createHash("sha256").update(fingerprintText(data), "utf8").digest("hex");
+  return nodeCrypto().createHash("sha256").update(fingerprintText(data), "utf8").digest("hex");
 }
 
 /** The short form shown in renderings. */

@@ -61,8 +61,8 @@ const steps = {
   build() {
     const stamp = join(root, "dist/index.js");
     if (existsSync(stamp) && statSync(stamp).mtimeMs >= newest(join(root, "lib"))) return;
-    say("building the library into dist/ (tsc)");
-    run(process.execPath, [join(root, "node_modules/typescript/bin/tsc"), "-p", "tsconfig.json"]);
+    say("building the library into dist/ (tsc, then esbuild links the entry points)");
+    run(process.execPath, [join(root, "lib/setup/build.mjs")]);
   },
   ngspice: () => aptInstall("ngspice"),
   jupyter: () => aptInstall("jupyter"),

@@ -22,7 +22,7 @@
  * a missing library file, section or device → SimulatorError naming it, from the log;
  * no convergence → ConvergenceError with the log excerpt.
  */
-import { spawn, spawnSync } from "node:child_process";
+import { nodeChildProcess } from "../io/lazy-builtins.js";
 import { accessSync, constants, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { availableParallelism, tmpdir } from "node:os";
 import { delimiter, isAbsolute, join } from "node:path";
@@ -123,7 +123,7 @@ export function runDeckSync(run: SimulatorRun): SimulatorResult {
   const t0 = performance.now();
   const { dir, deck } = prepare(run);
   try {
-    const r = spawnSync(exe, ["-b", deck], { cwd: dir, encoding: "utf8", timeout: run.timeoutMs ?? 60000, killSignal: "SIGKILL", maxBuffer: 256 << 20, stdio: ["ignore", "pipe", "pipe"] });
+    const r = nodeChildProcess().spawnSync(exe, ["-b", deck], { cwd: dir, encoding: "utf8", timeout: run.timeoutMs ?? 60000, killSignal: "SIGKILL", maxBuffer: 256 << 20, stdio: ["ignore", "pipe", "pipe"] });
     if (r.error && (r.error as NodeJS.ErrnoException).code !== "ETIMEDOUT") throw new SimulatorError(`ngspice could not be started: ${r.error.message}`, "", exe);
     const timedOut = (r.error as NodeJS.ErrnoException | undefined)?.code === "ETIMEDOUT" || r.signal === "SIGKILL";
     return finish(run, dir, `${r.stdout ?? ""}${r.stderr ?? ""}`, r.status, timedOut, t0);
@@ -169,7 +169,7 @@ async function runNow(exe: string, run: SimulatorRun): Promise<SimulatorResult> 
     const { log, status, timedOut } = await new Promise<{ log: string; status: number | null; timedOut: boolean }>((resolve, reject) => {
       let timedOut = false;
       const chunks: Buffer[] = [];
-      const child = spawn(exe, ["-b", deck], { cwd: dir, detached: true, stdio: ["ignore", "pipe", "pipe"] });
+      const child = nodeChildProcess().spawn(exe, ["-b", deck], { cwd: dir, detached: true, stdio: ["ignore", "pipe", "pipe"] });
       child.stdout.on("data", (c: Buffer) => chunks.push(c));
       child.stderr.on("data", (c: Buffer) => chunks.push(c));
       child.on("error", (err) => {
