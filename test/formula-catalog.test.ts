@@ -4,7 +4,6 @@ import * as e from "../lib/formulas/ekv.formulas.js";
 import { wrightOmega } from "../lib/numeric/wright-omega.js";
 import { Derivation, type FormulaStep } from "../lib/record/derivation.js";
 import { stepTex, substitutedText } from "../lib/record/substitute.js";
-import { wrightOmegaByBisection } from "./support/reevaluate.js";
 
 describe("formula catalogs", () => {
   it("state every equation once across all catalogs", async () => {
@@ -74,20 +73,7 @@ describe("compositions: a model's hot path generated from its catalog", () => {
 });
 
 describe("the Wright ω function (lib/numeric/wright-omega.ts), which solves the EKV charge–voltage relation", () => {
-  // Reference: ω + ln ω = y solved by bisection on u = ln ω (test/support/reevaluate.ts), 200 halvings.
-  const bisected = wrightOmegaByBisection;
-  it("is within 2·10⁻¹³ (relative) of bisection from y = −700 to 10⁶, across every start region's edges", () => {
-    let worst = 0;
-    for (let y = -700; y < 1e6; y += y < -60 ? 1.3 : y < 20 ? 0.0007 : y < 1000 ? 0.37 : 977) worst = Math.max(worst, Math.abs(wrightOmega(y) / bisected(y) - 1));
-    expect(worst).toBeLessThan(2e-13);
-  });
-  it("has the known values ω(1) = 1 and ω(0) = W(1) = Ω = 0.5671432904097838 (the omega constant), is 0 where eʸ underflows and ≈ y − ln y far out", () => {
-    expect(wrightOmega(1)).toBeCloseTo(1, 15);
-    expect(wrightOmega(0)).toBeCloseTo(0.5671432904097838, 15);
-    expect(wrightOmega(-800)).toBe(0);
-    expect(wrightOmega(1e200) / (1e200 - Math.log(1e200))).toBeCloseTo(1, 15);
-    expect(Number.isNaN(wrightOmega(NaN))).toBe(true);
-  });
+  // accuracy, edges and special values: test/wright-omega.test.ts
   it("is typeset as ω in the formula and in its substituted line, and printed by name in plain text", () => {
     expect(e.ekvForwardCharge.tex).toContain("\\omega\\left(");
     expect(e.ekvForwardCharge.tex).not.toContain("wrightOmega");
