@@ -13,6 +13,7 @@
  * common practice). Saturation when VDS ≥ max(VOV, 4·UT) (common practice),
  * triode otherwise.
  */
+import { thermalVoltage, type Kelvin } from "../quantity.js";
 import type { Sweep } from "../measure/select.js";
 import type { FitModel } from "./model.js";
 
@@ -49,8 +50,6 @@ export interface Accuracy {
   readonly map: CurveValidity[];
 }
 
-export const thermalVoltage = (tKelvin: number) => (1.380649e-23 * tKelvin) / 1.602176634e-19;
-
 export function summarise(errors: ArrayLike<number>): ErrorSummary {
   const a = Float64Array.from(errors, Math.abs).sort();
   const n = a.length;
@@ -68,7 +67,7 @@ export function accuracy(model: FitModel, p: Float64Array, s: Sweep, minCurrent 
   model.evaluate(p, s, all, out);
   const err = new Float64Array(n).fill(NaN);
   const sign = s.polarity === "nmos" ? 1 : -1;
-  const ut = thermalVoltage(s.temp);
+  const ut = thermalVoltage(s.temp as Kelvin);
   const nSlope = model.slope(p);
   const overdriveAt = (ic: number) => {
     const q = Math.sqrt(0.25 + ic) - 0.5;

@@ -54,8 +54,19 @@ function newest(dir) {
 
 const steps = {
   npm() {
-    if (existsSync(join(root, "node_modules/.package-lock.json")) && existsSync(join(root, "node_modules/vitest"))) return;
-    say("installing npm packages (npm ci)");
+    // Installed, complete and not older than the lock file (a pull that changes the dependencies re-installs).
+    const installed = join(root, "node_modules/.package-lock.json");
+    const pkg = JSON.parse(readFileSync(join(root, "package.json"), "utf8"));
+    const missing = Object.keys({ ...pkg.dependencies, ...pkg.devDependencies }).filter((n) => !existsSync(join(root, "node_modules", n, "package.json")));
+    const stale = existsSync(installed) && statSync(join(root, "package-lock.json")).mtimeMs > statSync(installed).mtimeMs;
+    if (existsSync(installed) && !missing.length && !stale) return;
+    say(
+      !existsSync(installed)
+        ? "installing npm packages (npm ci)"
+        : missing.length
+          ? `npm packages missing (${missing.slice(0, 3).join(", ")}${missing.length > 3 ? ", …" : ""}): re-installing (npm ci)`
+          : "package-lock.json changed since the last install: re-installing npm packages (npm ci)",
+    );
     run("npm", ["ci", "--no-audit", "--no-fund"]);
   },
   build() {
