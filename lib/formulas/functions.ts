@@ -7,7 +7,6 @@
  * substituted lines of lib/record/substitute.ts).
  */
 import type { MathNode } from "mathjs";
-import { softplus } from "../numeric/elementary.js";
 import { wrightOmega } from "../numeric/wright-omega.js";
 
 export interface FormulaFunction {
@@ -20,8 +19,6 @@ export interface FormulaFunction {
 }
 
 export const formulaFunctions: Readonly<Record<string, FormulaFunction>> = {
-  /** ln(1 + eˣ), the EKV interpolation between weak and strong inversion; never overflows. */
-  softplus: { impl: softplus, module: "../numeric/elementary.js", tex: (a) => `\\ln\\left(1+e^{${a}}\\right)`, text: (a) => `ln(1 + exp(${a}))` },
   /** ω(y), ω + ln ω = y (the principal Lambert W of eʸ): the EKV charge–voltage relation 2q + ln q = v solved as q = ω(v + ln 2)/2. */
   wrightOmega: { impl: wrightOmega, module: "../numeric/wright-omega.js", tex: (a) => `\\omega\\left(${a}\\right)`, text: (a) => `wrightOmega(${a})` },
 };

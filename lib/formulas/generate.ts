@@ -21,7 +21,7 @@
  * their order are the point function's, so the results are equal point by point.
  *
  * Functions: mathjs's sqrt exp log log1p abs max min atan, and the formula language's own
- * (`functions.ts`: softplus, wrightOmega), imported by the generated file from their one implementation.
+ * (`functions.ts`: wrightOmega), imported by the generated file from their one implementation.
  *
  * mathjs is used here, at build time, so the generated code needs none.
  */
@@ -258,7 +258,8 @@ export const blockSize = 256;
  * Functions whose latency dominates a step: a step calling one starts a new loop over the block, so the
  * processor overlaps that step across independent points. Measured on the EKV composition (built code, CPU
  * time a point, shared machine): 10 loops (sqrt included) 66–70 ns, 5 loops (sqrt excluded) 68–73 ns,
- * 3 loops (softplus only) ≈ 89 ns; one loop per step was about 10 % slower than 5 loops.
+ * 3 loops (only at the two interpolation functions) ≈ 89 ns; one loop per step was about 10 % slower than 5 loops
+ * (measured with the 1995 interpolation, ln²(1 + e^(v/2)), before the charge relation replaced it).
  */
 const slowFunctions = new Set(["exp", "log", "log1p", "atan", "sqrt", ...Object.keys(formulaFunctions)]);
 const callsSlow = (node: MathNode) => node.filter((x) => x.type === "FunctionNode" && slowFunctions.has((x as MathNode & { fn: { name: string } }).fn.name)).length > 0;

@@ -7,7 +7,7 @@
  * formulas, or a formula that is dimensionally wrong, fails here.
  *
  * Other tests call `expectReevaluates(rec)` on any derivation they produce.
- * The formula language's own functions (lib/formulas/functions.ts, e.g. softplus) are
+ * The formula language's own functions (lib/formulas/functions.ts, e.g. wrightOmega) are
  * taught to mathjs with the same implementation the generated code calls; their
  * argument must be dimensionless.
  */
