@@ -208,8 +208,7 @@ export interface CascodeMirrorFrequencyNodes {
  * (checked); the two lowest form the two-pole hand response.
  */
 export function analyzeCascodeMirrorFrequency(stage: Stage, analysis: StageAnalysis, spec: FrequencySpec, o: string, rec?: Derivation): FrequencyAnalysis {
-  if (spec.capacitors || spec.targets?.lowCorner !== undefined)
-    throw new InputError(spec.capacitors ?? spec.targets?.lowCorner, "no coupling or bypass capacitors and no low-corner target: the cascode mirror is DC-coupled, so it has no low corner", `${o}: frequency`, "invalid-design");
+  refuseCoupling(spec, o, "cascode mirror");
   if (spec.source !== undefined)
     throw new InputError(spec.source, "no signal source resistance: the cascode mirror is driven by an ideal signal current into its reference node", `${o}: frequency.source`, "invalid-design");
   const rl = mirrorLoadResistance(stage, spec, o).value;

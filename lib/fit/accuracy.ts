@@ -6,14 +6,15 @@
  * where it stays within ±5 % and ±10 %.
  *
  * Regions. Inversion level from the overdrive VOV = |VGS| − Vt(VSB) through the
- * EKV charge relation of the model (lib/formulas/ekv.catalog.ts), VOV = n·UT·(2q + ln q)
- * with q = √(1/4 + IC) − 1/2 (Enz & Vittoz, Charge-Based MOS Transistor Modeling,
+ * EKV charge relation of the model (lib/formulas/ekv.catalog.ts: ekvOverdriveAtCharge,
+ * ekvChargeAtInversion), VOV = n·UT·(2q + ln q) with q = √(1/4 + IC) − 1/2 (Enz & Vittoz, Charge-Based MOS Transistor Modeling,
  * Wiley, 2006, from memory): weak below
  * IC = 0.1, strong above IC = 10, moderate between (the usual boundaries,
  * common practice). Saturation when VDS ≥ max(VOV, 4·UT) (common practice),
  * triode otherwise.
  */
-import { thermalVoltage, type Kelvin } from "../quantity.js";
+import { ekvChargeAtInversion, ekvOverdriveAtCharge } from "../formulas/ekv.formulas.js";
+import { thermalVoltage, type Kelvin, type Ratio } from "../quantity.js";
 import type { Sweep } from "../measure/select.js";
 import type { FitModel } from "./model.js";
 
@@ -69,10 +70,7 @@ export function accuracy(model: FitModel, p: Float64Array, s: Sweep, minCurrent 
   const sign = s.polarity === "nmos" ? 1 : -1;
   const ut = thermalVoltage(s.temp as Kelvin);
   const nSlope = model.slope(p);
-  const overdriveAt = (ic: number) => {
-    const q = Math.sqrt(0.25 + ic) - 0.5;
-    return nSlope * ut * (2 * q + Math.log(q));
-  };
+  const overdriveAt = (ic: number) => ekvOverdriveAtCharge.fn(nSlope as Ratio, ut, ekvChargeAtInversion.fn(ic as Ratio));
   const ovWeak = overdriveAt(0.1);
   const ovStrong = overdriveAt(10);
   const buckets: Record<RegionName, number[]> = { weak: [], moderate: [], strong: [], triode: [], saturation: [] };

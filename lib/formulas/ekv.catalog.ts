@@ -65,6 +65,7 @@ export const symbols = defineSymbols({
   Vip: { tex: "V_{ip}", dim: "voltage", meaning: "half drain-source voltage, smoothly limited at VDSS' (EKV)" },
   Leq: { tex: "L_{eq}", dim: "length", meaning: "equivalent channel length with velocity saturation (EKV)" },
   Vt: { tex: "V_{t}", dim: "voltage", meaning: "threshold voltage" },
+  VOV: { tex: "V_{OV}", dim: "voltage", meaning: "overdrive voltage VGS − Vt" },
   VDsat: { tex: "V_{D,sat}", dim: "voltage", meaning: "drain-source saturation voltage" },
   qF: { tex: "q_{f}", dim: "dimensionless", meaning: "normalised inversion charge at the source (EKV)" },
   qR: { tex: "q_{r}", dim: "dimensionless", meaning: "normalised inversion charge at the drain end, saturating at VDSS' (EKV)" },
@@ -134,6 +135,20 @@ export const formulas = defineFormulas({
     result: "IC",
     expr: "qF^2 + qF",
     source: ekv95,
+  },
+  ekvChargeAtInversion: {
+    title: "Normalised inversion charge at an inversion coefficient",
+    // The inverse of IC = q² + q: where a given inversion level sits on the charge relation (region edges of a fit).
+    result: "qF",
+    expr: "sqrt(1 / 4 + IC) - 1 / 2",
+    source: ekv95,
+  },
+  ekvOverdriveAtCharge: {
+    title: "Overdrive at a source-end charge",
+    // The charge relation 2q + ln q = (VP − VS)/UT with VP − VS ≈ VOV/n (VP ≈ (VG − Vt0)/n): the overdrive of an inversion level.
+    result: "VOV",
+    expr: "n * UT * (2 * qF + log(qF))",
+    source: chargeBased,
   },
   ekvLongChannelSaturationVoltage: {
     title: "Saturation voltage for the reverse current, long channel",

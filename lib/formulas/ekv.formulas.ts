@@ -131,6 +131,34 @@ export const ekvForwardCurrent = {
   fn: (qF: Ratio): Ratio => (sq(qF) + qF) as Ratio,
 } as const satisfies Formula;
 
+/** Normalised inversion charge at an inversion coefficient: qF = sqrt(1 / 4 + IC) - 1 / 2 */
+export const ekvChargeAtInversion = {
+  id: "ekvChargeAtInversion",
+  title: "Normalised inversion charge at an inversion coefficient",
+  expr: "sqrt(1 / 4 + IC) - 1 / 2",
+  tex: "q_{f} = \\sqrt{\\frac{1}{4}+{IC}}-\\frac{1}{2}",
+  result: "qF",
+  resultDim: "dimensionless",
+  vars: ["IC"],
+  dims: ["dimensionless"],
+  source: "Enz, Krummenacher & Vittoz, Analog Integrated Circuits and Signal Processing 8(1), 83–114, 1995",
+  fn: (IC: Ratio): Ratio => (Math.sqrt(((1 / 4) + IC)) - (1 / 2)) as Ratio,
+} as const satisfies Formula;
+
+/** Overdrive at a source-end charge: VOV = n * UT * (2 * qF + log(qF)) */
+export const ekvOverdriveAtCharge = {
+  id: "ekvOverdriveAtCharge",
+  title: "Overdrive at a source-end charge",
+  expr: "n * UT * (2 * qF + log(qF))",
+  tex: "V_{OV} = {n}\\cdot{U_{T}}\\cdot\\left(2\\cdot{q_{f}}+\\ln\\left({q_{f}}\\right)\\right)",
+  result: "VOV",
+  resultDim: "voltage",
+  vars: ["n","UT","qF"],
+  dims: ["dimensionless","voltage","dimensionless"],
+  source: "charge–voltage relation 2q + ln q = (VP − V)/UT of the charge-based EKV model (Enz & Vittoz, Charge-Based MOS Transistor Modeling: The EKV Model for Low-Power and RF IC Design, Wiley, 2006, from memory; the same relation as the ACM model, Cunha, Schneider & Galup-Montoro, IEEE JSSC 33(10), 1510–1519, 1998)",
+  fn: (n: Ratio, UT: Volts, qF: Ratio): Volts => ((n * UT) * (((2 * qF) + Math.log(qF)))) as Volts,
+} as const satisfies Formula;
+
 /** Saturation voltage for the reverse current, long channel: VDSSL = Um * (sqrt(IC) - 3 / 4 * log(IC)) */
 export const ekvLongChannelSaturationVoltage = {
   id: "ekvLongChannelSaturationVoltage",

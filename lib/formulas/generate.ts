@@ -66,7 +66,7 @@ const typeOfDim: Record<Dimension, string> = {
   fraction: "Fraction",
 };
 
-const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", atan: "Math.atan", exp: "Math.exp", log: "Math.log", log1p: "Math.log1p", abs: "Math.abs", max: "Math.max", min: "Math.min", wrightOmega: "wrightOmega" };
+const mathFunctions: Record<string, string> = { sqrt: "Math.sqrt", atan: "Math.atan", exp: "Math.exp", log: "Math.log", log1p: "Math.log1p", abs: "Math.abs", max: "Math.max", min: "Math.min" };
 
 interface Catalog {
   file: string;
