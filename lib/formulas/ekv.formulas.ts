@@ -316,90 +316,25 @@ const ekvChannelCurrent$Vip = new Float64Array(256);
 const ekvChannelCurrent$n = new Float64Array(256);
 const ekvChannelCurrent$qF = new Float64Array(256);
 
-/** ekvChannelCurrentBlock, loop 1 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop0(Vt0: number, phi: number, sigma: number, VGS: Float64Array, VDS: Float64Array, VSB: Float64Array, $c0: number, $o: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const VGp = (((((VGS[$o + $k]! + VSB[$o + $k]!) - Vt0) + (sigma * VDS[$o + $k]!)) + phi) + $c0); // ekvEffectiveGate
-    ekvChannelCurrent$VGp[$k] = VGp;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 2 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop1(gamma: number, phi: number, $c1: number, $c2: number, $c3: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const VP = ekvChannelCurrent$VGp[$k]! > 0 ? ((ekvChannelCurrent$VGp[$k]! - phi) - (gamma * ((Math.sqrt((ekvChannelCurrent$VGp[$k]! + $c1)) - $c2)))) : $c3; // ekvPinchOffVoltage / ekvPinchOffFloor
-    ekvChannelCurrent$VP[$k] = VP;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 3 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop2(gamma: number, phi: number, cit: number, UT: number, $c4: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const n = (1 + (gamma / ((2 * Math.sqrt(((ekvChannelCurrent$VP[$k]! + phi) + $c4)))))); // ekvSlopeFactor
-    ekvChannelCurrent$n[$k] = n;
-    const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
-    ekvChannelCurrent$Um[$k] = Um;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 4 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop3(VSB: Float64Array, $o: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const qF = (wrightOmega(((((ekvChannelCurrent$VP[$k]! - VSB[$o + $k]!)) / ekvChannelCurrent$Um[$k]!) + 0.6931471805599453)) / 2); // ekvForwardCharge
-    ekvChannelCurrent$qF[$k] = qF;
-    const IC = (sq(qF) + qF); // ekvForwardCurrent
-    ekvChannelCurrent$IC[$k] = IC;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 5 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop4($m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const VDSSL = (ekvChannelCurrent$Um[$k]! * ((Math.sqrt(ekvChannelCurrent$IC[$k]!) - ((3 / 4) * Math.log(ekvChannelCurrent$IC[$k]!))))); // ekvLongChannelSaturationVoltage
-    ekvChannelCurrent$VDSSL[$k] = VDSSL;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 6 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop5($c5: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const VDSS = ((ekvChannelCurrent$VDSSL[$k]! / ((Math.sqrt(((1 / 4) + (ekvChannelCurrent$VDSSL[$k]! / ($c5)))) + (1 / 2)))) + (ekvChannelCurrent$Um[$k]! * ((Math.log(($c5 / ((2 * ekvChannelCurrent$Um[$k]!)))) - 0.6)))); // ekvSaturationVoltage
-    ekvChannelCurrent$VDSS[$k] = VDSS;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 7 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop6(VDS: Float64Array, $o: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const Vip = (Math.sqrt((sq(ekvChannelCurrent$VDSS[$k]!) + (sq(ekvChannelCurrent$Um[$k]!) / 4))) - Math.sqrt((sq((((VDS[$o + $k]! / 2) - ekvChannelCurrent$VDSS[$k]!))) + (sq(ekvChannelCurrent$Um[$k]!) / 4)))); // ekvLimitedDrainVoltage
-    ekvChannelCurrent$Vip[$k] = Vip;
-  }
-}
-
-/** ekvChannelCurrentBlock, loop 8 of 8: points $o … $o + $m − 1 of the caller's block. */
-function ekvChannelCurrent$loop7(L: number, lambda: number, theta: number, thetaB: number, Ecrit: number, VDS: Float64Array, VSB: Float64Array, $c6: number, out: Float64Array, $o: number, $m: number): void {
-  for (let $k = 0; $k < $m; $k++) {
-    const qR = (wrightOmega(((((((ekvChannelCurrent$VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - ekvChannelCurrent$Vip[$k]!)) / ekvChannelCurrent$Um[$k]!) + 0.6931471805599453)) / 2); // ekvReverseCharge
-    const IRn = (sq(qR) + qR); // ekvReverseCurrent
-    const Leq = (L + ((((VDS[$o + $k]! / 2) + ekvChannelCurrent$Vip[$k]!)) / Ecrit)); // ekvEquivalentLength
-    const beta = (($c6 / Leq) / (((1 + (((theta * ekvChannelCurrent$n[$k]!) * ekvChannelCurrent$Um[$k]!) * ((ekvChannelCurrent$qF[$k]! + qR)))) + (thetaB * VSB[$o + $k]!)))); // ekvGainFactor
-    const IS = (((2 * ekvChannelCurrent$n[$k]!) * beta) * sq(ekvChannelCurrent$Um[$k]!)); // ekvSpecificCurrent
-    const ID = ((IS * ((ekvChannelCurrent$IC[$k]! - IRn))) * ((1 + (lambda * VDS[$o + $k]!)))); // ekvDrainCurrent
-    out[$o + $k] = ekvChannelCurrent$IC[$k]! === 0 ? 0 : ID;
-  }
-}
-
 /**
  * EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), at `count` points: VGS, VDS, VSB per point from arrays, the result into out[0..count).
  * The steps of ekvChannelCurrent in 8 loops over blocks of 256 points (a new loop at each step that calls
- * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), each loop a
- * function of its own so the compiler optimises it alone, intermediates that cross loops in module
+ * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), intermediates that cross loops in module
  * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ekvChannelCurrent at every point, a masked
  * result where it returns early.
  */
 export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: Float64Array, VDS: Float64Array, VSB: Float64Array, out: Float64Array, count: number): void {
   if (!(Number.isInteger(count) && count >= 0 && count <= out.length && count <= VGS.length && count <= VDS.length && count <= VSB.length))
     throw new InputError(count, "a point count no larger than the input and output arrays", "ekvChannelCurrentBlock");
+  const $VGp = ekvChannelCurrent$VGp;
+  const $VP = ekvChannelCurrent$VP;
+  const $Um = ekvChannelCurrent$Um;
+  const $IC = ekvChannelCurrent$IC;
+  const $VDSSL = ekvChannelCurrent$VDSSL;
+  const $VDSS = ekvChannelCurrent$VDSS;
+  const $Vip = ekvChannelCurrent$Vip;
+  const $n = ekvChannelCurrent$n;
+  const $qF = ekvChannelCurrent$qF;
   const $c0 = (gamma * Math.sqrt(phi));
   const $c1 = (sq(gamma) / 4);
   const $c2 = (gamma / 2);
@@ -409,14 +344,47 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
   const $c6 = (kp * W);
   for (let $o = 0; $o < count; $o += 256) {
     const $m = Math.min(256, count - $o);
-    ekvChannelCurrent$loop0(Vt0, phi, sigma, VGS, VDS, VSB, $c0, $o, $m);
-    ekvChannelCurrent$loop1(gamma, phi, $c1, $c2, $c3, $m);
-    ekvChannelCurrent$loop2(gamma, phi, cit, UT, $c4, $m);
-    ekvChannelCurrent$loop3(VSB, $o, $m);
-    ekvChannelCurrent$loop4($m);
-    ekvChannelCurrent$loop5($c5, $m);
-    ekvChannelCurrent$loop6(VDS, $o, $m);
-    ekvChannelCurrent$loop7(L, lambda, theta, thetaB, Ecrit, VDS, VSB, $c6, out, $o, $m);
+    for (let $k = 0; $k < $m; $k++) {
+      const VGp = (((((VGS[$o + $k]! + VSB[$o + $k]!) - Vt0) + (sigma * VDS[$o + $k]!)) + phi) + $c0); // ekvEffectiveGate
+      $VGp[$k] = VGp;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const VP = $VGp[$k]! > 0 ? (($VGp[$k]! - phi) - (gamma * ((Math.sqrt(($VGp[$k]! + $c1)) - $c2)))) : $c3; // ekvPinchOffVoltage / ekvPinchOffFloor
+      $VP[$k] = VP;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const n = (1 + (gamma / ((2 * Math.sqrt((($VP[$k]! + phi) + $c4)))))); // ekvSlopeFactor
+      $n[$k] = n;
+      const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
+      $Um[$k] = Um;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const qF = (wrightOmega((((($VP[$k]! - VSB[$o + $k]!)) / $Um[$k]!) + 0.6931471805599453)) / 2); // ekvForwardCharge
+      $qF[$k] = qF;
+      const IC = (sq(qF) + qF); // ekvForwardCurrent
+      $IC[$k] = IC;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const VDSSL = ($Um[$k]! * ((Math.sqrt($IC[$k]!) - ((3 / 4) * Math.log($IC[$k]!))))); // ekvLongChannelSaturationVoltage
+      $VDSSL[$k] = VDSSL;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const VDSS = (($VDSSL[$k]! / ((Math.sqrt(((1 / 4) + ($VDSSL[$k]! / ($c5)))) + (1 / 2)))) + ($Um[$k]! * ((Math.log(($c5 / ((2 * $Um[$k]!)))) - 0.6)))); // ekvSaturationVoltage
+      $VDSS[$k] = VDSS;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const Vip = (Math.sqrt((sq($VDSS[$k]!) + (sq($Um[$k]!) / 4))) - Math.sqrt((sq((((VDS[$o + $k]! / 2) - $VDSS[$k]!))) + (sq($Um[$k]!) / 4)))); // ekvLimitedDrainVoltage
+      $Vip[$k] = Vip;
+    }
+    for (let $k = 0; $k < $m; $k++) {
+      const qR = (wrightOmega((((((($VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - $Vip[$k]!)) / $Um[$k]!) + 0.6931471805599453)) / 2); // ekvReverseCharge
+      const IRn = (sq(qR) + qR); // ekvReverseCurrent
+      const Leq = (L + ((((VDS[$o + $k]! / 2) + $Vip[$k]!)) / Ecrit)); // ekvEquivalentLength
+      const beta = (($c6 / Leq) / (((1 + (((theta * $n[$k]!) * $Um[$k]!) * (($qF[$k]! + qR)))) + (thetaB * VSB[$o + $k]!)))); // ekvGainFactor
+      const IS = (((2 * $n[$k]!) * beta) * sq($Um[$k]!)); // ekvSpecificCurrent
+      const ID = ((IS * (($IC[$k]! - IRn))) * ((1 + (lambda * VDS[$o + $k]!)))); // ekvDrainCurrent
+      out[$o + $k] = $IC[$k]! === 0 ? 0 : ID;
+    }
   }
 }
 

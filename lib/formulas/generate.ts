@@ -321,23 +321,15 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
   // Subexpressions that read no per-point value are computed once, before the loops (same operations, same result).
   const invariants = new Map<string, string>();
   let current = 0;
-  // what each loop reads from its caller: point-input arrays, per-device inputs and steps, hoisted invariants
-  const loopReads = new Map<number, Set<string>>();
-  const read = (v: string) => {
-    let r = loopReads.get(current);
-    if (!r) loopReads.set(current, (r = new Set()));
-    r.add(v);
-    return v;
-  };
   const ctx: JsContext = {
-    symbol: (v) => (points.includes(v) ? `${read(v)}[$o + $k]!` : defined.has(v) && defined.get(v)! < current ? `${id}$${v}[$k]!` : defined.has(v) ? v : read(v)),
+    symbol: (v) => (points.includes(v) ? `${v}[$o + $k]!` : defined.has(v) && defined.get(v)! < current ? `$${v}[$k]!` : v),
     hoisted: (node) => {
       const trivial = node.type === "SymbolNode" || node.type === "ConstantNode" || node.type === "ParenthesisNode";
       if (trivial || !freeSymbols(node).length || isVarying(node)) return undefined;
       const js = node.type === "OperatorNode" && comparisons[(node as MathNode & { op: string }).op] ? toJs(node, where, true) : toJs(node, where);
       let k = invariants.get(js);
       if (!k) invariants.set(js, (k = `$c${invariants.size}`));
-      return read(k);
+      return k;
     },
   };
   const loops: string[][] = [];
@@ -345,42 +337,26 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     current = it.loop;
     const [a, b] = it.nodes;
     const js = it.when ? `${toJs(it.when, where, true, ctx)} ? ${toJs(a!, where, false, ctx)} : ${toJs(b!, where, false, ctx)}` : toJs(a!, where, false, ctx);
-    (loops[it.loop] ??= []).push(`    const ${it.result} = ${js}; // ${it.label}`, ...(stored.has(it.result) ? [`    ${id}$${it.result}[$k] = ${it.result};`] : []));
+    (loops[it.loop] ??= []).push(`      const ${it.result} = ${js}; // ${it.label}`, ...(stored.has(it.result) ? [`      $${it.result}[$k] = ${it.result};`] : []));
   }
   current = loop;
   const store = exits.reduceRight((rest, e) => `${isVarying(e.cond) ? toJs(e.cond, where, true, ctx) : toJs(e.cond, where, true)} ? ${e.value} : ${rest}`, last);
-  (loops[loop] ??= []).push(`    out[$o + $k] = ${store};`);
-  read("out");
+  (loops[loop] ??= []).push(`      out[$o + $k] = ${store};`);
   const scratch = [...stored];
-  // each loop's parameters in a fixed order: inputs as the composition lists them, then invariants, then out
-  const order = [...spec.inputs, ...before.map((it) => it.result), ...[...invariants.values()], "out"];
-  const loopParams = loops.map((_, i) => order.filter((v) => loopReads.get(i)?.has(v)));
-  // $o, the block's first point, only where a loop indexes the point arrays or out
-  const usesOffset = loopParams.map((params) => params.some((v) => points.includes(v) || v === "out"));
-  const typeOf = (v: string) => (points.includes(v) || v === "out" ? "Float64Array" : "number");
   return [
     ...scratch.map((v) => `const ${id}$${v} = new Float64Array(${blockSize});`),
     "",
-    ...loops.flatMap((body, i) => [
-      `/** ${id}Block, loop ${i + 1} of ${loops.length}: points $o … $o + $m − 1 of the caller's block. */`,
-      `function ${id}$loop${i}(${[...loopParams[i]!.map((v) => `${v}: ${typeOf(v)}`), ...(usesOffset[i] ? ["$o: number"] : []), "$m: number"].join(", ")}): void {`,
-      `  for (let $k = 0; $k < $m; $k++) {`,
-      ...body,
-      `  }`,
-      `}`,
-      "",
-    ]),
     `/**`,
     ` * ${spec.title}, at \`count\` points: ${points.join(", ")} per point from arrays, the result into out[0..count).`,
     ` * The steps of ${id} in ${loops.length} loops over blocks of ${blockSize} points (a new loop at each step that calls`,
-    ` * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), each loop a`,
-    ` * function of its own so the compiler optimises it alone, intermediates that cross loops in module`,
+    ` * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), intermediates that cross loops in module`,
     ` * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ${id} at every point, a masked`,
     ` * result where it returns early.`,
     ` */`,
     `export function ${name}(${spec.inputs.map((v) => `${v}: ${points.includes(v) ? "Float64Array" : "number"}`).join(", ")}, out: Float64Array, count: number): void {`,
     `  if (!(Number.isInteger(count) && count >= 0 && count <= out.length${points.map((v) => ` && count <= ${v}.length`).join("")}))`,
     `    throw new InputError(count, "a point count no larger than the input and output arrays", ${JSON.stringify(name)});`,
+    ...scratch.map((v) => `  const $${v} = ${id}$${v};`),
     ...before.map((it) => {
       const [a, b] = it.nodes;
       return `  const ${it.result} = ${it.when ? `${toJs(it.when, where, true)} ? ${toJs(a!, where)} : ${toJs(b!, where)}` : toJs(a!, where)}; // ${it.label}`;
@@ -388,7 +364,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     ...[...invariants].map(([js, k]) => `  const ${k} = ${js};`),
     `  for (let $o = 0; $o < count; $o += ${blockSize}) {`,
     `    const $m = Math.min(${blockSize}, count - $o);`,
-    ...loopParams.map((params, i) => `    ${id}$loop${i}(${[...params, ...(usesOffset[i] ? ["$o"] : []), "$m"].join(", ")});`),
+    ...loops.flatMap((body) => [`    for (let $k = 0; $k < $m; $k++) {`, ...body, `    }`]),
     `  }`,
     `}`,
   ].join("\n");
