@@ -79,10 +79,12 @@ describe("pinchoff op: mismatch section", { timeout: 60_000 }, () => {
       const mc = mismatchMonteCarlo(st as never, a, { samples: 20000, seed: 5, nmos: { sigmaVt: 0.01, sigmaK: 0.03 }, pmos: { sigmaVt: 0.012, sigmaK: 0.03 }, limits: { maxOffset: 0.006, commonModeMin: vcm - 0.1, commonModeMax: vcm + 0.1 } });
       expect(j.mismatch.monteCarlo.figures[0].sigma).toBe(mc.figures[0]!.sigma);
       expect(j.mismatch.monteCarlo.checks.map((c: { yield: number }) => c.yield)).toEqual(mc.checks.map((c) => c.yield));
-      // The sensitivity ranking of the offset is led by a matched device, never by a global variable (common practice: global shifts cancel in a pair).
+      // The sensitivity ranking of the offset is led by a matched device, never by a global variable (common practice: global shifts cancel in a pair, to first order).
       expect(j.mismatch.monteCarlo.figures[0].sensitivity[0].variable).toMatch(/^M[1-4] /);
-      // The σ of the offset is near the closed form (20 000 samples: within 5 %).
-      expect(Math.abs(j.mismatch.monteCarlo.figures[0].sigma / j.mismatch.closedForm.offsetSigma - 1)).toBeLessThan(0.05);
+      // The σ of the offset is near the closed form, which is mismatch only: the global shifts add a little through
+      // channel-length modulation (they move the load diode, so M1's drain, not M2's at the held output), and
+      // 20 000 samples leave about 1 % of noise: within 8 %.
+      expect(Math.abs(j.mismatch.monteCarlo.figures[0].sigma / j.mismatch.closedForm.offsetSigma - 1)).toBeLessThan(0.08);
       expect(j.failedChecks).toEqual([]);
       expect(r.code).toBe(0);
     });

@@ -242,6 +242,66 @@ describe("mismatch of the two-stage amplifier (Pelgrom; invented AVt on the exam
   });
 });
 
+describe("mismatch of the two-stage amplifier: the second stage and the bias mirror (Pelgrom; invented AVt and Aβ)", () => {
+  // Only M5–M8 mismatched: the pair and the load carry AVt = Aβ = 0, so the offset is the second stage's alone.
+  const quiet = (c: DeviceCard): DeviceCard => ({ ...c, name: `${c.name}, matched`, avt: voltMeters(0), abeta: meters(0) });
+  const noisy = (c: DeviceCard): DeviceCard => ({ ...c, name: `${c.name}, mismatched`, avt: voltMeters(c.polarity === "nmos" ? 10e-9 : 12e-9), abeta: meters(2e-8) });
+  const second = (m6Width = 94): TwoStageStage => ({
+    ...example(),
+    device: sized(3, quiet(nA)),
+    devices: { load: sized(15, quiet(pA)), tail: sized(4.5, noisy(nA)), second: sized(m6Width, noisy(pA)), sink: sized(14, noisy(nA)), reference: sized(4.5, noisy(nA)) } as TwoStageStage["devices"],
+  });
+
+  it("closed form (second stage over the first stage's gain) against the Monte Carlo: within 3 % at 10⁵ samples when M6 is sized for no systematic offset, within 15 % with one of 0.3 mV", () => {
+    // The closed form is linearised about a balanced point; a systematic offset adds the product of itself and
+    // the first stage's gain change with the tail current (10 % here), which the Monte Carlo solves.
+    for (const [w, within] of [[94, 0.03], [120, 0.15]] as const) {
+      const st = second(w);
+      const c = inputForOutput(st);
+      const rec = new Derivation("offset");
+      const closed = pairOffset(st, c.analysis, rec);
+      expectReevaluates(rec);
+      expect(closed.shares.secondStage).toBeCloseTo(1, 12);
+      const mc = mismatchMonteCarlo({ ...st, components: { ...st.components, vid: c.vid } } as never, c.analysis, { samples: 100_000, seed: 7 });
+      expect(Math.abs(mc.figures[0]!.sigma / closed.sigma - 1)).toBeLessThan(within);
+      // the second stage's own devices lead the ranking
+      expect(mc.figures[0]!.sensitivity[0]!.variable).toMatch(/^M[5-8] /);
+    }
+  });
+
+  it("each device's threshold moves the offset as the nodal solution of the whole circuit does (inputForOutput on shifted cards), within 3 %", () => {
+    // A 3 mV threshold shift on one device, all else nominal: the change of the input that holds the output
+    // where it was, from the circuit solved in full (its DC solution checked against ngspice 39 Level 1 in test/bias-pairs-ngspice.test.ts),
+    // against the linear coefficient the closed form uses.
+    const st = second(94);
+    const c0 = inputForOutput(st);
+    const a = c0.analysis;
+    const eff = (m: string) => a.devices![m]!.smallSignal.gm / Math.abs(a.devices![m]!.op.channelCurrent);
+    const gain = Math.abs(a.twoStage.firstStageGain);
+    const out = a.nodes.out!;
+    const shifted = (role: "second" | "sink" | "reference" | "tail", dv: number): TwoStageStage => {
+      const d = st.devices![role]!;
+      const s = d.card.polarity === "nmos" ? 1 : -1;
+      return { ...st, devices: { ...st.devices, [role]: { ...d, card: { ...d.card, vt0: volts(d.card.vt0 + s * dv) } } } as TwoStageStage["devices"] };
+    };
+    const dv = 3e-3;
+    const coefficient = {
+      second: 1 / gain,
+      sink: eff("M7") / eff("M6") / gain,
+      reference: Math.abs(eff("M7") / eff("M6") - eff("M5") / eff("M3")) / gain,
+      tail: eff("M5") / eff("M3") / gain,
+    };
+    for (const role of ["second", "sink", "tail"] as const) {
+      const moved = Math.abs(inputForOutput(shifted(role, dv), out).vid - c0.vid);
+      expect(Math.abs(moved / (coefficient[role] * dv) - 1)).toBeLessThan(0.03);
+    }
+    // M8 feeds M5 and M7 alike: its share is the difference of the two paths, far below either
+    const moved8 = Math.abs(inputForOutput(shifted("reference", dv), out).vid - c0.vid);
+    expect(moved8).toBeLessThan(0.25 * coefficient.sink * dv);
+    expect(Math.abs(moved8 - coefficient.reference * dv)).toBeLessThan(0.03 * coefficient.sink * dv);
+  });
+});
+
 describe("pinchoff op with a two-stage design file", () => {
   const dir = mkdtempSync(join(tmpdir(), "pinchoff-two-stage-"));
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -271,5 +331,22 @@ describe("pinchoff op with a two-stage design file", () => {
     expect(t.out).toMatch(/compensation: Cc .* \(designed for the target phase margin\)/);
     writeFileSync(path, JSON.stringify({ ...design, frequency: { ...design.frequency, compensation: { cc: "0 pF" } } }));
     await expect(captureCli(op, [path, "--json"])).rejects.toThrow(/amp\.json: frequency\.compensation\.cc: got 0, expected a Miller capacitor Cc > 0 F/);
+  }, 60_000);
+
+  it("reads a mismatch section: the closed form with the second stage, the Monte Carlo ranking M5–M8 beside the pair; refuses a railed output", async () => {
+    const path = join(dir, "amp-mismatch.json");
+    const mismatch = { nmos: { avt: "10 mV*um", abeta: "2e-8 m" }, pmos: { avt: "12 mV*um", abeta: "2e-8 m" }, samples: 4000, seed: 3 };
+    writeFileSync(path, JSON.stringify({ ...design, mismatch }));
+    const j = JSON.parse((await captureCli(op, [path, "--json"])).out);
+    expect(j.mismatch.closedForm.shares.secondStage).toBeGreaterThan(0);
+    expect(j.mismatch.closedForm.shares.secondStage).toBeLessThan(0.2);
+    const names = j.mismatch.monteCarlo.figures[0].sensitivity.map((x: { variable: string }) => x.variable);
+    expect(names).toContain("M1 Vt");
+    expect(names.some((v: string) => /^M[5-8] /.test(v))).toBe(true);
+    expect(Math.abs(j.mismatch.monteCarlo.figures[0].sigma / j.mismatch.closedForm.offsetSigma - 1)).toBeLessThan(0.1);
+    // 5 mV of differential input rails the open-loop output: no amplifying point to sample around
+    const { frequency: _f, ...dcOnly } = design;
+    writeFileSync(path, JSON.stringify({ ...dcOnly, components: { ...design.components, vid: "5 mV" }, mismatch }));
+    await expect(captureCli(op, [path, "--json"])).rejects.toThrow(/not saturation: the offset is defined about an amplifying point\. Balance the open-loop output first/);
   }, 60_000);
 });

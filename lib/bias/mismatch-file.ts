@@ -36,7 +36,7 @@ export interface MismatchSection {
 }
 
 /** Topologies with matched devices the Monte Carlo knows. */
-export const mismatchTopologies = ["diff-pair", "diff-pair-mirror-load", "current-mirror", "cascode-mirror"] as const;
+export const mismatchTopologies = ["diff-pair", "diff-pair-mirror-load", "two-stage-miller", "current-mirror", "cascode-mirror"] as const;
 
 /** Samples when the section gives none: enough for a yield to about ±0.2 % at 99 % (common practice). */
 export const defaultMismatchSamples = 10_000;
@@ -147,7 +147,7 @@ export function mismatchReport(stage: Stage, analysis: StageAnalysis, section: M
   const st = withCoefficients(stage, section, at);
   rec?.note("Mismatch", `Pelgrom's law (Pelgrom, Duinmaijer & Welbers, IEEE JSSC 24(5), 1989), then a Monte Carlo of ${section.options.samples} samples (seed ${section.options.seed}): per-device mismatch on top of global NMOS and PMOS variation, each device through its own model at the solved point.`);
   let closedForm: MismatchReport["closedForm"];
-  if (st.topology === "diff-pair" || st.topology === "diff-pair-mirror-load") {
+  if (st.topology === "diff-pair" || st.topology === "diff-pair-mirror-load" || st.topology === "two-stage-miller") {
     const o = pairOffset(st, analysis, rec);
     closedForm = { offsetSigma: o.sigma, shares: o.shares };
   } else {

@@ -5,8 +5,10 @@
  * so each device carries σ/√2 of its own.
  *
  * Closed forms (catalog pair.catalog.ts) for the input-referred offset of a
- * differential pair (with and without the load mirror), the current error of
- * a mirror, and the gate area a target offset needs.
+ * differential pair (with and without the load mirror) and of the two-stage
+ * amplifier (its second stage and bias mirror referred through the first
+ * stage's gain; derivation in DEVELOPERS.md), the current error of a mirror,
+ * and the gate area a target offset needs.
  *
  * Monte Carlo: per-device mismatch on top of global (per-polarity, NMOS and
  * PMOS independent) threshold and k′ variation, about the solved operating
@@ -14,7 +16,7 @@
  * mobility or EKV card: `DeviceModel.current` on its parameter vector, set up
  * once) at its solved VDS and VSB; a sample shifts its gate by ΔVt and scales
  * its current by 1 + Δβ, then re-solves the balance of the circuit (a secant
- * on the gate voltage, to 1e-10 of the current). Figures: the input-referred offset of a pair, the tail current,
+ * on the gate voltage, to 1e-10 of the current). Figures: the input-referred offset of a pair or of the two-stage amplifier (o1 moved to where M6 carries M7's current), the tail current,
  * the input common-mode range; the output-current error and the compliance of
  * a mirror. Statistics stream (mean, σ, extremes, the yield of every check,
  * and each random variable's share of every figure's variance, the
@@ -26,7 +28,7 @@
 import { device } from "../device/card.js";
 import type { VectorCurrent } from "../device/model.js";
 import { modelFor, parameterVector } from "../device/models/index.js";
-import { ConvergenceError, InputError } from "../errors.js";
+import { ConvergenceError, InfeasibleError, InputError } from "../errors.js";
 import * as pf from "../formulas/pair.formulas.js";
 import type { Meters, Ratio, SiemensPerAmpere, SquareMeters, Volts, VoltMeters } from "../quantity.js";
 import type { Derivation } from "../record/derivation.js";
@@ -55,8 +57,11 @@ export function pelgrom(dev: StageDevice, origin: string, rec?: Derivation): Pai
 export interface OffsetEstimate {
   /** σ of the input-referred offset. */
   readonly sigma: Volts;
-  /** Variance shares of the input pair's ΔVt and Δβ and the load's ΔVt and Δβ (sum 1). */
-  readonly shares: { readonly inputVt: number; readonly inputBeta: number; readonly loadVt: number; readonly loadBeta: number };
+  /**
+   * Variance shares (sum 1): the input pair's ΔVt and Δβ, the load's ΔVt and Δβ, and, for the two-stage
+   * amplifier, the second stage and bias mirror (M5–M8, and the load's common level) referred through the first stage's gain.
+   */
+  readonly shares: { readonly inputVt: number; readonly inputBeta: number; readonly loadVt: number; readonly loadBeta: number; readonly secondStage: number };
 }
 
 type PairStage = { readonly topology: string; readonly device: StageDevice; readonly devices?: Readonly<Record<string, StageDevice>> };
@@ -75,19 +80,72 @@ export function pairOffset(stage: PairStage, a: StageAnalysis, rec?: Derivation)
     const v1 = inp.sigmaVt ** 2;
     const b1 = (inp.sigmaBeta / gmId) ** 2;
     const t = v1 + b1 || 1;
-    return { sigma: s, shares: { inputVt: v1 / t, inputBeta: b1 / t, loadVt: 0, loadBeta: 0 } };
+    return { sigma: s, shares: { inputVt: v1 / t, inputBeta: b1 / t, loadVt: 0, loadBeta: 0, secondStage: 0 } };
   }
   const load = pelgrom(stage.devices!.load!, "devices.load", rec);
   const gm3 = a.devices!.M3!.smallSignal.gm;
   const s = rec
-    ? rec.calc(pf.pairOffsetMirrorLoad, [inp.sigmaVt, inp.sigmaBeta, gmId, gm3, gm1, load.sigmaVt, load.sigmaBeta])
+    ? rec.calc(pf.pairOffsetMirrorLoad, [inp.sigmaVt, inp.sigmaBeta, gmId, gm3, gm1, load.sigmaVt, load.sigmaBeta], stage.topology === "two-stage-miller" ? "the first stage" : undefined)
     : pf.pairOffsetMirrorLoad.fn(inp.sigmaVt, inp.sigmaBeta, gmId, gm3, gm1, load.sigmaVt, load.sigmaBeta);
   const v1 = inp.sigmaVt ** 2;
   const b1 = (inp.sigmaBeta / gmId) ** 2;
   const v3 = (gm3 / gm1) ** 2 * load.sigmaVt ** 2;
   const b3 = (load.sigmaBeta / gmId) ** 2;
-  const t = v1 + b1 + v3 + b3 || 1;
-  return { sigma: s, shares: { inputVt: v1 / t, inputBeta: b1 / t, loadVt: v3 / t, loadBeta: b3 / t } };
+  let total = s;
+  let second = 0;
+  if (stage.topology === "two-stage-miller") {
+    const g = secondStageSpreads(stage, a, load, rec);
+    total = rec ? rec.calc(pf.twoStageOffset, [s, g.gate6, g.level3, g.reference8, g.gain]) : pf.twoStageOffset.fn(s, g.gate6, g.level3, g.reference8, g.gain);
+    second = (g.gate6 ** 2 + g.level3 ** 2 + g.reference8 ** 2) / g.gain ** 2;
+  }
+  const t = v1 + b1 + v3 + b3 + second || 1;
+  return { sigma: total, shares: { inputVt: v1 / t, inputBeta: b1 / t, loadVt: v3 / t, loadBeta: b3 / t, secondStage: second / t } };
+}
+
+/**
+ * The two-stage amplifier's mismatch is linearised about (closed form) or sampled around (Monte Carlo) an
+ * amplifying point: every device saturated, which the open-loop output only reaches at its balancing input.
+ */
+function requireAmplifying(a: StageAnalysis, origin: string): void {
+  for (const m of ["M2", "M3", "M4", "M5", "M6", "M7", "M8"]) {
+    const r = a.devices?.[m]?.region;
+    if (r !== "saturation")
+      throw new InfeasibleError(`${m} is in ${r ?? "no region"}, not saturation: the offset is defined about an amplifying point. Balance the open-loop output first (inputForOutput gives the input vid that centres it)`, `${origin}: ${m}`);
+  }
+  if (a.op.region !== "saturation") throw new InfeasibleError(`M1 is in ${a.op.region}, not saturation: balance the open-loop output first (inputForOutput gives the input vid that centres it)`, `${origin}: M1`);
+}
+
+/** Pelgrom's law for a device whose mismatch is optional (tail, second stage, bias): 0, and said so, when its card has no AVt. */
+function optionalPelgrom(dev: StageDevice, origin: string, rec?: Derivation): PairSigmas {
+  if (dev.card.avt !== undefined) return pelgrom(dev, origin, rec);
+  rec?.assume(`Card ${dev.card.name} (${origin}) gives no AVt: its mismatch taken as 0.`);
+  return { sigmaVt: 0 as Volts, sigmaBeta: 0 as Ratio };
+}
+
+/**
+ * The two-stage amplifier's second-stage spreads (V) and the first stage's gain magnitude.
+ * Linearised about the solved point, every device's ΔVt and Δβ independent: o1 must sit where M6 carries M7's
+ * current, while the first stage's symmetric point is the load's own gate level; their difference reaches the
+ * input divided by |A1|. M5 and M7 mirror M8, so M8 enters both and cancels when M6 and M3 work at equal gm/ID;
+ * the load pair enters through its common part only, which is uncorrelated with its difference in the first
+ * stage's term (derivation: DEVELOPERS.md, mismatch). The Monte Carlo solves each sample without linearising.
+ */
+function secondStageSpreads(stage: PairStage, a: StageAnalysis, load: PairSigmas, rec?: Derivation): { gate6: Volts; level3: Volts; reference8: Volts; gain: Ratio } {
+  requireAmplifying(a, "pairOffset");
+  const devs = stage.devices!;
+  const d = a.devices!;
+  const eff = (name: string) => (d[name]!.smallSignal.gm / Math.abs(d[name]!.op.channelCurrent)) as SiemensPerAmpere;
+  const s5 = optionalPelgrom(devs.tail!, "devices.tail", rec);
+  const s6 = optionalPelgrom(devs.second!, "devices.second", rec);
+  const s7 = optionalPelgrom(devs.sink!, "devices.sink", rec);
+  const s8 = devs.reference ? optionalPelgrom(devs.reference, "devices.reference", rec) : s5;
+  const [g3, g5, g6, g7, g8] = [eff("M3"), eff("M5"), eff("M6"), eff("M7"), eff("M8")];
+  const gain = Math.abs((a as StageAnalysis & { twoStage: { firstStageGain: number } }).twoStage.firstStageGain) as Ratio;
+  rec?.note("Second stage", `o1 must sit where M6 carries M7's current; its mismatch, and the tail's through the load's level, reach the input divided by the first stage's gain |A1| = ${+gain.toPrecision(4)} (nodal analysis at the solved point).`);
+  const gate6 = rec ? rec.calc(pf.secondStageGateSpread, [s6.sigmaVt, s6.sigmaBeta, s7.sigmaBeta, g7, s7.sigmaVt, g6]) : pf.secondStageGateSpread.fn(s6.sigmaVt, s6.sigmaBeta, s7.sigmaBeta, g7, s7.sigmaVt, g6);
+  const level3 = rec ? rec.calc(pf.loadLevelSpread, [s5.sigmaBeta, g5, s5.sigmaVt, g3, load.sigmaVt, load.sigmaBeta]) : pf.loadLevelSpread.fn(s5.sigmaBeta, g5, s5.sigmaVt, g3, load.sigmaVt, load.sigmaBeta);
+  const reference8 = rec ? rec.calc(pf.referenceShare, [g7, g6, g5, g3, s8.sigmaVt, s8.sigmaBeta, g8], devs.reference ? undefined : "M8 is drawn like the tail M5") : pf.referenceShare.fn(g7, g6, g5, g3, s8.sigmaVt, s8.sigmaBeta, g8);
+  return { gate6, level3, reference8, gain };
 }
 
 /** σ of the relative output-current error of a mirror pair (the current-mirror's M1/M2, or the cascode mirror's lower pair). */
@@ -181,6 +239,8 @@ interface PlanDevice {
   /** Solved VGS, VDS, VSB in device polarity; VDS follows VGS for a diode-connected device. */
   readonly vgs: number;
   readonly vds: number;
+  /** VDS this sample (device polarity): the solved one, except where a sample moves the node (the two-stage's o1). */
+  vdsNow: number;
   readonly vsb: number;
   readonly diode: boolean;
   /** Solved |Vt|, channel current magnitude, gm and saturation voltage. */
@@ -219,6 +279,7 @@ function planDevice(name: string, st: DeviceState, sd: StageDevice, sigmas: Pair
     p: parameterVector(dev),
     vgs: a.vgsDevice,
     vds: a.vdsDevice,
+    vdsNow: a.vdsDevice,
     vsb: a.vsbDevice,
     diode,
     vt: Math.abs(a.vt),
@@ -240,21 +301,31 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
   const dev = stage.device;
   const d = a.devices ?? {};
   const none = { sigmaVt: 0 as Volts, sigmaBeta: 0 as Ratio };
-  // The two-stage amplifier's offset is its first stage's (five-transistor amplifier): the second stage's
-  // mismatch reaches the input divided by the first stage's gain and is left out.
+  // The two-stage amplifier: its first stage (five-transistor amplifier) as below, with M5 and the second
+  // stage's M7 mirrored from M8 fed by iref, and o1 moved to where M6 carries M7's current.
   if (stage.topology === "diff-pair" || stage.topology === "diff-pair-mirror-load" || stage.topology === "two-stage-miller") {
     const inSig = pelgrom(dev, "device");
     const devices: PlanDevice[] = [planDevice("M1", d.M1 ?? a, dev, inSig), planDevice("M2", d.M2!, dev, inSig)];
     const tail = stage.devices?.tail;
     const mirror = stage.topology !== "diff-pair";
+    const twoStage = stage.topology === "two-stage-miller";
+    const optional = (sd: StageDevice, origin: string) => (sd.card.avt !== undefined ? pelgrom(sd, origin) : none);
     if (mirror) {
       const ld = stage.devices!.load!;
       const ls = pelgrom(ld, "devices.load");
       devices.push(planDevice("M3", d.M3!, ld, ls, true), planDevice("M4", d.M4!, ld, ls));
     }
-    if (tail) devices.push(planDevice("M5", d.M5!, tail, tail.card.avt !== undefined ? pelgrom(tail, "devices.tail") : none));
+    const tailAt = tail ? devices.length : -1;
+    if (tail) devices.push(planDevice("M5", d.M5!, tail, optional(tail, "devices.tail")));
+    if (twoStage) {
+      requireAmplifying(a, "mismatchMonteCarlo");
+      const sd = stage.devices!;
+      const ref = sd.reference ?? tail!;
+      devices.push(planDevice("M6", d.M6!, sd.second!, optional(sd.second!, "devices.second")), planDevice("M7", d.M7!, sd.sink!, optional(sd.sink!, "devices.sink")), planDevice("M8", d.M8!, ref, optional(ref, sd.reference ? "devices.reference" : "devices.tail"), true));
+    }
     const itail = tail ? 0 : stage.components.itail!;
-    const p = Float64Array.of(vdr, vsr, sign, itail, 0, tail ? 1 : 0, stage.components.rd ?? 0, mirror ? 1 : 0);
+    // p: rails, sign, ideal tail current, (unused), tail flag, rd, mirror flag, the tail's index, two-stage flag, iref
+    const p = Float64Array.of(vdr, vsr, sign, itail, 0, tail ? 1 : 0, stage.components.rd ?? 0, mirror ? 1 : 0, tailAt, twoStage ? 1 : 0, twoStage ? stage.components.iref! : 0);
     return {
       kind: mirror ? "pair-mirror" : "pair-resistive",
       devices,
@@ -448,7 +519,7 @@ export function mismatchMonteCarlo(
 
 /** Channel current of a perturbed device at gate-source voltage `x` (device polarity): ΔVt enters as a gate shift (exact for every model, whose threshold is gate-referred), Δβ as a factor on the current. */
 function perturbed(d: PlanDevice, dvt: number, beta: number, x: number): number {
-  return beta * d.current(d.p, x - dvt, d.diode ? x : d.vds, d.vsb);
+  return beta * d.current(d.p, x - dvt, d.diode ? x : d.vdsNow, d.vsb);
 }
 
 /**
@@ -517,14 +588,25 @@ function evaluate(kind: Kind, p: Float64Array, devs: readonly PlanDevice[], dvt:
     }
     return;
   }
-  // Pairs. Tail current: ideal, or M5 (last device) at its solved VGS.
-  const last = devs.length - 1;
+  // Pairs. Tail current: ideal, or M5 at its solved VGS (the two-stage's: M8's gate for iref).
+  const t = p[8]!;
   let itail = p[3]!;
   let vdsatTail = 0;
-  if (p[5]! > 0) {
-    const m5 = devs[last]!;
-    itail = perturbed(m5, dvt[last]!, beta[last]!, m5.vgs);
-    vdsatTail = m5.vdsat - dvt[last]!;
+  if (p[9]! > 0) {
+    // Two-stage: M8 carries iref; M7 sinks its mirrored current; o1 (M4's drain, M6's gate) sits where M6
+    // carries that current, so M4's and M2's VDS move by the change of M6's VGS (the output held by the loop).
+    const [m6, m7, m8] = [devs[t + 1]!, devs[t + 2]!, devs[t + 3]!];
+    const vgs8 = gateFor(m8, dvt[t + 3]!, beta[t + 3]!, undefined, 0, 0, p[10]!);
+    const shift = gateFor(m6, dvt[t + 1]!, beta[t + 1]!, undefined, 0, 0, perturbed(m7, dvt[t + 2]!, beta[t + 2]!, vgs8)) - m6.vgs;
+    devs[3]!.vdsNow = devs[3]!.vds + shift;
+    m2.vdsNow = m2.vds - shift;
+    const m5 = devs[t]!;
+    itail = perturbed(m5, dvt[t]!, beta[t]!, vgs8);
+    vdsatTail = m5.vdsat - dvt[t]!;
+  } else if (p[5]! > 0) {
+    const m5 = devs[t]!;
+    itail = perturbed(m5, dvt[t]!, beta[t]!, m5.vgs);
+    vdsatTail = m5.vdsat - dvt[t]!;
   }
   let i1 = itail / 2;
   let vgsLoad = 0;
@@ -532,6 +614,8 @@ function evaluate(kind: Kind, p: Float64Array, devs: readonly PlanDevice[], dvt:
     const m3 = devs[2]!;
     vgsLoad = gateFor(m3, dvt[2]!, beta[2]!, devs[3]!, dvt[3]!, beta[3]!, itail);
     i1 = perturbed(m3, dvt[2]!, beta[2]!, vgsLoad);
+    // M1's drain is the load's diode: its VDS moves opposite to the diode's VGS
+    m1.vdsNow = m1.vds - (vgsLoad - m3.vgs);
   }
   const vgs1 = gateFor(m1, dvt[0]!, beta[0]!, undefined, 0, 0, i1);
   const vgs2 = gateFor(m2, dvt[1]!, beta[1]!, undefined, 0, 0, itail - i1);
