@@ -269,6 +269,20 @@ describe("mismatch of the two-stage amplifier: the second stage and the bias mir
     }
   });
 
+  it("PMOS input (the circuit mirrored, sized for no systematic offset): closed form against the Monte Carlo within 3 % at 10⁵ samples", () => {
+    // (W/L)6/(W/L)4 = 2·(W/L)7/(W/L)5 with the input, tail and sink on the PMOS card and the load and M6 on the NMOS card.
+    const [s4, s5, s7] = [6.8, 9.9, 30.8];
+    const st: TwoStageStage = {
+      ...example(),
+      device: sized(6.6, quiet(pA)),
+      devices: { load: sized(s4, quiet(nA)), tail: sized(s5, noisy(pA)), second: sized((2 * s4 * s7) / s5, noisy(nA)), sink: sized(s7, noisy(pA)), reference: sized(s5, noisy(pA)) } as TwoStageStage["devices"],
+    };
+    const c = inputForOutput(st);
+    const closed = pairOffset(st, c.analysis);
+    const mc = mismatchMonteCarlo({ ...st, components: { ...st.components, vid: c.vid } } as never, c.analysis, { samples: 100_000, seed: 9 });
+    expect(Math.abs(mc.figures[0]!.sigma / closed.sigma - 1)).toBeLessThan(0.03);
+  });
+
   it("each device's threshold moves the offset as the nodal solution of the whole circuit does (inputForOutput on shifted cards), within 3 %", () => {
     // A 3 mV threshold shift on one device, all else nominal: the change of the input that holds the output
     // where it was, from the circuit solved in full (its DC solution checked against ngspice 39 Level 1 in test/bias-pairs-ngspice.test.ts),
