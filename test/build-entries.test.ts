@@ -99,4 +99,14 @@ describe("built entry points", () => {
     expect(loaded).not.toContain("node:crypto");
     expect(loaded).not.toContain("node:child_process");
   });
+
+  it("load none of Node's built-ins the core needs only at its edges (streams, os, crypto, child processes)", () => {
+    // Node's own list of the built-ins loaded so far, before and after the import.
+    const script = `const before = new Set(process.moduleLoadList); await import(${JSON.stringify(pathToFileURL(join(root, "dist/index.js")).href)}); console.log(JSON.stringify(process.moduleLoadList.filter((m) => !before.has(m))));`;
+    const r = spawnSync(process.execPath, ["--input-type=module", "-e", script], { cwd: root, encoding: "utf8" });
+    expect(r.status, r.stderr).toBe(0);
+    const added = JSON.parse(r.stdout) as string[];
+    expect(added.length).toBeGreaterThan(0); // the list is Node's, and the import does load some
+    for (const m of ["NativeModule stream", "NativeModule internal/fs/streams", "NativeModule os", "NativeModule crypto", "NativeModule child_process"]) expect(added, m).not.toContain(m);
+  });
 });
