@@ -28,20 +28,11 @@ import { packageRoot } from "../io/package-root.js";
 import { readJsonFile } from "../io/read-json.js";
 import type { Formula } from "./define.js";
 
-/** The texts of one formula as `*.texts.json` holds them, keyed by formula id. */
-export interface FormulaTexts {
-  readonly title: string;
-  readonly expr: string;
-  readonly tex: string;
-  readonly result: string;
-  readonly resultDim: string;
-  readonly vars: readonly string[];
-  readonly dims: readonly string[];
-  readonly source?: string;
-}
-
 /** The text keys of a record, in `Formula`'s order (between `id` and `fn`). */
-export const formulaTextKeys = ["title", "expr", "tex", "result", "resultDim", "vars", "dims", "source"] as const;
+export const formulaTextKeys = ["title", "expr", "tex", "result", "resultDim", "vars", "dims", "source"] as const satisfies readonly (keyof Formula)[];
+
+/** The texts of one formula as `*.texts.json` holds them, keyed by formula id. */
+export type FormulaTexts = Pick<Formula, (typeof formulaTextKeys)[number]>;
 
 /** Where a catalog's texts file lives: beside its catalog, in the package (the same file for `lib/` and `dist/`). */
 export const formulaTextsFolder = (): string => join(packageRoot(), "lib", "formulas");
