@@ -61,6 +61,25 @@ describe("generated formula records", () => {
     expect(rec.expr).toBe("k2 / k1");
   });
 
+  it("answer through an object that inherits from them, and keep a write there on that object", () => {
+    const rec = freshMirrorRatio();
+    const child = Object.create(rec) as Record<string, unknown>;
+    expect(child.expr).toBe("k2 / k1");
+    child.title = "child's own";
+    expect(child.title).toBe("child's own");
+    expect(rec.title).toBe("Mirror ratio");
+  });
+
+  it("still give their texts when frozen before reading them, and refuse a write then", () => {
+    const rec = Object.freeze(freshMirrorRatio());
+    expect(rec.tex).toBe("N = \\frac{{k_{2}}}{{k_{1}}}");
+    expect(rec.vars).toEqual(["k2", "k1"]);
+    expect(() => {
+      (rec as unknown as Record<string, unknown>).title = "x";
+    }).toThrow(/frozen or sealed before its texts were read/);
+    expect(rec.title).toBe("Mirror ratio");
+  });
+
   it("compute without their texts file, and name the file when a text is asked for", () => {
     const rec = formulaRecord<Formula<[number], number>>(new CatalogTexts("absent.texts.json"), "double", false, (x: number) => 2 * x);
     expect(rec.fn(21)).toBe(42);

@@ -15,7 +15,7 @@
  * and enumerable (spread, `Object.keys`, JSON and deep equality see the whole record).
  * Before its texts are read, the text keys are accessors; the first read or write of any
  * of them turns every text key into a plain data property, after which the record is
- * an ordinary object.
+ * an ordinary object (one frozen or sealed before that keeps its accessors, read-only).
  *
  * Failure: a texts file that is missing, unreadable, not JSON or without the record
  * (generated files out of step: run `npm run gen`) is a PinchoffError("io") naming the
@@ -63,15 +63,27 @@ function readTexts(path: string): Record<string, FormulaTexts> {
 /** Records whose texts are not read yet, with their catalog. */
 const pending = new WeakMap<object, CatalogTexts>();
 
-/** Turn every text key of a record into a data property, from its catalog's texts. */
-function fill(record: { readonly id: string }): void {
-  const catalog = pending.get(record);
-  if (!catalog) return;
-  const t = catalog.of(record.id);
-  const values: PropertyDescriptorMap = {};
-  for (const key of formulaTextKeys) if (key !== "source" || Object.hasOwn(record, "source")) values[key] = { value: t[key], writable: true, enumerable: true, configurable: true };
-  pending.delete(record);
-  Object.defineProperties(record, values);
+type PendingRecord = Record<string, unknown> & { readonly id: string };
+
+/** The record an accessor belongs to: `this`, or the prototype of `this` that is the record. */
+function recordOf(from: object): PendingRecord {
+  for (let o: object | null = from; o !== null; o = Object.getPrototypeOf(o) as object | null) if (pending.has(o)) return o as PendingRecord;
+  throw new PinchoffError("io", "a formula record's texts were asked for through an object that is not a record");
+}
+
+/**
+ * A record's texts, read from its catalog; its text keys become data properties, unless the
+ * record was frozen or sealed before (then its accessors stay and keep answering from the texts).
+ */
+function fill(record: PendingRecord): FormulaTexts {
+  const t = pending.get(record)!.of(record.id);
+  if (Object.getOwnPropertyDescriptor(record, "title")?.configurable) {
+    const values: PropertyDescriptorMap = {};
+    for (const key of formulaTextKeys) if (key !== "source" || Object.hasOwn(record, "source")) values[key] = { value: t[key], writable: true, enumerable: true, configurable: true };
+    Object.defineProperties(record, values);
+    pending.delete(record);
+  }
+  return t;
 }
 
 /** The accessors a record's text keys have until its texts are read (shared by every record). */
@@ -84,13 +96,15 @@ const accessors = (withSource: boolean): PropertyDescriptorMap =>
         {
           enumerable: true,
           configurable: true,
-          get(this: Record<string, unknown> & { id: string }) {
-            fill(this);
-            return this[key];
+          get(this: object) {
+            return fill(recordOf(this))[key];
           },
-          set(this: Record<string, unknown> & { id: string }, v: unknown) {
-            fill(this);
-            this[key] = v;
+          set(this: object, v: unknown) {
+            const record = recordOf(this);
+            fill(record);
+            if (pending.has(record)) throw new TypeError(`Cannot assign to property '${key}' of formula record ${record.id}: it was frozen or sealed before its texts were read`);
+            if (record === this) record[key] = v;
+            else Object.defineProperty(this, key, { value: v, writable: true, enumerable: true, configurable: true });
           },
         },
       ]),
