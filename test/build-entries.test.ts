@@ -6,7 +6,7 @@
  * code was linked to. Needs the built library: the test builds it when stale.
  */
 import { execFileSync, spawnSync } from "node:child_process";
-import { existsSync, readFileSync } from "node:fs";
+import { existsSync, readdirSync, readFileSync } from "node:fs";
 import { dirname, join, resolve } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import { beforeAll, describe, expect, it } from "vitest";
@@ -98,5 +98,30 @@ describe("built entry points", () => {
     expect(files.length).toBeLessThanOrEqual(4);
     expect(loaded).not.toContain("node:crypto");
     expect(loaded).not.toContain("node:child_process");
+  });
+
+  it("keep the formula records' texts out of the linked code (they are read from lib/formulas/*.texts.json on first use)", () => {
+    // the mirror ratio's TeX and title, as the generator writes them into its texts file
+    const texts = JSON.parse(readFileSync(join(root, "lib/formulas/mirror.texts.json"), "utf8")) as Record<string, { tex: string; title: string }>;
+    const { tex, title } = texts.mirrorRatio!;
+    expect(tex).toBe("N = \\frac{{k_{2}}}{{k_{1}}}");
+    const chunks = join(root, "dist/chunks");
+    const linked = [join(root, "dist/index.js"), ...readdirSync(chunks).filter((f) => f.endsWith(".js")).map((f) => join(chunks, f))];
+    expect(linked.length).toBeGreaterThan(3);
+    for (const f of linked) {
+      const code = readFileSync(f, "utf8");
+      expect(code.includes(JSON.stringify(tex).slice(1, -1)), f).toBe(false);
+      expect(code.includes(`title: ${JSON.stringify(title)}`), f).toBe(false);
+    }
+  });
+
+  it("load none of Node's built-ins the core needs only at its edges (streams, os, crypto, child processes)", () => {
+    // Node's own list of the built-ins loaded so far, before and after the import.
+    const script = `const before = new Set(process.moduleLoadList); await import(${JSON.stringify(pathToFileURL(join(root, "dist/index.js")).href)}); console.log(JSON.stringify(process.moduleLoadList.filter((m) => !before.has(m))));`;
+    const r = spawnSync(process.execPath, ["--input-type=module", "-e", script], { cwd: root, encoding: "utf8" });
+    expect(r.status, r.stderr).toBe(0);
+    const added = JSON.parse(r.stdout) as string[];
+    expect(added.length).toBeGreaterThan(0); // the list is Node's, and the import does load some
+    for (const m of ["NativeModule stream", "NativeModule internal/fs/streams", "NativeModule os", "NativeModule crypto", "NativeModule child_process"]) expect(added, m).not.toContain(m);
   });
 });

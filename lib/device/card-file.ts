@@ -5,14 +5,15 @@
  * caller says to replace; read back validated once (`checkCard`,
  * `checkCardSet`), every error naming the file.
  */
-import { existsSync, lstatSync, mkdirSync } from "node:fs";
-import { tmpdir } from "node:os";
 import { dirname, join } from "node:path";
 import { InputError, PinchoffError } from "../errors.js";
 import { writeAtomically, type FileSystemSeam } from "../io/atomic-write.js";
 import { readJsonFile } from "../io/read-json.js";
 import { checkCardSet, type CardSet } from "./card-set.js";
 import { checkCard, type DeviceCard } from "./card.js";
+import { nodeFs, nodeOs } from "../io/lazy-builtins.js";
+
+const { existsSync, lstatSync, mkdirSync } = nodeFs;
 
 /** A card or a card set, as a card file holds it. */
 export type CardFileContent = DeviceCard | CardSet;
@@ -70,7 +71,7 @@ const isLink = (p: string): boolean => {
 };
 
 /** A path for a card in the system's temporary folder (`pinchoff-cards/`), for a run that names no folder of its own. */
-export const scratchCardPath = (name: string): string => join(tmpdir(), "pinchoff-cards", name.replace(/[^\w.-]+/g, "_"));
+export const scratchCardPath = (name: string): string => join(nodeOs().tmpdir(), "pinchoff-cards", name.replace(/[^\w.-]+/g, "_"));
 
 /** Read and validate a card file: a device card or a card set. */
 export function readCardFile(path: string): CardFileContent {

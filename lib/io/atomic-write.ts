@@ -15,9 +15,9 @@
  * The file system calls go through a small seam (`FileSystemSeam`) so tests can
  * simulate a full disk, short writes and failed syncs deterministically.
  */
-import * as nodeFs from "node:fs";
+import type { Stats } from "node:fs";
 import { basename, dirname, join, resolve, sep } from "node:path";
-import { nodeCrypto } from "./lazy-builtins.js";
+import { nodeCrypto, nodeFs } from "./lazy-builtins.js";
 import { PinchoffError } from "../errors.js";
 
 /** The file system calls the writer uses; node:fs by default. */
@@ -201,7 +201,7 @@ export function removeIfEmpty(dir: string, created: string = dir): void {
 /** Refuse to replace a file unless `ours` recognises it as an earlier output of ours (`what` names the writer). */
 export function checkReplaceable(paths: readonly string[], ours: (path: string, head: string) => boolean, what = "pinchoff run", hint = "move it or choose another --out"): void {
   for (const p of paths) {
-    let st: nodeFs.Stats;
+    let st: Stats;
     try {
       st = nodeFs.lstatSync(p);
     } catch {

@@ -7,10 +7,12 @@
  * uses for a module's package scope. Found once, on first use (a few `stat`s).
  * Failure: no package.json above this file → PinchoffError naming the start.
  */
-import { existsSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { PinchoffError } from "../errors.js";
+import { nodeFs } from "./lazy-builtins.js";
+
+const { existsSync } = nodeFs;
 
 let root: string | undefined;
 

@@ -3,8 +3,10 @@
  * leading byte-order mark, parsed; an unreadable file is PinchoffError("io")
  * naming it, bad JSON an InputError("unparseable") quoting its start.
  */
-import { readFileSync } from "node:fs";
 import { InputError, PinchoffError } from "../errors.js";
+import { nodeFs } from "./lazy-builtins.js";
+
+const { readFileSync } = nodeFs;
 
 export function readJsonFile(path: string, what: string): unknown {
   let text: string;

@@ -20,17 +20,17 @@
  * library, section or device, timeout); a grid outside the process's L range or
  * supply maximum is an `InputError`.
  */
-import { mkdirSync, readFileSync, renameSync, writeFileSync } from "node:fs";
-import { availableParallelism, homedir } from "node:os";
 import { join } from "node:path";
 import { InputError } from "../errors.js";
 import type { Meters } from "../quantity.js";
 import { canonicalJson } from "../record/fingerprint.js";
-import { nodeCrypto } from "../io/lazy-builtins.js";
+import { nodeCrypto, nodeFs, nodeOs } from "../io/lazy-builtins.js";
 import { element, includeLine, libLine, spiceNumber, writeDeck } from "../spice/deck.js";
 import { column } from "../spice/raw.js";
 import { runDeck } from "../spice/run.js";
 import { checkGeometry, cornerSection, type Polarity, type ProcessDescription } from "./description.js";
+
+const { mkdirSync, readFileSync, renameSync, writeFileSync } = nodeFs;
 
 /** The stored quantities, per point, in device polarity (magnitudes), per unit width where a width enters. */
 export const tableQuantities = ["idw", "gmw", "gdsw", "gmbw", "vth", "vdsat", "cggw", "cgsw", "cgdw"] as const;
@@ -100,7 +100,7 @@ export interface CharacterizeOptions {
 /** The cache folder (documented in the module header). */
 export function cacheFolder(env: NodeJS.ProcessEnv = process.env): string {
   if (env.PINCHOFF_CACHE) return env.PINCHOFF_CACHE;
-  const base = env.XDG_CACHE_HOME || join(homedir(), ".cache");
+  const base = env.XDG_CACHE_HOME || join(nodeOs().homedir(), ".cache");
   return join(base, "pinchoff");
 }
 
@@ -232,7 +232,7 @@ export async function characterize(p: ProcessDescription, opts: CharacterizeOpti
   const s = polarity === "nmos" ? 1 : -1;
   let done = 0;
   // As many decks as cores (at most one per length), lengths dealt round-robin so each deck gets short and long ones.
-  const jobs = Math.max(1, Math.min(opts.jobs ?? availableParallelism(), grid.l.length));
+  const jobs = Math.max(1, Math.min(opts.jobs ?? nodeOs().availableParallelism(), grid.l.length));
   const groups = Array.from({ length: jobs }, (_, j) => grid.l.map((_, li) => li).filter((li) => li % jobs === j));
   const one = async (group: readonly number[]) => {
     const ls = group.map((li) => grid.l[li]!);

@@ -9,12 +9,14 @@
  * Validated once when read; every field error is an `InputError` naming the
  * field and the file. The built-in demo is `processes/gf180-3v3.json`.
  */
-import { existsSync, readFileSync } from "node:fs";
 import { dirname, isAbsolute, join, resolve } from "node:path";
+import { nodeFs } from "../io/lazy-builtins.js";
 import { packageRoot } from "../io/package-root.js";
 import { InputError, PinchoffError } from "../errors.js";
 import type { Meters, Volts } from "../quantity.js";
 import { spiceIdentifier, spicePath } from "../spice/deck.js";
+
+const { existsSync, readFileSync } = nodeFs;
 
 export type Polarity = "nmos" | "pmos";
 

@@ -22,12 +22,12 @@
  * a missing library file, section or device → SimulatorError naming it, from the log;
  * no convergence → ConvergenceError with the log excerpt.
  */
-import { nodeChildProcess } from "../io/lazy-builtins.js";
-import { accessSync, constants, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import { availableParallelism, tmpdir } from "node:os";
+import { nodeChildProcess, nodeFs, nodeOs } from "../io/lazy-builtins.js";
 import { delimiter, isAbsolute, join } from "node:path";
 import { ConvergenceError, PinchoffError } from "../errors.js";
 import { parseRaw, type RawPlot } from "./raw.js";
+
+const { accessSync, constants, mkdtempSync, readFileSync, rmSync, writeFileSync } = nodeFs;
 
 /** A simulator failure: the log excerpt is kept so a reviewer can see what ngspice said. */
 export class SimulatorError extends PinchoffError {
@@ -92,7 +92,7 @@ const outputName = /^[A-Za-z0-9_-]{1,64}\.raw$/;
 
 function prepare(run: SimulatorRun): { dir: string; deck: string } {
   for (const o of run.outputs ?? []) if (!outputName.test(o)) throw new PinchoffError("io", `output name ${JSON.stringify(o)} is not a plain *.raw file name`, run.origin);
-  const dir = mkdtempSync(join(tmpdir(), "pinchoff-spice-"));
+  const dir = mkdtempSync(join(nodeOs().tmpdir(), "pinchoff-spice-"));
   const deck = join(dir, "deck.cir");
   writeFileSync(deck, run.deck);
   writeFileSync(join(dir, ".spiceinit"), "* pinchoff: one thread per ngspice process (see lib/spice/run.ts)\nset num_threads=1\n");
@@ -135,10 +135,11 @@ export function runDeckSync(run: SimulatorRun): SimulatorResult {
 /** Asynchronous runs in flight, and those waiting for a core. */
 let running = 0;
 const waiting: Array<() => void> = [];
-const slots = Math.max(1, availableParallelism());
+/** Runs at once: one per core, counted on the first run (node:os loads then, not on import). */
+let slots: number | undefined;
 
 async function acquire(): Promise<void> {
-  if (running < slots) {
+  if (running < (slots ??= Math.max(1, nodeOs().availableParallelism()))) {
     running++;
     return;
   }
