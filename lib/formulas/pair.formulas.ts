@@ -342,60 +342,60 @@ export const pairOffsetMirrorLoad: {
 } = formulaRecord($texts, "pairOffsetMirrorLoad", true, (sVtIn: Volts, sBetaIn: Ratio, gmIdIn: SiemensPerAmpere, gmLd: Siemens, gmIn: Siemens, sVtLd: Volts, sBetaLd: Ratio): Volts => Math.sqrt((((sq(sVtIn) + sq(((sBetaIn / gmIdIn)))) + (sq(((gmLd / gmIn))) * sq(sVtLd))) + sq(((sBetaLd / gmIdIn))))) as Volts);
 
 /** Spread of the gate voltage M6 needs to carry the current M7 sinks (each device's own σ is its pair σ/√2): sG6 = sqrt((sVt6^2 + (sBeta6^2 + sBeta7^2 + (gmId7 * sVt7)^2) / gmId6^2) / 2) */
-export const secondStageGateSpread = {
-  id: "secondStageGateSpread",
-  title: "Spread of the gate voltage M6 needs to carry the current M7 sinks (each device's own σ is its pair σ/√2)",
-  expr: "sqrt((sVt6^2 + (sBeta6^2 + sBeta7^2 + (gmId7 * sVt7)^2) / gmId6^2) / 2)",
-  tex: "\\sigma_{V_{GS6}} = \\sqrt{\\frac{{{\\sigma_{\\Delta V_{t6}}}}^{2}+\\frac{{{\\sigma_{\\Delta\\beta_{6}}}}^{2}+{{\\sigma_{\\Delta\\beta_{7}}}}^{2}+{\\left({(g_m/I_D)_{7}}\\cdot{\\sigma_{\\Delta V_{t7}}}\\right)}^{2}}{{{(g_m/I_D)_{6}}}^{2}}}{2}}",
-  result: "sG6",
-  resultDim: "voltage",
-  vars: ["sVt6","sBeta6","sBeta7","gmId7","sVt7","gmId6"],
-  dims: ["voltage","dimensionless","dimensionless","inverseVoltageEfficiency","voltage","inverseVoltageEfficiency"],
-  source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989",
-  fn: (sVt6: Volts, sBeta6: Ratio, sBeta7: Ratio, gmId7: SiemensPerAmpere, sVt7: Volts, gmId6: SiemensPerAmpere): Volts => Math.sqrt((((sq(sVt6) + ((((sq(sBeta6) + sq(sBeta7)) + sq(((gmId7 * sVt7))))) / sq(gmId6)))) / 2)) as Volts,
-} as const satisfies Formula;
+export const secondStageGateSpread: {
+  readonly id: "secondStageGateSpread";
+  readonly title: "Spread of the gate voltage M6 needs to carry the current M7 sinks (each device's own σ is its pair σ/√2)";
+  readonly expr: "sqrt((sVt6^2 + (sBeta6^2 + sBeta7^2 + (gmId7 * sVt7)^2) / gmId6^2) / 2)";
+  readonly tex: "\\sigma_{V_{GS6}} = \\sqrt{\\frac{{{\\sigma_{\\Delta V_{t6}}}}^{2}+\\frac{{{\\sigma_{\\Delta\\beta_{6}}}}^{2}+{{\\sigma_{\\Delta\\beta_{7}}}}^{2}+{\\left({(g_m/I_D)_{7}}\\cdot{\\sigma_{\\Delta V_{t7}}}\\right)}^{2}}{{{(g_m/I_D)_{6}}}^{2}}}{2}}";
+  readonly result: "sG6";
+  readonly resultDim: "voltage";
+  readonly vars: readonly ["sVt6", "sBeta6", "sBeta7", "gmId7", "sVt7", "gmId6"];
+  readonly dims: readonly ["voltage", "dimensionless", "dimensionless", "inverseVoltageEfficiency", "voltage", "inverseVoltageEfficiency"];
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly fn: (sVt6: Volts, sBeta6: Ratio, sBeta7: Ratio, gmId7: SiemensPerAmpere, sVt7: Volts, gmId6: SiemensPerAmpere) => Volts;
+} = formulaRecord($texts, "secondStageGateSpread", true, (sVt6: Volts, sBeta6: Ratio, sBeta7: Ratio, gmId7: SiemensPerAmpere, sVt7: Volts, gmId6: SiemensPerAmpere): Volts => Math.sqrt((((sq(sVt6) + ((((sq(sBeta6) + sq(sBeta7)) + sq(((gmId7 * sVt7))))) / sq(gmId6)))) / 2)) as Volts);
 
 /** Spread of the load's gate level that the second stage must match: the tail current's error through M3, M4 and the load pair's common part: sG3 = sqrt((sBeta5^2 + (gmId5 * sVt5)^2) / (2 * gmIdLd^2) + (sVtLd^2 + (sBetaLd / gmIdLd)^2) / 4) */
-export const loadLevelSpread = {
-  id: "loadLevelSpread",
-  title: "Spread of the load's gate level that the second stage must match: the tail current's error through M3, M4 and the load pair's common part",
-  expr: "sqrt((sBeta5^2 + (gmId5 * sVt5)^2) / (2 * gmIdLd^2) + (sVtLd^2 + (sBetaLd / gmIdLd)^2) / 4)",
-  tex: "\\sigma_{V_{GS3}} = \\sqrt{\\frac{{{\\sigma_{\\Delta\\beta_{5}}}}^{2}+{\\left({(g_m/I_D)_{5}}\\cdot{\\sigma_{\\Delta V_{t5}}}\\right)}^{2}}{2\\cdot{{(g_m/I_D)_{3}}}^{2}}+\\frac{{{\\sigma_{\\Delta V_{t3}}}}^{2}+\\left({\\frac{{\\sigma_{\\Delta\\beta_{3}}}}{{(g_m/I_D)_{3}}}}\\right)^{2}}{4}}",
-  result: "sG3",
-  resultDim: "voltage",
-  vars: ["sBeta5","gmId5","sVt5","gmIdLd","sVtLd","sBetaLd"],
-  dims: ["dimensionless","inverseVoltageEfficiency","voltage","inverseVoltageEfficiency","voltage","dimensionless"],
-  source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989",
-  fn: (sBeta5: Ratio, gmId5: SiemensPerAmpere, sVt5: Volts, gmIdLd: SiemensPerAmpere, sVtLd: Volts, sBetaLd: Ratio): Volts => Math.sqrt(((((sq(sBeta5) + sq(((gmId5 * sVt5))))) / ((2 * sq(gmIdLd)))) + (((sq(sVtLd) + sq(((sBetaLd / gmIdLd))))) / 4))) as Volts,
-} as const satisfies Formula;
+export const loadLevelSpread: {
+  readonly id: "loadLevelSpread";
+  readonly title: "Spread of the load's gate level that the second stage must match: the tail current's error through M3, M4 and the load pair's common part";
+  readonly expr: "sqrt((sBeta5^2 + (gmId5 * sVt5)^2) / (2 * gmIdLd^2) + (sVtLd^2 + (sBetaLd / gmIdLd)^2) / 4)";
+  readonly tex: "\\sigma_{V_{GS3}} = \\sqrt{\\frac{{{\\sigma_{\\Delta\\beta_{5}}}}^{2}+{\\left({(g_m/I_D)_{5}}\\cdot{\\sigma_{\\Delta V_{t5}}}\\right)}^{2}}{2\\cdot{{(g_m/I_D)_{3}}}^{2}}+\\frac{{{\\sigma_{\\Delta V_{t3}}}}^{2}+\\left({\\frac{{\\sigma_{\\Delta\\beta_{3}}}}{{(g_m/I_D)_{3}}}}\\right)^{2}}{4}}";
+  readonly result: "sG3";
+  readonly resultDim: "voltage";
+  readonly vars: readonly ["sBeta5", "gmId5", "sVt5", "gmIdLd", "sVtLd", "sBetaLd"];
+  readonly dims: readonly ["dimensionless", "inverseVoltageEfficiency", "voltage", "inverseVoltageEfficiency", "voltage", "dimensionless"];
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly fn: (sBeta5: Ratio, gmId5: SiemensPerAmpere, sVt5: Volts, gmIdLd: SiemensPerAmpere, sVtLd: Volts, sBetaLd: Ratio) => Volts;
+} = formulaRecord($texts, "loadLevelSpread", true, (sBeta5: Ratio, gmId5: SiemensPerAmpere, sVt5: Volts, gmIdLd: SiemensPerAmpere, sVtLd: Volts, sBetaLd: Ratio): Volts => Math.sqrt(((((sq(sBeta5) + sq(((gmId5 * sVt5))))) / ((2 * sq(gmIdLd)))) + (((sq(sVtLd) + sq(((sBetaLd / gmIdLd))))) / 4))) as Volts);
 
 /** Share of the reference M8, which M5 and M7 both mirror: it cancels when M6 and M3 match at equal gm/ID: sG8 = abs(gmId7 / gmId6 - gmId5 / gmIdLd) * sqrt((sVt8^2 + (sBeta8 / gmId8)^2) / 2) */
-export const referenceShare = {
-  id: "referenceShare",
-  title: "Share of the reference M8, which M5 and M7 both mirror: it cancels when M6 and M3 match at equal gm/ID",
-  expr: "abs(gmId7 / gmId6 - gmId5 / gmIdLd) * sqrt((sVt8^2 + (sBeta8 / gmId8)^2) / 2)",
-  tex: "\\sigma_{V_{GS8}} = \\left|\\frac{{(g_m/I_D)_{7}}}{{(g_m/I_D)_{6}}}-\\frac{{(g_m/I_D)_{5}}}{{(g_m/I_D)_{3}}}\\right|\\cdot\\sqrt{\\frac{{{\\sigma_{\\Delta V_{t8}}}}^{2}+\\left({\\frac{{\\sigma_{\\Delta\\beta_{8}}}}{{(g_m/I_D)_{8}}}}\\right)^{2}}{2}}",
-  result: "sG8",
-  resultDim: "voltage",
-  vars: ["gmId7","gmId6","gmId5","gmIdLd","sVt8","sBeta8","gmId8"],
-  dims: ["inverseVoltageEfficiency","inverseVoltageEfficiency","inverseVoltageEfficiency","inverseVoltageEfficiency","voltage","dimensionless","inverseVoltageEfficiency"],
-  source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989",
-  fn: (gmId7: SiemensPerAmpere, gmId6: SiemensPerAmpere, gmId5: SiemensPerAmpere, gmIdLd: SiemensPerAmpere, sVt8: Volts, sBeta8: Ratio, gmId8: SiemensPerAmpere): Volts => (Math.abs(((gmId7 / gmId6) - (gmId5 / gmIdLd))) * Math.sqrt((((sq(sVt8) + sq(((sBeta8 / gmId8))))) / 2))) as Volts,
-} as const satisfies Formula;
+export const referenceShare: {
+  readonly id: "referenceShare";
+  readonly title: "Share of the reference M8, which M5 and M7 both mirror: it cancels when M6 and M3 match at equal gm/ID";
+  readonly expr: "abs(gmId7 / gmId6 - gmId5 / gmIdLd) * sqrt((sVt8^2 + (sBeta8 / gmId8)^2) / 2)";
+  readonly tex: "\\sigma_{V_{GS8}} = \\left|\\frac{{(g_m/I_D)_{7}}}{{(g_m/I_D)_{6}}}-\\frac{{(g_m/I_D)_{5}}}{{(g_m/I_D)_{3}}}\\right|\\cdot\\sqrt{\\frac{{{\\sigma_{\\Delta V_{t8}}}}^{2}+\\left({\\frac{{\\sigma_{\\Delta\\beta_{8}}}}{{(g_m/I_D)_{8}}}}\\right)^{2}}{2}}";
+  readonly result: "sG8";
+  readonly resultDim: "voltage";
+  readonly vars: readonly ["gmId7", "gmId6", "gmId5", "gmIdLd", "sVt8", "sBeta8", "gmId8"];
+  readonly dims: readonly ["inverseVoltageEfficiency", "inverseVoltageEfficiency", "inverseVoltageEfficiency", "inverseVoltageEfficiency", "voltage", "dimensionless", "inverseVoltageEfficiency"];
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly fn: (gmId7: SiemensPerAmpere, gmId6: SiemensPerAmpere, gmId5: SiemensPerAmpere, gmIdLd: SiemensPerAmpere, sVt8: Volts, sBeta8: Ratio, gmId8: SiemensPerAmpere) => Volts;
+} = formulaRecord($texts, "referenceShare", true, (gmId7: SiemensPerAmpere, gmId6: SiemensPerAmpere, gmId5: SiemensPerAmpere, gmIdLd: SiemensPerAmpere, sVt8: Volts, sBeta8: Ratio, gmId8: SiemensPerAmpere): Volts => (Math.abs(((gmId7 / gmId6) - (gmId5 / gmIdLd))) * Math.sqrt((((sq(sVt8) + sq(((sBeta8 / gmId8))))) / 2))) as Volts);
 
 /** Input-referred offset of the two-stage amplifier: the first stage's, plus the second stage's gate and the load's level mismatch divided by the first stage's gain: sVos = sqrt(sVos1^2 + (sG6^2 + sG3^2 + sG8^2) / A1^2) */
-export const twoStageOffset = {
-  id: "twoStageOffset",
-  title: "Input-referred offset of the two-stage amplifier: the first stage's, plus the second stage's gate and the load's level mismatch divided by the first stage's gain",
-  expr: "sqrt(sVos1^2 + (sG6^2 + sG3^2 + sG8^2) / A1^2)",
-  tex: "\\sigma_{V_{OS}} = \\sqrt{{{\\sigma_{V_{OS,1}}}}^{2}+\\frac{{{\\sigma_{V_{GS6}}}}^{2}+{{\\sigma_{V_{GS3}}}}^{2}+{{\\sigma_{V_{GS8}}}}^{2}}{{{|A_{1}|}}^{2}}}",
-  result: "sVos",
-  resultDim: "voltage",
-  vars: ["sVos1","sG6","sG3","sG8","A1"],
-  dims: ["voltage","voltage","voltage","voltage","dimensionless"],
-  source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989",
-  fn: (sVos1: Volts, sG6: Volts, sG3: Volts, sG8: Volts, A1: Ratio): Volts => Math.sqrt((sq(sVos1) + ((((sq(sG6) + sq(sG3)) + sq(sG8))) / sq(A1)))) as Volts,
-} as const satisfies Formula;
+export const twoStageOffset: {
+  readonly id: "twoStageOffset";
+  readonly title: "Input-referred offset of the two-stage amplifier: the first stage's, plus the second stage's gate and the load's level mismatch divided by the first stage's gain";
+  readonly expr: "sqrt(sVos1^2 + (sG6^2 + sG3^2 + sG8^2) / A1^2)";
+  readonly tex: "\\sigma_{V_{OS}} = \\sqrt{{{\\sigma_{V_{OS,1}}}}^{2}+\\frac{{{\\sigma_{V_{GS6}}}}^{2}+{{\\sigma_{V_{GS3}}}}^{2}+{{\\sigma_{V_{GS8}}}}^{2}}{{{|A_{1}|}}^{2}}}";
+  readonly result: "sVos";
+  readonly resultDim: "voltage";
+  readonly vars: readonly ["sVos1", "sG6", "sG3", "sG8", "A1"];
+  readonly dims: readonly ["voltage", "voltage", "voltage", "voltage", "dimensionless"];
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly fn: (sVos1: Volts, sG6: Volts, sG3: Volts, sG8: Volts, A1: Ratio) => Volts;
+} = formulaRecord($texts, "twoStageOffset", true, (sVos1: Volts, sG6: Volts, sG3: Volts, sG8: Volts, A1: Ratio): Volts => Math.sqrt((sq(sVos1) + ((((sq(sG6) + sq(sG3)) + sq(sG8))) / sq(A1)))) as Volts);
 
 /** Relative output-current error of a mirror: Δβ/β plus gm/ID·ΔVt: sIerr = sqrt(sBeta^2 + (gmIdMr * sVt)^2) */
 export const mirrorCurrentError: {
