@@ -300,7 +300,6 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
   const vsr = sign > 0 ? vss : -vdd;
   const dev = stage.device;
   const d = a.devices ?? {};
-  const none = { sigmaVt: 0 as Volts, sigmaBeta: 0 as Ratio };
   // The two-stage amplifier: its first stage (five-transistor amplifier) as below, with M5 and the second
   // stage's M7 mirrored from M8 fed by iref, and o1 moved to where M6 carries M7's current.
   if (stage.topology === "diff-pair" || stage.topology === "diff-pair-mirror-load" || stage.topology === "two-stage-miller") {
@@ -309,19 +308,18 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
     const tail = stage.devices?.tail;
     const mirror = stage.topology !== "diff-pair";
     const twoStage = stage.topology === "two-stage-miller";
-    const optional = (sd: StageDevice, origin: string) => (sd.card.avt !== undefined ? pelgrom(sd, origin) : none);
     if (mirror) {
       const ld = stage.devices!.load!;
       const ls = pelgrom(ld, "devices.load");
       devices.push(planDevice("M3", d.M3!, ld, ls, true), planDevice("M4", d.M4!, ld, ls));
     }
     const tailAt = tail ? devices.length : -1;
-    if (tail) devices.push(planDevice("M5", d.M5!, tail, optional(tail, "devices.tail")));
+    if (tail) devices.push(planDevice("M5", d.M5!, tail, optionalPelgrom(tail, "devices.tail")));
     if (twoStage) {
       requireAmplifying(a, "mismatchMonteCarlo");
       const sd = stage.devices!;
       const ref = sd.reference ?? tail!;
-      devices.push(planDevice("M6", d.M6!, sd.second!, optional(sd.second!, "devices.second")), planDevice("M7", d.M7!, sd.sink!, optional(sd.sink!, "devices.sink")), planDevice("M8", d.M8!, ref, optional(ref, sd.reference ? "devices.reference" : "devices.tail"), true));
+      devices.push(planDevice("M6", d.M6!, sd.second!, optionalPelgrom(sd.second!, "devices.second")), planDevice("M7", d.M7!, sd.sink!, optionalPelgrom(sd.sink!, "devices.sink")), planDevice("M8", d.M8!, ref, optionalPelgrom(ref, sd.reference ? "devices.reference" : "devices.tail"), true));
     }
     const itail = tail ? 0 : stage.components.itail!;
     // p: rails, sign, ideal tail current, (unused), tail flag, rd, mirror flag, the tail's index, two-stage flag, iref
@@ -353,7 +351,7 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
     let vgCas = 0;
     if (cascode) {
       const cd = stage.devices!.cascode!;
-      const cs = cd.card.avt !== undefined ? pelgrom(cd, "devices.cascode") : none;
+      const cs = optionalPelgrom(cd, "devices.cascode");
       devices.push(planDevice("M3", d.M3!, cd, cs, !wide), planDevice("M4", d.M4!, cd, cs));
       vgCas = wide ? sign * stage.components.vcas! : sign * a.nodes.a!;
     }
