@@ -26,6 +26,7 @@
  * kept beyond memory.
  */
 import { device } from "../device/card.js";
+import { evaluateFormula } from "../device/capacitance.js";
 import type { VectorCurrent } from "../device/model.js";
 import { modelFor, parameterVector } from "../device/models/index.js";
 import { ConvergenceError, InfeasibleError, InputError } from "../errors.js";
@@ -34,6 +35,7 @@ import type { Meters, Ratio, SiemensPerAmpere, SquareMeters, Volts, VoltMeters }
 import type { Derivation } from "../record/derivation.js";
 import type { DeviceCard } from "../device/card.js";
 import type { StageAnalysis, StageDevice } from "./topology.js";
+import type { TwoStageAnalysis } from "./topologies/two-stage.js";
 
 /** σ(ΔVt) and σ(Δβ/β) of a matched pair of devices drawn W × L. */
 export interface PairSigmas {
@@ -95,7 +97,7 @@ export function pairOffset(stage: PairStage, a: StageAnalysis, rec?: Derivation)
   let second = 0;
   if (stage.topology === "two-stage-miller") {
     const g = secondStageSpreads(stage, a, load, rec);
-    total = rec ? rec.calc(pf.twoStageOffset, [s, g.gate6, g.level3, g.reference8, g.gain]) : pf.twoStageOffset.fn(s, g.gate6, g.level3, g.reference8, g.gain);
+    total = evaluateFormula(pf.twoStageOffset, { sVos1: s, sG6: g.gate6, sG3: g.level3, sG8: g.reference8, A1: g.gain }, rec) as Volts;
     second = (g.gate6 ** 2 + g.level3 ** 2 + g.reference8 ** 2) / g.gain ** 2;
   }
   const t = v1 + b1 + v3 + b3 + second || 1;
@@ -140,11 +142,16 @@ function secondStageSpreads(stage: PairStage, a: StageAnalysis, load: PairSigmas
   const s7 = optionalPelgrom(devs.sink!, "devices.sink", rec);
   const s8 = devs.reference ? optionalPelgrom(devs.reference, "devices.reference", rec) : s5;
   const [g3, g5, g6, g7, g8] = [eff("M3"), eff("M5"), eff("M6"), eff("M7"), eff("M8")];
-  const gain = Math.abs((a as StageAnalysis & { twoStage: { firstStageGain: number } }).twoStage.firstStageGain) as Ratio;
+  const gain = Math.abs((a as TwoStageAnalysis).twoStage.firstStageGain) as Ratio;
   rec?.note("Second stage", `o1 must sit where M6 carries M7's current; its mismatch, and the tail's through the load's level, reach the input divided by the first stage's gain |A1| = ${+gain.toPrecision(4)} (nodal analysis at the solved point).`);
-  const gate6 = rec ? rec.calc(pf.secondStageGateSpread, [s6.sigmaVt, s6.sigmaBeta, s7.sigmaBeta, g7, s7.sigmaVt, g6]) : pf.secondStageGateSpread.fn(s6.sigmaVt, s6.sigmaBeta, s7.sigmaBeta, g7, s7.sigmaVt, g6);
-  const level3 = rec ? rec.calc(pf.loadLevelSpread, [s5.sigmaBeta, g5, s5.sigmaVt, g3, load.sigmaVt, load.sigmaBeta]) : pf.loadLevelSpread.fn(s5.sigmaBeta, g5, s5.sigmaVt, g3, load.sigmaVt, load.sigmaBeta);
-  const reference8 = rec ? rec.calc(pf.referenceShare, [g7, g6, g5, g3, s8.sigmaVt, s8.sigmaBeta, g8], devs.reference ? undefined : "M8 is drawn like the tail M5") : pf.referenceShare.fn(g7, g6, g5, g3, s8.sigmaVt, s8.sigmaBeta, g8);
+  // by symbol name, so each formula takes what it reads
+  const values = {
+    sVt5: s5.sigmaVt, sBeta5: s5.sigmaBeta, sVt6: s6.sigmaVt, sBeta6: s6.sigmaBeta, sVt7: s7.sigmaVt, sBeta7: s7.sigmaBeta, sVt8: s8.sigmaVt, sBeta8: s8.sigmaBeta,
+    sVtLd: load.sigmaVt, sBetaLd: load.sigmaBeta, gmIdLd: g3, gmId5: g5, gmId6: g6, gmId7: g7, gmId8: g8,
+  };
+  const gate6 = evaluateFormula(pf.secondStageGateSpread, values, rec) as Volts;
+  const level3 = evaluateFormula(pf.loadLevelSpread, values, rec) as Volts;
+  const reference8 = evaluateFormula(pf.referenceShare, values, rec, devs.reference ? undefined : "M8 is drawn like the tail M5") as Volts;
   return { gate6, level3, reference8, gain };
 }
 
@@ -322,8 +329,8 @@ function buildPlan(stage: PairStage & { readonly components: Readonly<Record<str
       devices.push(planDevice("M6", d.M6!, sd.second!, optionalPelgrom(sd.second!, "devices.second")), planDevice("M7", d.M7!, sd.sink!, optionalPelgrom(sd.sink!, "devices.sink")), planDevice("M8", d.M8!, ref, optionalPelgrom(ref, sd.reference ? "devices.reference" : "devices.tail"), true));
     }
     const itail = tail ? 0 : stage.components.itail!;
-    // p: rails, sign, ideal tail current, (unused), tail flag, rd, mirror flag, the tail's index, two-stage flag, iref
-    const p = Float64Array.of(vdr, vsr, sign, itail, 0, tail ? 1 : 0, stage.components.rd ?? 0, mirror ? 1 : 0, tailAt, twoStage ? 1 : 0, twoStage ? stage.components.iref! : 0);
+    // p: rails, sign, ideal tail current, (unused), the tail's index (−1: ideal), rd, mirror flag, two-stage flag, iref
+    const p = Float64Array.of(vdr, vsr, sign, itail, 0, tailAt, stage.components.rd ?? 0, mirror ? 1 : 0, twoStage ? 1 : 0, twoStage ? stage.components.iref! : 0);
     return {
       kind: mirror ? "pair-mirror" : "pair-resistive",
       devices,
@@ -587,23 +594,22 @@ function evaluate(kind: Kind, p: Float64Array, devs: readonly PlanDevice[], dvt:
     return;
   }
   // Pairs. Tail current: ideal, or M5 at its solved VGS (the two-stage's: M8's gate for iref).
-  const t = p[8]!;
+  const t = p[5]!;
   let itail = p[3]!;
   let vdsatTail = 0;
-  if (p[9]! > 0) {
-    // Two-stage: M8 carries iref; M7 sinks its mirrored current; o1 (M4's drain, M6's gate) sits where M6
-    // carries that current, so M4's and M2's VDS move by the change of M6's VGS (the output held by the loop).
-    const [m6, m7, m8] = [devs[t + 1]!, devs[t + 2]!, devs[t + 3]!];
-    const vgs8 = gateFor(m8, dvt[t + 3]!, beta[t + 3]!, undefined, 0, 0, p[10]!);
-    const shift = gateFor(m6, dvt[t + 1]!, beta[t + 1]!, undefined, 0, 0, perturbed(m7, dvt[t + 2]!, beta[t + 2]!, vgs8)) - m6.vgs;
-    devs[3]!.vdsNow = devs[3]!.vds + shift;
-    m2.vdsNow = m2.vds - shift;
+  if (t >= 0) {
     const m5 = devs[t]!;
-    itail = perturbed(m5, dvt[t]!, beta[t]!, vgs8);
-    vdsatTail = m5.vdsat - dvt[t]!;
-  } else if (p[5]! > 0) {
-    const m5 = devs[t]!;
-    itail = perturbed(m5, dvt[t]!, beta[t]!, m5.vgs);
+    let vgs5 = m5.vgs;
+    if (p[8]! > 0) {
+      // Two-stage: M8 carries iref; M7 sinks its mirrored current; o1 (M4's drain, M6's gate) sits where M6
+      // carries that current, so M4's and M2's VDS move by the change of M6's VGS (the output held by the loop).
+      const [m6, m7, m8] = [devs[t + 1]!, devs[t + 2]!, devs[t + 3]!];
+      vgs5 = gateFor(m8, dvt[t + 3]!, beta[t + 3]!, undefined, 0, 0, p[9]!);
+      const shift = gateFor(m6, dvt[t + 1]!, beta[t + 1]!, undefined, 0, 0, perturbed(m7, dvt[t + 2]!, beta[t + 2]!, vgs5)) - m6.vgs;
+      devs[3]!.vdsNow = devs[3]!.vds + shift;
+      m2.vdsNow = m2.vds - shift;
+    }
+    itail = perturbed(m5, dvt[t]!, beta[t]!, vgs5);
     vdsatTail = m5.vdsat - dvt[t]!;
   }
   let i1 = itail / 2;
