@@ -9,6 +9,7 @@ import { defineFormulas, defineSymbols } from "./define.js";
 
 const smallSignal = "small-signal model gm, gmb, gds of the square law; half-circuit and nodal analysis (common practice)";
 const pelgrom = "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+const pelgromPropagated = `${pelgrom}; referred to the input by small-signal analysis about the solved point (common practice)`;
 const regionEdge = "square-law saturation condition VDS ≥ VGS − Vt of every device (common practice)";
 
 export const symbols = defineSymbols({
@@ -225,25 +226,25 @@ export const formulas = defineFormulas({
     title: "Spread of the gate voltage M6 needs to carry the current M7 sinks (each device's own σ is its pair σ/√2)",
     result: "sG6",
     expr: "sqrt((sVt6^2 + (sBeta6^2 + sBeta7^2 + (gmId7 * sVt7)^2) / gmId6^2) / 2)",
-    source: pelgrom,
+    source: pelgromPropagated,
   },
   loadLevelSpread: {
     title: "Spread of the load's gate level that the second stage must match: the tail current's error through M3, M4 and the load pair's common part",
     result: "sG3",
     expr: "sqrt((sBeta5^2 + (gmId5 * sVt5)^2) / (2 * gmIdLd^2) + (sVtLd^2 + (sBetaLd / gmIdLd)^2) / 4)",
-    source: pelgrom,
+    source: pelgromPropagated,
   },
   referenceShare: {
     title: "Share of the reference M8, which M5 and M7 both mirror: it cancels when M6 and M3 match at equal gm/ID",
     result: "sG8",
     expr: "abs(gmId7 / gmId6 - gmId5 / gmIdLd) * sqrt((sVt8^2 + (sBeta8 / gmId8)^2) / 2)",
-    source: pelgrom,
+    source: pelgromPropagated,
   },
   twoStageOffset: {
     title: "Input-referred offset of the two-stage amplifier: the first stage's, plus the second stage's gate and the load's level mismatch divided by the first stage's gain",
     result: "sVos",
     expr: "sqrt(sVos1^2 + (sG6^2 + sG3^2 + sG8^2) / A1^2)",
-    source: pelgrom,
+    source: pelgromPropagated,
   },
   mirrorCurrentError: {
     title: "Relative output-current error of a mirror: Δβ/β plus gm/ID·ΔVt",

@@ -351,7 +351,7 @@ export const secondStageGateSpread: {
   readonly resultDim: "voltage";
   readonly vars: readonly ["sVt6", "sBeta6", "sBeta7", "gmId7", "sVt7", "gmId6"];
   readonly dims: readonly ["voltage", "dimensionless", "dimensionless", "inverseVoltageEfficiency", "voltage", "inverseVoltageEfficiency"];
-  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989; referred to the input by small-signal analysis about the solved point (common practice)";
   readonly fn: (sVt6: Volts, sBeta6: Ratio, sBeta7: Ratio, gmId7: SiemensPerAmpere, sVt7: Volts, gmId6: SiemensPerAmpere) => Volts;
 } = formulaRecord($texts, "secondStageGateSpread", true, (sVt6: Volts, sBeta6: Ratio, sBeta7: Ratio, gmId7: SiemensPerAmpere, sVt7: Volts, gmId6: SiemensPerAmpere): Volts => Math.sqrt((((sq(sVt6) + ((((sq(sBeta6) + sq(sBeta7)) + sq(((gmId7 * sVt7))))) / sq(gmId6)))) / 2)) as Volts);
 
@@ -365,7 +365,7 @@ export const loadLevelSpread: {
   readonly resultDim: "voltage";
   readonly vars: readonly ["sBeta5", "gmId5", "sVt5", "gmIdLd", "sVtLd", "sBetaLd"];
   readonly dims: readonly ["dimensionless", "inverseVoltageEfficiency", "voltage", "inverseVoltageEfficiency", "voltage", "dimensionless"];
-  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989; referred to the input by small-signal analysis about the solved point (common practice)";
   readonly fn: (sBeta5: Ratio, gmId5: SiemensPerAmpere, sVt5: Volts, gmIdLd: SiemensPerAmpere, sVtLd: Volts, sBetaLd: Ratio) => Volts;
 } = formulaRecord($texts, "loadLevelSpread", true, (sBeta5: Ratio, gmId5: SiemensPerAmpere, sVt5: Volts, gmIdLd: SiemensPerAmpere, sVtLd: Volts, sBetaLd: Ratio): Volts => Math.sqrt(((((sq(sBeta5) + sq(((gmId5 * sVt5))))) / ((2 * sq(gmIdLd)))) + (((sq(sVtLd) + sq(((sBetaLd / gmIdLd))))) / 4))) as Volts);
 
@@ -379,7 +379,7 @@ export const referenceShare: {
   readonly resultDim: "voltage";
   readonly vars: readonly ["gmId7", "gmId6", "gmId5", "gmIdLd", "sVt8", "sBeta8", "gmId8"];
   readonly dims: readonly ["inverseVoltageEfficiency", "inverseVoltageEfficiency", "inverseVoltageEfficiency", "inverseVoltageEfficiency", "voltage", "dimensionless", "inverseVoltageEfficiency"];
-  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989; referred to the input by small-signal analysis about the solved point (common practice)";
   readonly fn: (gmId7: SiemensPerAmpere, gmId6: SiemensPerAmpere, gmId5: SiemensPerAmpere, gmIdLd: SiemensPerAmpere, sVt8: Volts, sBeta8: Ratio, gmId8: SiemensPerAmpere) => Volts;
 } = formulaRecord($texts, "referenceShare", true, (gmId7: SiemensPerAmpere, gmId6: SiemensPerAmpere, gmId5: SiemensPerAmpere, gmIdLd: SiemensPerAmpere, sVt8: Volts, sBeta8: Ratio, gmId8: SiemensPerAmpere): Volts => (Math.abs(((gmId7 / gmId6) - (gmId5 / gmIdLd))) * Math.sqrt((((sq(sVt8) + sq(((sBeta8 / gmId8))))) / 2))) as Volts);
 
@@ -393,7 +393,7 @@ export const twoStageOffset: {
   readonly resultDim: "voltage";
   readonly vars: readonly ["sVos1", "sG6", "sG3", "sG8", "A1"];
   readonly dims: readonly ["voltage", "voltage", "voltage", "voltage", "dimensionless"];
-  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989";
+  readonly source: "Pelgrom, Duinmaijer & Welbers, \"Matching properties of MOS transistors\", IEEE JSSC 24(5), 1433–1440, 1989; referred to the input by small-signal analysis about the solved point (common practice)";
   readonly fn: (sVos1: Volts, sG6: Volts, sG3: Volts, sG8: Volts, A1: Ratio) => Volts;
 } = formulaRecord($texts, "twoStageOffset", true, (sVos1: Volts, sG6: Volts, sG3: Volts, sG8: Volts, A1: Ratio): Volts => Math.sqrt((sq(sVos1) + ((((sq(sG6) + sq(sG3)) + sq(sG8))) / sq(A1)))) as Volts);
 
