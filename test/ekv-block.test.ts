@@ -151,4 +151,51 @@ describe("block evaluator generation", () => {
   it("refuses a point input that is not an input", () => {
     expect(() => compositionBlock(cat, "f", { title: "t", inputs: ["kp"], pointInputs: ["VGS"], steps: ["kk"] })).toThrow(/point input VGS is not an input/);
   });
+
+  describe("a language function with a block form (wrightOmega)", () => {
+    const charges = {
+      ...formulas,
+      q: { title: "charge", result: "q", expr: "wrightOmega(VGS / UT + log(2)) / 2" },
+      fixed: { title: "fixed", result: "F", expr: "wrightOmega(lambda) + q" },
+      iq: { title: "current", result: "I", expr: "k * (q^2 + q) + wrightOmega(q - VGS) * lambda + F" },
+      nested: { title: "nested", result: "N", expr: "wrightOmega(wrightOmega(VGS))" },
+    };
+    const wc = { file: "w.catalog.ts", symbols: {}, formulas: charges };
+    const spec = { title: "t", inputs: ["kp", "WL", "UT", "lambda", "VGS"], pointInputs: ["VGS"], steps: ["q", "kk", "fixed", "iq"] } as const;
+    const code = compositionBlock(wc, "w", spec);
+
+    it("computes each call's argument in the loop before its step, calls the block form between the loops, and reads its result", () => {
+      // the first step calls it, so the first loop holds only its argument
+      expect(code).toMatch(/for \(let \$k = 0; \$k < \$m; \$k\+\+\) \{\n {6}\$f0\[\$k\] = \(\(VGS\[\$o \+ \$k\]! \/ UT\) \+ 0\.6931471805599453\); \/\/ wrightOmega argument of q\n {4}\}\n {4}wrightOmegaBlock\(\$f0, \$f0, \$m\);/);
+      expect(code).toContain("const q = ($f0[$k]! / 2); // q");
+      // the argument reads q from its own loop, where a step whose only call is hoisted (fixed) joins it
+      expect(code).toContain("$f1[$k] = (q - VGS[$o + $k]!); // wrightOmega argument of iq");
+      expect(code).toContain("const F = ($c0 + q); // fixed");
+      expect(code).toContain("wrightOmegaBlock($f1, $f1, $m);");
+      // a call whose argument is the same at every point stays a scalar call, hoisted before the loops
+      expect(code).toMatch(/const \$c\d+ = wrightOmega\(lambda\);/);
+      expect(code).not.toContain("$f2");
+    });
+
+    it("equals the point function at every point, across blocks (the generated code compiled and run)", async () => {
+      const { transformSync } = await import("esbuild");
+      const { wrightOmega, wrightOmegaBlock } = await import("../lib/numeric/wright-omega.js");
+      const js = transformSync(`${code}\nreturn wBlock;`.replace(/export function/g, "function"), { loader: "ts" }).code;
+      const block = new Function("sq", "wrightOmega", "wrightOmegaBlock", "InputError", js)((x: number) => x * x, wrightOmega, wrightOmegaBlock, InputError);
+      const n = 3 * blockSize + 5;
+      const vgs = Float64Array.from({ length: n }, (_, i) => -0.6 + (2.4 * i) / n);
+      const out = new Float64Array(n);
+      const [kp, WL, UT, lambda] = [2e-4, 12, 0.0258, 0.3];
+      block(kp, WL, UT, lambda, vgs, out, n);
+      for (let i = 0; i < n; i++) {
+        const q = wrightOmega(vgs[i]! / UT + Math.log(2)) / 2;
+        const expected = kp * WL * (q * q + q) + wrightOmega(q - vgs[i]!) * lambda + (wrightOmega(lambda) + q);
+        expect(Object.is(out[i], expected) || Math.abs(out[i]! / expected - 1) < 1e-15).toBe(true);
+      }
+    });
+
+    it("refuses a call nested in another, naming the step", () => {
+      expect(() => compositionBlock(wc, "v", { title: "t", inputs: ["VGS"], pointInputs: ["VGS"], steps: ["nested"] })).toThrow(/step nested: wrightOmega inside another block-form call/);
+    });
+  });
 });

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { omegaSegmentEdges, wrightOmega } from "../lib/numeric/wright-omega.js";
+import { omegaBlockSize, omegaSegmentEdges, wrightOmega, wrightOmegaBlock } from "../lib/numeric/wright-omega.js";
+import { InputError } from "../lib/errors.js";
 import { wrightOmegaByBisection } from "./support/reevaluate.js";
 
 // Reference: ω + ln ω = y solved by bisection on u = ln ω (test/support/reevaluate.ts), 200 halvings. Its own
@@ -67,5 +68,35 @@ describe("the Wright ω function (lib/numeric/wright-omega.ts)", () => {
     expect(wrightOmega(1e200) / (1e200 - Math.log(1e200))).toBeCloseTo(1, 15);
     expect(wrightOmega(Infinity)).toBe(Infinity);
     expect(Number.isNaN(wrightOmega(NaN))).toBe(true);
+  });
+
+  describe("block form (wrightOmegaBlock, which the generated block evaluators call)", () => {
+    // every zone, the series below −7, the far-out method above 297, segment edges and their neighbours, and the specials
+    const specials = [-Infinity, -800, -746, -740, -300, -7.000001, 1e6, 1e200, Infinity, NaN, 0, 1];
+    const grid = [...specials, ...edges.flatMap((e) => [neighbour(e, -1), e, neighbour(e, 1)])];
+    for (let k = 0; grid.length % omegaBlockSize !== 0 || grid.length < 4 * omegaBlockSize; k++) grid.push(-40 + 400 * ((k * 0.6180339887498949) % 1));
+
+    it("equals wrightOmega value by value, into another array and in place, in full and partial blocks", () => {
+      for (const count of [omegaBlockSize, 1, 37, 0]) {
+        for (let from = 0; from + count <= grid.length; from += Math.max(count, 1) * 3 + 1) {
+          const y = Float64Array.from(grid.slice(from, from + count));
+          const w = new Float64Array(count + 3).fill(7);
+          wrightOmegaBlock(y, w, count);
+          for (let k = 0; k < count; k++) if (!Object.is(w[k], wrightOmega(y[k]!))) throw new Error(`y = ${y[k]}: block ${w[k]}, scalar ${wrightOmega(y[k]!)}`);
+          for (let k = count; k < count + 3; k++) expect(w[k]).toBe(7);
+          const inPlace = Float64Array.from(y);
+          wrightOmegaBlock(inPlace, inPlace, count);
+          for (let k = 0; k < count; k++) expect(Object.is(inPlace[k], w[k])).toBe(true);
+        }
+      }
+    });
+
+    it("refuses a count beyond one block or beyond its arrays with a typed error naming the count", () => {
+      const a = new Float64Array(omegaBlockSize + 1);
+      expect(() => wrightOmegaBlock(a, a, omegaBlockSize + 1)).toThrow(InputError);
+      expect(() => wrightOmegaBlock(a, new Float64Array(3), 4)).toThrow(/got 4, expected a value count of at most 256/);
+      expect(() => wrightOmegaBlock(a, a, 2.5)).toThrow(InputError);
+      expect(() => wrightOmegaBlock(a, a, -1)).toThrow(InputError);
+    });
   });
 });

@@ -2,7 +2,7 @@
 import { CatalogTexts, formulaRecord } from "./record.js";
 import { sq } from "./define.js";
 import { InputError } from "../errors.js";
-import { wrightOmega } from "../numeric/wright-omega.js";
+import { wrightOmega, wrightOmegaBlock } from "../numeric/wright-omega.js";
 import type { Amperes, AmperesPerVoltSquared, Meters, PerVolt, Ratio, SqrtVolts, Volts, VoltsPerMeter } from "../quantity.js";
 
 const $texts = new CatalogTexts("ekv.texts.json");
@@ -317,13 +317,15 @@ const ekvChannelCurrent$VDSS = new Float64Array(256);
 const ekvChannelCurrent$Vip = new Float64Array(256);
 const ekvChannelCurrent$n = new Float64Array(256);
 const ekvChannelCurrent$qF = new Float64Array(256);
+const ekvChannelCurrent$f0 = new Float64Array(256);
+const ekvChannelCurrent$f1 = new Float64Array(256);
 
 /**
  * EKV channel current for VDS ≥ 0 in device polarity (0 where the forward current underflows), at `count` points: VGS, VDS, VSB per point from arrays, the result into out[0..count).
  * The steps of ekvChannelCurrent in 8 loops over blocks of 256 points (a new loop at each step that calls
- * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), intermediates that cross loops in module
- * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ekvChannelCurrent at every point, a masked
- * result where it returns early.
+ * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points; those with a block
+ * form take a block of arguments between loops), intermediates that cross loops in module scratch arrays (no allocation),
+ * per-device subexpressions hoisted; equal to ekvChannelCurrent at every point, a masked result where it returns early.
  */
 export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: number, gamma: number, phi: number, lambda: number, theta: number, thetaB: number, Ecrit: number, sigma: number, cit: number, UT: number, VGS: Float64Array, VDS: Float64Array, VSB: Float64Array, out: Float64Array, count: number): void {
   if (!(Number.isInteger(count) && count >= 0 && count <= out.length && count <= VGS.length && count <= VDS.length && count <= VSB.length))
@@ -337,6 +339,8 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
   const $Vip = ekvChannelCurrent$Vip;
   const $n = ekvChannelCurrent$n;
   const $qF = ekvChannelCurrent$qF;
+  const $f0 = ekvChannelCurrent$f0;
+  const $f1 = ekvChannelCurrent$f1;
   const $c0 = (gamma * Math.sqrt(phi));
   const $c1 = (sq(gamma) / 4);
   const $c2 = (gamma / 2);
@@ -359,9 +363,11 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
       $n[$k] = n;
       const Um = (UT * ((1 + (cit / n)))); // ekvNormalisingVoltage
       $Um[$k] = Um;
+      $f0[$k] = (((($VP[$k]! - VSB[$o + $k]!)) / Um) + 0.6931471805599453); // wrightOmega argument of ekvForwardCharge
     }
+    wrightOmegaBlock($f0, $f0, $m);
     for (let $k = 0; $k < $m; $k++) {
-      const qF = (wrightOmega((((($VP[$k]! - VSB[$o + $k]!)) / $Um[$k]!) + 0.6931471805599453)) / 2); // ekvForwardCharge
+      const qF = ($f0[$k]! / 2); // ekvForwardCharge
       $qF[$k] = qF;
       const IC = (sq(qF) + qF); // ekvForwardCurrent
       $IC[$k] = IC;
@@ -377,9 +383,11 @@ export function ekvChannelCurrentBlock(kp: number, W: number, L: number, Vt0: nu
     for (let $k = 0; $k < $m; $k++) {
       const Vip = (Math.sqrt((sq($VDSS[$k]!) + (sq($Um[$k]!) / 4))) - Math.sqrt((sq((((VDS[$o + $k]! / 2) - $VDSS[$k]!))) + (sq($Um[$k]!) / 4)))); // ekvLimitedDrainVoltage
       $Vip[$k] = Vip;
+      $f1[$k] = (((((($VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - Vip)) / $Um[$k]!) + 0.6931471805599453); // wrightOmega argument of ekvReverseCharge
     }
+    wrightOmegaBlock($f1, $f1, $m);
     for (let $k = 0; $k < $m; $k++) {
-      const qR = (wrightOmega((((((($VP[$k]! - VSB[$o + $k]!) - (VDS[$o + $k]! / 2)) - $Vip[$k]!)) / $Um[$k]!) + 0.6931471805599453)) / 2); // ekvReverseCharge
+      const qR = ($f1[$k]! / 2); // ekvReverseCharge
       const IRn = (sq(qR) + qR); // ekvReverseCurrent
       const Leq = (L + ((((VDS[$o + $k]! / 2) + $Vip[$k]!)) / Ecrit)); // ekvEquivalentLength
       const beta = (($c6 / Leq) / (((1 + (((theta * $n[$k]!) * $Um[$k]!) * (($qF[$k]! + qR)))) + (thetaB * VSB[$o + $k]!)))); // ekvGainFactor

@@ -7,7 +7,7 @@
  * substituted lines of lib/record/substitute.ts).
  */
 import type { MathNode } from "mathjs";
-import { wrightOmega } from "../numeric/wright-omega.js";
+import { omegaBlockSize, wrightOmega, wrightOmegaBlock } from "../numeric/wright-omega.js";
 
 export interface FormulaFunction {
   /** The plain-number implementation (one argument). */
@@ -16,11 +16,22 @@ export interface FormulaFunction {
   readonly module: string;
   readonly tex: (arg: string) => string;
   readonly text: (arg: string) => string;
+  /**
+   * The form block evaluators call (lib/formulas/generate.ts): f(x[k]) into y[k] for k < count, y may be x,
+   * equal to `impl` value by value; `name` is its export from `module`, `size` the most values one call takes.
+   */
+  readonly block?: { readonly impl: (x: Float64Array, y: Float64Array, count: number) => void; readonly name: string; readonly size: number };
 }
 
 export const formulaFunctions: Readonly<Record<string, FormulaFunction>> = {
   /** ω(y), ω + ln ω = y (the principal Lambert W of eʸ): the EKV charge–voltage relation 2q + ln q = v solved as q = ω(v + ln 2)/2. */
-  wrightOmega: { impl: wrightOmega, module: "../numeric/wright-omega.js", tex: (a) => `\\omega\\left(${a}\\right)`, text: (a) => `wrightOmega(${a})` },
+  wrightOmega: {
+    impl: wrightOmega,
+    module: "../numeric/wright-omega.js",
+    tex: (a) => `\\omega\\left(${a}\\right)`,
+    text: (a) => `wrightOmega(${a})`,
+    block: { impl: wrightOmegaBlock, name: "wrightOmegaBlock", size: omegaBlockSize },
+  },
 };
 
 type Handler = (node: MathNode, options: object) => string | undefined;

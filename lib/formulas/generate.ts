@@ -19,8 +19,11 @@
  * the processor instead of one long dependent chain per point), intermediates that a later
  * loop reads in module-level scratch arrays (allocated once at load), steps and
  * subexpressions that read no per-point value hoisted before the loops, a `when` chosen
- * per point and each `returnWhen` a masked result in the final store. The operations and
- * their order are the point function's, so the results are equal point by point.
+ * per point and each `returnWhen` a masked result in the final store. A call of a language
+ * function with a block form (functions.ts) whose argument varies by point becomes a block call
+ * between loops: the loop before computes the arguments into a scratch array, the block form
+ * replaces them by the results, the step's loop reads them. The operations and their order are
+ * the point function's, so the results are equal point by point.
  *
  * Functions: mathjs's sqrt exp log log1p abs max min atan, and the formula language's own
  * (`functions.ts`: wrightOmega), imported by the generated file from their one implementation.
@@ -33,7 +36,7 @@ import { fileURLToPath, pathToFileURL } from "node:url";
 import { parse, type MathNode } from "mathjs";
 import type { CompositionSpec, CompositionStep, FormulaSpec, SymbolSpec } from "./define.js";
 import { dimensions, type Dimension } from "../quantity.js";
-import { formulaFunctions, printFormulaFunctions } from "./functions.js";
+import { formulaFunctions, printFormulaFunctions, type FormulaFunction } from "./functions.js";
 
 const here = dirname(fileURLToPath(import.meta.url));
 
@@ -168,16 +171,44 @@ function toJs(node: MathNode, where: string, condition = false, ctx?: JsContext)
   }
 }
 
-/** Free symbols in order of first appearance. */
-function freeSymbols(node: MathNode): string[] {
+/** Free symbols in order of first appearance (outside the subtrees that `skip` holds, when given). */
+function freeSymbols(node: MathNode, skip?: ReadonlyMap<MathNode, unknown>): string[] {
   const names: string[] = [];
-  node.traverse((c, _path, parent) => {
+  const visit = (c: MathNode, parent?: MathNode) => {
+    if (skip?.has(c)) return;
     const s = c as MathNode & { name?: string };
-    const isFunctionName = parent && parent.type === "FunctionNode" && (parent as any).fn === c;
+    const isFunctionName = parent?.type === "FunctionNode" && (parent as MathNode & { fn: MathNode }).fn === c;
     // pi is the one named constant (mathjs knows it, so re-evaluation needs no input for it).
     if (c.type === "SymbolNode" && !isFunctionName && s.name !== "pi" && !names.includes(s.name!)) names.push(s.name!);
-  });
+    c.forEach((child) => visit(child, c));
+  };
+  visit(node);
   return names;
+}
+
+/** A call, in a block evaluator, of a language function with a block form: its argument goes to `scratch` a block at a time. */
+interface BlockCall {
+  node: MathNode;
+  name: string;
+  argument: MathNode;
+  block: NonNullable<FormulaFunction["block"]>;
+  scratch: string;
+}
+
+/** The calls in `node` of language functions with a block form whose argument varies from point to point. */
+function blockCalls(node: MathNode, where: string, isVarying: (node: MathNode) => boolean): Omit<BlockCall, "scratch">[] {
+  const found: Omit<BlockCall, "scratch">[] = [];
+  node.traverse((x) => {
+    const name = x.type === "FunctionNode" ? (x as MathNode & { fn: { name: string } }).fn.name : undefined;
+    const block = name ? formulaFunctions[name]?.block : undefined;
+    if (!block || !isVarying(x)) return;
+    const args = (x as MathNode & { args: MathNode[] }).args;
+    if (args.length !== 1) throw new Error(`${where}: ${name} takes one argument`);
+    if (block.size < blockSize) throw new Error(`${where}: ${block.name} takes at most ${block.size} values, fewer than a block of ${blockSize}`);
+    if (found.some((f) => f.node.filter((y) => y === x).length)) throw new Error(`${where}: ${name} inside another block-form call (write the inner one as a step of its own)`);
+    found.push({ node: x, name: name!, argument: args[0]!, block });
+  });
+  return found;
 }
 
 export function texOf(expr: string, symbols: Record<string, SymbolSpec>): string {
@@ -264,7 +295,9 @@ export const blockSize = 256;
  * (measured with the 1995 interpolation, ln²(1 + e^(v/2)), before the charge relation replaced it).
  */
 const slowFunctions = new Set(["exp", "log", "log1p", "atan", "sqrt", ...Object.keys(formulaFunctions)]);
-const callsSlow = (node: MathNode) => node.filter((x) => x.type === "FunctionNode" && slowFunctions.has((x as MathNode & { fn: { name: string } }).fn.name)).length > 0;
+/** Whether `node` calls a slow function on a per-point value (a call on per-device values only is hoisted before the loops). */
+const callsSlow = (node: MathNode, isVarying: (node: MathNode) => boolean) =>
+  node.filter((x) => x.type === "FunctionNode" && slowFunctions.has((x as MathNode & { fn: { name: string } }).fn.name) && isVarying(x)).length > 0;
 
 /**
  * The block evaluator of a composition with `pointInputs` (see the header): the same steps over
@@ -282,20 +315,21 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
   const isVarying = (node: MathNode) => freeSymbols(node).some((v) => varying.has(v));
 
   // Pass 1: each step's nodes, whether it varies from point to point, and the loop it falls in.
-  interface Item { result: string; nodes: MathNode[]; when?: MathNode; label: string; loop: number }
+  interface Item { result: string; nodes: MathNode[]; when?: MathNode; label: string; loop: number; calls: BlockCall[] }
   const items: Item[] = [];
   const exits: { cond: MathNode; value: number }[] = [];
   const before: Item[] = [];
+  const calls = new Map<MathNode, BlockCall>();
   let loop = 0;
   let lastResult = "";
   for (const step of spec.steps as readonly CompositionStep[]) {
     let item: Item;
     if (typeof step === "string") {
       const f = c.formulas[step]!;
-      item = { result: f.result, nodes: [parse(f.expr)], label: step, loop };
+      item = { result: f.result, nodes: [parse(f.expr)], label: step, loop, calls: [] };
     } else if ("when" in step) {
       const a = c.formulas[step.then]!;
-      item = { result: a.result, nodes: [parse(a.expr), parse(c.formulas[step.otherwise]!.expr)], when: parse(step.when), label: `${step.then} / ${step.otherwise}`, loop };
+      item = { result: a.result, nodes: [parse(a.expr), parse(c.formulas[step.otherwise]!.expr)], when: parse(step.when), label: `${step.then} / ${step.otherwise}`, loop, calls: [] };
     } else {
       exits.push({ cond: parse(step.returnWhen), value: step.value });
       continue;
@@ -307,25 +341,35 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
       continue;
     }
     varying.add(item.result);
-    if (items.length && all.some(callsSlow)) item.loop = ++loop;
+    item.calls = all.flatMap((node) => blockCalls(node, `${where}, step ${item.label}`, isVarying)).map((call) => ({ ...call, scratch: `$f${calls.size}` }));
+    for (const call of item.calls) calls.set(call.node, call);
+    // a step with a block call starts a new loop even as the first step: the loop before it computes the arguments
+    if (item.calls.length || (items.length && all.some((node) => callsSlow(node, isVarying)))) item.loop = ++loop;
     items.push(item);
   }
   const last = lastResult;
-  // Pass 2: an intermediate goes to a scratch array when a later loop (or the final store) reads it.
+  // Pass 2: an intermediate goes to a scratch array when a later loop (or the final store) reads it; a block
+  // call's argument is read in the loop before its step's.
   const defined = new Map(items.map((it) => [it.result, it.loop]));
   const stored = new Set<string>();
   const reads = (nodes: MathNode[], at: number) => {
-    for (const node of nodes) for (const v of freeSymbols(node)) if (defined.has(v) && defined.get(v)! < at) stored.add(v);
+    for (const node of nodes) for (const v of freeSymbols(node, calls)) if (defined.has(v) && defined.get(v)! < at) stored.add(v);
   };
-  for (const it of items) reads(it.when ? [it.when, ...it.nodes] : it.nodes, it.loop);
+  for (const it of items) {
+    reads(it.when ? [it.when, ...it.nodes] : it.nodes, it.loop);
+    reads(it.calls.map((call) => call.argument), it.loop - 1);
+  }
   reads(exits.map((e) => e.cond), loop);
 
-  // Subexpressions that read no per-point value are computed once, before the loops (same operations, same result).
+  // Subexpressions that read no per-point value are computed once, before the loops (same operations, same
+  // result); a block call reads its result array.
   const invariants = new Map<string, string>();
   let current = 0;
   const ctx: JsContext = {
     symbol: (v) => (points.includes(v) ? `${v}[$o + $k]!` : defined.has(v) && defined.get(v)! < current ? `$${v}[$k]!` : v),
     hoisted: (node) => {
+      const call = calls.get(node);
+      if (call) return `${call.scratch}[$k]!`;
       const trivial = node.type === "SymbolNode" || node.type === "ConstantNode" || node.type === "ParenthesisNode";
       if (trivial || !freeSymbols(node).length || isVarying(node)) return undefined;
       const js = node.type === "OperatorNode" && comparisons[(node as MathNode & { op: string }).op] ? toJs(node, where, true) : toJs(node, where);
@@ -334,31 +378,40 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
       return k;
     },
   };
-  const loops: string[][] = [];
+  const loops: { body: string[]; after: string[] }[] = Array.from({ length: loop + 1 }, () => ({ body: [], after: [] }));
   for (const it of items) {
+    // the arguments first, at the end of the loop before (its symbols as that loop sees them), then the calls between the loops
+    current = it.loop - 1;
+    for (const call of it.calls) {
+      loops[current]!.body.push(`      ${call.scratch}[$k] = ${toJs(call.argument, where, false, ctx)}; // ${call.name} argument of ${it.label}`);
+      loops[current]!.after.push(`    ${call.block.name}(${call.scratch}, ${call.scratch}, $m);`);
+    }
     current = it.loop;
     const [a, b] = it.nodes;
     const js = it.when ? `${toJs(it.when, where, true, ctx)} ? ${toJs(a!, where, false, ctx)} : ${toJs(b!, where, false, ctx)}` : toJs(a!, where, false, ctx);
-    (loops[it.loop] ??= []).push(`      const ${it.result} = ${js}; // ${it.label}`, ...(stored.has(it.result) ? [`      $${it.result}[$k] = ${it.result};`] : []));
+    loops[it.loop]!.body.push(`      const ${it.result} = ${js}; // ${it.label}`, ...(stored.has(it.result) ? [`      $${it.result}[$k] = ${it.result};`] : []));
   }
   current = loop;
   const store = exits.reduceRight((rest, e) => `${isVarying(e.cond) ? toJs(e.cond, where, true, ctx) : toJs(e.cond, where, true)} ? ${e.value} : ${rest}`, last);
-  (loops[loop] ??= []).push(`      out[$o + $k] = ${store};`);
+  loops[loop]!.body.push(`      out[$o + $k] = ${store};`);
   const scratch = [...stored];
+  const callScratch = [...calls.values()].map((call) => call.scratch);
   return [
     ...scratch.map((v) => `const ${id}$${v} = new Float64Array(${blockSize});`),
+    ...callScratch.map((v) => `const ${id}${v} = new Float64Array(${blockSize});`),
     "",
     `/**`,
     ` * ${spec.title}, at \`count\` points: ${points.join(", ")} per point from arrays, the result into out[0..count).`,
     ` * The steps of ${id} in ${loops.length} loops over blocks of ${blockSize} points (a new loop at each step that calls`,
-    ` * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points), intermediates that cross loops in module`,
-    ` * scratch arrays (no allocation), per-device subexpressions hoisted; equal to ${id} at every point, a masked`,
-    ` * result where it returns early.`,
+    ` * sqrt, exp, log or one of the language's own functions, so the processor overlaps independent points; those with a block`,
+    ` * form take a block of arguments between loops), intermediates that cross loops in module scratch arrays (no allocation),`,
+    ` * per-device subexpressions hoisted; equal to ${id} at every point, a masked result where it returns early.`,
     ` */`,
     `export function ${name}(${spec.inputs.map((v) => `${v}: ${points.includes(v) ? "Float64Array" : "number"}`).join(", ")}, out: Float64Array, count: number): void {`,
     `  if (!(Number.isInteger(count) && count >= 0 && count <= out.length${points.map((v) => ` && count <= ${v}.length`).join("")}))`,
     `    throw new InputError(count, "a point count no larger than the input and output arrays", ${JSON.stringify(name)});`,
     ...scratch.map((v) => `  const $${v} = ${id}$${v};`),
+    ...callScratch.map((v) => `  const ${v} = ${id}${v};`),
     ...before.map((it) => {
       const [a, b] = it.nodes;
       return `  const ${it.result} = ${it.when ? `${toJs(it.when, where, true)} ? ${toJs(a!, where)} : ${toJs(b!, where)}` : toJs(a!, where)}; // ${it.label}`;
@@ -366,7 +419,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
     ...[...invariants].map(([js, k]) => `  const ${k} = ${js};`),
     `  for (let $o = 0; $o < count; $o += ${blockSize}) {`,
     `    const $m = Math.min(${blockSize}, count - $o);`,
-    ...loops.flatMap((body) => [`    for (let $k = 0; $k < $m; $k++) {`, ...body, `    }`]),
+    ...loops.flatMap(({ body, after }) => (body.length ? [`    for (let $k = 0; $k < $m; $k++) {`, ...body, `    }`] : []).concat(after)),
     `  }`,
     `}`,
   ].join("\n");
@@ -425,7 +478,11 @@ export function generate(c: Catalog, symbols: Record<string, SymbolSpec>): { mod
     ...(texts.length ? [`import { CatalogTexts, formulaRecord } from "./record.js";`] : []),
     ...(blocks.some((b) => b.includes("sq(")) ? [`import { sq } from "./define.js";`] : []),
     ...(Object.values(c.compositions ?? {}).some((x) => x.pointInputs) ? [`import { InputError } from "../errors.js";`] : []),
-    ...[...own].sort().map((name) => `import { ${name} } from ${JSON.stringify(formulaFunctions[name]!.module)};`),
+    ...[...own].sort().map((name) => {
+      const f = formulaFunctions[name]!;
+      const block = f.block && blocks.some((b) => b.includes(`${f.block!.name}(`)) ? [f.block.name] : [];
+      return `import { ${[name, ...block].join(", ")} } from ${JSON.stringify(f.module)};`;
+    }),
     names.length ? `import type { ${names.join(", ")} } from "../quantity.js";` : "",
     "",
     // the texts of this catalog's records (title, expression, TeX, symbols, source): record.ts

@@ -30,9 +30,17 @@
  * for the start-plus-step method it replaces on −7 < y < 297; the EKV block evaluator went from 8.9 to
  * 14 M points per second of CPU with it. Evaluating the polynomial by Estrin's scheme instead of Horner's, or
  * picking the zone without branches, measured within the noise, so neither is used.
- * Allocation: one 1449-entry table on first use, nothing per call.
+ * Block form: `wrightOmegaBlock` takes up to 256 values, equal value by value. It finds every segment first and
+ * then runs the Horner chains in a loop with no branch or call (8.5–9.3 ns a value against 12.6–14.2 one call at
+ * a time). Generated block evaluators call it between their loops: inlined twice into the EKV evaluator, the
+ * scalar form left the series' `exp` call outside the compiler's inlining budget, boxing its number argument
+ * and result; with the block form the EKV block path went from 9.4 to 12.7 M points a second (best of
+ * alternating rounds, same process, results bit-identical).
+ * Allocation: one 1449-entry table on first use, four 256-entry scratch arrays and a one-entry slot at load,
+ * nothing per call.
  */
 import { exp } from "./elementary.js";
+import { InputError } from "../errors.js";
 
 /** ω(y) for y ≥ 6 from the asymptotic series in ln y and one Fritsch–Shafer–Crowley step. */
 function omegaFarOut(y: number): number {
@@ -146,15 +154,29 @@ function buildTable(): Float64Array {
   return built;
 }
 
-export function wrightOmega(y: number): number {
+/** ω below the polynomial range: the series in x = eʸ (exact to rounding there; 0 where eʸ underflows, and for −Infinity). */
+function omegaSeries(y: number): number {
+  const x = exp(y);
+  return x * (1 + x * (-1 + x * (3 / 2 + x * (-8 / 3 + x * (125 / 24 + x * (-54 / 5))))));
+}
+
+/** ω outside the polynomial range −7 ≤ y < 297: the series below it, the far-out method above it (and NaN). */
+function omegaOutside(y: number): number {
+  return y < zone0 ? omegaSeries(y) : omegaFarOut(y);
+}
+
+/** The centred variable v ∈ [−½, ½] of the last `segmentOf`, beside its returned offset (a typed slot, no allocation). */
+const segmentVariable = new Float64Array(1);
+
+/**
+ * The table offset of y's segment, its centred variable in `segmentVariable[0]`; −1 outside −7 ≤ y < 297 (and for
+ * NaN, which fails every compare). The scalar and block forms share it, so they compute alike.
+ */
+function segmentOf(y: number): number {
   let s: number;
   let base: number;
   if (y < zone1) {
-    if (y < zone0) {
-      // the series alone is exact to rounding here; 0 where eʸ underflows, and for −Infinity
-      const x = exp(y);
-      return x * (1 + x * (-1 + x * (3 / 2 + x * (-8 / 3 + x * (125 / 24 + x * (-54 / 5))))));
-    }
+    if (y < zone0) return -1;
     s = (y - zone0) * inverse0;
     base = 0;
   } else if (y < zone2) {
@@ -163,10 +185,52 @@ export function wrightOmega(y: number): number {
   } else if (y < zone3) {
     s = (y - zone2) * inverse2;
     base = base2;
-  } else return omegaFarOut(y); // and NaN, which fails every compare
+  } else return -1;
   const i = s | 0;
-  const v = s - i - 0.5;
-  const o = (base + i) * stride;
-  const c = table ?? (table = buildTable());
+  segmentVariable[0] = s - i - 0.5;
+  return (base + i) * stride;
+}
+
+/** The segment polynomial at offset o, one Horner chain in v. */
+function segmentPolynomial(c: Float64Array, o: number, v: number): number {
   return c[o]! + v * (c[o + 1]! + v * (c[o + 2]! + v * (c[o + 3]! + v * (c[o + 4]! + v * (c[o + 5]! + v * (c[o + 6]! + v * (c[o + 7]! + v * c[o + 8]!)))))));
+}
+
+export function wrightOmega(y: number): number {
+  const o = segmentOf(y);
+  if (o < 0) return omegaOutside(y);
+  return segmentPolynomial(table ?? (table = buildTable()), o, segmentVariable[0]!);
+}
+
+/** Segment offsets and centred variables of a block, between the two passes of `wrightOmegaBlock`. */
+export const omegaBlockSize = 256;
+const blockOffsets = new Int32Array(omegaBlockSize);
+const blockVariables = new Float64Array(omegaBlockSize);
+const blockOutside = new Int32Array(omegaBlockSize);
+const blockOutsideValues = new Float64Array(omegaBlockSize);
+
+/**
+ * ω(y[k]) into w[k] for k < count (count ≤ omegaBlockSize; w may be y): the block evaluators' form, equal to
+ * `wrightOmega` value by value. Three passes (segments; polynomials; the values outside the polynomial range):
+ * the polynomial pass has no branch and no call, so the processor overlaps its independent Horner chains;
+ * one call per value, branching by zone, measured about a third slower (a 256-value loop, this machine), and
+ * calls that the caller's compiler does not inline box their number arguments.
+ */
+export function wrightOmegaBlock(y: Float64Array, w: Float64Array, count: number): void {
+  if (!(Number.isInteger(count) && count >= 0 && count <= omegaBlockSize && count <= y.length && count <= w.length))
+    throw new InputError(count, `a value count of at most ${omegaBlockSize} and the arrays' lengths`, "wrightOmegaBlock");
+  const c = table ?? (table = buildTable());
+  let outside = 0;
+  for (let k = 0; k < count; k++) {
+    const o = segmentOf(y[k]!);
+    // a value outside takes segment 0 in the polynomial pass and is overwritten after it
+    blockOffsets[k] = o < 0 ? 0 : o;
+    blockVariables[k] = o < 0 ? 0 : segmentVariable[0]!;
+    if (o < 0) {
+      blockOutside[outside] = k;
+      blockOutsideValues[outside++] = y[k]!;
+    }
+  }
+  for (let k = 0; k < count; k++) w[k] = segmentPolynomial(c, blockOffsets[k]!, blockVariables[k]!);
+  for (let j = 0; j < outside; j++) w[blockOutside[j]!] = omegaOutside(blockOutsideValues[j]!);
 }
