@@ -159,6 +159,7 @@ describe("block evaluator generation", () => {
       fixed: { title: "fixed", result: "F", expr: "wrightOmega(lambda) + q" },
       iq: { title: "current", result: "I", expr: "k * (q^2 + q) + wrightOmega(q - VGS) * lambda + F" },
       nested: { title: "nested", result: "N", expr: "wrightOmega(wrightOmega(VGS))" },
+      pair: { title: "two arguments", result: "P", expr: "wrightOmega(VGS, UT)" },
     };
     const wc = { file: "w.catalog.ts", symbols: {}, formulas: charges };
     const spec = { title: "t", inputs: ["kp", "WL", "UT", "lambda", "VGS"], pointInputs: ["VGS"], steps: ["q", "kk", "fixed", "iq"] } as const;
@@ -196,6 +197,10 @@ describe("block evaluator generation", () => {
 
     it("refuses a call nested in another, naming the step", () => {
       expect(() => compositionBlock(wc, "v", { title: "t", inputs: ["VGS"], pointInputs: ["VGS"], steps: ["nested"] })).toThrow(/step nested: wrightOmega inside another block-form call/);
+    });
+
+    it("refuses a call with other than one argument, naming the step", () => {
+      expect(() => compositionBlock(wc, "v", { title: "t", inputs: ["VGS", "UT"], pointInputs: ["VGS"], steps: ["pair"] })).toThrow(/step pair: wrightOmega takes one argument/);
     });
   });
 });
