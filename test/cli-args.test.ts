@@ -65,8 +65,12 @@ describe("command-line arguments", () => {
     expect(await run(["--version"])).toMatchObject({ code: 0, out: version });
     const top = await run(["--help"]);
     expect(top.code).toBe(0);
+    const columns = new Set<number>();
     for (const name of Object.keys(commands)) {
-      expect(top.out).toContain(`  ${name}`);
+      // the name stands apart from its summary (two spaces at least), and every summary starts in one column
+      const line = top.out.split("\n").find((l) => l.startsWith(`  ${name} `));
+      expect(line).toMatch(new RegExp(`^  ${name} {2,}\\S`));
+      columns.add(line!.length - line!.slice(2 + name.length).trimStart().length);
       expect(await run([name, "--version"])).toMatchObject({ code: 0, out: version });
       const help = await run([name, "-h"]);
       expect(help.code).toBe(0);
@@ -80,6 +84,7 @@ describe("command-line arguments", () => {
       }
       expect(usageLine(spec)).toContain("[-h|--help] [--version]");
     }
+    expect(columns.size).toBe(1);
   });
 
   it("prints a file or design error once, prefixed by the command, exit 1", async () => {

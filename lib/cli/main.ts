@@ -31,7 +31,8 @@ export const commands: Record<string, Command> = {
 };
 
 export function usage(): string {
-  const rows = Object.entries(commands).map(([n, c]) => `  ${n.padEnd(10)}${c.summary}`);
+  const width = Math.max(...Object.keys(commands).map((n) => n.length)) + 2;
+  const rows = Object.entries(commands).map(([n, c]) => `  ${n.padEnd(width)}${c.summary}`);
   return ["usage: pinchoff <command> [options]", "       pinchoff --version", "", "commands:", ...rows, "", "pinchoff <command> --help for a command's options.", "", exitStatusHelp].join("\n");
 }
 
