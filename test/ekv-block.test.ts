@@ -157,7 +157,7 @@ describe("block evaluator generation", () => {
       ...formulas,
       q: { title: "charge", result: "q", expr: "wrightOmega(VGS / UT + log(2)) / 2" },
       fixed: { title: "fixed", result: "F", expr: "wrightOmega(lambda) + q" },
-      iq: { title: "current", result: "I", expr: "k * (q^2 + q) + wrightOmega(q - VGS) * lambda + F" },
+      iq: { title: "current", result: "I", expr: "k * (q^2 + q) + wrightOmega(q - VGS) * lambda + F + wrightOmega(2 * VGS / UT) * UT" },
       nested: { title: "nested", result: "N", expr: "wrightOmega(wrightOmega(VGS))" },
       pair: { title: "two arguments", result: "P", expr: "wrightOmega(VGS, UT)" },
     };
@@ -173,9 +173,12 @@ describe("block evaluator generation", () => {
       expect(code).toContain("$f1[$k] = (q - VGS[$o + $k]!); // wrightOmega argument of iq");
       expect(code).toContain("const F = ($c0 + q); // fixed");
       expect(code).toContain("wrightOmegaBlock($f1, $f1, $m);");
+      // two calls in one step, each with its own scratch array
+      expect(code).toContain("wrightOmegaBlock($f2, $f2, $m);");
+      expect(code).toMatch(/\$f1\[\$k\]! \* lambda\).*\$f2\[\$k\]! \* UT/);
       // a call whose argument is the same at every point stays a scalar call, hoisted before the loops
       expect(code).toMatch(/const \$c\d+ = wrightOmega\(lambda\);/);
-      expect(code).not.toContain("$f2");
+      expect(code).not.toContain("$f3");
     });
 
     it("equals the point function at every point, across blocks (the generated code compiled and run)", async () => {
@@ -190,7 +193,7 @@ describe("block evaluator generation", () => {
       block(kp, WL, UT, lambda, vgs, out, n);
       for (let i = 0; i < n; i++) {
         const q = wrightOmega(vgs[i]! / UT + Math.log(2)) / 2;
-        const expected = kp * WL * (q * q + q) + wrightOmega(q - vgs[i]!) * lambda + (wrightOmega(lambda) + q);
+        const expected = kp * WL * (q * q + q) + wrightOmega(q - vgs[i]!) * lambda + (wrightOmega(lambda) + q) + wrightOmega((2 * vgs[i]!) / UT) * UT;
         expect(Object.is(out[i], expected) || Math.abs(out[i]! / expected - 1) < 1e-15).toBe(true);
       }
     });

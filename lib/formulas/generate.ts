@@ -341,7 +341,7 @@ export function compositionBlock(c: Catalog, id: string, spec: CompositionSpec):
       continue;
     }
     varying.add(item.result);
-    item.calls = all.flatMap((node) => blockCalls(node, `${where}, step ${item.label}`, isVarying)).map((call) => ({ ...call, scratch: `$f${calls.size}` }));
+    item.calls = all.flatMap((node) => blockCalls(node, `${where}, step ${item.label}`, isVarying)).map((call, k) => ({ ...call, scratch: `$f${calls.size + k}` }));
     for (const call of item.calls) calls.set(call.node, call);
     // a step with a block call starts a new loop even as the first step: the loop before it computes the arguments
     if (item.calls.length || (items.length && all.some((node) => callsSlow(node, isVarying)))) item.loop = ++loop;
