@@ -9,6 +9,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { InputError, PinchoffError } from "../lib/errors.js";
+import { packageRoot } from "../lib/io/package-root.js";
 import { parseMeasurements, readMeasurements } from "../lib/measure/read.js";
 import { geometries, select } from "../lib/measure/select.js";
 
@@ -87,6 +88,11 @@ describe("bad input (typed errors naming file, line, column)", () => {
     expect(e).toBeInstanceOf(InputError);
     expect(e.message).toMatch(/a\.csv: line 1/);
     expect(e.message).toMatch(/drain-current column/);
+    expect(e.message).not.toMatch(/list of the sweeps/);
+  });
+  it("the open 180 nm kit's list of sweeps read in place of its measurements, with the file to read instead", () => {
+    const text = readFileSync(join(packageRoot(), "data/pdk180/nfet_03v3_sweeps_id.csv"), "utf8");
+    expect(() => parseMeasurements(text, "nfet_03v3_sweeps_id.csv")).toThrow(/nfet_03v3_sweeps_id\.csv: line 1: .*drain-current column.*list of the sweeps measured .*\*_meas_id\.csv/);
   });
   it("a missing voltage column", () => {
     expect(() => parseMeasurements("vgs,id\n1,1\n", "a.csv", { fixed })).toThrow(/a\.csv: line 1.*"vds" column/);

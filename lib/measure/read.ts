@@ -122,7 +122,12 @@ export function parseMeasurements(text: string, origin: string, opts: ReadOption
   const header = rows[0]!;
   const cells = readHeader(header, opts, origin);
   const idCells = cells.filter((c) => c.column === "id");
-  if (idCells.length === 0) throw new InputError(header.join(","), `a drain-current column ("id", "id (mA)", or "id (A) @ vds=0.1" per sweep; map another name with columns.id)`, `${origin}: line 1`);
+  if (idCells.length === 0) {
+    // the open 180 nm kit ships a description of its sweeps beside the measurements (data/pdk180/SOURCE.md)
+    const sweepList = header.some((h) => h.trim().toLowerCase() === "sweeps") && header.some((h) => h.trim().toLowerCase() === "const_var");
+    const hint = sweepList ? "; this looks like a list of the sweeps measured (const_var, sweeps), not the measurements: the currents are in the matching *_meas_id.csv" : "";
+    throw new InputError(header.join(","), `a drain-current column ("id", "id (mA)", or "id (A) @ vds=0.1" per sweep; map another name with columns.id)${hint}`, `${origin}: line 1`);
+  }
   const wide = idCells.some((c) => c.at);
   if (wide && idCells.some((c) => !c.at)) throw new InputError(header.join(","), "either one current column (long layout) or every current column with its fixed voltage (wide layout), not both", `${origin}: line 1`);
   if (!wide && idCells.length > 1) throw new InputError(header.join(","), "one drain-current column (two have the same name)", `${origin}: line 1`);
