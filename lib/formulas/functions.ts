@@ -7,7 +7,7 @@
  * substituted lines of lib/record/substitute.ts).
  */
 import type { MathNode } from "mathjs";
-import { omegaBlockSize, wrightOmega, wrightOmegaBlock } from "../numeric/wright-omega.js";
+import { omegaBlockSize, wrightOmega } from "../numeric/wright-omega.js";
 
 export interface FormulaFunction {
   /** The plain-number implementation (one argument). */
@@ -17,10 +17,11 @@ export interface FormulaFunction {
   readonly tex: (arg: string) => string;
   readonly text: (arg: string) => string;
   /**
-   * The form block evaluators call (lib/formulas/generate.ts): f(x[k]) into y[k] for k < count, y may be x,
-   * equal to `impl` value by value; `name` is its export from `module`, `size` the most values one call takes.
+   * The form block evaluators call (lib/formulas/generate.ts), `name(x, y, count)`: f(x[k]) into y[k] for
+   * k < count, y may be x, equal to `impl` value by value; `name` is its export from `module`, `size` the most
+   * values one call takes (test/wright-omega.test.ts holds the block form equal to the scalar one).
    */
-  readonly block?: { readonly impl: (x: Float64Array, y: Float64Array, count: number) => void; readonly name: string; readonly size: number };
+  readonly block?: { readonly name: string; readonly size: number };
 }
 
 export const formulaFunctions: Readonly<Record<string, FormulaFunction>> = {
@@ -30,7 +31,7 @@ export const formulaFunctions: Readonly<Record<string, FormulaFunction>> = {
     module: "../numeric/wright-omega.js",
     tex: (a) => `\\omega\\left(${a}\\right)`,
     text: (a) => `wrightOmega(${a})`,
-    block: { impl: wrightOmegaBlock, name: "wrightOmegaBlock", size: omegaBlockSize },
+    block: { name: "wrightOmegaBlock", size: omegaBlockSize },
   },
 };
 
